@@ -1,0 +1,149 @@
+package dls
+
+import (
+	"fmt"
+	"math"
+	"sort"
+	"strconv"
+	"strings"
+)
+
+// Origin says where a parameter value came from.
+type Origin string
+
+// Origins, highest precedence first.
+const (
+	OriginFlag    Origin = "flag"    // command line
+	OriginSheet   Origin = "sheet"   // sample sheet row
+	OriginFile    Origin = "file"    // "# key: value" line in the correlogram file
+	OriginDefault Origin = "default" // built-in or --default value
+	OriginDerived Origin = "derived" // computed by dlsbatch (e.g. solvent table)
+)
+
+func (o Origin) rank() int {
+	switch o {
+	case OriginFlag:
+		return 4
+	case OriginSheet:
+		return 3
+	case OriginFile:
+		return 2
+	case OriginDefault:
+		return 1
+	}
+	return 0
+}
+
+// Metadata keys of the input contract.
+const (
+	KeySample          = "sample"
+	KeyRun             = "run"
+	KeyTemperatureC    = "temperature_c"
+	KeyWavelengthNm    = "wavelength_nm"
+	KeyAngleDeg        = "angle_deg"
+	KeySolvent         = "solvent"
+	KeyViscosityMPaS   = "viscosity_mpas"
+	KeyRefractiveIndex = "refractive_index"
+	KeyParticleRI      = "particle_ri"
+	KeyConcentration   = "concentration_mg_ml"
+	KeyParticleDensity = "particle_density_g_cm3"
+	KeyVolumeFraction  = "volume_fraction"
+	KeyCountRateKcps   = "count_rate_kcps"
+	KeyDurationS       = "duration_s"
+)
+
+// MetadataKeys lists every key of the input contract, in the order used for
+// output.
+var MetadataKeys = []string{
+	KeySample, KeyRun, KeyTemperatureC, KeyWavelengthNm, KeyAngleDeg, KeySolvent,
+	KeyViscosityMPaS, KeyRefractiveIndex, KeyParticleRI, KeyConcentration,
+	KeyParticleDensity, KeyVolumeFraction, KeyCountRateKcps, KeyDurationS,
+}
+
+// IsMetadataKey reports whether key belongs to the input contract.
+func IsMetadataKey(key string) bool {
+	for _, k := range MetadataKeys {
+		if k == key {
+			return true
+		}
+	}
+	return false
+}
+
+// Param is one metadata value with its provenance.
+type Param struct {
+	Key    string `json:"key"`
+	Value  string `json:"value"`
+	Origin Origin `json:"origin"`
+	// Where names the place the value was taken from, e.g. "run1.csv:3" or
+	// "--set temperature_c=25".
+	Where string `json:"where"`
+}
+
+// Metadata is a set of parameters keyed by name. The zero value is empty
+// and ready to use. Set keeps the value of highest precedence.
+type Metadata struct {
+	m map[string]Param
+}
+
+// Set stores p unless a value of higher precedence is already present. A
+// value of equal precedence replaces the earlier one (the later line in a
+// file wins).
+func (md *Metadata) Set(p Param) {
+	if md.m == nil {
+		md.m = make(map[string]Param)
+	}
+	if old, ok := md.m[p.Key]; ok && old.Origin.rank() > p.Origin.rank() {
+		return
+	}
+	md.m[p.Key] = p
+}
+
+// Get returns the parameter stored under key.
+func (md Metadata) Get(key string) (Param, bool) {
+	p, ok := md.m[key]
+	return p, ok
+}
+
+// String returns the value under key, or "" when absent.
+func (md Metadata) String(key string) string { return md.m[key].Value }
+
+// Float returns the value under key as a finite number. ok is false when the
+// key is absent; err is set when it is present but not a finite number, and
+// then names where the value came from.
+func (md Metadata) Float(key string) (v float64, ok bool, err error) {
+	p, ok := md.m[key]
+	if !ok || strings.TrimSpace(p.Value) == "" {
+		return 0, false, nil
+	}
+	v, err = strconv.ParseFloat(strings.TrimSpace(p.Value), 64)
+	if err != nil {
+		return 0, true, fmt.Errorf("%s: %s=%q: %w", p.Where, key, p.Value, ErrNotANumber)
+	}
+	if math.IsNaN(v) || math.IsInf(v, 0) {
+		return 0, true, fmt.Errorf("%s: %s=%q: %w", p.Where, key, p.Value, ErrNonFinite)
+	}
+	return v, true, nil
+}
+
+// Params returns all parameters sorted by key.
+func (md Metadata) Params() []Param {
+	out := make([]Param, 0, len(md.m))
+	for _, p := range md.m {
+		out = append(out, p)
+	}
+	sort.Slice(out, func(i, j int) bool { return out[i].Key < out[j].Key })
+	return out
+}
+
+// Clone returns an independent copy.
+func (md Metadata) Clone() Metadata {
+	c := Metadata{m: make(map[string]Param, len(md.m))}
+	for k, v := range md.m {
+		c.m[k] = v
+	}
+	return c
+}
+
+// Len is the number of parameters held.
+func (md Metadata) Len() int { return len(md.m) }
