@@ -1,0 +1,97 @@
+// Command dlsbatch turns folders of dynamic light scattering correlogram
+// exports into hydrodynamic sizes. See README.md and `dlsbatch --help`.
+package main
+
+import (
+	"context"
+	"fmt"
+	"io"
+	"os"
+	"os/signal"
+	"syscall"
+)
+
+// Exit codes. Keep this list and usageText in step.
+const (
+	exitOK          = 0   // every measurement ok or warn
+	exitFatal       = 1   // nothing usable
+	exitUsage       = 2   // usage error
+	exitSomeFailed  = 3   // some measurements could not be analysed; the rest are written
+	exitInterrupted = 130 // interrupted (SIGINT/SIGTERM)
+)
+
+// env is what a subcommand may touch of the outside world; tests pass
+// buffers.
+type env struct {
+	stdin  io.Reader
+	stdout io.Writer
+	stderr io.Writer
+	// stderrIsTerminal enables the progress bar.
+	stderrIsTerminal bool
+}
+
+// subcommand is one verb of the command line.
+type subcommand struct {
+	name    string
+	summary string
+	run     func(ctx context.Context, e env, args []string) int
+}
+
+func subcommands() []subcommand {
+	return []subcommand{
+		{"run", "analyse correlogram files and folders into results", runRun},
+		{"simulate", "write synthetic correlograms of a stated population", runSimulate},
+		{"solvents", "list the solvent table with valid ranges and sources", runSolvents},
+	}
+}
+
+func main() {
+	ctx, stop := signal.NotifyContext(context.Background(), os.Interrupt, syscall.SIGTERM)
+	defer stop()
+	e := env{stdin: os.Stdin, stdout: os.Stdout, stderr: os.Stderr, stderrIsTerminal: isTerminal(os.Stderr)}
+	os.Exit(run(ctx, os.Args[1:], e))
+}
+
+// run dispatches to a subcommand and returns the exit code.
+func run(ctx context.Context, args []string, e env) int {
+	if len(args) == 0 {
+		fmt.Fprint(e.stderr, usageText())
+		return exitUsage
+	}
+	switch args[0] {
+	case "-h", "--help", "help":
+		fmt.Fprint(e.stdout, usageText())
+		return exitOK
+	case "--version", "version":
+		fmt.Fprintln(e.stdout, "dlsbatch", version)
+		return exitOK
+	}
+	for _, sc := range subcommands() {
+		if sc.name == args[0] {
+			return sc.run(ctx, e, args[1:])
+		}
+	}
+	fmt.Fprintf(e.stderr, "dlsbatch: unknown command %q\n\n%s", args[0], usageText())
+	return exitUsage
+}
+
+// version is the tool version written into outputs.
+const version = "0.1.0"
+
+func usageText() string {
+	s := "dlsbatch: dynamic light scattering correlograms to hydrodynamic sizes\n\n" +
+		"Usage:\n  dlsbatch <command> [flags]\n\nCommands:\n"
+	for _, sc := range subcommands() {
+		s += fmt.Sprintf("  %-10s %s\n", sc.name, sc.summary)
+	}
+	s += "\nRun 'dlsbatch <command> --help' for the flags of a command.\n\n" + exitCodesText
+	return s
+}
+
+const exitCodesText = `Exit codes:
+  0    every measurement analysed (status ok or warn)
+  1    fatal: nothing usable was produced
+  2    usage error (bad flag, unreadable settings)
+  3    some measurements could not be analysed (status error); the rest are written
+  130  interrupted
+`
