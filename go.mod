@@ -4,4 +4,12 @@ go 1.26.0
 
 require golang.org/x/term v0.48.0
 
-require golang.org/x/sys v0.50.0 // indirect
+require (
+	github.com/gocarina/gocsv v0.0.0-20240520201108-78e41c74b4b1 // indirect
+	github.com/mitchellh/colorstring v0.0.0-20190213212951-d06e56a500db // indirect
+	github.com/rivo/uniseg v0.4.7 // indirect
+	github.com/schollz/progressbar/v3 v3.19.1 // indirect
+	github.com/spf13/pflag v1.1.0 // indirect
+	golang.org/x/sys v0.50.0 // indirect
+	gonum.org/v1/gonum v0.17.0 // indirect
+)
