@@ -62,6 +62,10 @@ type Measurement struct {
 	TauUnit    string
 	CorrColumn string
 	HeaderLine int
+
+	// Warnings are notes from reading that do not stop the analysis (an
+	// unknown metadata key, a value given twice), each naming file and line.
+	Warnings []string
 }
 
 // ID names the measurement in messages: "file" or "file[run]".
