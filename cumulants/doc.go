@@ -1,0 +1,77 @@
+// Package cumulants fits the cumulant expansion to one DLS correlogram and
+// returns the intensity-weighted mean decay rate, its variance (the
+// polydispersity index) and the fit's diagnostics. It knows nothing of files
+// or particles: sizes come from package dls.
+//
+// # Model
+//
+// For a distribution G(Γ) of field decay rates (intensity weighted) the
+// field autocorrelation g1(τ) = ∫G(Γ)·exp(−Γτ)dΓ has the cumulant expansion
+// (Koppel 1972)
+//
+//	ln g1(τ) = −Γ̄·τ + μ2·τ²/2! − μ3·τ³/3! + …
+//
+// and the polydispersity index is PDI = μ2/Γ̄². With the Siegert relation
+// g2 = B + β·g1², two fitting methods are provided.
+//
+// Nonlinear moment fit (Frisken 2001), the default:
+//
+//	g2(τ) = B + β·exp(−2Γ̄τ)·(1 + μ2τ²/2 − μ3τ³/6)²
+//
+// with the baseline B, the coherence factor (intercept) β, Γ̄, μ2 and, at
+// third order, μ3 all free, by weighted Levenberg–Marquardt least squares
+// with an analytic Jacobian. For g1 input the square is dropped and B, β
+// play the roles of offset and amplitude of g1.
+//
+// Linear fit (the classic method of ISO 13321 and ISO 22412):
+//
+//	½·ln(g2 − B) = ½·ln β − Γ̄τ + (μ2/2)τ² − (μ3/6)τ³
+//
+// a weighted polynomial least-squares fit with B fixed beforehand at the
+// measured far-channel baseline, and weights w = 4·(g2 − B)²/σ² from error
+// propagation. Only points with g2 − B above 3σ enter, so no logarithm of a
+// noise value is ever taken.
+//
+// # Why the nonlinear fit is the default
+//
+// Frisken (2001) shows that the linear form cannot determine the baseline
+// independently: an error in the fixed B biases Γ̄ and μ2 and makes them
+// depend on the fit range. The moment form floats B, weights every point by
+// its own uncertainty in g2 (so points near the baseline, and values below
+// it, need no special treatment), and Mailer, Clegg & Pusey (2015) found it
+// robust on synthetic data with realistic noise up to σ/mean ≈ 0.6. The
+// linear fit supplies the starting values and is reported beside it.
+// Second order is the default; third order inflates the variance of Γ̄ and
+// μ2 (Koppel 1972) and is offered for broad samples with low noise.
+//
+// # Fit range
+//
+// The fit uses the channels from the first lag at or above Settings.MinTauS
+// (to drop afterpulsing or dead-time channels) up to the last channel before
+// the estimated g1 = sqrt((g2 − B₀)/β₀) falls below Settings.Cutoff (default
+// 0.1, common practice: fit to where g1 has fallen to about 0.1–0.3), with B₀
+// the mean of the far channels and β₀ the extrapolated intercept. Keeping
+// Γ̄τ ≲ 2.5 keeps the truncated second-order series valid for the narrow
+// populations it is meant for. A range-sensitivity check refits with the end
+// moved by ±25 % of the channels and reports how far Γ̄ moves.
+//
+// # Uncertainty weights
+//
+// When the measurement carries σ per point it is used. Otherwise a constant
+// σ is estimated from the scatter of the far channels about their mean
+// (median absolute deviation of successive differences), and the standard
+// errors are scaled by the fit's reduced χ².
+//
+// # References
+//
+//   - D. E. Koppel, "Analysis of macromolecular polydispersity in intensity
+//     correlation spectroscopy: the method of cumulants", J. Chem. Phys. 57,
+//     4814 (1972).
+//   - B. J. Frisken, "Revisiting the method of cumulants for the analysis of
+//     dynamic light-scattering data", Appl. Opt. 40, 4087 (2001).
+//   - A. G. Mailer, P. S. Clegg and P. N. Pusey, "Particle sizing by dynamic
+//     light scattering: non-linear cumulant analysis", J. Phys.: Condens.
+//     Matter 27, 145102 (2015).
+//   - ISO 22412:2017, Particle size analysis — Dynamic light scattering.
+//   - K. Levenberg (1944), D. W. Marquardt (1963): damped least squares.
+package cumulants

@@ -1,0 +1,352 @@
+package cumulants
+
+import (
+	"errors"
+	"fmt"
+	"math"
+	"sort"
+
+	"dlsbatch/dls"
+)
+
+// ErrNoSignal reports a correlogram whose first channels are within noise of
+// its baseline: there is nothing to fit.
+var ErrNoSignal = errors.New("no correlation above the baseline noise")
+
+// LinearEstimate holds the values of the classic linear fit of ln(g2 − B)
+// with the far-channel baseline fixed. It is always computed (it starts the
+// nonlinear fit) and reported beside the chosen method's values.
+type LinearEstimate struct {
+	GammaPerS float64
+	Mu2PerS2  float64
+	PDI       float64
+	Intercept float64
+	Points    int // channels above 3σ that entered
+}
+
+// Result is the outcome of one cumulant fit. Rates are field decay rates in
+// 1/s. Correlation-valued fields (Baseline, Fitted, Residuals, ResidualRMS)
+// are in the units of the measurement's correlation column.
+type Result struct {
+	Method Method
+	Order  int
+
+	GammaPerS   float64 // Γ̄, the intensity-weighted mean decay rate
+	GammaSEPerS float64 // standard error of Γ̄ from the fit
+	Mu2PerS2    float64 // second cumulant μ2
+	Mu3PerS3    float64 // third cumulant μ3; 0 at order 2
+	PDI         float64 // polydispersity index μ2/Γ̄²
+	PDISE       float64 // standard error of the PDI from the fit
+	Intercept   float64 // coherence factor β (amplitude of g1 for g1 input)
+	Baseline    float64 // fitted baseline B (fixed at FarBaseline for the linear method)
+
+	// FarBaseline is the mean of the far channels; BaselineReached is false
+	// when the correlation had not decayed there.
+	FarBaseline     float64
+	BaselineReached bool
+
+	ResidualRMS    float64 // rms of data − model over the fit range
+	ReducedChi2    float64 // Σ(r/σ)²/(points − parameters) over the fit range
+	SigmaEstimated bool    // σ was estimated from the far channels, not given
+
+	FitFirst, FitLast int // indices of the first and last channel fitted
+	PointsUsed        int
+	Iterations        int
+	Converged         bool
+
+	// RangeShift is the largest relative change of Γ̄ when the range end is
+	// moved by ±25 %; RangeChecked says whether the check ran.
+	RangeShift   float64
+	RangeChecked bool
+
+	Linear LinearEstimate
+
+	Fitted    []float64 // model at every lag
+	Residuals []float64 // data − model at every lag
+	Warnings  []error
+}
+
+// rangeShiftLimit is the relative change of Γ̄ under the range check above
+// which a warning is given (common practice: about 2 %).
+const rangeShiftLimit = 0.02
+
+// Fit runs a cumulant analysis of m. A nil s means DefaultSettings. Errors
+// about the data are *dls.PosError values naming the file and, where one
+// applies, the line.
+func Fit(m *dls.Measurement, s *Settings) (*Result, error) {
+	if s == nil {
+		d := DefaultSettings()
+		s = &d
+	}
+	if err := s.Validate(); err != nil {
+		return nil, err
+	}
+	p, err := prepare(m, s)
+	if err != nil {
+		return nil, err
+	}
+	res, err := p.fit(s, p.last)
+	if err != nil {
+		return nil, p.posErr(p.first, err)
+	}
+	if p.sigmaEstimated {
+		res.SigmaEstimated = true
+	}
+	res.FarBaseline = p.farBase
+	res.BaselineReached = p.baseReached
+	if !p.baseReached {
+		res.Warnings = append(res.Warnings, fmt.Errorf("baseline not reached: the correlation has not decayed by the last channels (g1 ≈ %.2g there)", p.g1Tail))
+	}
+	if s.RangeCheck {
+		p.rangeCheck(s, res)
+	}
+	if res.Mu2PerS2 < 0 {
+		res.Warnings = append(res.Warnings, fmt.Errorf("negative second cumulant (PDI %.3g): noise or a fit range too short; reported as fitted", res.PDI))
+	}
+	return res, nil
+}
+
+// prepared holds the data of one fit in the measurement's units together with
+// the estimates that set up the fit.
+type prepared struct {
+	m     *dls.Measurement
+	tau   []float64
+	y     []float64
+	sigma []float64
+	e     int // power of g1 in the model: 2 for g2 and g2m1, 1 for g1
+
+	sigmaEstimated bool
+	farBase        float64
+	amp            float64 // β₀: y − B₀ at the first channels
+	first, last    int     // fit range, inclusive
+	baseReached    bool
+	g1Tail         float64
+}
+
+func (p *prepared) posErr(i int, err error) error {
+	return &dls.PosError{File: p.m.File, Line: p.m.LineOf(i), Err: err}
+}
+
+func nominalBaseline(k dls.CorrKind) float64 {
+	if k == dls.KindG2 {
+		return 1
+	}
+	return 0
+}
+
+func prepare(m *dls.Measurement, s *Settings) (*prepared, error) {
+	n := len(m.TauS)
+	if len(m.Corr) != n || (m.Sigma != nil && len(m.Sigma) != n) {
+		panic("cumulants: lag, correlation and sigma lengths differ")
+	}
+	p := &prepared{m: m, tau: m.TauS, y: m.Corr, e: 2}
+	if m.Kind == dls.KindG1 {
+		p.e = 1
+	}
+	for i := 0; i < n; i++ {
+		if !isFinite(m.TauS[i]) || !isFinite(m.Corr[i]) || (m.Sigma != nil && !isFinite(m.Sigma[i])) {
+			return nil, p.posErr(i, fmt.Errorf("value is %w", dls.ErrNonFinite))
+		}
+		if m.TauS[i] <= 0 || (i > 0 && m.TauS[i] <= m.TauS[i-1]) {
+			return nil, p.posErr(i, fmt.Errorf("%w: lag times must be positive and increasing", dls.ErrBadLag))
+		}
+		if m.Sigma != nil && m.Sigma[i] <= 0 {
+			return nil, p.posErr(i, fmt.Errorf("%w: sigma %g must be positive", dls.ErrBadMetadata, m.Sigma[i]))
+		}
+	}
+	first := sort.SearchFloat64s(m.TauS, s.MinTauS)
+	if n-first < s.MinPoints {
+		return nil, p.posErr(first, fmt.Errorf("%w: %d channels at or above the minimum lag, need %d", dls.ErrTooFewPoints, n-first, s.MinPoints))
+	}
+	p.first = first
+
+	// Far channels: the last tenth, at least five.
+	nt := max(5, (n-first)/10)
+	tail := m.Corr[n-nt:]
+	p.farBase = mean(tail)
+	var tailSigma float64
+	if m.Sigma != nil {
+		tailSigma = median(m.Sigma[n-nt:])
+	} else {
+		tailSigma = diffNoise(tail)
+	}
+
+	headN := min(3, n-first)
+	head := mean(m.Corr[first : first+headN])
+	nom := nominalBaseline(m.Kind)
+	headAmp, tailAmp := head-nom, p.farBase-nom
+	if headAmp > 0 && tailAmp > 0.5*headAmp && headAmp > 5*tailSigma {
+		return nil, p.posErr(n-1, fmt.Errorf("%w within the lag window: the last channels are still at %.0f %% of the first (lags to %.3g s)", dls.ErrNoDecay, 100*tailAmp/headAmp, m.TauS[n-1]))
+	}
+	p.amp = head - p.farBase
+	if !(p.amp > 5*tailSigma) {
+		return nil, p.posErr(first, fmt.Errorf("%w: first channels %.4g, far channels %.4g ± %.2g", ErrNoSignal, head, p.farBase, tailSigma))
+	}
+
+	if m.Sigma != nil {
+		p.sigma = m.Sigma
+	} else {
+		// Noise-free input would give σ = 0; floor it at 1e-6 of the
+		// amplitude so that weights stay finite.
+		sg := math.Max(tailSigma, 1e-6*p.amp)
+		p.sigma = make([]float64, n)
+		for i := range p.sigma {
+			p.sigma[i] = sg
+		}
+		p.sigmaEstimated = true
+	}
+
+	// End of the fit range: the channel before g1 first stays below the
+	// cutoff for two channels in a row.
+	g1 := func(i int) float64 {
+		v := (m.Corr[i] - p.farBase) / p.amp
+		if v <= 0 {
+			return 0
+		}
+		if p.e == 2 {
+			return math.Sqrt(v)
+		}
+		return v
+	}
+	last := n - 1
+	for i := first; i < n-1; i++ {
+		if g1(i) < s.Cutoff && g1(i+1) < s.Cutoff {
+			last = i - 1
+			break
+		}
+	}
+	if last-first+1 < s.MinPoints {
+		return nil, p.posErr(first, fmt.Errorf("%w: only %d channels before g1 falls below %.2g, need %d; the decay is too fast for the lag window (first lag %.3g s)", dls.ErrTooFewPoints, last-first+1, s.Cutoff, s.MinPoints, m.TauS[first]))
+	}
+	p.last = last
+	// The baseline is reached when g1 had fallen below 0.05 before the far
+	// channels begin.
+	p.baseReached = false
+	for i := first; i < n-nt; i++ {
+		if g1(i) < 0.05 {
+			p.baseReached = true
+			break
+		}
+	}
+	p.g1Tail = g1(n - nt)
+	return p, nil
+}
+
+// fit runs the configured method over channels p.first..last.
+func (p *prepared) fit(s *Settings, last int) (*Result, error) {
+	lin, cov, err := p.linear(s.Order, last)
+	if err != nil {
+		return nil, err
+	}
+	r := &Result{Method: s.Method, Order: s.Order, FitFirst: p.first, FitLast: last, PointsUsed: last - p.first + 1, Linear: lin}
+	switch s.Method {
+	case Linear:
+		r.GammaPerS, r.Mu2PerS2, r.PDI, r.Intercept = lin.GammaPerS, lin.Mu2PerS2, lin.PDI, lin.Intercept
+		r.Mu3PerS3 = cov.mu3
+		r.Baseline = p.farBase
+		r.Converged = true
+		r.PointsUsed = lin.Points
+		p.finish(r, last, 3+s.Order-2)
+		r.GammaSEPerS, r.PDISE = cov.seGamma*math.Sqrt(r.scaleChi()), cov.sePDI*math.Sqrt(r.scaleChi())
+	case Nonlinear:
+		if err := p.nonlinear(s, lin, last, r); err != nil {
+			return nil, err
+		}
+	}
+	return r, nil
+}
+
+// scaleChi is the factor applied to the covariance: the reduced χ² when σ
+// was estimated, else 1.
+func (r *Result) scaleChi() float64 {
+	if r.SigmaEstimated && r.ReducedChi2 > 0 {
+		return r.ReducedChi2
+	}
+	return 1
+}
+
+// finish fills the model curve, residuals and goodness of fit.
+func (p *prepared) finish(r *Result, last, nParams int) {
+	n := len(p.tau)
+	r.Fitted = make([]float64, n)
+	r.Residuals = make([]float64, n)
+	var ss, chi float64
+	for i := 0; i < n; i++ {
+		t := p.tau[i]
+		f := math.Exp(-r.GammaPerS*t) * (1 + r.Mu2PerS2*t*t/2 - r.Mu3PerS3*t*t*t/6)
+		if p.e == 2 {
+			f *= f
+		}
+		r.Fitted[i] = r.Baseline + r.Intercept*f
+		r.Residuals[i] = p.y[i] - r.Fitted[i]
+		if i >= p.first && i <= last {
+			ss += r.Residuals[i] * r.Residuals[i]
+			z := r.Residuals[i] / p.sigma[i]
+			chi += z * z
+		}
+	}
+	k := last - p.first + 1
+	r.ResidualRMS = math.Sqrt(ss / float64(k))
+	if k > nParams {
+		r.ReducedChi2 = chi / float64(k-nParams)
+	}
+	r.SigmaEstimated = p.sigmaEstimated
+}
+
+// rangeCheck refits with the end of the range moved by ±25 % of its length.
+func (p *prepared) rangeCheck(s *Settings, r *Result) {
+	span := r.FitLast - p.first
+	ends := []int{p.first + int(math.Round(0.75*float64(span))), min(len(p.tau)-1, p.first+int(math.Round(1.25*float64(span))))}
+	shift := 0.0
+	ran := false
+	for _, end := range ends {
+		if end == r.FitLast || end-p.first+1 < s.MinPoints {
+			continue
+		}
+		alt, err := p.fit(s, end)
+		if err != nil || !(alt.GammaPerS > 0) {
+			continue
+		}
+		ran = true
+		shift = math.Max(shift, math.Abs(alt.GammaPerS-r.GammaPerS)/r.GammaPerS)
+	}
+	r.RangeChecked = ran
+	r.RangeShift = shift
+	if ran && shift > rangeShiftLimit {
+		r.Warnings = append(r.Warnings, fmt.Errorf("fit range sensitive: mean decay rate moves %.1f %% when the range end moves by 25 %%", 100*shift))
+	}
+}
+
+func isFinite(v float64) bool { return !math.IsNaN(v) && !math.IsInf(v, 0) }
+
+func mean(v []float64) float64 {
+	s := 0.0
+	for _, x := range v {
+		s += x
+	}
+	return s / float64(len(v))
+}
+
+func median(v []float64) float64 {
+	c := append([]float64(nil), v...)
+	sort.Float64s(c)
+	k := len(c)
+	if k%2 == 1 {
+		return c[k/2]
+	}
+	return (c[k/2-1] + c[k/2]) / 2
+}
+
+// diffNoise estimates the standard deviation of white noise on v from the
+// median absolute successive difference: for independent normal errors the
+// difference has standard deviation σ√2 and its MAD is 0.6745·σ√2.
+func diffNoise(v []float64) float64 {
+	if len(v) < 2 {
+		return 0
+	}
+	d := make([]float64, len(v)-1)
+	for i := range d {
+		d[i] = math.Abs(v[i+1] - v[i])
+	}
+	return median(d) / (0.6745 * math.Sqrt2)
+}
