@@ -1,0 +1,244 @@
+package batch
+
+import (
+	"errors"
+	"fmt"
+	"math"
+	"path/filepath"
+	"strings"
+
+	"dlsbatch/cumulants"
+	"dlsbatch/dls"
+)
+
+// Settings control the analysis of every measurement in a batch. Start
+// from DefaultSettings.
+type Settings struct {
+	Cumulants cumulants.Settings
+	// Overrides are applied over every measurement's metadata with
+	// dls.OriginFlag precedence; Defaults fill keys that no other source
+	// gives, with dls.OriginDefault.
+	Overrides []dls.Param
+	Defaults  []dls.Param
+	// Extrapolate allows solvent correlations outside their valid range,
+	// with a warning on every result touched.
+	Extrapolate bool
+	// KeepCurves stores data, fit and residuals in each result.
+	KeepCurves bool
+}
+
+// DefaultSettings returns the documented defaults: cumulants.DefaultSettings,
+// no overrides, solvent water by default (reported as an assumption), no
+// extrapolation, curves kept.
+func DefaultSettings() Settings {
+	return Settings{
+		Cumulants:  cumulants.DefaultSettings(),
+		Defaults:   []dls.Param{{Key: dls.KeySolvent, Value: "water", Origin: dls.OriginDefault, Where: "built-in default"}},
+		KeepCurves: true,
+	}
+}
+
+// Analyze runs the per-measurement pipeline: metadata precedence, medium
+// properties, cumulant fit and Stokes–Einstein. It never returns nil and
+// never panics on bad data: failures give StatusError with a message that
+// names file and line.
+func Analyze(m *dls.Measurement, s *Settings) *dls.Result {
+	meta := m.Meta.Clone()
+	for _, p := range s.Overrides {
+		meta.Set(p)
+	}
+	for _, p := range s.Defaults {
+		if _, ok := meta.Get(p.Key); !ok {
+			meta.Set(p)
+		}
+	}
+	if _, ok := meta.Get(dls.KeySample); !ok {
+		stem := strings.TrimSuffix(filepath.Base(m.File), filepath.Ext(m.File))
+		meta.Set(dls.Param{Key: dls.KeySample, Value: stem, Origin: dls.OriginDefault, Where: "file name"})
+	}
+	r := &dls.Result{
+		File:              m.File,
+		Run:               m.Run,
+		Sample:            meta.String(dls.KeySample),
+		CorrelationColumn: m.CorrColumn,
+		Params:            meta.Params(),
+	}
+	warn := append([]string(nil), m.Warnings...)
+	if p, ok := meta.Get(dls.KeySolvent); ok && p.Origin == dls.OriginDefault {
+		warn = append(warn, fmt.Sprintf("solvent not given: %s assumed (%s)", p.Value, p.Where))
+	}
+	fail := func(err error) *dls.Result {
+		var pe *dls.PosError
+		if !errors.As(err, &pe) {
+			err = &dls.PosError{File: m.File, Line: m.HeaderLine, Err: err}
+		}
+		r.Status = dls.StatusError
+		r.Message = err.Error()
+		r.Warnings = warn
+		return r
+	}
+
+	cond, cw, err := conditions(m, meta, s)
+	if err != nil {
+		return fail(err)
+	}
+	warn = append(warn, cw...)
+	r.HasConditions = true
+	r.TemperatureC = cond.tempC
+	r.Solvent = cond.solvent
+	r.ViscosityMPaS = cond.etaPaS * 1e3
+	r.RefractiveIndex = cond.optics.RefractiveIndex
+	r.WavelengthNm = cond.optics.WavelengthM * 1e9
+	r.AngleDeg = cond.optics.AngleRad * 180 / math.Pi
+	r.QPerM = cond.optics.Q()
+	r.ViscositySource, r.IndexSource = cond.etaSource, cond.nSource
+	if v, ok, err := meta.Float(dls.KeyCountRateKcps); err != nil {
+		return fail(err)
+	} else if ok {
+		r.CountRateKcps, r.HasCountRate = v, true
+	}
+	if v, ok, err := meta.Float(dls.KeyDurationS); err != nil {
+		return fail(err)
+	} else if ok {
+		r.DurationS, r.HasDuration = v, true
+	}
+
+	fit, err := cumulants.Fit(m, &s.Cumulants)
+	if err != nil {
+		return fail(err)
+	}
+	tK := dls.KelvinFromCelsius(cond.tempC)
+	q := r.QPerM
+	r.HasCumulants = true
+	r.Method = fit.Method.String()
+	r.Order = fit.Order
+	r.GammaMeanPerS = fit.GammaPerS
+	r.GammaSEPerS = fit.GammaSEPerS
+	r.Mu2PerS2 = fit.Mu2PerS2
+	r.Mu3PerS3 = fit.Mu3PerS3
+	r.DiffusionM2PerS = dls.DiffusionFromRate(fit.GammaPerS, q)
+	r.ZAvgNm = dls.DiameterFromDiffusion(tK, cond.etaPaS, r.DiffusionM2PerS) * 1e9
+	// d ∝ 1/Γ̄, so its relative standard error is that of Γ̄.
+	r.ZAvgSENm = r.ZAvgNm * fit.GammaSEPerS / fit.GammaPerS
+	r.PDI = fit.PDI
+	r.PDISE = fit.PDISE
+	r.Intercept = fit.Intercept
+	r.Baseline = fit.Baseline
+	r.FarBaseline = fit.FarBaseline
+	r.BaselineReached = fit.BaselineReached
+	r.FitRMS = fit.ResidualRMS
+	r.ReducedChi2 = fit.ReducedChi2
+	r.SigmaEstimated = fit.SigmaEstimated
+	r.FitPoints = fit.PointsUsed
+	r.FitFirstTauS = m.TauS[fit.FitFirst]
+	r.FitLastTauS = m.TauS[fit.FitLast]
+	r.RangeShiftPct = 100 * fit.RangeShift
+	r.Iterations = fit.Iterations
+	if fit.Linear.GammaPerS > 0 {
+		r.LinearZAvgNm = dls.DiameterFromDiffusion(tK, cond.etaPaS, dls.DiffusionFromRate(fit.Linear.GammaPerS, q)) * 1e9
+		r.LinearPDI = fit.Linear.PDI
+	}
+	for _, w := range fit.Warnings {
+		warn = append(warn, w.Error())
+	}
+	if s.KeepCurves {
+		r.Curves = &dls.Curves{TauS: m.TauS, Data: m.Corr, Fitted: fit.Fitted, Residuals: fit.Residuals, Kind: m.Kind.String()}
+	}
+	r.Warnings = warn
+	r.Status = dls.StatusOK
+	if len(warn) > 0 {
+		r.Status = dls.StatusWarn
+		r.Message = strings.Join(warn, "; ")
+	}
+	return r
+}
+
+// state is the resolved physical state of one measurement.
+type state struct {
+	tempC     float64
+	solvent   string
+	etaPaS    float64
+	etaSource string
+	nSource   string
+	optics    dls.Optics
+}
+
+// conditions resolves temperature, optics and medium from the metadata.
+func conditions(m *dls.Measurement, meta dls.Metadata, s *Settings) (state, []string, error) {
+	var st state
+	var warn []string
+	need := func(key, hint string) (float64, error) {
+		v, ok, err := meta.Float(key)
+		if err != nil {
+			return 0, err
+		}
+		if !ok {
+			return 0, fmt.Errorf("%w: no %s for this measurement; give it as a '# %s: %s' line in the file, a sample-sheet column, or --default %s=%s", dls.ErrMissingValue, key, key, hint, key, hint)
+		}
+		return v, nil
+	}
+	var err error
+	if st.tempC, err = need(dls.KeyTemperatureC, "25"); err != nil {
+		return st, nil, err
+	}
+	if st.tempC <= -273.15 {
+		return st, nil, fmt.Errorf("%w: temperature %g °C is below absolute zero", dls.ErrBadMetadata, st.tempC)
+	}
+	lamNm, err := need(dls.KeyWavelengthNm, "633")
+	if err != nil {
+		return st, nil, err
+	}
+	angle, err := need(dls.KeyAngleDeg, "173")
+	if err != nil {
+		return st, nil, err
+	}
+	st.optics = dls.Optics{WavelengthM: lamNm * 1e-9, AngleRad: angle * math.Pi / 180}
+	tK := dls.KelvinFromCelsius(st.tempC)
+
+	st.solvent = meta.String(dls.KeySolvent)
+	eta, etaGiven, err := meta.Float(dls.KeyViscosityMPaS)
+	if err != nil {
+		return st, nil, err
+	}
+	n, nGiven, err := meta.Float(dls.KeyRefractiveIndex)
+	if err != nil {
+		return st, nil, err
+	}
+	if !etaGiven || !nGiven {
+		sol, err := dls.LookupSolvent(st.solvent)
+		if err != nil {
+			return st, nil, err
+		}
+		// A user-given viscosity or index needs no correlation, so its
+		// range does not apply to it: ask the table only for what is
+		// missing, and let range errors through only for that.
+		props, perr := sol.Props(tK, st.optics.WavelengthM, s.Extrapolate)
+		if perr != nil {
+			return st, nil, perr
+		}
+		if !etaGiven {
+			eta, st.etaSource = props.ViscosityPaS*1e3, props.ViscositySource
+		}
+		if !nGiven {
+			n, st.nSource = props.RefractiveIndex, props.IndexSource
+		}
+		warn = append(warn, props.Warnings...)
+	}
+	if etaGiven {
+		p, _ := meta.Get(dls.KeyViscosityMPaS)
+		st.etaSource = "user-supplied (" + string(p.Origin) + ": " + p.Where + ")"
+	}
+	if nGiven {
+		p, _ := meta.Get(dls.KeyRefractiveIndex)
+		st.nSource = "user-supplied (" + string(p.Origin) + ": " + p.Where + ")"
+	}
+	if !(eta > 0) {
+		return st, nil, fmt.Errorf("%w: viscosity %g mPa·s must be positive", dls.ErrBadMetadata, eta)
+	}
+	st.etaPaS = eta * 1e-3
+	st.optics.RefractiveIndex = n
+	if err := st.optics.Validate(); err != nil {
+		return st, nil, fmt.Errorf("%w: %v", dls.ErrBadMetadata, err)
+	}
+	return st, warn, nil
+}
