@@ -1,0 +1,94 @@
+package report
+
+import (
+	"strconv"
+
+	"dlsbatch/dls"
+)
+
+// column is one results.csv column: its name and how to format a result's
+// value ("" when the value does not exist for that result).
+type column struct {
+	name string
+	get  func(r *dls.Result) string
+}
+
+// fixed formats v with prec digits after the point; sci in exponent form
+// with prec digits.
+func fixed(v float64, prec int) string { return strconv.FormatFloat(v, 'f', prec, 64) }
+func sci(v float64, prec int) string   { return strconv.FormatFloat(v, 'e', prec, 64) }
+
+func cond(f func(r *dls.Result) string) func(r *dls.Result) string {
+	return func(r *dls.Result) string {
+		if !r.HasConditions {
+			return ""
+		}
+		return f(r)
+	}
+}
+
+func cum(f func(r *dls.Result) string) func(r *dls.Result) string {
+	return func(r *dls.Result) string {
+		if !r.HasCumulants {
+			return ""
+		}
+		return f(r)
+	}
+}
+
+// Columns of results.csv, in order. New columns are only ever appended.
+var columns = []column{
+	{"file", func(r *dls.Result) string { return r.File }},
+	{"sample", func(r *dls.Result) string { return r.Sample }},
+	{"run", func(r *dls.Result) string { return r.Run }},
+	{"status", func(r *dls.Result) string { return string(r.Status) }},
+	{"message", func(r *dls.Result) string { return r.Message }},
+	{"temperature_c", cond(func(r *dls.Result) string { return fixed(r.TemperatureC, 2) })},
+	{"solvent", cond(func(r *dls.Result) string { return r.Solvent })},
+	{"viscosity_mpas", cond(func(r *dls.Result) string { return fixed(r.ViscosityMPaS, 6) })},
+	{"refractive_index", cond(func(r *dls.Result) string { return fixed(r.RefractiveIndex, 6) })},
+	{"wavelength_nm", cond(func(r *dls.Result) string { return fixed(r.WavelengthNm, 2) })},
+	{"angle_deg", cond(func(r *dls.Result) string { return fixed(r.AngleDeg, 2) })},
+	{"q_per_m", cond(func(r *dls.Result) string { return sci(r.QPerM, 6) })},
+	{"gamma_mean_per_s", cum(func(r *dls.Result) string { return sci(r.GammaMeanPerS, 6) })},
+	{"gamma_se_per_s", cum(func(r *dls.Result) string { return sci(r.GammaSEPerS, 3) })},
+	{"diffusion_m2_per_s", cum(func(r *dls.Result) string { return sci(r.DiffusionM2PerS, 6) })},
+	{"z_avg_nm", cum(func(r *dls.Result) string { return fixed(r.ZAvgNm, 3) })},
+	{"z_avg_se_nm", cum(func(r *dls.Result) string { return fixed(r.ZAvgSENm, 3) })},
+	{"pdi", cum(func(r *dls.Result) string { return fixed(r.PDI, 4) })},
+	{"pdi_se", cum(func(r *dls.Result) string { return fixed(r.PDISE, 4) })},
+	{"intercept", cum(func(r *dls.Result) string { return fixed(r.Intercept, 5) })},
+	{"baseline", cum(func(r *dls.Result) string { return fixed(r.Baseline, 6) })},
+	{"fit_rms", cum(func(r *dls.Result) string { return sci(r.FitRMS, 3) })},
+	{"reduced_chi2", cum(func(r *dls.Result) string { return fixed(r.ReducedChi2, 3) })},
+	{"fit_points", cum(func(r *dls.Result) string { return strconv.Itoa(r.FitPoints) })},
+	{"fit_first_tau_s", cum(func(r *dls.Result) string { return sci(r.FitFirstTauS, 4) })},
+	{"fit_last_tau_s", cum(func(r *dls.Result) string { return sci(r.FitLastTauS, 4) })},
+	{"range_shift_pct", cum(func(r *dls.Result) string { return fixed(r.RangeShiftPct, 2) })},
+	{"cumulant_method", cum(func(r *dls.Result) string { return r.Method + "-" + strconv.Itoa(r.Order) })},
+	{"linear_z_avg_nm", cum(func(r *dls.Result) string { return fixed(r.LinearZAvgNm, 3) })},
+	{"linear_pdi", cum(func(r *dls.Result) string { return fixed(r.LinearPDI, 4) })},
+	{"count_rate_kcps", func(r *dls.Result) string {
+		if !r.HasCountRate {
+			return ""
+		}
+		return fixed(r.CountRateKcps, 1)
+	}},
+	{"duration_s", func(r *dls.Result) string {
+		if !r.HasDuration {
+			return ""
+		}
+		return fixed(r.DurationS, 1)
+	}},
+	{"viscosity_source", cond(func(r *dls.Result) string { return r.ViscositySource })},
+	{"refractive_index_source", cond(func(r *dls.Result) string { return r.IndexSource })},
+}
+
+// ColumnNames returns the results.csv header.
+func ColumnNames() []string {
+	out := make([]string, len(columns))
+	for i, c := range columns {
+		out[i] = c.name
+	}
+	return out
+}
