@@ -1,0 +1,86 @@
+package csvdata
+
+import (
+	"fmt"
+	"math"
+	"math/cmplx"
+	"strconv"
+	"strings"
+
+	"dlsbatch/dls"
+)
+
+// numericKeys are the metadata keys whose value must be a finite number.
+var numericKeys = map[string]bool{
+	dls.KeyTemperatureC:    true,
+	dls.KeyWavelengthNm:    true,
+	dls.KeyAngleDeg:        true,
+	dls.KeyViscosityMPaS:   true,
+	dls.KeyRefractiveIndex: true,
+	dls.KeyConcentration:   true,
+	dls.KeyParticleDensity: true,
+	dls.KeyVolumeFraction:  true,
+	dls.KeyCountRateKcps:   true,
+	dls.KeyDurationS:       true,
+}
+
+// parseMetaLine splits a comment line (starting with '#') into key and
+// value. ok is false for a line that is a plain comment: no colon, or text
+// before the first colon that is not a key (a key is one or more ASCII
+// letters, digits, '_', '-' or '.'). The key is returned in lower case.
+func parseMetaLine(t string) (key, value string, ok bool) {
+	body := t[1:]
+	c := strings.IndexByte(body, ':')
+	if c < 0 {
+		return "", "", false
+	}
+	key = strings.TrimSpace(body[:c])
+	if !validKey(key) {
+		return "", "", false
+	}
+	return strings.ToLower(key), strings.TrimSpace(body[c+1:]), true
+}
+
+func validKey(k string) bool {
+	if k == "" {
+		return false
+	}
+	for i := 0; i < len(k); i++ {
+		c := k[i]
+		switch {
+		case c >= 'a' && c <= 'z', c >= 'A' && c <= 'Z', c >= '0' && c <= '9', c == '_', c == '-', c == '.':
+		default:
+			return false
+		}
+	}
+	return true
+}
+
+// checkMetaValue checks the syntax of a value of a known key: a finite
+// number for the numeric keys, a finite complex number such as 1.59+0.0i (or
+// a real number) for particle_ri, any text for sample, run and solvent.
+func checkMetaValue(key, v string) error {
+	switch {
+	case key == dls.KeyParticleRI:
+		c, err := strconv.ParseComplex(v, 128)
+		if err != nil {
+			return fmt.Errorf("%s %q is not a complex number such as 1.59+0.0i: %w: %w", key, v, dls.ErrBadMetadata, err)
+		}
+		if cmplx.IsNaN(c) || cmplx.IsInf(c) {
+			return fmt.Errorf("%s %q: %w: %w", key, v, dls.ErrBadMetadata, dls.ErrNonFinite)
+		}
+	case numericKeys[key]:
+		f, err := strconv.ParseFloat(v, 64)
+		if err != nil {
+			hint := ""
+			if strings.Contains(v, ",") {
+				hint = " (write the decimal mark as a point)"
+			}
+			return fmt.Errorf("%s %q is not a number%s: %w: %w", key, v, hint, dls.ErrBadMetadata, err)
+		}
+		if math.IsNaN(f) || math.IsInf(f, 0) {
+			return fmt.Errorf("%s %q: %w: %w", key, v, dls.ErrBadMetadata, dls.ErrNonFinite)
+		}
+	}
+	return nil
+}

@@ -1,0 +1,460 @@
+package csvdata
+
+import (
+	"bufio"
+	"bytes"
+	"errors"
+	"fmt"
+	"io"
+	"io/fs"
+	"math"
+	"os"
+	"strconv"
+	"strings"
+
+	"dlsbatch/dls"
+)
+
+// MinPoints is the fewest data rows a file must have. Fewer cannot carry a
+// decay and a baseline; a cumulant fit alone has three parameters.
+const MinPoints = 8
+
+// maxLineBytes bounds the length of one line; a longer one is taken for a
+// file that is not text.
+const maxLineBytes = 4 << 20
+
+// Entry is one measurement read from a file, or one failure. A file always
+// yields at least one Entry: one per run when the header could be read, else
+// one for the whole file.
+type Entry struct {
+	File  string // the name given to Read, the path given to ReadFile
+	Run   string // run label; "" for a single run or a failure before the header
+	Index int    // 0-based position of the run among the file's correlation columns
+	// M is the measurement; nil when Err != nil.
+	M *dls.Measurement
+	// Err is a *dls.PosError naming the file, the line (and the cell, when
+	// one applies) and the reason; it wraps a sentinel of package dls (or
+	// ErrBadOptions) for errors.Is.
+	Err error
+}
+
+// ReadFile reads the correlogram export at path. It opens the file
+// read-only and never writes anything.
+func ReadFile(path string, o *Options) []Entry {
+	f, err := os.Open(path)
+	if err != nil {
+		var pe *fs.PathError
+		if errors.As(err, &pe) {
+			err = fmt.Errorf("cannot %s: %w", pe.Op, pe.Err)
+		}
+		return []Entry{{File: path, Err: &dls.PosError{File: path, Err: err}}}
+	}
+	defer f.Close()
+	return Read(f, path, o)
+}
+
+// Read reads one correlogram export from r. name labels the file in
+// measurements and messages. A nil o reads the format as documented in the
+// package comment. Read never panics on any input.
+func Read(r io.Reader, name string, o *Options) []Entry {
+	if o == nil {
+		o = &Options{}
+	}
+	if err := o.validate(); err != nil {
+		return []Entry{{File: name, Err: &dls.PosError{File: name, Err: err}}}
+	}
+	p := &parser{name: name, opt: o, runErr: nil}
+	p.read(r)
+	return p.entries()
+}
+
+type parser struct {
+	name string
+	opt  *Options
+
+	line     int
+	nonBlank bool // a non-blank line was seen
+	sp       splitter
+	decComma bool // a cell may use ',' as its decimal mark
+
+	meta     dls.Metadata
+	metaLine map[string]int // key → line of its value
+	warnings []string
+
+	L          *layout
+	headerLine int
+	cells      []string
+
+	tau     []float64
+	lines   []int
+	prevLag string // text of the last lag cell
+	corr    [][]float64
+	sigma   [][]float64
+	runErr  []error
+
+	fileErr error
+}
+
+func (p *parser) posErr(line, col int, err error) *dls.PosError {
+	return &dls.PosError{File: p.name, Line: line, Column: col, Err: err}
+}
+
+func (p *parser) warn(line int, format string, args ...any) {
+	p.warnings = append(p.warnings, p.posErr(line, 0, fmt.Errorf(format, args...)).Error())
+}
+
+var bom = []byte{0xEF, 0xBB, 0xBF}
+
+func (p *parser) read(r io.Reader) {
+	sc := bufio.NewScanner(r)
+	sc.Buffer(make([]byte, 0, 16<<10), maxLineBytes)
+	for sc.Scan() {
+		p.line++
+		b := sc.Bytes()
+		if p.line == 1 {
+			if len(b) >= 2 && (b[0] == 0xFF && b[1] == 0xFE || b[0] == 0xFE && b[1] == 0xFF) {
+				p.fileErr = p.posErr(1, 0, fmt.Errorf("UTF-16 text (save the export as UTF-8): %w", dls.ErrNotText))
+				return
+			}
+			b = bytes.TrimPrefix(b, bom)
+		}
+		if ok, nul := validUTF8Text(b); !ok {
+			why := "invalid UTF-8"
+			if nul {
+				why = "NUL byte"
+			}
+			p.fileErr = p.posErr(p.line, 0, fmt.Errorf("%s: %w", why, dls.ErrNotText))
+			return
+		}
+		s := string(b)
+		t := strings.TrimSpace(s)
+		if t == "" {
+			continue
+		}
+		p.nonBlank = true
+		if t[0] == '#' {
+			if p.L == nil {
+				p.metaLineAt(t)
+			} else {
+				p.lateComment(t)
+			}
+			continue
+		}
+		if p.L == nil {
+			if !p.header(s) || p.fileErr != nil {
+				return
+			}
+			continue
+		}
+		if !p.row(s) {
+			return
+		}
+	}
+	if err := sc.Err(); err != nil {
+		if errors.Is(err, bufio.ErrTooLong) {
+			err = fmt.Errorf("line longer than %d bytes: %w", maxLineBytes, dls.ErrNotText)
+		} else {
+			err = fmt.Errorf("reading: %w", err)
+		}
+		p.setFileErr(p.posErr(p.line+1, 0, err))
+		return
+	}
+	if p.fileErr != nil {
+		return
+	}
+	if p.L == nil {
+		if p.nonBlank {
+			p.fileErr = p.posErr(p.line, 0, fmt.Errorf("only comments, no header row and no data: %w", dls.ErrEmpty))
+		} else {
+			p.fileErr = p.posErr(0, 0, dls.ErrEmpty)
+		}
+		return
+	}
+	if n := len(p.tau); n < MinPoints {
+		p.fileErr = p.posErr(p.headerLine, 0, fmt.Errorf("%d data rows, need at least %d: %w", n, MinPoints, dls.ErrTooFewPoints))
+	}
+}
+
+func (p *parser) setFileErr(err error) {
+	if p.fileErr == nil {
+		p.fileErr = err
+	}
+}
+
+// metaLineAt handles a '#' line before the header.
+func (p *parser) metaLineAt(t string) {
+	key, value, ok := parseMetaLine(t)
+	if !ok {
+		return
+	}
+	if !dls.IsMetadataKey(key) {
+		p.warn(p.line, "%q: %v (ignored)", key, dls.ErrUnknownMetadata)
+		return
+	}
+	if value == "" {
+		return // an empty value gives no value
+	}
+	if err := checkMetaValue(key, value); err != nil {
+		p.setFileErr(p.posErr(p.line, 0, err))
+		return
+	}
+	if p.metaLine == nil {
+		p.metaLine = make(map[string]int)
+	}
+	if prev, dup := p.metaLine[key]; dup {
+		p.warn(p.line, "%s given again (line %d); the value of this line is used", key, prev)
+	}
+	p.metaLine[key] = p.line
+	p.meta.Set(dls.Param{Key: key, Value: value, Origin: dls.OriginFile, Where: fmt.Sprintf("%s:%d", p.name, p.line)})
+}
+
+// lateComment handles a '#' line after the header: it is ignored, with a
+// warning when it looks like metadata of the format.
+func (p *parser) lateComment(t string) {
+	if key, _, ok := parseMetaLine(t); ok && dls.IsMetadataKey(key) {
+		p.warn(p.line, "metadata %s after the header row is ignored (metadata lines come before the header)", key)
+	}
+}
+
+// header reads the header row. It reports whether reading goes on.
+func (p *parser) header(s string) bool {
+	p.headerLine = p.line
+	comma := p.opt.Comma
+	if comma == 0 {
+		comma = detectComma(s)
+	}
+	p.sp = newSplitter(comma)
+	p.decComma = comma != ','
+	names := p.sp.split(nil, s)
+	if looksNumeric(names, p.decComma) {
+		p.setFileErr(p.posErr(p.line, 0, fmt.Errorf("no header row: the first row holds numbers, expected column names such as tau_s,g2: %w", dls.ErrBadHeader)))
+		return false
+	}
+	L, herr := resolve(names, p.opt)
+	if herr != nil {
+		p.setFileErr(p.posErr(p.line, herr.col, herr.err))
+		return false
+	}
+	p.L = L
+	if len(L.unused) > 0 {
+		p.warn(p.line, "columns not read: %s", quoteList(L.unused))
+	}
+	n := len(L.runs)
+	p.corr = make([][]float64, n)
+	p.sigma = make([][]float64, n)
+	p.runErr = make([]error, n)
+	const guess = 256
+	p.tau = make([]float64, 0, guess)
+	p.lines = make([]int, 0, guess)
+	for r, rc := range L.runs {
+		p.corr[r] = make([]float64, 0, guess)
+		if rc.sigma >= 0 {
+			p.sigma[r] = make([]float64, 0, guess)
+		}
+	}
+	p.cells = make([]string, 0, len(names))
+	return true
+}
+
+// looksNumeric reports whether a would-be header row holds only numbers.
+func looksNumeric(cells []string, decComma bool) bool {
+	n := 0
+	for _, c := range cells {
+		if c == "" {
+			continue
+		}
+		if _, err := parseNumber(c, decComma); err != nil {
+			return false
+		}
+		n++
+	}
+	return n > 0
+}
+
+// errOverflow marks a number too large for float64.
+var errOverflow = errors.New("overflows float64")
+
+// parseNumber parses a cell. With decComma a cell with one ',' and no '.'
+// is read with ',' as its decimal mark.
+func parseNumber(c string, decComma bool) (float64, error) {
+	if decComma && strings.IndexByte(c, ',') >= 0 && strings.IndexByte(c, '.') < 0 && strings.Count(c, ",") == 1 {
+		c = strings.Replace(c, ",", ".", 1)
+	}
+	return strconv.ParseFloat(c, 64)
+}
+
+// valueError is a bad cell: it prints the column and the text and wraps both
+// the dls sentinel and the *strconv.NumError, when there is one.
+type valueError struct {
+	column, text string
+	reason       string
+	sentinel     error
+	cause        error
+}
+
+func (e *valueError) Error() string {
+	if e.reason != "" {
+		return fmt.Sprintf("column %q: %q %s: %v", e.column, e.text, e.reason, e.sentinel)
+	}
+	return fmt.Sprintf("column %q: %q: %v", e.column, e.text, e.sentinel)
+}
+
+func (e *valueError) Unwrap() []error {
+	if e.cause == nil {
+		return []error{e.sentinel}
+	}
+	return []error{e.sentinel, e.cause}
+}
+
+// value parses the cell at index i of the row.
+func (p *parser) value(i int) (float64, error) {
+	c := p.cells[i]
+	col := p.L.names[i]
+	if c == "" {
+		return 0, &valueError{column: col, text: c, sentinel: dls.ErrMissingValue}
+	}
+	v, err := parseNumber(c, p.decComma)
+	if err != nil {
+		var ne *strconv.NumError
+		if errors.As(err, &ne) && errors.Is(ne.Err, strconv.ErrRange) {
+			return 0, &valueError{column: col, text: c, reason: errOverflow.Error(), sentinel: dls.ErrNonFinite, cause: err}
+		}
+		return 0, &valueError{column: col, text: c, sentinel: dls.ErrNotANumber, cause: err}
+	}
+	if math.IsNaN(v) || math.IsInf(v, 0) {
+		return 0, &valueError{column: col, text: c, sentinel: dls.ErrNonFinite}
+	}
+	return v, nil
+}
+
+// row reads one data row. It reports whether reading goes on.
+func (p *parser) row(s string) bool {
+	L := p.L
+	p.cells = p.sp.split(p.cells[:0], s)
+	if allEmpty(p.cells) {
+		return true
+	}
+	if n := len(p.cells); n != len(L.names) {
+		col := 0
+		if n > len(L.names) {
+			col = len(L.names) + 1
+		}
+		p.setFileErr(p.posErr(p.line, col, fmt.Errorf("row has %d cells, the header has %d: %w", n, len(L.names), ErrCellCount)))
+		return false
+	}
+
+	raw, err := p.value(L.lag)
+	if err != nil {
+		p.setFileErr(p.posErr(p.line, L.lag+1, err))
+		return false
+	}
+	tau := raw / L.unit.div
+	if !(tau > 0) {
+		p.setFileErr(p.posErr(p.line, L.lag+1, &valueError{column: L.lagName, text: p.cells[L.lag], reason: "is not positive", sentinel: dls.ErrBadLag}))
+		return false
+	}
+	if n := len(p.tau); n > 0 && !(tau > p.tau[n-1]) {
+		p.setFileErr(p.posErr(p.line, L.lag+1, &valueError{column: L.lagName, text: p.cells[L.lag],
+			reason:   fmt.Sprintf("does not increase (line %d has %s)", p.lines[n-1], p.prevLag),
+			sentinel: dls.ErrBadLag}))
+		return false
+	}
+	p.tau = append(p.tau, tau)
+	p.lines = append(p.lines, p.line)
+	p.prevLag = p.cells[L.lag]
+
+	for r, rc := range L.runs {
+		if p.runErr[r] != nil {
+			continue
+		}
+		v, err := p.value(rc.corr)
+		if err != nil {
+			p.runErr[r] = p.posErr(p.line, rc.corr+1, err)
+			continue
+		}
+		p.corr[r] = append(p.corr[r], v)
+		if rc.sigma < 0 {
+			continue
+		}
+		sv, err := p.value(rc.sigma)
+		if err == nil && !(sv > 0) {
+			err = &valueError{column: rc.sigmaName, text: p.cells[rc.sigma], reason: "is not positive", sentinel: dls.ErrOutOfRange}
+		}
+		if err != nil {
+			p.runErr[r] = p.posErr(p.line, rc.sigma+1, err)
+			continue
+		}
+		p.sigma[r] = append(p.sigma[r], sv)
+	}
+	return true
+}
+
+func allEmpty(cells []string) bool {
+	for _, c := range cells {
+		if c != "" {
+			return false
+		}
+	}
+	return true
+}
+
+// entries builds the result of the read.
+func (p *parser) entries() []Entry {
+	if p.L == nil {
+		return []Entry{{File: p.name, Err: p.fileErr}}
+	}
+	L := p.L
+	runMeta, hasRunMeta := p.meta.Get(dls.KeyRun)
+	out := make([]Entry, len(L.runs))
+	for r, rc := range L.runs {
+		e := Entry{File: p.name, Run: rc.label, Index: r}
+		if rc.label == "" && hasRunMeta {
+			e.Run = runMeta.Value
+		}
+		switch {
+		case p.runErr[r] != nil:
+			e.Err = p.runErr[r]
+		case p.fileErr != nil:
+			e.Err = p.fileErr
+		}
+		if e.Err == nil {
+			e.M = p.measurement(r, e.Run, runMeta, hasRunMeta)
+		}
+		out[r] = e
+	}
+	return out
+}
+
+func (p *parser) measurement(r int, run string, runMeta dls.Param, hasRunMeta bool) *dls.Measurement {
+	L := p.L
+	rc := L.runs[r]
+	tau, lines := p.tau, p.lines
+	if r > 0 { // each measurement owns its slices
+		tau = append([]float64(nil), tau...)
+		lines = append([]int(nil), lines...)
+	}
+	m := &dls.Measurement{
+		File:       p.name,
+		Run:        run,
+		Index:      r,
+		Kind:       L.kind,
+		TauS:       tau,
+		Corr:       p.corr[r],
+		Sigma:      p.sigma[r],
+		Lines:      lines,
+		Meta:       p.meta.Clone(),
+		TauColumn:  L.lagName,
+		TauUnit:    L.unit.name,
+		CorrColumn: rc.corrName,
+		HeaderLine: p.headerLine,
+	}
+	m.Warnings = append([]string(nil), p.warnings...)
+	if rc.label != "" {
+		if hasRunMeta && runMeta.Value != rc.label {
+			m.Warnings = append(m.Warnings, p.posErr(p.metaLine[dls.KeyRun], 0,
+				fmt.Errorf("run %q of the metadata is replaced by the label %q of column %q", runMeta.Value, rc.label, rc.corrName)).Error())
+		}
+		m.Meta.Set(dls.Param{Key: dls.KeyRun, Value: rc.label, Origin: dls.OriginFile, Where: fmt.Sprintf("%s:%d", p.name, p.headerLine)})
+	}
+	return m
+}
