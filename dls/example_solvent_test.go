@@ -1,0 +1,52 @@
+package dls_test
+
+import (
+	"fmt"
+
+	"dlsbatch/dls"
+)
+
+// Water at 25 °C and a 632.8 nm laser: IAPWS 2008 viscosity and IAPWS R9-97
+// index, both at 0.101325 MPa.
+func ExampleLookupSolvent() {
+	s, err := dls.LookupSolvent("water")
+	if err != nil {
+		fmt.Println(err)
+		return
+	}
+	p, err := s.Props(dls.KelvinFromCelsius(25), 632.8e-9, false)
+	if err != nil {
+		fmt.Println(err)
+		return
+	}
+	fmt.Printf("viscosity %.4f mPa·s, index %.5f\n", p.ViscosityPaS*1e3, p.RefractiveIndex)
+	// Output: viscosity 0.8900 mPa·s, index 1.33162
+}
+
+// Outside its valid range a correlation is an error unless extrapolation is
+// asked for; then the value comes with a warning.
+func ExampleSolvent_Props_extrapolate() {
+	s, _ := dls.LookupSolvent("DMSO")
+	_, err := s.Props(dls.KelvinFromCelsius(15), 633e-9, false)
+	fmt.Println(err != nil)
+	p, _ := s.Props(dls.KelvinFromCelsius(15), 633e-9, true)
+	fmt.Println(len(p.Warnings))
+	// Output:
+	// true
+	// 1
+}
+
+// A glycerol–water mixture by glycerol mass fraction.
+func ExampleGlycerolWater() {
+	s, _ := dls.LookupSolvent("glycerol-water:0.5")
+	p, _ := s.Props(dls.KelvinFromCelsius(20), 632.8e-9, false)
+	fmt.Printf("%s: %.2f mPa·s\n", s.Name, p.ViscosityPaS*1e3)
+	// Output: glycerol-water:0.5: 6.00 mPa·s
+}
+
+// The viscosity of water from the IAPWS functions directly.
+func ExampleWaterViscosityPaS() {
+	mu, err := dls.WaterViscosityPaS(293.15)
+	fmt.Printf("%.4f mPa·s %v\n", mu*1e3, err)
+	// Output: 1.0016 mPa·s <nil>
+}
