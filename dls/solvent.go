@@ -164,6 +164,11 @@ func (t *SolventTable) Add(s *Solvent) error {
 	case s.Index == nil:
 		return fmt.Errorf("solvent %q has no refractive-index law", s.Name)
 	}
+	if d, ok := s.Index.(Dispersion); ok {
+		if err := d.validate(); err != nil {
+			return fmt.Errorf("solvent %q: %w", s.Name, err)
+		}
+	}
 	if t.byKey == nil {
 		t.byKey = make(map[string]*Solvent)
 	}

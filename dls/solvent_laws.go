@@ -119,8 +119,9 @@ type Dispersion struct {
 	// LambdaMinM, LambdaMaxM: vacuum wavelengths in metres within which the
 	// formula holds.
 	LambdaMinM, LambdaMaxM float64
-	// TRefK is the temperature of the index data; TRefAssumed says that the
-	// source did not state it and TRefK is an assumption.
+	// TRefK is the temperature of the index data (0 = not given, then
+	// DnDTPerK must be 0); TRefAssumed says that the source did not state
+	// it and TRefK is an assumption.
 	TRefK       float64
 	TRefAssumed bool
 	// DnDTPerK is the temperature coefficient and DnDTSource says where it
@@ -199,6 +200,8 @@ func (d Dispersion) Source(tK float64) string {
 		at += " (source says room temperature; assumed)"
 	}
 	switch {
+	case !(d.TRefK > 0):
+		b.WriteString(", temperature of the data not given, no temperature correction")
 	case d.DnDTPerK == 0:
 		fmt.Fprintf(&b, ", at %s, no temperature correction", at)
 	case math.Abs(tK-d.TRefK) < 0.005:
@@ -238,7 +241,13 @@ func (d Dispersion) validate() error {
 	if len(d.Coef) == 0 {
 		return fmt.Errorf("dispersion formula without coefficients")
 	}
-	if d.Formula != FormulaCauchy && len(d.Coef)%2 == 0 {
+	if d.DnDTPerK != 0 && !(d.TRefK > 0) {
+		return fmt.Errorf("dn/dT given without the temperature of the index data")
+	}
+	if !(d.LambdaMinM < d.LambdaMaxM) || d.LambdaMinM < 0 {
+		return fmt.Errorf("wavelength range %g–%g m is empty or negative", d.LambdaMinM, d.LambdaMaxM)
+	}
+	if len(d.Coef)%2 == 0 {
 		return fmt.Errorf("dispersion formula %d needs an odd number of coefficients, got %d", d.Formula, len(d.Coef))
 	}
 	return nil
