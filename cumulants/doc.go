@@ -53,7 +53,10 @@
 // the mean of the far channels and β₀ the extrapolated intercept. Keeping
 // Γ̄τ ≲ 2.5 keeps the truncated second-order series valid for the narrow
 // populations it is meant for. A range-sensitivity check refits with the end
-// moved by ±25 % of the channels and reports how far Γ̄ moves.
+// moved by ±25 % of the fitted channels, the baseline held at the main
+// fit's value so that the check tests the cumulant series against the range
+// rather than how well a short range fixes B, and warns when Γ̄ moves by
+// more than 2 % (common practice).
 //
 // # Uncertainty weights
 //

@@ -123,6 +123,7 @@ type prepared struct {
 	first, last    int     // fit range, inclusive
 	baseReached    bool
 	g1Tail         float64
+	warm           *Result // start of the range-check refits
 }
 
 func (p *prepared) posErr(i int, err error) error {
@@ -301,6 +302,8 @@ func (p *prepared) rangeCheck(s *Settings, r *Result) {
 	ends := []int{p.first + int(math.Round(0.75*float64(span))), min(len(p.tau)-1, p.first+int(math.Round(1.25*float64(span))))}
 	shift := 0.0
 	ran := false
+	p.warm = r
+	defer func() { p.warm = nil }()
 	for _, end := range ends {
 		if end == r.FitLast || end-p.first+1 < s.MinPoints {
 			continue

@@ -233,30 +233,33 @@ func TestFitGivenSigma(t *testing.T) {
 }
 
 func TestFitRangeCheckWarnsOnBimodal(t *testing.T) {
-	// Two populations with rates 10× apart at equal intensity: the
-	// cumulant series is a poor description and the mean rate depends on
-	// where the fit stops. The range check must say so (limit 2 %, common
-	// practice), and stay quiet on a narrow monomodal sample.
+	// A fast population (4000 1/s, 30 % of the intensity) beside a slow
+	// one (200 1/s): the second-order series cannot follow the two-step
+	// decay, so the mean rate depends on where the fit stops, and the range
+	// check must say so (limit 2 %, common practice). On a narrow
+	// monomodal sample the series is adequate: the shift stays below
+	// 0.5 %. The data are noise-free, so both outcomes are properties of
+	// the model, not of a noise draw.
 	tau := multiTau(0.5e-6, 8, 200)
-	a, _, _ := logNormalG1(tau, 5000, 0.05)
-	b, _, _ := logNormalG1(tau, 500, 0.05)
+	a, _, _ := logNormalG1(tau, 4000, 0.05)
+	b, _, _ := logNormalG1(tau, 200, 0.05)
 	g1 := make([]float64, len(tau))
 	for i := range g1 {
-		g1[i] = 0.5*a[i] + 0.5*b[i]
+		g1[i] = 0.3*a[i] + 0.7*b[i]
 	}
 	r, err := cumulants.Fit(measurement(tau, g1, dls.KindG2, 0.9, 1, 0, nil), nil)
 	if err != nil {
 		t.Fatal(err)
 	}
-	if !r.RangeChecked || r.RangeShift <= 0.02 {
-		t.Errorf("bimodal: range shift %.3g (checked %v), want > 0.02", r.RangeShift, r.RangeChecked)
+	if !r.RangeChecked || r.RangeShift <= 0.02 || len(r.Warnings) == 0 {
+		t.Errorf("bimodal: range shift %.3g (checked %v, warnings %v), want > 0.02 and a warning", r.RangeShift, r.RangeChecked, r.Warnings)
 	}
 	r, err = cumulants.Fit(measurement(tau, a, dls.KindG2, 0.9, 1, 0, nil), nil)
 	if err != nil {
 		t.Fatal(err)
 	}
-	if r.RangeShift > 0.02 {
-		t.Errorf("narrow: range shift %.3g, want ≤ 0.02", r.RangeShift)
+	if !r.RangeChecked || r.RangeShift > 0.005 {
+		t.Errorf("narrow: range shift %.3g (checked %v), want ≤ 0.005", r.RangeShift, r.RangeChecked)
 	}
 }
 

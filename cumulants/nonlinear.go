@@ -5,6 +5,9 @@ import (
 	"fmt"
 	"math"
 
+	"gonum.org/v1/gonum/blas"
+	"gonum.org/v1/gonum/blas/blas64"
+	"gonum.org/v1/gonum/lapack/lapack64"
 	"gonum.org/v1/gonum/mat"
 
 	"dlsbatch/dls"
@@ -16,15 +19,28 @@ import (
 // every parameter is of order one: t = Γ₀τ, g = Γ/Γ₀, v = μ2/Γ₀², w = μ3/Γ₀³.
 func (p *prepared) nonlinear(s *Settings, lin LinearEstimate, last int, r *Result) error {
 	g0 := lin.GammaPerS
-	np := 4
-	if s.Order == 3 {
-		np = 5
-	}
 	// Parameters: B, β, g, v, w.
 	par := [5]float64{p.farBase, lin.Intercept, 1, lin.Mu2PerS2 / (g0 * g0), 0}
 	if lin.PDI < 0 || lin.PDI > 1 {
 		par[3] = 0 // a wild linear μ2 is a poor start; the monodisperse one is safe
 	}
+	if p.warm != nil {
+		// Refits of the range check start from the main fit.
+		w := p.warm
+		par = [5]float64{w.Baseline, w.Intercept, w.GammaPerS / g0, w.Mu2PerS2 / (g0 * g0), w.Mu3PerS3 / (g0 * g0 * g0)}
+	}
+	np := 4
+	if s.Order == 3 {
+		np = 5
+	}
+	// lo = 1 holds the baseline fixed at its start value: the range-check
+	// refits keep the main fit's baseline, so that they test the cumulant
+	// series against the range and not how well a short range fixes B.
+	lo := 0
+	if p.warm != nil {
+		lo = 1
+	}
+	k := np - lo
 	m := last - p.first + 1
 	t := make([]float64, m)
 	y := make([]float64, m)
@@ -36,13 +52,10 @@ func (p *prepared) nonlinear(s *Settings, lin LinearEstimate, last int, r *Resul
 		w[i] = 1 / (p.sigma[k] * p.sigma[k])
 	}
 
-	var jtj [5][5]float64
-	var jtr [5]float64
-	eval := func(q *[5]float64, withJ bool) float64 {
-		if withJ {
-			jtj = [5][5]float64{}
-			jtr = [5]float64{}
-		}
+	// eval returns χ² at q and fills JᵀWJ (upper triangle) and JᵀWr.
+	eval := func(q *[5]float64, jtj *[5][5]float64, jtr *[5]float64) float64 {
+		*jtj = [5][5]float64{}
+		*jtr = [5]float64{}
 		var chi float64
 		var jac [5]float64
 		for i := range t {
@@ -55,84 +68,82 @@ func (p *prepared) nonlinear(s *Settings, lin LinearEstimate, last int, r *Resul
 				fe, dfe = f*f, 2*f
 			}
 			res := y[i] - (q[0] + q[1]*fe)
-			chi += w[i] * res * res
-			if !withJ {
-				continue
-			}
+			wi := w[i]
+			chi += wi * res * res
 			bd := q[1] * dfe
 			jac[0] = 1
 			jac[1] = fe
 			jac[2] = bd * (-ti * f)
 			jac[3] = bd * ex * ti * ti / 2
 			jac[4] = bd * ex * (-ti * ti * ti / 6)
-			for a := 0; a < np; a++ {
-				jtr[a] += w[i] * jac[a] * res
+			for a := lo; a < np; a++ {
+				wa := wi * jac[a]
+				jtr[a] += wa * res
 				for b := a; b < np; b++ {
-					jtj[a][b] += w[i] * jac[a] * jac[b]
+					jtj[a][b] += wa * jac[b]
 				}
 			}
 		}
 		return chi
 	}
+	var jtj, jtjT [5][5]float64
+	var jtr, jtrT [5]float64
 
-	h := mat.NewSymDense(np, nil)
-	rhs := mat.NewVecDense(np, nil)
-	var step mat.VecDense
-	var ch mat.Cholesky
+	// The damped normal equations are k×k (k ≤ 5): factorised with LAPACK's
+	// Cholesky on a raw slice, which skips the condition estimate that
+	// mat.Cholesky computes on every call.
+	hbuf := make([]float64, k*k)
+	stepv := make([]float64, k)
+	h := blas64.Symmetric{N: k, Stride: k, Data: hbuf, Uplo: blas.Upper}
 	lambda := 1e-3
-	chi := eval(&par, true)
+	chi := eval(&par, &jtj, &jtr)
 	converged := false
 	iter := 0
 	for iter = 1; iter <= s.MaxIter; iter++ {
-		for a := 0; a < np; a++ {
-			rhs.SetVec(a, jtr[a])
+		for a := lo; a < np; a++ {
+			stepv[a-lo] = jtr[a]
 			for b := a; b < np; b++ {
 				v := jtj[a][b]
 				if a == b {
 					v *= 1 + lambda
 				}
-				h.SetSym(a, b, v)
+				hbuf[(a-lo)*k+(b-lo)] = v
 			}
 		}
-		if !ch.Factorize(h) {
+		tri, ok := lapack64.Potrf(h)
+		if !ok {
 			lambda *= 10
 			if lambda > 1e12 {
 				break
 			}
 			continue
 		}
-		if err := ch.SolveVecTo(&step, rhs); err != nil {
-			lambda *= 10
-			continue
-		}
+		lapack64.Potrs(tri, blas64.General{Rows: k, Cols: 1, Stride: 1, Data: stepv})
+		step := mat.NewVecDense(k, stepv)
 		trial := par
-		for a := 0; a < np; a++ {
-			trial[a] += step.AtVec(a)
+		for a := lo; a < np; a++ {
+			trial[a] += step.AtVec(a - lo)
 		}
-		chiT := eval(&trial, false)
+		chiT := eval(&trial, &jtjT, &jtrT)
+		// A step that changes no parameter beyond 1e-9 of its size, or χ²
+		// beyond 1e-10 of itself, marks a minimum to working precision
+		// whether or not rounding let χ² fall.
+		small := true
+		for a := lo; a < np; a++ {
+			if math.Abs(step.AtVec(a-lo)) > 1e-9*(math.Abs(par[a])+1e-6) {
+				small = false
+			}
+		}
+		flat := math.Abs(chi-chiT) <= 1e-10*chi
 		if chiT <= chi && isFinite(chiT) {
-			small := true
-			for a := 0; a < np; a++ {
-				if math.Abs(step.AtVec(a)) > 1e-10*(math.Abs(par[a])+1e-6) {
-					small = false
-				}
-			}
-			rel := (chi - chiT) / math.Max(chi, 1e-300)
-			par = trial
-			chi = eval(&par, true)
+			par, chi, jtj, jtr = trial, chiT, jtjT, jtrT
 			lambda = math.Max(lambda/10, 1e-12)
-			if small || rel < 1e-12 {
-				converged = true
-				break
-			}
 		} else {
 			lambda *= 10
-			if lambda > 1e12 {
-				// No downhill step exists at any damping: a minimum to
-				// working precision.
-				converged = true
-				break
-			}
+		}
+		if small || flat || lambda > 1e12 {
+			converged = true
+			break
 		}
 	}
 	if iter > s.MaxIter {
@@ -154,18 +165,24 @@ func (p *prepared) nonlinear(s *Settings, lin LinearEstimate, last int, r *Resul
 		r.Mu3PerS3 = par[4] * g0 * g0 * g0
 	}
 	r.PDI = par[3] / (par[2] * par[2])
-	p.finish(r, last, np)
+	if p.warm != nil {
+		// A range-check refit needs only Γ̄.
+		return nil
+	}
+	p.finish(r, last, k)
 
 	// Covariance (JᵀWJ)⁻¹, scaled by the reduced χ² when σ was estimated.
-	for a := 0; a < np; a++ {
+	hs := mat.NewSymDense(k, nil)
+	for a := lo; a < np; a++ {
 		for b := a; b < np; b++ {
-			h.SetSym(a, b, jtj[a][b])
+			hs.SetSym(a-lo, b-lo, jtj[a][b])
 		}
 	}
+	var ch mat.Cholesky
 	var cov mat.SymDense
-	if ch.Factorize(h) && ch.InverseTo(&cov) == nil {
+	if ch.Factorize(hs) && ch.InverseTo(&cov) == nil {
 		sc := r.scaleChi()
-		vg, vv, cgv := cov.At(2, 2)*sc, cov.At(3, 3)*sc, cov.At(2, 3)*sc
+		vg, vv, cgv := cov.At(2-lo, 2-lo)*sc, cov.At(3-lo, 3-lo)*sc, cov.At(2-lo, 3-lo)*sc
 		r.GammaSEPerS = math.Sqrt(math.Max(0, vg)) * g0
 		// PDI = v/g²: ∂/∂v = 1/g², ∂/∂g = −2v/g³.
 		dv, dg := 1/(par[2]*par[2]), -2*par[3]/(par[2]*par[2]*par[2])

@@ -1,0 +1,32 @@
+package cumulants_test
+
+import (
+	"math/rand/v2"
+	"testing"
+
+	"dlsbatch/cumulants"
+	"dlsbatch/dls"
+)
+
+// BenchmarkFit fits one 200-channel correlogram (lognormal, PDI ≈ 0.02,
+// noise 1e-3) with the default settings, range check included.
+func BenchmarkFit(b *testing.B) {
+	tau := multiTau(0.5e-6, 8, 200)
+	g1, _, _ := logNormalG1(tau, 2000, 0.15)
+	m := measurement(tau, g1, dls.KindG2, 0.9, 1, 1e-3, rand.New(rand.NewPCG(1, 1)))
+	for _, c := range []struct {
+		name  string
+		check bool
+	}{{"default", true}, {"no-range-check", false}} {
+		b.Run(c.name, func(b *testing.B) {
+			s := cumulants.DefaultSettings()
+			s.RangeCheck = c.check
+			b.ReportAllocs()
+			for b.Loop() {
+				if _, err := cumulants.Fit(m, &s); err != nil {
+					b.Fatal(err)
+				}
+			}
+		})
+	}
+}
