@@ -1,12 +1,338 @@
 package main
 
 import (
+	"bytes"
 	"context"
+	"errors"
 	"fmt"
+	"io"
+	"os"
+	"path/filepath"
+	"runtime"
+	"strings"
+	"sync"
+
+	"github.com/schollz/progressbar/v3"
+	"github.com/spf13/pflag"
+
+	"dlsbatch/cumulants"
+	"dlsbatch/dls"
+	"dlsbatch/dls/batch"
+	"dlsbatch/io/csvdata"
+	"dlsbatch/io/report"
 )
 
-// runRun is a placeholder until the subcommand is built.
+// runOptions are the flags of `dlsbatch run`.
+type runOptions struct {
+	out      string
+	jobs     int
+	quiet    bool
+	force    bool
+	set      paramsFlag
+	defaults paramsFlag
+
+	tauCol, tauUnit, sigmaCol string
+	corrCols                  []string
+	corrKind                  *enumFlag
+
+	method      *enumFlag
+	order       int
+	cutoff      float64
+	minLagS     float64
+	extrapolate bool
+	noCurves    bool
+}
+
+func newRunOptions() *runOptions {
+	d := cumulants.DefaultSettings()
+	return &runOptions{
+		set:      paramsFlag{flag: "set", origin: dls.OriginFlag},
+		defaults: paramsFlag{flag: "default", origin: dls.OriginDefault},
+		corrKind: newEnum("", "g2", "g2m1", "g1"),
+		method:   newEnum(d.Method.String(), "nonlinear", "linear"),
+		order:    d.Order,
+		cutoff:   d.Cutoff,
+	}
+}
+
+func (o *runOptions) addFlags(fs *pflag.FlagSet) {
+	fs.StringVarP(&o.out, "out", "o", "", "folder for results.csv and results.json (required; must not lie inside an input folder)")
+	fs.IntVarP(&o.jobs, "jobs", "j", runtime.NumCPU(), "files analysed in parallel; output is the same for any value")
+	fs.BoolVarP(&o.quiet, "quiet", "q", false, "print no summary and no progress")
+	fs.BoolVar(&o.force, "force", false, "replace results already in the --out folder")
+	fs.Var(&o.set, "set", "metadata for every measurement, over file and sheet values (repeatable), e.g. --set temperature_c=25")
+	fs.Var(&o.defaults, "default", "metadata used where no file or sheet gives it (repeatable), e.g. --default angle_deg=173")
+	fs.StringVar(&o.tauCol, "lag-column", "", "name of the lag column in a foreign CSV")
+	fs.StringVar(&o.tauUnit, "lag-unit", "", "unit of the lag column: s, ms or us")
+	fs.StringSliceVar(&o.corrCols, "corr-column", nil, "correlation column(s) to read in a foreign CSV, each one run (comma-separated or repeated)")
+	fs.Var(o.corrKind, "corr-kind", "kind of the --corr-column values: g2 (baseline ≈ 1), g2m1 (g2 − 1) or g1")
+	fs.StringVar(&o.sigmaCol, "sigma-column", "", "column with the standard uncertainty of each correlation value")
+	fs.Var(o.method, "cumulant-method", "cumulant fit: nonlinear (free baseline, default) or linear (fixed far-channel baseline)")
+	fs.IntVar(&o.order, "cumulant-order", o.order, "cumulant order, 2 or 3")
+	fs.Float64Var(&o.cutoff, "g1-cutoff", o.cutoff, "end the fit where the estimated g1 falls below this amplitude")
+	fs.Float64Var(&o.minLagS, "min-lag-s", 0, "ignore channels below this lag in s (afterpulsing, dead time)")
+	fs.BoolVar(&o.extrapolate, "extrapolate", false, "allow solvent correlations outside their valid range (every result touched is a warning)")
+	fs.BoolVar(&o.noCurves, "no-curves", false, "leave fitted curves and residuals out of results.json")
+}
+
+const runUsage = `Usage: dlsbatch run [flags] PATH... --out DIR
+
+Reads every correlogram CSV named, or found below a named folder (*.csv,
+recursively), fits cumulants to each measurement and writes
+DIR/results.csv (one row per measurement) and DIR/results.json (the same
+records with fitted curves and the provenance of every parameter).
+Input files are only ever read.
+
+Metadata precedence, highest first: --set, sample sheet, the file's
+'# key: value' lines, --default, built-in default (solvent water).
+
+Flags:
+`
+
 func runRun(ctx context.Context, e env, args []string) int {
-	fmt.Fprintln(e.stderr, "dlsbatch run: not built yet")
-	return exitFatal
+	o := newRunOptions()
+	fs := pflag.NewFlagSet("run", pflag.ContinueOnError)
+	fs.SetOutput(e.stderr)
+	o.addFlags(fs)
+	fs.Usage = func() {
+		fmt.Fprint(e.stderr, runUsage)
+		fs.PrintDefaults()
+		fmt.Fprint(e.stderr, "\n"+exitCodesText)
+	}
+	if err := fs.Parse(args); err != nil {
+		if errors.Is(err, pflag.ErrHelp) {
+			fmt.Fprint(e.stdout, runUsage)
+			fs.SetOutput(e.stdout)
+			fs.PrintDefaults()
+			fmt.Fprint(e.stdout, "\n"+exitCodesText)
+			return exitOK
+		}
+		return exitUsage
+	}
+	paths := fs.Args()
+	if len(paths) == 0 {
+		fmt.Fprintln(e.stderr, "dlsbatch run: name at least one file or folder")
+		return exitUsage
+	}
+	if o.out == "" {
+		fmt.Fprintln(e.stderr, "dlsbatch run: --out DIR is required")
+		return exitUsage
+	}
+	settings, readOpts, err := o.settings()
+	if err != nil {
+		fmt.Fprintf(e.stderr, "dlsbatch run: %v\n", err)
+		return exitUsage
+	}
+	if err := checkOutside(o.out, paths); err != nil {
+		fmt.Fprintf(e.stderr, "dlsbatch run: %v\n", err)
+		return exitUsage
+	}
+	if !o.force {
+		for _, name := range []string{"results.csv", "results.json"} {
+			if _, err := os.Stat(filepath.Join(o.out, name)); err == nil {
+				fmt.Fprintf(e.stderr, "dlsbatch run: %s already exists; use --force to replace it\n", filepath.Join(o.out, name))
+				return exitUsage
+			}
+		}
+	}
+
+	files, derrs := csvdata.Discover(paths)
+	for _, err := range derrs {
+		fmt.Fprintf(e.stderr, "dlsbatch run: %v\n", err)
+	}
+	if len(files) == 0 {
+		fmt.Fprintln(e.stderr, "dlsbatch run: no correlogram files (*.csv) found")
+		return exitFatal
+	}
+
+	rn := &batch.Runner{
+		Read:     func(path string) []batch.Input { return readInputs(path, readOpts) },
+		Settings: settings,
+		Workers:  o.jobs,
+	}
+	if e.stderrIsTerminal && !o.quiet {
+		bar := progressbar.NewOptions(len(files),
+			progressbar.OptionSetWriter(e.stderr),
+			progressbar.OptionSetDescription("analysing"),
+			progressbar.OptionShowCount(),
+			progressbar.OptionClearOnFinish())
+		var mu sync.Mutex
+		rn.Progress = func(string) {
+			mu.Lock()
+			bar.Add(1)
+			mu.Unlock()
+		}
+		defer bar.Finish()
+	}
+	results, runErr := rn.Run(ctx, files)
+
+	doc := &report.Document{
+		Tool:     "dlsbatch",
+		Version:  version,
+		Caution:  report.Caution,
+		Settings: o.describe(settings),
+		Counts:   report.CountResults(results),
+		Results:  results,
+	}
+	if err := writeOutputs(o.out, results, doc); err != nil {
+		fmt.Fprintf(e.stderr, "dlsbatch run: %v\n", err)
+		return exitFatal
+	}
+	if !o.quiet {
+		if err := report.WriteSummary(e.stdout, results, 10); err != nil {
+			fmt.Fprintf(e.stderr, "dlsbatch run: %v\n", err)
+		}
+		fmt.Fprintf(e.stdout, "results: %s, %s\n%s\n", filepath.Join(o.out, "results.csv"), filepath.Join(o.out, "results.json"), report.Caution)
+	}
+	if runErr != nil {
+		fmt.Fprintf(e.stderr, "dlsbatch run: interrupted; the %d results finished are written\n", len(results))
+		return exitInterrupted
+	}
+	c := doc.Counts
+	switch {
+	case c.Total == 0 || c.Error == c.Total:
+		return exitFatal
+	case c.Error > 0:
+		return exitSomeFailed
+	}
+	return exitOK
+}
+
+// settings turns the flags into analysis and reading settings.
+func (o *runOptions) settings() (batch.Settings, *csvdata.Options, error) {
+	s := batch.DefaultSettings()
+	m, err := cumulants.ParseMethod(o.method.value)
+	if err != nil {
+		return s, nil, err
+	}
+	s.Cumulants.Method = m
+	s.Cumulants.Order = o.order
+	s.Cumulants.Cutoff = o.cutoff
+	s.Cumulants.MinTauS = o.minLagS
+	if err := s.Cumulants.Validate(); err != nil {
+		return s, nil, err
+	}
+	s.Overrides = o.set.params
+	s.Defaults = append(o.defaults.params, s.Defaults...)
+	s.Extrapolate = o.extrapolate
+	s.KeepCurves = !o.noCurves
+	ro := &csvdata.Options{TauColumn: o.tauCol, TauUnit: o.tauUnit, CorrColumns: o.corrCols, SigmaColumn: o.sigmaCol}
+	if o.corrKind.value != "" {
+		k, err := dls.ParseCorrKind(o.corrKind.value)
+		if err != nil {
+			return s, nil, err
+		}
+		ro.CorrKind = k
+	}
+	return s, ro, nil
+}
+
+// describe records the settings in results.json.
+func (o *runOptions) describe(s batch.Settings) map[string]any {
+	kv := func(ps []dls.Param) []string {
+		out := make([]string, len(ps))
+		for i, p := range ps {
+			out[i] = p.Key + "=" + p.Value
+		}
+		return out
+	}
+	return map[string]any{
+		"cumulant_method":   s.Cumulants.Method.String(),
+		"cumulant_order":    s.Cumulants.Order,
+		"g1_cutoff":         s.Cumulants.Cutoff,
+		"min_lag_s":         s.Cumulants.MinTauS,
+		"min_points":        s.Cumulants.MinPoints,
+		"range_check":       s.Cumulants.RangeCheck,
+		"extrapolate":       s.Extrapolate,
+		"set":               kv(s.Overrides),
+		"default":           kv(s.Defaults),
+		"lag_column":        o.tauCol,
+		"lag_unit":          o.tauUnit,
+		"corr_columns":      o.corrCols,
+		"corr_kind":         o.corrKind.value,
+		"sigma_column":      o.sigmaCol,
+		"boltzmann_j_per_k": dls.BoltzmannJPerK,
+	}
+}
+
+func readInputs(path string, o *csvdata.Options) []batch.Input {
+	entries := csvdata.ReadFile(path, o)
+	out := make([]batch.Input, len(entries))
+	for i, en := range entries {
+		out[i] = batch.Input{File: en.File, Run: en.Run, Index: en.Index, M: en.M, Err: en.Err}
+	}
+	return out
+}
+
+// checkOutside refuses an output folder that is, or lies inside, one of the
+// input folders, so that no file under the input paths is ever written.
+func checkOutside(out string, inputs []string) error {
+	ao, err := filepath.Abs(out)
+	if err != nil {
+		return fmt.Errorf("--out %s: %w", out, err)
+	}
+	for _, in := range inputs {
+		ai, err := filepath.Abs(in)
+		if err != nil {
+			continue
+		}
+		st, err := os.Stat(in)
+		if err != nil {
+			continue
+		}
+		if !st.IsDir() {
+			if ao == ai {
+				return fmt.Errorf("--out %s is an input file", out)
+			}
+			continue
+		}
+		if rel, err := filepath.Rel(ai, ao); err == nil && (rel == "." || !strings.HasPrefix(rel, "..")) {
+			return fmt.Errorf("--out %s lies inside the input folder %s; choose a folder outside the inputs", out, in)
+		}
+	}
+	return nil
+}
+
+// writeOutputs writes results.csv and results.json, each through a
+// temporary file renamed into place, so that a failed write never leaves a
+// half file under the final name.
+func writeOutputs(dir string, results []*dls.Result, doc *report.Document) error {
+	if err := os.MkdirAll(dir, 0o755); err != nil {
+		return fmt.Errorf("output folder: %w", err)
+	}
+	var csvBuf, jsonBuf bytes.Buffer
+	if err := report.WriteCSV(&csvBuf, results); err != nil {
+		return err
+	}
+	if err := report.WriteJSON(&jsonBuf, doc); err != nil {
+		return err
+	}
+	for _, f := range []struct {
+		name string
+		data io.Reader
+	}{{"results.csv", &csvBuf}, {"results.json", &jsonBuf}} {
+		if err := writeAtomic(filepath.Join(dir, f.name), f.data); err != nil {
+			return err
+		}
+	}
+	return nil
+}
+
+func writeAtomic(path string, r io.Reader) error {
+	tmp, err := os.CreateTemp(filepath.Dir(path), "."+filepath.Base(path)+".tmp*")
+	if err != nil {
+		return fmt.Errorf("write %s: %w", path, err)
+	}
+	_, err = io.Copy(tmp, r)
+	if cerr := tmp.Close(); err == nil {
+		err = cerr
+	}
+	if err == nil {
+		err = os.Rename(tmp.Name(), path)
+	}
+	if err != nil {
+		os.Remove(tmp.Name())
+		return fmt.Errorf("write %s: %w", path, err)
+	}
+	return nil
 }

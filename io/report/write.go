@@ -143,7 +143,7 @@ func WriteSummary(w io.Writer, results []*dls.Result, maxProblems int) error {
 			a.temperatures[fixed(r.TemperatureC, 1)] = true
 		}
 	}
-	tw := tabwriter.NewWriter(w, 0, 0, 2, ' ', tabwriter.AlignRight)
+	tw := tabwriter.NewWriter(w, 0, 0, 2, ' ', 0)
 	fmt.Fprintln(tw, "sample\tT °C\tmeasured\tanalysed\tz-average nm\tSD nm\tPDI\t")
 	for _, k := range order {
 		a := bySample[k]
@@ -181,7 +181,17 @@ func WriteSummary(w io.Writer, results []*dls.Result, maxProblems int) error {
 		if r.Run != "" {
 			id += "[" + r.Run + "]"
 		}
-		fmt.Fprintf(w, "  %-5s %s: %s\n", r.Status, id, r.Message)
+		msg := r.Message
+		if strings.HasPrefix(msg, r.File+":") {
+			// Errors name file and line already; keep the run label.
+			id, msg = "", strings.TrimPrefix(msg, r.File+":")
+			if r.Run != "" {
+				id = "[" + r.Run + "]"
+			}
+			id = r.File + id + ":" + strings.SplitN(msg, ":", 2)[0]
+			msg = strings.TrimSpace(strings.SplitN(msg, ":", 2)[1])
+		}
+		fmt.Fprintf(w, "  %-5s %s: %s\n", r.Status, id, msg)
 		shown++
 	}
 	return nil

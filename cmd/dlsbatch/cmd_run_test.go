@@ -1,0 +1,327 @@
+package main
+
+import (
+	"bytes"
+	"context"
+	"crypto/sha256"
+	"encoding/csv"
+	"encoding/json"
+	"math"
+	"os"
+	"path/filepath"
+	"strconv"
+	"strings"
+	"testing"
+
+	"dlsbatch/dls"
+	"dlsbatch/io/csvdata"
+)
+
+// runCmd runs the command line with buffers and returns exit code, stdout
+// and stderr.
+func runCmd(t *testing.T, args ...string) (int, string, string) {
+	t.Helper()
+	var out, errb bytes.Buffer
+	code := run(context.Background(), args, env{stdin: strings.NewReader(""), stdout: &out, stderr: &errb})
+	return code, out.String(), errb.String()
+}
+
+// lagGrid is a multi-tau grid: 16 channels at 1 µs, then 8 per doubling.
+func lagGrid() []float64 {
+	var tau []float64
+	for k := 1; k <= 16; k++ {
+		tau = append(tau, float64(k)*1e-6)
+	}
+	for s := 1; len(tau) < 180; s++ {
+		for j := 1; j <= 8; j++ {
+			tau = append(tau, float64(8+j)*math.Ldexp(1e-6, s))
+		}
+	}
+	return tau
+}
+
+// writeMono writes a noise-free single-exponential g2 file for a sphere of
+// the worked example: 100 nm in water at 25 °C, η = 0.890022 mPa·s,
+// n = 1.33162, 632.8 nm, 173°, for which Γ = 3418.78 1/s (computed check
+// values of Stokes–Einstein and q to 6 digits).
+func writeMono(t *testing.T, path, sample string, runs int) {
+	t.Helper()
+	tau := lagGrid()
+	var cols []csvdata.Column
+	for r := 0; r < runs; r++ {
+		v := make([]float64, len(tau))
+		for i, x := range tau {
+			v[i] = 1 + 0.9*math.Exp(-2*3418.78*x)
+		}
+		label := ""
+		if runs > 1 {
+			label = "r" + strconv.Itoa(r+1)
+		}
+		cols = append(cols, csvdata.Column{Label: label, Values: v})
+	}
+	meta := []dls.Param{
+		{Key: "sample", Value: sample}, {Key: "temperature_c", Value: "25"}, {Key: "wavelength_nm", Value: "632.8"},
+		{Key: "angle_deg", Value: "173"}, {Key: "solvent", Value: "water"}, {Key: "viscosity_mpas", Value: "0.890022"},
+		{Key: "refractive_index", Value: "1.33162"},
+	}
+	var b bytes.Buffer
+	if err := csvdata.Write(&b, meta, tau, "us", dls.KindG2, cols); err != nil {
+		t.Fatal(err)
+	}
+	if err := os.WriteFile(path, b.Bytes(), 0o644); err != nil {
+		t.Fatal(err)
+	}
+}
+
+func readResultsCSV(t *testing.T, path string) []map[string]string {
+	t.Helper()
+	f, err := os.Open(path)
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer f.Close()
+	rows, err := csv.NewReader(f).ReadAll()
+	if err != nil {
+		t.Fatal(err)
+	}
+	var out []map[string]string
+	for _, row := range rows[1:] {
+		m := map[string]string{}
+		for i, h := range rows[0] {
+			m[h] = row[i]
+		}
+		out = append(out, m)
+	}
+	return out
+}
+
+func hashTree(t *testing.T, dir string) map[string][32]byte {
+	t.Helper()
+	h := map[string][32]byte{}
+	filepath.WalkDir(dir, func(p string, d os.DirEntry, err error) error {
+		if err == nil && !d.IsDir() {
+			b, _ := os.ReadFile(p)
+			h[p] = sha256.Sum256(b)
+		}
+		return nil
+	})
+	return h
+}
+
+// batchDir builds an input folder: two good files (one with three runs), a
+// file with a non-numeric cell, and one missing its temperature.
+func batchDir(t *testing.T) string {
+	dir := t.TempDir()
+	writeMono(t, filepath.Join(dir, "a_latex.csv"), "latex", 1)
+	writeMono(t, filepath.Join(dir, "b_multi.csv"), "multi", 3)
+	os.WriteFile(filepath.Join(dir, "c_bad.csv"), []byte("# temperature_c: 25\ntau_s,g2\n1e-6,1.9\n2e-6,abc\n"), 0o644)
+	os.MkdirAll(filepath.Join(dir, "sub"), 0o755)
+	b, _ := os.ReadFile(filepath.Join(dir, "a_latex.csv"))
+	os.WriteFile(filepath.Join(dir, "sub", "d_notemp.csv"), bytes.Replace(b, []byte("# temperature_c: 25\n"), nil, 1), 0o644)
+	return dir
+}
+
+func TestRunBatch(t *testing.T) {
+	in := batchDir(t)
+	before := hashTree(t, in)
+	out := filepath.Join(t.TempDir(), "out")
+	code, stdout, stderr := runCmd(t, "run", in, "--out", out, "-j", "2")
+	if code != exitSomeFailed {
+		t.Fatalf("exit %d, want %d (some failed); stderr: %s", code, exitSomeFailed, stderr)
+	}
+	rows := readResultsCSV(t, filepath.Join(out, "results.csv"))
+	if len(rows) != 6 {
+		t.Fatalf("%d rows, want 6 (1 + 3 runs + 2 failures)", len(rows))
+	}
+	// Sorted by path then run label.
+	wantOrder := []string{"a_latex.csv", "b_multi.csv[r1]", "b_multi.csv[r2]", "b_multi.csv[r3]", "c_bad.csv", filepath.Join("sub", "d_notemp.csv")}
+	for i, r := range rows {
+		id, _ := filepath.Rel(in, r["file"])
+		if r["run"] != "" {
+			id += "[" + r["run"] + "]"
+		}
+		if id != wantOrder[i] {
+			t.Errorf("row %d is %s, want %s", i, id, wantOrder[i])
+		}
+	}
+	// Round trip of the worked example: Γ = 3418.78 1/s at 173° gives
+	// 100.00 nm. The file stores g2 to 7 decimals, which moves Γ̄ by far
+	// less than 1e-5; the tolerance 0.01 nm is the worked value's rounding.
+	for _, r := range rows[:4] {
+		if r["status"] != "ok" {
+			t.Errorf("%s[%s]: status %s (%s)", r["file"], r["run"], r["status"], r["message"])
+			continue
+		}
+		z, _ := strconv.ParseFloat(r["z_avg_nm"], 64)
+		if math.Abs(z-100) > 0.01 {
+			t.Errorf("%s: z-average %.3f nm, want 100.00", r["file"], z)
+		}
+	}
+	bad := rows[4]
+	if bad["status"] != "error" || !strings.Contains(bad["message"], "c_bad.csv:4") {
+		t.Errorf("non-numeric cell: status %s, message %q; want error naming c_bad.csv:4", bad["status"], bad["message"])
+	}
+	nt := rows[5]
+	if nt["status"] != "error" || !strings.Contains(nt["message"], "temperature_c") {
+		t.Errorf("missing temperature: status %s, message %q", nt["status"], nt["message"])
+	}
+	if !strings.Contains(stdout, "6 measurements: 4 ok, 0 warn, 2 error") {
+		t.Errorf("summary lacks the counts:\n%s", stdout)
+	}
+	if !strings.Contains(stdout, "qualified staff") {
+		t.Error("summary lacks the caution")
+	}
+	// No input was modified or added.
+	after := hashTree(t, in)
+	if len(after) != len(before) {
+		t.Errorf("input folder now has %d files, had %d", len(after), len(before))
+	}
+	for p, h := range before {
+		if after[p] != h {
+			t.Errorf("%s changed", p)
+		}
+	}
+	// results.json carries the same records, provenance and the caution.
+	var doc struct {
+		Caution string `json:"caution"`
+		Results []struct {
+			File   string      `json:"file"`
+			ZAvg   float64     `json:"z_avg_nm"`
+			Params []dls.Param `json:"params"`
+		} `json:"results"`
+	}
+	b, err := os.ReadFile(filepath.Join(out, "results.json"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	if err := json.Unmarshal(b, &doc); err != nil {
+		t.Fatal(err)
+	}
+	if len(doc.Results) != 6 || !strings.Contains(doc.Caution, "qualified staff") {
+		t.Fatalf("results.json: %d results, caution %q", len(doc.Results), doc.Caution)
+	}
+	found := false
+	for _, p := range doc.Results[0].Params {
+		if p.Key == "temperature_c" && p.Origin == dls.OriginFile && strings.HasSuffix(p.Where, "a_latex.csv:2") {
+			found = true
+		}
+	}
+	if !found {
+		t.Errorf("temperature provenance missing: %+v", doc.Results[0].Params)
+	}
+}
+
+func TestRunSameBytesAnyJobs(t *testing.T) {
+	in := batchDir(t)
+	var first map[string][]byte
+	for _, j := range []string{"1", "2", "7"} {
+		out := filepath.Join(t.TempDir(), "out")
+		runCmd(t, "run", in, "--out", out, "-j", j, "--quiet")
+		got := map[string][]byte{}
+		for _, name := range []string{"results.csv", "results.json"} {
+			b, err := os.ReadFile(filepath.Join(out, name))
+			if err != nil {
+				t.Fatal(err)
+			}
+			got[name] = b
+		}
+		if first == nil {
+			first = got
+			continue
+		}
+		for name, b := range got {
+			if !bytes.Equal(b, first[name]) {
+				t.Errorf("-j %s: %s differs from -j 1", j, name)
+			}
+		}
+	}
+}
+
+func TestRunPrecedence(t *testing.T) {
+	// --set wins over the file; --default fills only gaps.
+	in := batchDir(t)
+	out := filepath.Join(t.TempDir(), "out")
+	code, _, stderr := runCmd(t, "run", in, "--out", out, "--quiet", "--default", "temperature_c=20", "--set", "angle_deg=90")
+	if code != exitSomeFailed {
+		t.Fatalf("exit %d; %s", code, stderr)
+	}
+	rows := readResultsCSV(t, filepath.Join(out, "results.csv"))
+	for _, r := range rows {
+		if r["status"] == "error" {
+			continue
+		}
+		if r["angle_deg"] != "90.00" {
+			t.Errorf("%s: angle %s, want the --set 90", r["file"], r["angle_deg"])
+		}
+		want := "25.00"
+		if strings.Contains(r["file"], "d_notemp") {
+			want = "20.00"
+		}
+		if r["temperature_c"] != want {
+			t.Errorf("%s: temperature %s, want %s", r["file"], r["temperature_c"], want)
+		}
+	}
+}
+
+func TestRunExitCodes(t *testing.T) {
+	good := t.TempDir()
+	writeMono(t, filepath.Join(good, "a.csv"), "a", 1)
+	bad := t.TempDir()
+	os.WriteFile(filepath.Join(bad, "x.csv"), nil, 0o644)
+	empty := t.TempDir()
+	cases := []struct {
+		name string
+		args []string
+		want int
+	}{
+		{"all ok", []string{"run", good, "--out", filepath.Join(t.TempDir(), "o"), "-q"}, exitOK},
+		{"every measurement failed", []string{"run", bad, "--out", filepath.Join(t.TempDir(), "o"), "-q"}, exitFatal},
+		{"no files found", []string{"run", empty, "--out", filepath.Join(t.TempDir(), "o"), "-q"}, exitFatal},
+		{"missing --out", []string{"run", good}, exitUsage},
+		{"no paths", []string{"run", "--out", t.TempDir()}, exitUsage},
+		{"unknown flag", []string{"run", good, "--out", t.TempDir(), "--frobnicate"}, exitUsage},
+		{"bad enum", []string{"run", good, "--out", t.TempDir(), "--cumulant-method", "quadratic"}, exitUsage},
+		{"bad --set key", []string{"run", good, "--out", t.TempDir(), "--set", "colour=blue"}, exitUsage},
+		{"bad order", []string{"run", good, "--out", t.TempDir(), "--cumulant-order", "4"}, exitUsage},
+		{"out inside input", []string{"run", good, "--out", filepath.Join(good, "results")}, exitUsage},
+		{"help", []string{"run", "--help"}, exitOK},
+		{"unknown command", []string{"frobnicate"}, exitUsage},
+		{"top help", []string{"--help"}, exitOK},
+	}
+	for _, c := range cases {
+		t.Run(c.name, func(t *testing.T) {
+			if code, _, stderr := runCmd(t, c.args...); code != c.want {
+				t.Errorf("exit %d, want %d; stderr: %s", code, c.want, stderr)
+			}
+		})
+	}
+	if _, err := os.Stat(filepath.Join(good, "results")); err == nil {
+		t.Error("an output folder was created inside the input")
+	}
+}
+
+func TestRunRefusesToReplace(t *testing.T) {
+	in := t.TempDir()
+	writeMono(t, filepath.Join(in, "a.csv"), "a", 1)
+	out := filepath.Join(t.TempDir(), "o")
+	if code, _, _ := runCmd(t, "run", in, "--out", out, "-q"); code != exitOK {
+		t.Fatalf("first run exit %d", code)
+	}
+	if code, _, _ := runCmd(t, "run", in, "--out", out, "-q"); code != exitUsage {
+		t.Errorf("second run without --force: exit %d, want %d", code, exitUsage)
+	}
+	if code, _, _ := runCmd(t, "run", in, "--out", out, "-q", "--force"); code != exitOK {
+		t.Errorf("--force: exit %d", code)
+	}
+}
+
+func TestHelpListsExitCodes(t *testing.T) {
+	for _, args := range [][]string{{"--help"}, {"run", "--help"}} {
+		_, stdout, _ := runCmd(t, args...)
+		for _, code := range []string{"0 ", "1 ", "2 ", "3 ", "130"} {
+			if !strings.Contains(stdout, "\n  "+code) {
+				t.Errorf("%v: help does not list exit code %s", args, code)
+			}
+		}
+	}
+}
