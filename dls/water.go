@@ -208,7 +208,9 @@ func WaterRefractiveIndex(tK, lambdaM float64) (float64, error) {
 // checkTemperature returns an error wrapping ErrOutOfRange naming the range
 // [minK, maxK] of the correlation src when tK lies outside it.
 func checkTemperature(tK, minK, maxK float64, src string) error {
-	if tK >= minK && tK <= maxK {
+	// 1e-9 K of slack: a bound given in °C and a temperature converted from
+	// °C may differ in the last bit.
+	if tK >= minK-1e-9 && tK <= maxK+1e-9 {
 		return nil
 	}
 	return fmt.Errorf("temperature %.1f °C is outside %.1f–%.1f °C of the %s: %w",
@@ -217,7 +219,8 @@ func checkTemperature(tK, minK, maxK float64, src string) error {
 
 // checkWavelength is checkTemperature for a vacuum wavelength in metres.
 func checkWavelength(lambdaM, minM, maxM float64, src string) error {
-	if lambdaM >= minM && lambdaM <= maxM {
+	// Relative slack of 1e-12 for bounds converted from µm or nm.
+	if lambdaM >= minM*(1-1e-12) && lambdaM <= maxM*(1+1e-12) {
 		return nil
 	}
 	return fmt.Errorf("wavelength %.1f nm is outside %.0f–%.0f nm of the %s: %w",

@@ -1,0 +1,485 @@
+package solventfile
+
+import (
+	"bytes"
+	"encoding/csv"
+	"errors"
+	"fmt"
+	"io"
+	"math"
+	"os"
+	"strconv"
+	"strings"
+	"unicode"
+
+	"github.com/gocarina/gocsv"
+
+	"dlsbatch/dls"
+)
+
+// Models of the viscosity_model and index_model columns.
+const (
+	ViscosityConstant = "constant"
+	ViscosityAndrade  = "andrade"
+	ViscosityDIPPR101 = "dippr101"
+	IndexConstant     = "constant"
+	IndexCauchy       = "cauchy"
+)
+
+// Entry is one validated row of a solvent file, in the file's units.
+type Entry struct {
+	Name            string
+	Aliases         []string
+	TMinC, TMaxC    float64
+	ViscosityModel  string
+	ViscosityParams []float64
+	IndexModel      string
+	IndexParams     []float64
+	// IndexTC is the temperature of the index data; HasIndexT is false when
+	// the column was blank.
+	IndexTC   float64
+	HasIndexT bool
+	DnDTPerK  float64
+	// LambdaMinNm, LambdaMaxNm: 0 and +Inf when blank (constant index).
+	LambdaMinNm, LambdaMaxNm float64
+	Source                   string
+
+	File string // as given to Parse
+	Line int    // 1-based line of the row
+}
+
+// row is the text of one CSV record as gocsv maps it.
+type row struct {
+	Name            string `csv:"name"`
+	Aliases         string `csv:"aliases"`
+	TMinC           string `csv:"t_min_c"`
+	TMaxC           string `csv:"t_max_c"`
+	ViscosityModel  string `csv:"viscosity_model"`
+	ViscosityParams string `csv:"viscosity_params"`
+	IndexModel      string `csv:"index_model"`
+	IndexParams     string `csv:"index_params"`
+	IndexTC         string `csv:"index_t_c"`
+	DnDTPerK        string `csv:"dn_dt_per_k"`
+	LambdaMinNm     string `csv:"lambda_min_nm"`
+	LambdaMaxNm     string `csv:"lambda_max_nm"`
+	Source          string `csv:"source"`
+}
+
+// Columns lists the columns of a solvent file in the order Write uses.
+var Columns = []string{"name", "aliases", "t_min_c", "t_max_c", "viscosity_model", "viscosity_params",
+	"index_model", "index_params", "index_t_c", "dn_dt_per_k", "lambda_min_nm", "lambda_max_nm", "source"}
+
+var required = []string{"name", "t_min_c", "t_max_c", "viscosity_model", "viscosity_params",
+	"index_model", "index_params", "source"}
+
+// posReader is the CSVReader given to gocsv: it reads with encoding/csv and
+// keeps the line and column of every field for messages.
+type posReader struct {
+	r   *csv.Reader
+	pos [][][2]int // record → field → (line, column)
+}
+
+func (p *posReader) Read() ([]string, error) {
+	rec, err := p.r.Read()
+	if err != nil {
+		return nil, err
+	}
+	fp := make([][2]int, len(rec))
+	for i := range rec {
+		l, c := p.r.FieldPos(i)
+		fp[i] = [2]int{l, c}
+	}
+	p.pos = append(p.pos, fp)
+	if len(p.pos) == 1 { // header: case-insensitive names
+		for i := range rec {
+			rec[i] = strings.ToLower(strings.TrimSpace(rec[i]))
+		}
+	}
+	return rec, nil
+}
+
+func (p *posReader) ReadAll() ([][]string, error) {
+	var out [][]string
+	for {
+		rec, err := p.Read()
+		if err == io.EOF {
+			return out, nil
+		}
+		if err != nil {
+			return nil, err
+		}
+		out = append(out, rec)
+	}
+}
+
+// Parse reads a solvent file from r; file names it in errors. Every error is
+// a *dls.PosError.
+func Parse(r io.Reader, file string) ([]Entry, error) {
+	data, err := io.ReadAll(r)
+	if err != nil {
+		return nil, &dls.PosError{File: file, Err: err}
+	}
+	data = bytes.TrimPrefix(data, []byte("\xef\xbb\xbf"))
+	if bytes.IndexByte(data, 0) >= 0 {
+		return nil, &dls.PosError{File: file, Err: dls.ErrNotText}
+	}
+	cr := csv.NewReader(bytes.NewReader(data))
+	cr.Comment = '#'
+	cr.FieldsPerRecord = -1
+	cr.TrimLeadingSpace = true
+	pr := &posReader{r: cr}
+	records, err := pr.ReadAll()
+	if err != nil {
+		var pe *csv.ParseError
+		if errors.As(err, &pe) {
+			return nil, &dls.PosError{File: file, Line: pe.Line, Column: pe.Column, Err: pe.Err}
+		}
+		return nil, &dls.PosError{File: file, Err: err}
+	}
+	if len(records) == 0 {
+		return nil, &dls.PosError{File: file, Err: dls.ErrEmpty}
+	}
+	header := records[0]
+	hpos := pr.pos[0]
+	if err := checkHeader(header, hpos, file); err != nil {
+		return nil, err
+	}
+	for i, rec := range records[1:] {
+		if len(rec) != len(header) {
+			p := pr.pos[i+1]
+			return nil, &dls.PosError{File: file, Line: p[0][0], Column: p[0][1],
+				Err: fmt.Errorf("%d fields, the header has %d: %w", len(rec), len(header), dls.ErrBadHeader)}
+		}
+	}
+
+	var rows []row
+	if len(records) > 1 {
+		if err := gocsv.UnmarshalCSV(&sliceReader{records: records}, &rows); err != nil {
+			return nil, &dls.PosError{File: file, Line: hpos[0][0], Err: err}
+		}
+	}
+	col := make(map[string]int, len(header))
+	for i, h := range header {
+		col[h] = i
+	}
+	seen := make(map[string]int)
+	out := make([]Entry, 0, len(rows))
+	for i, rw := range rows {
+		fp := pr.pos[i+1]
+		at := func(name string, err error) error {
+			j, ok := col[name]
+			if !ok {
+				return &dls.PosError{File: file, Line: fp[0][0], Err: err}
+			}
+			return &dls.PosError{File: file, Line: fp[j][0], Column: fp[j][1], Err: fmt.Errorf("%s: %w", name, err)}
+		}
+		e, err := parseRow(rw, at)
+		if err != nil {
+			return nil, err
+		}
+		e.File, e.Line = file, fp[0][0]
+		for _, k := range append([]string{e.Name}, e.Aliases...) {
+			key := strings.ToLower(k)
+			if prev, dup := seen[key]; dup {
+				return nil, at("name", fmt.Errorf("%q already defined on line %d", k, prev))
+			}
+			seen[key] = e.Line
+		}
+		out = append(out, e)
+	}
+	return out, nil
+}
+
+// sliceReader hands records already read to gocsv.
+type sliceReader struct {
+	records [][]string
+	i       int
+}
+
+func (s *sliceReader) Read() ([]string, error) {
+	if s.i >= len(s.records) {
+		return nil, io.EOF
+	}
+	s.i++
+	return s.records[s.i-1], nil
+}
+
+func (s *sliceReader) ReadAll() ([][]string, error) {
+	out := s.records[s.i:]
+	s.i = len(s.records)
+	return out, nil
+}
+
+func checkHeader(header []string, pos [][2]int, file string) error {
+	known := make(map[string]bool, len(Columns))
+	for _, c := range Columns {
+		known[c] = true
+	}
+	seen := make(map[string]bool)
+	for i, h := range header {
+		switch {
+		case !known[h]:
+			return &dls.PosError{File: file, Line: pos[i][0], Column: pos[i][1],
+				Err: fmt.Errorf("unknown column %q (want %s): %w", h, strings.Join(Columns, ", "), dls.ErrBadHeader)}
+		case seen[h]:
+			return &dls.PosError{File: file, Line: pos[i][0], Column: pos[i][1],
+				Err: fmt.Errorf("column %q appears twice: %w", h, dls.ErrBadHeader)}
+		}
+		seen[h] = true
+	}
+	for _, r := range required {
+		if !seen[r] {
+			return &dls.PosError{File: file, Line: pos[0][0],
+				Err: fmt.Errorf("missing column %q: %w", r, dls.ErrBadHeader)}
+		}
+	}
+	return nil
+}
+
+// number parses one finite number.
+func number(s string) (float64, error) {
+	v, err := strconv.ParseFloat(strings.TrimSpace(s), 64)
+	if err != nil {
+		return 0, fmt.Errorf("%q: %w (%w)", s, dls.ErrNotANumber, err)
+	}
+	if math.IsNaN(v) || math.IsInf(v, 0) {
+		return 0, fmt.Errorf("%q: %w", s, dls.ErrNonFinite)
+	}
+	return v, nil
+}
+
+func numbers(s string) ([]float64, error) {
+	var out []float64
+	for _, f := range strings.Fields(s) {
+		v, err := number(f)
+		if err != nil {
+			return nil, err
+		}
+		out = append(out, v)
+	}
+	return out, nil
+}
+
+func parseRow(rw row, at func(string, error) error) (Entry, error) {
+	var e Entry
+	e.Name = strings.TrimSpace(rw.Name)
+	if e.Name == "" {
+		return e, at("name", dls.ErrMissingValue)
+	}
+	if strings.Contains(e.Name, ":") {
+		return e, at("name", fmt.Errorf("%q: ':' is reserved for mixtures", e.Name))
+	}
+	if strings.HasPrefix(e.Name, "#") {
+		return e, at("name", fmt.Errorf("%q: a name may not start with '#' (comment lines)", e.Name))
+	}
+	for _, c := range []struct{ col, text string }{{"name", rw.Name}, {"aliases", rw.Aliases}, {"source", rw.Source}} {
+		if strings.ContainsFunc(c.text, unicode.IsControl) {
+			return e, at(c.col, fmt.Errorf("%q holds a control character", c.text))
+		}
+	}
+	for _, a := range strings.Split(rw.Aliases, "|") {
+		if a = strings.TrimSpace(a); a != "" {
+			if strings.Contains(a, ":") {
+				return e, at("aliases", fmt.Errorf("%q: ':' is reserved for mixtures", a))
+			}
+			e.Aliases = append(e.Aliases, a)
+		}
+	}
+	var err error
+	if e.TMinC, err = number(rw.TMinC); err != nil {
+		return e, at("t_min_c", err)
+	}
+	if e.TMaxC, err = number(rw.TMaxC); err != nil {
+		return e, at("t_max_c", err)
+	}
+	if !(e.TMinC < e.TMaxC) || e.TMinC <= -dls.ZeroCelsiusK {
+		return e, at("t_max_c", fmt.Errorf("range %g–%g °C is empty or below absolute zero: %w", e.TMinC, e.TMaxC, dls.ErrOutOfRange))
+	}
+
+	e.ViscosityModel = strings.ToLower(strings.TrimSpace(rw.ViscosityModel))
+	if e.ViscosityParams, err = numbers(rw.ViscosityParams); err != nil {
+		return e, at("viscosity_params", err)
+	}
+	want := map[string]int{ViscosityConstant: 1, ViscosityAndrade: 2, ViscosityDIPPR101: 5}
+	n, ok := want[e.ViscosityModel]
+	if !ok {
+		return e, at("viscosity_model", fmt.Errorf("%q: want constant, andrade or dippr101", rw.ViscosityModel))
+	}
+	if len(e.ViscosityParams) != n {
+		return e, at("viscosity_params", fmt.Errorf("%s takes %d numbers, got %d", e.ViscosityModel, n, len(e.ViscosityParams)))
+	}
+	if e.ViscosityModel == ViscosityConstant && !(e.ViscosityParams[0] > 0) {
+		return e, at("viscosity_params", fmt.Errorf("viscosity %g mPa·s is not positive: %w", e.ViscosityParams[0], dls.ErrOutOfRange))
+	}
+
+	e.IndexModel = strings.ToLower(strings.TrimSpace(rw.IndexModel))
+	if e.IndexParams, err = numbers(rw.IndexParams); err != nil {
+		return e, at("index_params", err)
+	}
+	switch e.IndexModel {
+	case IndexConstant:
+		if len(e.IndexParams) != 1 {
+			return e, at("index_params", fmt.Errorf("constant takes 1 number, got %d", len(e.IndexParams)))
+		}
+	case IndexCauchy:
+		if len(e.IndexParams) < 2 {
+			return e, at("index_params", fmt.Errorf("cauchy takes at least 2 numbers (A B), got %d", len(e.IndexParams)))
+		}
+	default:
+		return e, at("index_model", fmt.Errorf("%q: want constant or cauchy", rw.IndexModel))
+	}
+	if !(e.IndexParams[0] >= 1) || e.IndexParams[0] > 5 {
+		return e, at("index_params", fmt.Errorf("index %g is outside 1–5: %w", e.IndexParams[0], dls.ErrOutOfRange))
+	}
+	if strings.TrimSpace(rw.IndexTC) != "" {
+		if e.IndexTC, err = number(rw.IndexTC); err != nil {
+			return e, at("index_t_c", err)
+		}
+		if e.IndexTC <= -dls.ZeroCelsiusK {
+			return e, at("index_t_c", fmt.Errorf("%g °C is below absolute zero: %w", e.IndexTC, dls.ErrOutOfRange))
+		}
+		e.HasIndexT = true
+	}
+	if strings.TrimSpace(rw.DnDTPerK) != "" {
+		if e.DnDTPerK, err = number(rw.DnDTPerK); err != nil {
+			return e, at("dn_dt_per_k", err)
+		}
+		if e.DnDTPerK != 0 && !e.HasIndexT {
+			return e, at("dn_dt_per_k", fmt.Errorf("dn/dT needs index_t_c: %w", dls.ErrMissingValue))
+		}
+		if math.Abs(e.DnDTPerK) > 0.01 {
+			return e, at("dn_dt_per_k", fmt.Errorf("%g /K is not a liquid's dn/dT: %w", e.DnDTPerK, dls.ErrOutOfRange))
+		}
+	}
+	e.LambdaMinNm, e.LambdaMaxNm = 0, math.Inf(1)
+	if s := strings.TrimSpace(rw.LambdaMinNm); s != "" {
+		if e.LambdaMinNm, err = number(s); err != nil {
+			return e, at("lambda_min_nm", err)
+		}
+	}
+	if s := strings.TrimSpace(rw.LambdaMaxNm); s != "" {
+		if e.LambdaMaxNm, err = number(s); err != nil {
+			return e, at("lambda_max_nm", err)
+		}
+	}
+	if e.IndexModel == IndexCauchy && (e.LambdaMinNm == 0 || math.IsInf(e.LambdaMaxNm, 1)) {
+		return e, at("lambda_min_nm", fmt.Errorf("a cauchy index needs lambda_min_nm and lambda_max_nm: %w", dls.ErrMissingValue))
+	}
+	if !(e.LambdaMinNm >= 0 && e.LambdaMinNm < e.LambdaMaxNm) {
+		return e, at("lambda_max_nm", fmt.Errorf("range %g–%g nm is empty or negative: %w", e.LambdaMinNm, e.LambdaMaxNm, dls.ErrOutOfRange))
+	}
+	e.Source = strings.TrimSpace(rw.Source)
+	if e.Source == "" {
+		return e, at("source", fmt.Errorf("say where the numbers come from: %w", dls.ErrMissingValue))
+	}
+	return e, nil
+}
+
+// Solvent builds the table entry of e (SI inside).
+func (e Entry) Solvent() *dls.Solvent {
+	tMin, tMax := dls.KelvinFromCelsius(e.TMinC), dls.KelvinFromCelsius(e.TMaxC)
+	p := e.ViscosityParams
+	var v dls.ViscosityLaw
+	switch e.ViscosityModel {
+	case ViscosityConstant:
+		v = dls.ConstantViscosity{PaS: p[0] * 1e-3, TMinK: tMin, TMaxK: tMax, Ref: e.Source}
+	case ViscosityAndrade:
+		v = dls.Andrade{A: p[0] + math.Log(1e-3), B: p[1], TMinK: tMin, TMaxK: tMax, Ref: e.Source}
+	case ViscosityDIPPR101:
+		v = dls.DIPPR101{C: [5]float64{p[0], p[1], p[2], p[3], p[4]}, TMinK: tMin, TMaxK: tMax, Ref: e.Source}
+	default:
+		panic("solventfile: Entry with unknown viscosity model " + e.ViscosityModel)
+	}
+	coef := []float64{e.IndexParams[0]}
+	for i, c := range e.IndexParams[1:] {
+		coef = append(coef, c, float64(-2*(i+1)))
+	}
+	d := dls.Dispersion{
+		Formula: dls.FormulaCauchy, Coef: coef,
+		LambdaMinM: e.LambdaMinNm * 1e-9, LambdaMaxM: e.LambdaMaxNm * 1e-9,
+		DnDTPerK: e.DnDTPerK, DnDTSource: "from the solvent file",
+		TMinK: tMin, TMaxK: tMax, Ref: e.Source,
+	}
+	if e.HasIndexT {
+		d.TRefK = dls.KelvinFromCelsius(e.IndexTC)
+	}
+	return &dls.Solvent{
+		Name: e.Name, Aliases: e.Aliases, Viscosity: v, Index: d,
+		Origin: fmt.Sprintf("%s:%d", e.File, e.Line),
+	}
+}
+
+// ReadFile parses the solvent file at path.
+func ReadFile(path string) ([]Entry, error) {
+	f, err := os.Open(path)
+	if err != nil {
+		return nil, &dls.PosError{File: path, Err: err}
+	}
+	defer f.Close()
+	return Parse(f, path)
+}
+
+// Load reads the solvent file at path and adds its entries to t, each
+// replacing the entries that share a name or alias with it.
+func Load(path string, t *dls.SolventTable) error {
+	entries, err := ReadFile(path)
+	if err != nil {
+		return err
+	}
+	for _, e := range entries {
+		if err := t.Add(e.Solvent()); err != nil {
+			return &dls.PosError{File: e.File, Line: e.Line, Err: err}
+		}
+	}
+	return nil
+}
+
+// Write writes entries as a solvent file that Parse reads back to the same
+// entries (numbers in shortest round-trip form).
+func Write(w io.Writer, entries []Entry) error {
+	rows := make([]row, len(entries))
+	for i, e := range entries {
+		r := row{
+			Name: e.Name, Aliases: strings.Join(e.Aliases, "|"),
+			TMinC: fnum(e.TMinC), TMaxC: fnum(e.TMaxC),
+			ViscosityModel: e.ViscosityModel, ViscosityParams: fnums(e.ViscosityParams),
+			IndexModel: e.IndexModel, IndexParams: fnums(e.IndexParams),
+			Source: e.Source,
+		}
+		if e.HasIndexT {
+			r.IndexTC = fnum(e.IndexTC)
+		}
+		if e.DnDTPerK != 0 {
+			r.DnDTPerK = fnum(e.DnDTPerK)
+		}
+		if e.LambdaMinNm != 0 {
+			r.LambdaMinNm = fnum(e.LambdaMinNm)
+		}
+		if !math.IsInf(e.LambdaMaxNm, 1) {
+			r.LambdaMaxNm = fnum(e.LambdaMaxNm)
+		}
+		rows[i] = r
+	}
+	cw := csv.NewWriter(w)
+	if err := cw.Write(Columns); err != nil {
+		return err
+	}
+	for _, r := range rows {
+		if err := cw.Write([]string{r.Name, r.Aliases, r.TMinC, r.TMaxC, r.ViscosityModel, r.ViscosityParams,
+			r.IndexModel, r.IndexParams, r.IndexTC, r.DnDTPerK, r.LambdaMinNm, r.LambdaMaxNm, r.Source}); err != nil {
+			return err
+		}
+	}
+	cw.Flush()
+	return cw.Error()
+}
+
+func fnum(v float64) string { return strconv.FormatFloat(v, 'g', -1, 64) }
+
+func fnums(v []float64) string {
+	s := make([]string, len(v))
+	for i, x := range v {
+		s[i] = fnum(x)
+	}
+	return strings.Join(s, " ")
+}
