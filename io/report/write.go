@@ -182,14 +182,11 @@ func WriteSummary(w io.Writer, results []*dls.Result, maxProblems int) error {
 			id += "[" + r.Run + "]"
 		}
 		msg := r.Message
-		if strings.HasPrefix(msg, r.File+":") {
-			// Errors name file and line already; keep the run label.
-			id, msg = "", strings.TrimPrefix(msg, r.File+":")
-			if r.Run != "" {
-				id = "[" + r.Run + "]"
-			}
-			id = r.File + id + ":" + strings.SplitN(msg, ":", 2)[0]
-			msg = strings.TrimSpace(strings.SplitN(msg, ":", 2)[1])
+		if rest, ok := strings.CutPrefix(msg, r.File+":"); ok {
+			// Errors name file and line already: keep that, with the run.
+			fmt.Fprintf(w, "  %-5s %s:%s\n", r.Status, id, rest)
+			shown++
+			continue
 		}
 		fmt.Fprintf(w, "  %-5s %s: %s\n", r.Status, id, msg)
 		shown++

@@ -1,0 +1,107 @@
+package report
+
+import (
+	"bytes"
+	"encoding/csv"
+	"encoding/json"
+	"math"
+	"strings"
+	"testing"
+
+	"dlsbatch/dls"
+)
+
+func sampleResults() []*dls.Result {
+	ok := &dls.Result{File: "a.csv", Sample: "lot, 7", Status: dls.StatusOK, HasConditions: true, HasCumulants: true,
+		TemperatureC: 25, Solvent: "water", ViscosityMPaS: 0.890022, RefractiveIndex: 1.33162, WavelengthNm: 632.8,
+		AngleDeg: 173, QPerM: 2.639445e7, GammaMeanPerS: 3418.78, ZAvgNm: 100.0004, PDI: 0.01234, Method: "nonlinear", Order: 2}
+	bad := &dls.Result{File: "b.csv", Run: "r1", Status: dls.StatusError, Message: `b.csv:4:2: "abc" is not a number`}
+	return []*dls.Result{ok, bad}
+}
+
+func TestWriteCSV(t *testing.T) {
+	var b bytes.Buffer
+	if err := WriteCSV(&b, sampleResults()); err != nil {
+		t.Fatal(err)
+	}
+	rows, err := csv.NewReader(&b).ReadAll()
+	if err != nil {
+		t.Fatal(err)
+	}
+	if len(rows) != 3 {
+		t.Fatalf("%d rows, want header + 2", len(rows))
+	}
+	// The columns the output contract names, in its order, lead the header.
+	want := []string{"file", "sample", "run", "status", "message", "temperature_c", "solvent", "viscosity_mpas",
+		"refractive_index", "wavelength_nm", "angle_deg"}
+	for i, w := range want {
+		if rows[0][i] != w {
+			t.Errorf("column %d is %q, want %q", i, rows[0][i], w)
+		}
+	}
+	col := map[string]int{}
+	for i, h := range rows[0] {
+		col[h] = i
+	}
+	for _, need := range []string{"gamma_mean_per_s", "diffusion_m2_per_s", "z_avg_nm", "pdi", "intercept", "baseline", "fit_rms"} {
+		if _, ok := col[need]; !ok {
+			t.Errorf("no column %s", need)
+		}
+	}
+	if got := rows[1][col["z_avg_nm"]]; got != "100.000" {
+		t.Errorf("z_avg_nm written %q, want fixed 3 decimals 100.000", got)
+	}
+	if got := rows[1][col["sample"]]; got != "lot, 7" {
+		t.Errorf("sample with a comma came back %q", got)
+	}
+	// An error row has its message and empty numeric cells, never 0 or NaN.
+	for _, c := range []string{"z_avg_nm", "pdi", "temperature_c", "viscosity_mpas"} {
+		if v := rows[2][col[c]]; v != "" {
+			t.Errorf("error row %s = %q, want empty", c, v)
+		}
+	}
+	if rows[2][col["message"]] != `b.csv:4:2: "abc" is not a number` {
+		t.Errorf("message came back %q", rows[2][col["message"]])
+	}
+}
+
+func TestWriteJSONDeterministicAndFinite(t *testing.T) {
+	doc := &Document{Tool: "dlsbatch", Version: "test", Caution: Caution, Settings: map[string]any{"b": 1, "a": 2}, Results: sampleResults()}
+	var b1, b2 bytes.Buffer
+	if err := WriteJSON(&b1, doc); err != nil {
+		t.Fatal(err)
+	}
+	if err := WriteJSON(&b2, doc); err != nil {
+		t.Fatal(err)
+	}
+	if !bytes.Equal(b1.Bytes(), b2.Bytes()) {
+		t.Error("two writes differ")
+	}
+	if strings.Index(b1.String(), `"a"`) > strings.Index(b1.String(), `"b"`) {
+		t.Error("settings keys not sorted")
+	}
+	var back Document
+	if err := json.Unmarshal(b1.Bytes(), &back); err != nil {
+		t.Fatal(err)
+	}
+	if len(back.Results) != 2 || back.Results[0].ZAvgNm != 100.0004 {
+		t.Errorf("round trip lost data: %+v", back.Results)
+	}
+	doc.Results[0].PDI = math.NaN()
+	if err := WriteJSON(&bytes.Buffer{}, doc); err == nil {
+		t.Error("NaN accepted")
+	}
+}
+
+func TestWriteSummary(t *testing.T) {
+	var b bytes.Buffer
+	if err := WriteSummary(&b, sampleResults(), 10); err != nil {
+		t.Fatal(err)
+	}
+	s := b.String()
+	for _, want := range []string{"lot, 7", "100.0", "2 measurements: 1 ok, 0 warn, 1 error", `error b.csv[r1]:4:2: "abc" is not a number`} {
+		if !strings.Contains(s, want) {
+			t.Errorf("summary lacks %q:\n%s", want, s)
+		}
+	}
+}
