@@ -118,6 +118,13 @@ func (g glycerolWaterIndex) RangeLambdaM() (float64, float64) {
 	return max(gl.LambdaMinM, WaterIndexLambdaMinM), min(gl.LambdaMaxM, WaterIndexLambdaMaxM)
 }
 
+func (g glycerolWaterIndex) shortSource() string {
+	if g.w == 0 {
+		return srcWaterIndex
+	}
+	return "glycerol–water index from the glycerol data of " + glycerolIndex().Ref
+}
+
 func (g glycerolWaterIndex) Source(tK float64) string {
 	gs := glycerolIndex().Source(tK)
 	gs = strings.TrimSuffix(gs, "; absolute index, vacuum wavelength")

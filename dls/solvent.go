@@ -103,6 +103,9 @@ func (s *Solvent) Props(tK, lambdaM float64, extrapolate bool) (MediumProps, err
 
 // shortIndexSource is the index source without the temperature detail.
 func shortIndexSource(l IndexLaw) string {
+	if n, ok := l.(interface{ shortSource() string }); ok {
+		return n.shortSource()
+	}
 	s := l.Source(math.NaN())
 	if i := strings.Index(s, ", at "); i >= 0 {
 		return s[:i]

@@ -65,7 +65,7 @@ func floats(rec map[string]string, cols ...string) ([]float64, error) {
 
 // Short citations used in source strings; the full ones are in the data
 // files and in doc_medium.go.
-const refPerry = "Perry's Chemical Engineers' Handbook 8th ed. (2008) Table 2-313"
+const refPerry = "Perry's Handbook 8th ed. (2008) Table 2-313"
 
 // shortRef turns a full citation "A, B, Journal 1, 2-3 (2024), doi:…" into
 // "A, B, Journal 1, 2-3 (2024)".

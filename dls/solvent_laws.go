@@ -29,7 +29,8 @@ type IndexLaw interface {
 	// the law holds.
 	RangeLambdaM() (minM, maxM float64)
 	// Source says what the index at tK is made of: the formula, its
-	// citation and any temperature correction applied.
+	// citation and any temperature correction applied. With tK NaN it
+	// describes the law itself, for listings.
 	Source(tK float64) string
 }
 
@@ -188,7 +189,8 @@ func (d Dispersion) RangeK() (float64, float64) { return d.TMinK, d.TMaxK }
 func (d Dispersion) RangeLambdaM() (float64, float64) { return d.LambdaMinM, d.LambdaMaxM }
 
 // Source implements IndexLaw. It says at which temperature the data were
-// taken and how they were carried to tK.
+// taken and how they were carried to tK; with tK NaN it describes the law
+// (temperature of the data and dn/dT) for listings.
 func (d Dispersion) Source(tK float64) string {
 	var b strings.Builder
 	b.WriteString(d.formulaName())
@@ -204,6 +206,11 @@ func (d Dispersion) Source(tK float64) string {
 		b.WriteString(", temperature of the data not given, no temperature correction")
 	case d.DnDTPerK == 0:
 		fmt.Fprintf(&b, ", at %s, no temperature correction", at)
+	case math.IsNaN(tK): // the law itself, for listings
+		fmt.Fprintf(&b, ", at %s, dn/dT %.2e /K", at, d.DnDTPerK)
+		if d.DnDTSource != "" {
+			b.WriteString(", " + d.DnDTSource)
+		}
 	case math.Abs(tK-d.TRefK) < 0.005:
 		fmt.Fprintf(&b, ", at %s", at)
 	default:
