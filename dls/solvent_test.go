@@ -138,16 +138,17 @@ func TestSolventViscosity25C(t *testing.T) {
 // tolerance, the test pins the size of the disagreement so that a change of
 // data shows up.
 func TestSolventViscosityDisagreements(t *testing.T) {
-	// Acetonitrile: CRC 0.369 mPa·s at 25 °C (from memory); Perry's DIPPR-101
-	// gives 0.342, 7 % lower. Riddick, Bunger & Sakano, Organic Solvents
-	// (1986) quote about 0.34 (from memory), close to the correlation, so the
-	// table keeps it; tolerance 10 % against CRC.
+	// Acetonitrile: CRC 0.369 mPa·s at 25 °C (from memory, grade C); Perry's
+	// DIPPR-101 gives 0.342, 7 % lower. Solvent guides commonly quote
+	// 0.34–0.35 mPa·s at 25 °C (from memory, low confidence), close to the
+	// correlation, so the table keeps it. Tolerances: 10 % against CRC, 3 %
+	// against the middle of the commonly quoted span.
 	p, err := mustSolvent(t, "acetonitrile").Props(KelvinFromCelsius(25), 589.3e-9, false)
 	if err != nil {
 		t.Fatal(err)
 	}
 	mediumRel(t, "acetonitrile η(25 °C) vs CRC", p.ViscosityPaS*1e3, 0.369, 0.10)
-	mediumRel(t, "acetonitrile η(25 °C) vs Riddick", p.ViscosityPaS*1e3, 0.34, 0.03)
+	mediumRel(t, "acetonitrile η(25 °C) vs solvent guides", p.ViscosityPaS*1e3, 0.345, 0.03)
 
 	// Toluene: the reference value of Santos et al., "Standard reference
 	// data for the viscosity of toluene", J. Phys. Chem. Ref. Data 35, 1
