@@ -52,8 +52,8 @@ func relErr(got, want float64) float64 {
 
 // TestBohrenHuffmanExample checks the worked example printed with the BHMIE
 // program listing: Bohren & Huffman, Absorption and Scattering of Light by
-// Small Particles (Wiley 1983), Appendix A: water droplet-like sphere
-// m = 1.55, a = 0.525 µm, λ = 0.6328 µm, x = 5.213.
+// Small Particles (Wiley 1983), Appendix A: a sphere of m = 1.55,
+// a = 0.525 µm, λ = 0.6328 µm, x = 5.213.
 func TestBohrenHuffmanExample(t *testing.T) {
 	e, err := Compute(5.212820, 1.55)
 	if err != nil {
@@ -255,8 +255,9 @@ func TestWiscombeOlderSet(t *testing.T) {
 }
 
 // TestRecurrenceStartRegression pins the digits that a too-low start of the
-// downward recurrence for D_n(mx) spoils (Qsca 1.71803 instead of 1.723857
-// for case 11; 2.01327 instead of 2.01394 for m = 1.5, x = 1000): the more
+// downward recurrence for D_n(mx) spoils (from zero at max(N, |mx|) + 15:
+// Qsca ≈ 1.718 instead of 1.723857 for case 11, 2.0131 instead of 2.01394
+// for m = 1.5, x = 1000, 2.09655 instead of 2.096594 for case 10): the more
 // precise recomputed values 2.013945 (x = 1000) and 2.008650 (x = 5000), and
 // Wiscombe's case 10 and 11 Qsca, to half a unit of the sixth decimal.
 func TestRecurrenceStartRegression(t *testing.T) {
