@@ -1,0 +1,848 @@
+package contin
+
+import (
+	"fmt"
+	"math"
+	"slices"
+	"sort"
+
+	"gonum.org/v1/gonum/floats"
+	"gonum.org/v1/gonum/stat/distuv"
+)
+
+// Status says how an inversion ended.
+type Status int
+
+// Statuses of Result and ScanRow.
+const (
+	// Converged: every active-set solve met its optimality test.
+	Converged Status = iota
+	// IterationLimit: at least one solve (for a ScanRow: this one) stopped
+	// at Settings.MaxIter; its solution is the last feasible iterate.
+	IterationLimit
+	// NoSignal: the chosen solution is zero.
+	NoSignal
+)
+
+// String returns "converged", "iteration-limit" or "no-signal".
+func (s Status) String() string {
+	switch s {
+	case Converged:
+		return "converged"
+	case IterationLimit:
+		return "iteration-limit"
+	case NoSignal:
+		return "no-signal"
+	}
+	return fmt.Sprintf("Status(%d)", int(s))
+}
+
+// ScanRow is one regularisation strength of the scan, kept for audit.
+type ScanRow struct {
+	Lambda float64 // dimensionless strength, α² = Lambda·tr(G)/tr(R)
+	Alpha  float64 // α of the weighted problem
+	// ChiSquare is V = Σ W_i r_i², the weighted residual sum of squares.
+	ChiSquare float64
+	// DegreesOfFreedom is N_DF = tr[(G_PP + α²R_PP)⁻¹G_PP] on the passive set.
+	DegreesOfFreedom float64
+	// NormLx is ||L x/w||, the norm of the second differences.
+	NormLx float64
+	// ProbReject is the F-test probability to reject against the
+	// least-regularised row (0 for that row and for a fixed α).
+	ProbReject float64
+	// GCV is N_y·V/(N_y − N_DF)².
+	GCV float64
+	// Curvature is the signed Menger curvature of the L-curve at this row
+	// (0 at both ends and for refinement rows).
+	Curvature float64
+	// Passive counts the unknowns off their bound, the baseline included.
+	Passive    int
+	Iterations int
+	// QR reports that the augmented-matrix QR solver was used instead of
+	// the normal equations (tiny α or a numerically dependent column).
+	QR bool
+	// Refined marks rows added by the bisection of ProbReject.
+	Refined bool
+	Status  Status
+
+	cond float64
+}
+
+// Picks holds, for each criterion, the index into Result.Scan of the row
+// that criterion chooses, or −1 when it was not evaluated (a fixed α, or
+// a scan too short for the L-curve). ProbReject includes the bisection
+// rows only when ProbReject is the selected criterion.
+type Picks struct {
+	ProbReject, GCV, LCurve int
+}
+
+// Result is the inversion of one decay.
+type Result struct {
+	// GammaPerS are the decay rates Γ_j (1/s) of the grid.
+	GammaPerS []float64
+	// Amplitude holds x_j ≥ 0, the amplitude of rate Γ_j per log bin, so
+	// that the model is y(τ) ≈ Σ_j x_j exp(−Γ_j τ) + Baseline. For g1
+	// data these are intensity-weighted amplitudes; they are not forced to
+	// sum to one.
+	Amplitude []float64
+	// Baseline is the free constant term (0 without Settings.Baseline).
+	Baseline float64
+	// Fitted is the model at each lag and Residuals is y − Fitted.
+	Fitted, Residuals []float64
+
+	Criterion Criterion
+	// Lambda and Alpha are the chosen strengths (α² = λ·tr(G)/tr(R)).
+	Lambda, Alpha float64
+	// ChiSquare, DegreesOfFreedom, NormLx, ProbReject and GCV are those of
+	// the chosen row of Scan.
+	ChiSquare, DegreesOfFreedom, NormLx, ProbReject, GCV float64
+	// Points is N_y, the number of points with non-zero weight.
+	Points int
+	// SigmaEstimated reports that sigma was nil: the fit used equal
+	// weights and NoiseSigma = sqrt(V₁/(N_y − N_DF)) is the noise level
+	// estimated from the unit-weight residuals V₁ of the chosen solution.
+	// ChiSquare, Alpha, GCV and the Scan are then expressed for weights
+	// 1/NoiseSigma².
+	SigmaEstimated bool
+	NoiseSigma     float64
+	// SumAmplitude is Σ x_j; MeanRatePerS is Σ x_jΓ_j / Σ x_j (0 when the
+	// solution is zero).
+	SumAmplitude, MeanRatePerS float64
+
+	// Scan lists every strength solved, by increasing α; Chosen indexes
+	// the row the criterion selected.
+	Scan   []ScanRow
+	Chosen int
+	Picks  Picks
+	// Iterations totals the active-set iterations of all solves;
+	// QRSolves counts the solves done by the QR fallback.
+	Iterations, QRSolves int
+	Status               Status
+	// Warnings lists doubts that did not stop the inversion; each wraps one
+	// of the warning sentinels (ErrIterationLimit, ErrScanEdge, ...).
+	Warnings []error
+}
+
+// Thresholds of the solver.
+const (
+	// neCondMax: when the condition estimate of H_PP = G_PP + α²R_PP
+	// exceeds it, the normal equations may have lost more than about 7
+	// digits and the solve is repeated with the QR solver.
+	neCondMax = 1e9
+	// neDepTol: a Cholesky pivot d² below neDepTol·h_tt means the column is
+	// numerically dependent in the normal equations; the solve is then
+	// repeated with QR.
+	neDepTol = 1e-10
+	// edgeFraction: amplitude in the outer edgeBins bins at either end above
+	// this fraction of the total raises ErrGridEdge.
+	edgeFraction = 0.01
+	edgeBins     = 3
+)
+
+type workspace struct {
+	sw, wy, fit []float64
+	B, G, gv    []float64
+	inv         []float64
+	as          *activeSet
+	ne          neSolver
+	qr          *qrSolver
+	sols        []float64
+}
+
+func newWorkspace(g *Grid) *workspace {
+	N := g.n + 1
+	ws := &workspace{
+		sw:  make([]float64, g.m),
+		wy:  make([]float64, g.m),
+		fit: make([]float64, g.m),
+		B:   make([]float64, N*g.m),
+		G:   make([]float64, N*N),
+		gv:  make([]float64, N),
+		inv: make([]float64, N*N),
+		as:  newActiveSet(N),
+	}
+	ws.ne = neSolver{
+		S:      N,
+		n:      g.n,
+		G:      ws.G,
+		rband:  g.rband,
+		g:      ws.gv,
+		C:      make([]float64, N*N),
+		z:      make([]float64, N),
+		depTol: neDepTol,
+	}
+	return ws
+}
+
+// problem is one call of Invert in progress.
+type problem struct {
+	g          *Grid
+	ws         *workspace
+	y          []float64
+	s          Settings
+	N, ny      int
+	trG        float64
+	gnorm      float64
+	hnormG     float64
+	rnorm      float64
+	maxIter    int
+	rows       []ScanRow
+	solIdx     []int // row → index of its solution in ws.sols
+	nsol       int
+	totalIters int
+	qrSolves   int
+}
+
+// Invert computes the regularised non-negative inverse Laplace transform of
+// the decay y(τ_i), one value per lag of g, with standard uncertainties
+// sigma (weights 1/σ²). Typically y is g1 from the caller's g2 with
+// the coherence factor and baseline of a cumulant fit.
+//
+// sigma may be nil: every point then gets the same weight and the noise
+// level is estimated from the residuals (Result.SigmaEstimated). An entry
+// +Inf gives its point zero weight (a way to mask lags without a new grid).
+// Values of y at or below zero, which noise produces in the tail, are
+// fitted as they are, with their weights: nothing is clipped or dropped.
+//
+// A nil s means DefaultSettings(). Errors wrap ErrLength, ErrNonFinite,
+// ErrBadSigma, ErrTooFewPoints, ErrNoDecay or ErrBadSettings; numerical
+// doubts are Result.Warnings. Invert panics if g is nil. It is safe to call
+// concurrently with the same Grid.
+func Invert(g *Grid, y, sigma []float64, s *Settings) (*Result, error) {
+	if g == nil {
+		panic("contin: nil grid")
+	}
+	set := DefaultSettings()
+	if s != nil {
+		set = s
+	}
+	st, err := set.normalise()
+	if err != nil {
+		return nil, err
+	}
+	if len(y) != g.m {
+		return nil, fmt.Errorf("contin: %d data values for %d lags: %w", len(y), g.m, ErrLength)
+	}
+	if sigma != nil && len(sigma) != g.m {
+		return nil, fmt.Errorf("contin: %d uncertainties for %d lags: %w", len(sigma), g.m, ErrLength)
+	}
+	for i, v := range y {
+		if math.IsNaN(v) || math.IsInf(v, 0) {
+			return nil, fmt.Errorf("contin: data value %d (lag %g s) is %v: %w", i, g.tau[i], v, ErrNonFinite)
+		}
+	}
+	ny := g.m
+	for i, v := range sigma {
+		switch {
+		case math.IsNaN(v):
+			return nil, fmt.Errorf("contin: uncertainty %d (lag %g s) is NaN: %w", i, g.tau[i], ErrNonFinite)
+		case math.IsInf(v, 1):
+			ny--
+		case v <= 0 || math.IsInf(v, -1):
+			return nil, fmt.Errorf("contin: uncertainty %d (lag %g s) is %g: %w", i, g.tau[i], v, ErrBadSigma)
+		}
+	}
+	if ny < MinPoints {
+		return nil, fmt.Errorf("contin: %d points with finite uncertainty, need at least %d: %w", ny, MinPoints, ErrTooFewPoints)
+	}
+	if err := checkDecay(g, y, sigma); err != nil {
+		return nil, err
+	}
+
+	ws := g.pool.Get().(*workspace)
+	defer g.pool.Put(ws)
+	p := &problem{g: g, ws: ws, y: y, s: st, ny: ny}
+	p.N = g.n
+	if st.Baseline {
+		p.N = g.n + 1
+	}
+	p.maxIter = st.MaxIter
+	if p.maxIter == 0 {
+		p.maxIter = 3 * p.N
+	}
+	p.prepare(sigma)
+	return p.run(sigma == nil)
+}
+
+// checkDecay rejects data whose first lags do not exceed their last lags by
+// more than three standard errors of the two means.
+func checkDecay(g *Grid, y, sigma []float64) error {
+	idx := make([]int, 0, len(y))
+	for i := range y {
+		if sigma == nil || !math.IsInf(sigma[i], 1) {
+			idx = append(idx, i)
+		}
+	}
+	k := len(idx) / 10
+	if k < 3 {
+		k = 3
+	}
+	var yh, yt, vh, vt float64
+	for _, i := range idx[:k] {
+		yh += y[i]
+		if sigma != nil {
+			vh += sigma[i] * sigma[i]
+		}
+	}
+	for _, i := range idx[len(idx)-k:] {
+		yt += y[i]
+		if sigma != nil {
+			vt += sigma[i] * sigma[i]
+		}
+	}
+	fk := float64(k)
+	yh /= fk
+	yt /= fk
+	var se float64
+	if sigma != nil {
+		se = math.Sqrt(vh+vt) / fk
+	} else {
+		// Noise from successive differences: σ ≈ 1.4826·median|Δy|/√2
+		// (median absolute deviation of a difference of two independent
+		// normal values; common practice).
+		d := make([]float64, 0, len(idx)-1)
+		for j := 1; j < len(idx); j++ {
+			d = append(d, math.Abs(y[idx[j]]-y[idx[j-1]]))
+		}
+		sort.Float64s(d)
+		med := d[len(d)/2]
+		if len(d)%2 == 0 {
+			med = (d[len(d)/2-1] + d[len(d)/2]) / 2
+		}
+		sd := 1.4826 * med / math.Sqrt2
+		se = sd * math.Sqrt(2/fk)
+	}
+	if !(yh-yt > 3*se) {
+		return fmt.Errorf("contin: mean of the first %d points %.4g, of the last %d points %.4g, difference not above 3 standard errors (%.3g): %w",
+			k, yh, k, yt, 3*se, ErrNoDecay)
+	}
+	return nil
+}
+
+// prepare forms the square-root weights, the Gram matrix G = [A 1]'W[A 1]
+// and the right-hand side [A 1]'Wy.
+func (p *problem) prepare(sigma []float64) {
+	g, ws := p.g, p.ws
+	m, S := g.m, g.stride
+	constant := true
+	for i := range ws.sw {
+		sw := 1.0
+		if sigma != nil {
+			sw = 1 / sigma[i] // 0 for +Inf
+		}
+		ws.sw[i] = sw
+		ws.wy[i] = sw * sw * p.y[i]
+		if sw != ws.sw[0] {
+			constant = false
+		}
+	}
+	if constant {
+		// Shared weights: scale the grid's unit Gram matrix.
+		c := ws.sw[0] * ws.sw[0]
+		u := g.unitGram()
+		for i, v := range u {
+			ws.G[i] = c * v
+		}
+	} else {
+		for j := 0; j < S; j++ {
+			a := g.at[j*m : (j+1)*m]
+			b := ws.B[j*m : (j+1)*m]
+			for i, v := range a {
+				b[i] = ws.sw[i] * v
+			}
+		}
+		gram(ws.G, S, ws.B, m, g.supp)
+	}
+	for j := 0; j < S; j++ {
+		l := g.supp[j]
+		ws.gv[j] = floats.Dot(g.at[j*m:j*m+l], ws.wy[:l])
+	}
+	p.trG = 0
+	for j := 0; j < g.n; j++ {
+		p.trG += ws.G[j*S+j]
+	}
+	p.gnorm, p.hnormG = 0, 0
+	for j := 0; j < p.N; j++ {
+		p.gnorm = math.Max(p.gnorm, math.Abs(ws.gv[j]))
+		var r float64
+		for _, v := range ws.G[j*S : j*S+p.N] {
+			r += math.Abs(v)
+		}
+		p.hnormG = math.Max(p.hnormG, r)
+	}
+	p.rnorm = 0
+	for j := 0; j < g.n; j++ {
+		var r float64
+		for _, v := range g.rband[5*j : 5*j+5] {
+			r += math.Abs(v)
+		}
+		p.rnorm = math.Max(p.rnorm, r)
+	}
+	ws.ne.N = p.N
+	ws.ne.gnorm = p.gnorm
+	ws.as.init(p.N, g.n)
+}
+
+func (p *problem) a2Of(lambda float64) float64 { return lambda * p.trG / p.g.trR }
+
+// solveAt solves for α² = a2 starting from the current active set, appends
+// the scan row and stores the solution.
+func (p *problem) solveAt(lambda, a2 float64, refined bool) int {
+	g, ws, as := p.g, p.ws, p.ws.as
+	row := ScanRow{Lambda: lambda, Alpha: math.Sqrt(a2), Refined: refined}
+	var lin linSolver
+	ne := &ws.ne
+	ne.a2 = a2
+	ne.hnorm = p.hnormG + a2*p.rnorm
+	as.refactor(ne)
+	depBefore := as.depHit
+	iters, st := as.run(ne, p.maxIter)
+	lin = ne
+	useQR := as.depHit || depBefore
+	if !useQR {
+		lowerInverse(ne.C, ne.N, len(as.pas), ws.inv)
+		row.cond = ne.condF(as.pas, ws.inv)
+		useQR = !(row.cond < neCondMax)
+	}
+	if useQR {
+		if ws.qr == nil {
+			ws.qr = newQRSolver(g.n+1, g.m+g.n+2, ne)
+		}
+		ws.qr.setup(g, ws.sw, p.y, math.Sqrt(a2), p.N)
+		as.refactor(ws.qr)
+		it, stq := as.run(ws.qr, p.maxIter)
+		iters += it
+		st = stq
+		lin = ws.qr
+		row.QR = true
+		p.qrSolves++
+		C, cs := lin.lower()
+		lowerInverse(C, cs, len(as.pas), ws.inv)
+	}
+	row.Iterations = iters
+	p.totalIters += iters
+	if st == solveLimit {
+		row.Status = IterationLimit
+	}
+	// Statistics from the solution itself, not from the normal equations.
+	x := as.x[:p.N]
+	fit := ws.fit
+	for i := range fit {
+		fit[i] = 0
+	}
+	for _, j := range as.pas {
+		xj := x[j]
+		if xj == 0 {
+			continue
+		}
+		floats.AddScaled(fit[:g.supp[j]], xj, g.at[j*g.m:j*g.m+g.supp[j]])
+	}
+	var V float64
+	for i, f := range fit {
+		r := ws.sw[i] * (p.y[i] - f)
+		V += r * r
+	}
+	row.ChiSquare = V
+	row.NormLx = g.normLx(x)
+	row.Passive = len(as.pas)
+	_ = lin
+	row.DegreesOfFreedom = passiveDF(ws.inv, as.pas, as.pos, g.n, g.rband, a2)
+
+	k := p.nsol
+	need := (k + 1) * p.N
+	if len(ws.sols) < need {
+		ws.sols = append(ws.sols, make([]float64, need-len(ws.sols))...)
+	}
+	copy(ws.sols[k*p.N:need], x)
+	p.nsol++
+	p.rows = append(p.rows, row)
+	p.solIdx = append(p.solIdx, k)
+	return len(p.rows) - 1
+}
+
+// warmFrom sets the active set to the stored solution of row r.
+func (p *problem) warmFrom(r int) {
+	as := p.ws.as
+	sol := p.ws.sols[p.solIdx[r]*p.N : (p.solIdx[r]+1)*p.N]
+	as.pas = as.pas[:0]
+	for j := 0; j < p.N; j++ {
+		as.x[j] = sol[j]
+		as.pos[j] = -1
+		if j >= p.g.n || sol[j] > 0 {
+			as.pos[j] = len(as.pas)
+			as.pas = append(as.pas, j)
+		}
+	}
+}
+
+func (p *problem) run(estimateSigma bool) (*Result, error) {
+	s := p.s
+	nBase := 1
+	if s.Criterion == Fixed {
+		a2 := s.Alpha * s.Alpha
+		lambda := a2 * p.g.trR / p.trG
+		if s.Lambda > 0 {
+			lambda = s.Lambda
+			a2 = p.a2Of(lambda)
+		}
+		p.solveAt(lambda, a2, false)
+	} else {
+		nBase = s.NAlpha
+		lo, hi := math.Log(s.LambdaMin), math.Log(s.LambdaMax)
+		for k := 0; k < nBase; k++ {
+			lambda := math.Exp(lo + (hi-lo)*float64(k)/float64(nBase-1))
+			if k == nBase-1 {
+				lambda = s.LambdaMax
+			}
+			if k == 0 {
+				lambda = s.LambdaMin
+			}
+			p.solveAt(lambda, p.a2Of(lambda), false)
+		}
+	}
+	var warns []error
+	warns = append(warns, p.g.warnings...)
+	p.statistics(nBase, &warns)
+
+	picks := Picks{ProbReject: -1, GCV: -1, LCurve: -1}
+	chosen := 0
+	if s.Criterion != Fixed {
+		picks.ProbReject = p.pickProbReject()
+		if s.Criterion == ProbReject && s.Refine > 0 {
+			p.refine()
+			p.statistics(nBase, nil)
+			picks.ProbReject = p.pickProbReject()
+		}
+		picks.GCV = p.pickGCV()
+		if nBase >= 5 {
+			picks.LCurve = p.pickLCurve()
+		}
+		switch s.Criterion {
+		case ProbReject:
+			chosen = picks.ProbReject
+		case GCV:
+			chosen = picks.GCV
+		case LCurve:
+			chosen = picks.LCurve
+			if chosen < 0 || p.rows[chosen].Curvature <= 0 {
+				warns = append(warns, fmt.Errorf("contin: L-curve has no convex corner over λ in [%g, %g]; taking the largest curvature: %w",
+					s.LambdaMin, s.LambdaMax, ErrNoCorner))
+			}
+		}
+	}
+	// Sort the rows by α (refinement rows were appended) and remap.
+	order := make([]int, len(p.rows))
+	for i := range order {
+		order[i] = i
+	}
+	sort.SliceStable(order, func(a, b int) bool { return p.rows[order[a]].Lambda < p.rows[order[b]].Lambda })
+	inv := make([]int, len(order))
+	rows := make([]ScanRow, len(order))
+	for newI, oldI := range order {
+		inv[oldI] = newI
+		rows[newI] = p.rows[oldI]
+	}
+	remap := func(i int) int {
+		if i < 0 {
+			return i
+		}
+		return inv[i]
+	}
+	picks.ProbReject, picks.GCV, picks.LCurve = remap(picks.ProbReject), remap(picks.GCV), remap(picks.LCurve)
+	solOf := p.solIdx[chosen]
+	chosen = inv[chosen]
+
+	if s.Criterion != Fixed && (chosen == 0 || chosen == len(rows)-1) {
+		warns = append(warns, fmt.Errorf("contin: %v chose λ = %.3g at the end of the scan [%g, %g]: %w",
+			s.Criterion, rows[chosen].Lambda, s.LambdaMin, s.LambdaMax, ErrScanEdge))
+	}
+	var limited []string
+	for _, r := range rows {
+		if r.Status == IterationLimit {
+			limited = append(limited, fmt.Sprintf("%.3g", r.Lambda))
+		}
+	}
+	if len(limited) > 0 {
+		warns = append(warns, fmt.Errorf("contin: active-set solver stopped after %d iterations at λ = %v: %w",
+			p.maxIter, limited, ErrIterationLimit))
+	}
+	return p.result(rows, chosen, solOf, picks, estimateSigma, warns), nil
+}
+
+// statistics fills ProbReject, GCV and (on the first nBase rows) the
+// L-curve curvature; doubts are appended to warns unless it is nil.
+func (p *problem) statistics(nBase int, warns *[]error) {
+	rows := p.rows
+	ny := float64(p.ny)
+	for i := range rows {
+		r := &rows[i]
+		den := ny - r.DegreesOfFreedom
+		if den < 0.5 {
+			den = 0.5
+		}
+		r.GCV = ny * r.ChiSquare / (den * den)
+	}
+	if p.s.Criterion == Fixed {
+		return
+	}
+	ref := rows[0] // smallest λ of the base scan
+	v0 := ref.ChiSquare
+	floor := 1e-14 * p.yWeightedSq()
+	if v0 < floor {
+		if warns != nil {
+			*warns = append(*warns, fmt.Errorf("contin: least-regularised fit is exact (V = %.3g), F-test degenerate: %w", v0, ErrIllConditioned))
+		}
+		v0 = floor
+	}
+	d1 := math.Max(ref.DegreesOfFreedom, 1)
+	d2 := math.Max(ny-ref.DegreesOfFreedom, 1)
+	fd := distuv.F{D1: d1, D2: d2}
+	for i := range rows {
+		r := &rows[i]
+		f := (r.ChiSquare - v0) / v0 * d2 / d1
+		if !(f > 0) {
+			r.ProbReject = 0
+			continue
+		}
+		pr := fd.CDF(f)
+		if math.IsNaN(pr) {
+			pr = 1
+		}
+		r.ProbReject = math.Min(math.Max(pr, 0), 1)
+	}
+	// L-curve on the base rows, which are in increasing α. Points closer
+	// than lcurveMinStep of the (scaled) curve's diagonal to the last kept
+	// point are pruned first: on the plateau of the nearly unregularised solutions
+	// they coincide to rounding, and their curvature would be noise.
+	pts := make([][2]float64, nBase)
+	x0, x1, y0, y1 := math.Inf(1), math.Inf(-1), math.Inf(1), math.Inf(-1)
+	for k := 0; k < nBase; k++ {
+		pts[k] = lpoint(rows[k])
+		x0, x1 = math.Min(x0, pts[k][0]), math.Max(x1, pts[k][0])
+		y0, y1 = math.Min(y0, pts[k][1]), math.Max(y1, pts[k][1])
+	}
+	// Scale both axes to unit range so the corner does not depend on
+	// which of the two norms happens to spread more over the scan.
+	sx, sy := x1-x0, y1-y0
+	if !(sx > 0) {
+		sx = 1
+	}
+	if !(sy > 0) {
+		sy = 1
+	}
+	for k := range pts {
+		pts[k] = [2]float64{(pts[k][0] - x0) / sx, (pts[k][1] - y0) / sy}
+	}
+	minStep := lcurveMinStep * math.Sqrt2
+	kept := make([]int, 0, nBase)
+	for k := 0; k < nBase; k++ {
+		rows[k].Curvature = 0
+		if len(kept) == 0 {
+			kept = append(kept, k)
+			continue
+		}
+		last := pts[kept[len(kept)-1]]
+		if math.Hypot(pts[k][0]-last[0], pts[k][1]-last[1]) >= minStep {
+			kept = append(kept, k)
+		}
+	}
+	for i := 1; i+1 < len(kept); i++ {
+		rows[kept[i]].Curvature = menger(pts[kept[i-1]], pts[kept[i]], pts[kept[i+1]])
+	}
+}
+
+// lcurveMinStep is the smallest distance, as a fraction of the L-curve's
+// extent in log–log space, between points used for its curvature.
+const lcurveMinStep = 0.02
+
+func (p *problem) yWeightedSq() float64 {
+	var s float64
+	for i, v := range p.y {
+		r := p.ws.sw[i] * v
+		s += r * r
+	}
+	return s
+}
+
+func lpoint(r ScanRow) [2]float64 {
+	return [2]float64{0.5 * math.Log10(math.Max(r.ChiSquare, math.SmallestNonzeroFloat64)),
+		math.Log10(math.Max(r.NormLx, math.SmallestNonzeroFloat64))}
+}
+
+// menger returns the signed curvature of the circle through three points,
+// positive when the path a→b→c turns counter-clockwise (the corner of an
+// L-curve traversed by increasing α).
+func menger(a, b, c [2]float64) float64 {
+	abx, aby := b[0]-a[0], b[1]-a[1]
+	acx, acy := c[0]-a[0], c[1]-a[1]
+	bcx, bcy := c[0]-b[0], c[1]-b[1]
+	cross := abx*acy - aby*acx
+	d := math.Hypot(abx, aby) * math.Hypot(acx, acy) * math.Hypot(bcx, bcy)
+	if !(d > 0) {
+		return 0
+	}
+	k := 2 * cross / d
+	if math.IsNaN(k) || math.IsInf(k, 0) {
+		return 0
+	}
+	return k
+}
+
+func (p *problem) pickProbReject() int {
+	best, bd := 0, math.Inf(1)
+	for i, r := range p.rows {
+		if d := math.Abs(r.ProbReject - p.s.TargetProbReject); d < bd {
+			best, bd = i, d
+		}
+	}
+	return best
+}
+
+func (p *problem) pickGCV() int {
+	best := 0
+	for i, r := range p.rows {
+		if r.Refined {
+			continue
+		}
+		if r.GCV < p.rows[best].GCV {
+			best = i
+		}
+	}
+	return best
+}
+
+func (p *problem) pickLCurve() int {
+	best := -1
+	for i, r := range p.rows {
+		if r.Refined || i == 0 || i == p.s.NAlpha-1 {
+			continue
+		}
+		if best < 0 || r.Curvature > p.rows[best].Curvature {
+			best = i
+		}
+	}
+	return best
+}
+
+// refine bisects log λ between the base rows that bracket the target
+// probability to reject, warm-starting each solve from the nearer end.
+func (p *problem) refine() {
+	t := p.s.TargetProbReject
+	hi := -1
+	for i := 1; i < p.s.NAlpha; i++ {
+		if p.rows[i].ProbReject >= t {
+			hi = i
+			break
+		}
+	}
+	if hi < 0 {
+		return
+	}
+	lo := hi - 1
+	ny := float64(p.ny)
+	ref := p.rows[0]
+	v0 := math.Max(ref.ChiSquare, 1e-14*p.yWeightedSq())
+	d1 := math.Max(ref.DegreesOfFreedom, 1)
+	d2 := math.Max(ny-ref.DegreesOfFreedom, 1)
+	fd := distuv.F{D1: d1, D2: d2}
+	for step := 0; step < p.s.Refine; step++ {
+		lambda := math.Sqrt(p.rows[lo].Lambda * p.rows[hi].Lambda)
+		p.warmFrom(lo)
+		r := p.solveAt(lambda, p.a2Of(lambda), true)
+		f := (p.rows[r].ChiSquare - v0) / v0 * d2 / d1
+		pr := 0.0
+		if f > 0 {
+			pr = fd.CDF(f)
+		}
+		if pr >= t {
+			hi = r
+		} else {
+			lo = r
+		}
+	}
+}
+
+func (p *problem) result(rows []ScanRow, chosen, sol int, picks Picks, estimateSigma bool, warns []error) *Result {
+	g := p.g
+	n := g.n
+	x := p.ws.sols[sol*p.N : (sol+1)*p.N]
+	res := &Result{
+		GammaPerS: g.GammaPerS(),
+		Amplitude: slices.Clone(x[:n]),
+		Fitted:    make([]float64, g.m),
+		Residuals: make([]float64, g.m),
+		Criterion: p.s.Criterion,
+		Points:    p.ny,
+		Scan:      rows,
+		Chosen:    chosen,
+		Picks:     picks,
+		QRSolves:  p.qrSolves,
+	}
+	res.Iterations = p.totalIters
+	if p.N > n {
+		res.Baseline = x[n]
+	}
+	for i := range res.Fitted {
+		f := res.Baseline
+		for j := 0; j < n; j++ {
+			if x[j] != 0 {
+				f += x[j] * g.at[j*g.m+i]
+			}
+		}
+		res.Fitted[i] = f
+		res.Residuals[i] = p.y[i] - f
+	}
+	var sx, sxg float64
+	for j, v := range res.Amplitude {
+		sx += v
+		sxg += v * g.gamma[j]
+	}
+	res.SumAmplitude = sx
+	if sx > 0 {
+		res.MeanRatePerS = sxg / sx
+	}
+	if estimateSigma {
+		r := rows[chosen]
+		den := math.Max(float64(p.ny)-r.DegreesOfFreedom, 1)
+		s2 := r.ChiSquare / den
+		res.SigmaEstimated = true
+		if s2 > 0 {
+			res.NoiseSigma = math.Sqrt(s2)
+			for i := range rows {
+				rows[i].ChiSquare /= s2
+				rows[i].GCV /= s2
+				rows[i].Alpha /= res.NoiseSigma
+			}
+		}
+	}
+	c := rows[chosen]
+	res.Lambda, res.Alpha = c.Lambda, c.Alpha
+	res.ChiSquare, res.DegreesOfFreedom, res.NormLx = c.ChiSquare, c.DegreesOfFreedom, c.NormLx
+	res.ProbReject, res.GCV = c.ProbReject, c.GCV
+
+	for _, r := range rows {
+		if r.Status == IterationLimit {
+			res.Status = IterationLimit
+		}
+	}
+	if sx == 0 {
+		res.Status = NoSignal
+		warns = append(warns, fmt.Errorf("contin: all amplitudes are zero at λ = %.3g: %w", c.Lambda, ErrNoSignal))
+	} else {
+		var lo, hi float64
+		for j := 0; j < edgeBins; j++ {
+			lo += res.Amplitude[j]
+			hi += res.Amplitude[n-1-j]
+		}
+		if lo > edgeFraction*sx {
+			warns = append(warns, fmt.Errorf("contin: %.1f%% of the amplitude in the %d slowest rate bins (Γ ≤ %.3g 1/s): %w",
+				100*lo/sx, edgeBins, g.gamma[edgeBins-1], ErrGridEdge))
+		}
+		if hi > edgeFraction*sx {
+			warns = append(warns, fmt.Errorf("contin: %.1f%% of the amplitude in the %d fastest rate bins (Γ ≥ %.3g 1/s): %w",
+				100*hi/sx, edgeBins, g.gamma[n-edgeBins], ErrGridEdge))
+		}
+	}
+	res.Warnings = warns
+	return res
+}
