@@ -19,6 +19,11 @@ var ErrInvalidArgument = errors.New("invalid argument")
 // of a light-scattering size grid.
 const MaxSizeParameter = 1e5
 
+// MaxIndexSizeProduct is the largest |m|·x accepted: the downward
+// recurrence for D_n(mx) starts above |m|·x, so its cost grows with it
+// (about 0.1 s at the limit). Real particles in DLS stay below 1e3.
+const MaxIndexSizeProduct = 1e7
+
 // stackTerms is the number of logarithmic-derivative values kept in a stack
 // array before a heap buffer is needed; it covers x up to about 480, more
 // than any DLS size grid needs (10 µm in water at 405 nm is x ≈ 103).
@@ -71,6 +76,9 @@ func checkArgs(x float64, m complex128) error {
 		return fmt.Errorf("refractive index %v must be finite: %w", m, ErrInvalidArgument)
 	case real(m) <= 0:
 		return fmt.Errorf("refractive index %v: real part must be positive: %w", m, ErrInvalidArgument)
+	case cmplx.Abs(m)*x > MaxIndexSizeProduct:
+		return fmt.Errorf("|m|·x = %g for m = %v, x = %g above the supported maximum %g: %w",
+			cmplx.Abs(m)*x, m, x, MaxIndexSizeProduct, ErrInvalidArgument)
 	case imag(m) < 0:
 		return fmt.Errorf("refractive index %v: imaginary part must be ≥ 0 (convention m = n + ik, k ≥ 0 absorbs; "+
 			"write n − ik data from the other convention with the sign of k flipped): %w", m, ErrInvalidArgument)

@@ -461,6 +461,7 @@ func TestArgumentErrors(t *testing.T) {
 		{"Inf x", math.Inf(1), 1.5, 1},
 		{"huge x", 2 * MaxSizeParameter, 1.5, 1},
 		{"negative k", 1, 1.5 - 0.1i, 1},
+		{"huge |m|x", 1e4, 2e3 + 1i, 1},
 		{"zero n", 1, 0 + 1i, 1},
 		{"NaN m", 1, complex(math.NaN(), 0), 1},
 		{"Inf m", 1, complex(math.Inf(1), 0), 1},
