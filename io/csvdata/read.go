@@ -10,7 +10,6 @@ import (
 	"math"
 	"os"
 	"strconv"
-	"strings"
 
 	"dlsbatch/dls"
 )
@@ -63,7 +62,7 @@ func Read(r io.Reader, name string, o *Options) []Entry {
 	if err := o.validate(); err != nil {
 		return []Entry{{File: name, Err: &dls.PosError{File: name, Err: err}}}
 	}
-	p := &parser{name: name, opt: o, runErr: nil}
+	p := &parser{name: name, opt: o}
 	p.read(r)
 	return p.entries()
 }
@@ -74,7 +73,7 @@ type parser struct {
 
 	line     int
 	nonBlank bool // a non-blank line was seen
-	sp       splitter
+	sp       *splitter
 	decComma bool // a cell may use ',' as its decimal mark
 
 	meta     dls.Metadata
@@ -83,11 +82,12 @@ type parser struct {
 
 	L          *layout
 	headerLine int
-	cells      []string
+	cells      [][]byte
+	numBuf     []byte
 
 	tau     []float64
 	lines   []int
-	prevLag string // text of the last lag cell
+	prevLag []byte // text of the last lag cell
 	corr    [][]float64
 	sigma   [][]float64
 	runErr  []error
@@ -107,7 +107,7 @@ var bom = []byte{0xEF, 0xBB, 0xBF}
 
 func (p *parser) read(r io.Reader) {
 	sc := bufio.NewScanner(r)
-	sc.Buffer(make([]byte, 0, 16<<10), maxLineBytes)
+	sc.Buffer(make([]byte, 0, 4<<10), maxLineBytes)
 	for sc.Scan() {
 		p.line++
 		b := sc.Bytes()
@@ -118,35 +118,30 @@ func (p *parser) read(r io.Reader) {
 			}
 			b = bytes.TrimPrefix(b, bom)
 		}
-		if ok, nul := validUTF8Text(b); !ok {
-			why := "invalid UTF-8"
-			if nul {
-				why = "NUL byte"
-			}
+		if why := textProblem(b); why != "" {
 			p.fileErr = p.posErr(p.line, 0, fmt.Errorf("%s: %w", why, dls.ErrNotText))
 			return
 		}
-		s := string(b)
-		t := strings.TrimSpace(s)
-		if t == "" {
+		t := bytes.TrimSpace(b)
+		if len(t) == 0 {
 			continue
 		}
 		p.nonBlank = true
 		if t[0] == '#' {
 			if p.L == nil {
-				p.metaLineAt(t)
+				p.metaLineAt(string(t))
 			} else {
-				p.lateComment(t)
+				p.lateComment(string(t))
 			}
 			continue
 		}
 		if p.L == nil {
-			if !p.header(s) || p.fileErr != nil {
+			if !p.header(b) || p.fileErr != nil {
 				return
 			}
 			continue
 		}
-		if !p.row(s) {
+		if !p.row(b) {
 			return
 		}
 	}
@@ -217,7 +212,7 @@ func (p *parser) lateComment(t string) {
 }
 
 // header reads the header row. It reports whether reading goes on.
-func (p *parser) header(s string) bool {
+func (p *parser) header(s []byte) bool {
 	p.headerLine = p.line
 	comma := p.opt.Comma
 	if comma == 0 {
@@ -225,7 +220,7 @@ func (p *parser) header(s string) bool {
 	}
 	p.sp = newSplitter(comma)
 	p.decComma = comma != ','
-	names := p.sp.split(nil, s)
+	names := p.sp.splitStrings(s)
 	if looksNumeric(names, p.decComma) {
 		p.setFileErr(p.posErr(p.line, 0, fmt.Errorf("no header row: the first row holds numbers, expected column names such as tau_s,g2: %w", dls.ErrBadHeader)))
 		return false
@@ -252,18 +247,19 @@ func (p *parser) header(s string) bool {
 			p.sigma[r] = make([]float64, 0, guess)
 		}
 	}
-	p.cells = make([]string, 0, len(names))
+	p.cells = make([][]byte, 0, len(names))
 	return true
 }
 
 // looksNumeric reports whether a would-be header row holds only numbers.
 func looksNumeric(cells []string, decComma bool) bool {
 	n := 0
+	var buf []byte
 	for _, c := range cells {
 		if c == "" {
 			continue
 		}
-		if _, err := parseNumber(c, decComma); err != nil {
+		if _, err := parseNumber([]byte(c), decComma, &buf); err != nil {
 			return false
 		}
 		n++
@@ -275,12 +271,16 @@ func looksNumeric(cells []string, decComma bool) bool {
 var errOverflow = errors.New("overflows float64")
 
 // parseNumber parses a cell. With decComma a cell with one ',' and no '.'
-// is read with ',' as its decimal mark.
-func parseNumber(c string, decComma bool) (float64, error) {
-	if decComma && strings.IndexByte(c, ',') >= 0 && strings.IndexByte(c, '.') < 0 && strings.Count(c, ",") == 1 {
-		c = strings.Replace(c, ",", ".", 1)
+// is read with ',' as its decimal mark; buf is scratch space for that.
+func parseNumber(c []byte, decComma bool, buf *[]byte) (float64, error) {
+	if decComma {
+		if i := bytes.IndexByte(c, ','); i >= 0 && bytes.IndexByte(c, '.') < 0 && bytes.IndexByte(c[i+1:], ',') < 0 {
+			*buf = append((*buf)[:0], c...)
+			(*buf)[i] = '.'
+			c = *buf
+		}
 	}
-	return strconv.ParseFloat(c, 64)
+	return strconv.ParseFloat(string(c), 64)
 }
 
 // valueError is a bad cell: it prints the column and the text and wraps both
@@ -309,26 +309,25 @@ func (e *valueError) Unwrap() []error {
 // value parses the cell at index i of the row.
 func (p *parser) value(i int) (float64, error) {
 	c := p.cells[i]
-	col := p.L.names[i]
-	if c == "" {
-		return 0, &valueError{column: col, text: c, sentinel: dls.ErrMissingValue}
+	if len(c) == 0 {
+		return 0, &valueError{column: p.L.names[i], sentinel: dls.ErrMissingValue}
 	}
-	v, err := parseNumber(c, p.decComma)
+	v, err := parseNumber(c, p.decComma, &p.numBuf)
 	if err != nil {
 		var ne *strconv.NumError
 		if errors.As(err, &ne) && errors.Is(ne.Err, strconv.ErrRange) {
-			return 0, &valueError{column: col, text: c, reason: errOverflow.Error(), sentinel: dls.ErrNonFinite, cause: err}
+			return 0, &valueError{column: p.L.names[i], text: string(c), reason: errOverflow.Error(), sentinel: dls.ErrNonFinite, cause: err}
 		}
-		return 0, &valueError{column: col, text: c, sentinel: dls.ErrNotANumber, cause: err}
+		return 0, &valueError{column: p.L.names[i], text: string(c), sentinel: dls.ErrNotANumber, cause: err}
 	}
 	if math.IsNaN(v) || math.IsInf(v, 0) {
-		return 0, &valueError{column: col, text: c, sentinel: dls.ErrNonFinite}
+		return 0, &valueError{column: p.L.names[i], text: string(c), sentinel: dls.ErrNonFinite}
 	}
 	return v, nil
 }
 
 // row reads one data row. It reports whether reading goes on.
-func (p *parser) row(s string) bool {
+func (p *parser) row(s []byte) bool {
 	L := p.L
 	p.cells = p.sp.split(p.cells[:0], s)
 	if allEmpty(p.cells) {
@@ -350,18 +349,18 @@ func (p *parser) row(s string) bool {
 	}
 	tau := raw / L.unit.div
 	if !(tau > 0) {
-		p.setFileErr(p.posErr(p.line, L.lag+1, &valueError{column: L.lagName, text: p.cells[L.lag], reason: "is not positive", sentinel: dls.ErrBadLag}))
+		p.setFileErr(p.posErr(p.line, L.lag+1, &valueError{column: L.lagName, text: string(p.cells[L.lag]), reason: "is not positive", sentinel: dls.ErrBadLag}))
 		return false
 	}
 	if n := len(p.tau); n > 0 && !(tau > p.tau[n-1]) {
-		p.setFileErr(p.posErr(p.line, L.lag+1, &valueError{column: L.lagName, text: p.cells[L.lag],
+		p.setFileErr(p.posErr(p.line, L.lag+1, &valueError{column: L.lagName, text: string(p.cells[L.lag]),
 			reason:   fmt.Sprintf("does not increase (line %d has %s)", p.lines[n-1], p.prevLag),
 			sentinel: dls.ErrBadLag}))
 		return false
 	}
 	p.tau = append(p.tau, tau)
 	p.lines = append(p.lines, p.line)
-	p.prevLag = p.cells[L.lag]
+	p.prevLag = append(p.prevLag[:0], p.cells[L.lag]...)
 
 	for r, rc := range L.runs {
 		if p.runErr[r] != nil {
@@ -378,7 +377,7 @@ func (p *parser) row(s string) bool {
 		}
 		sv, err := p.value(rc.sigma)
 		if err == nil && !(sv > 0) {
-			err = &valueError{column: rc.sigmaName, text: p.cells[rc.sigma], reason: "is not positive", sentinel: dls.ErrOutOfRange}
+			err = &valueError{column: rc.sigmaName, text: string(p.cells[rc.sigma]), reason: "is not positive", sentinel: dls.ErrOutOfRange}
 		}
 		if err != nil {
 			p.runErr[r] = p.posErr(p.line, rc.sigma+1, err)
@@ -389,9 +388,9 @@ func (p *parser) row(s string) bool {
 	return true
 }
 
-func allEmpty(cells []string) bool {
+func allEmpty(cells [][]byte) bool {
 	for _, c := range cells {
-		if c != "" {
+		if len(c) != 0 {
 			return false
 		}
 	}

@@ -1,84 +1,99 @@
 package csvdata
 
 import (
-	"strings"
+	"bytes"
 	"unicode/utf8"
 )
 
 // splitter cuts a line into trimmed cells at a delimiter. A cell that starts
 // with a double quote runs to the next unescaped double quote ("" stands for
 // one quote), so quoted cells may hold the delimiter; a quoted cell cannot
-// span lines.
+// span lines. Cells alias the line, or the splitter's scratch space for
+// quoted cells, and are valid until the next call.
 type splitter struct {
-	comma    rune
-	commaStr string
+	comma   rune
+	sep     []byte
+	scratch []byte
 }
 
-func newSplitter(comma rune) splitter {
-	return splitter{comma: comma, commaStr: string(comma)}
+func newSplitter(comma rune) *splitter {
+	return &splitter{comma: comma, sep: []byte(string(comma))}
 }
 
 // split appends the cells of line to dst and returns it.
-func (s splitter) split(dst []string, line string) []string {
-	if strings.IndexByte(line, '"') < 0 {
+func (s *splitter) split(dst [][]byte, line []byte) [][]byte {
+	if bytes.IndexByte(line, '"') < 0 {
 		for {
-			i := strings.Index(line, s.commaStr)
+			i := bytes.Index(line, s.sep)
 			if i < 0 {
-				return append(dst, strings.TrimSpace(line))
+				return append(dst, bytes.TrimSpace(line))
 			}
-			dst = append(dst, strings.TrimSpace(line[:i]))
-			line = line[i+len(s.commaStr):]
+			dst = append(dst, bytes.TrimSpace(line[:i]))
+			line = line[i+len(s.sep):]
 		}
 	}
 	return s.splitQuoted(dst, line)
 }
 
-func (s splitter) splitQuoted(dst []string, line string) []string {
+func (s *splitter) splitQuoted(dst [][]byte, line []byte) [][]byte {
+	s.scratch = s.scratch[:0]
 	for {
 		j := 0
 		for j < len(line) && isBlank(line[j], s.comma) {
 			j++
 		}
 		if j == len(line) || line[j] != '"' {
-			i := strings.Index(line, s.commaStr)
+			i := bytes.Index(line, s.sep)
 			if i < 0 {
-				return append(dst, strings.TrimSpace(line))
+				return append(dst, bytes.TrimSpace(line))
 			}
-			dst = append(dst, strings.TrimSpace(line[:i]))
-			line = line[i+len(s.commaStr):]
+			dst = append(dst, bytes.TrimSpace(line[:i]))
+			line = line[i+len(s.sep):]
 			continue
 		}
-		var b strings.Builder
+		start := len(s.scratch)
 		k := j + 1
 		for k < len(line) {
 			c := line[k]
 			if c == '"' {
 				if k+1 < len(line) && line[k+1] == '"' {
-					b.WriteByte('"')
+					s.scratch = append(s.scratch, '"')
 					k += 2
 					continue
 				}
 				k++
 				break
 			}
-			b.WriteByte(c)
+			s.scratch = append(s.scratch, c)
 			k++
 		}
 		// Text between the closing quote and the delimiter is kept.
 		rest := line[k:]
-		i := strings.Index(rest, s.commaStr)
+		i := bytes.Index(rest, s.sep)
 		last := i < 0
 		if last {
-			b.WriteString(strings.TrimSpace(rest))
+			s.scratch = append(s.scratch, bytes.TrimSpace(rest)...)
 		} else {
-			b.WriteString(strings.TrimSpace(rest[:i]))
-			line = rest[i+len(s.commaStr):]
+			s.scratch = append(s.scratch, bytes.TrimSpace(rest[:i])...)
+			line = rest[i+len(s.sep):]
 		}
-		dst = append(dst, strings.TrimSpace(b.String()))
+		// Earlier cells keep pointing into the old array if append moved
+		// the scratch space; its content does not change.
+		dst = append(dst, bytes.TrimSpace(s.scratch[start:len(s.scratch):len(s.scratch)]))
 		if last {
 			return dst
 		}
 	}
+}
+
+// splitStrings splits a line into cells as strings that do not alias it.
+func (s *splitter) splitStrings(line []byte) []string {
+	cells := s.split(nil, line)
+	out := make([]string, len(cells))
+	for i, c := range cells {
+		out[i] = string(c)
+	}
+	return out
 }
 
 func isBlank(c byte, comma rune) bool {
@@ -88,11 +103,11 @@ func isBlank(c byte, comma rune) bool {
 // detectComma picks the delimiter of a header row: the most frequent of
 // ',' ';' and '\t' outside double quotes, ties going in that order, and ','
 // when none occurs.
-func detectComma(line string) rune {
+func detectComma(line []byte) rune {
 	var n [3]int
 	inQuote := false
-	for i := 0; i < len(line); i++ {
-		switch line[i] {
+	for _, c := range line {
+		switch c {
 		case '"':
 			inQuote = !inQuote
 		case ',':
@@ -118,12 +133,14 @@ func detectComma(line string) rune {
 	return []rune{',', ';', '\t'}[best]
 }
 
-// validUTF8Text reports whether b is valid UTF-8 without NUL bytes.
-func validUTF8Text(b []byte) (ok bool, nul bool) {
-	for _, c := range b {
-		if c == 0 {
-			return false, true
-		}
+// textProblem reports why b is not text: "NUL byte", "invalid UTF-8" or ""
+// when it is valid UTF-8 without NUL bytes.
+func textProblem(b []byte) string {
+	if bytes.IndexByte(b, 0) >= 0 {
+		return "NUL byte"
 	}
-	return utf8.Valid(b), false
+	if !utf8.Valid(b) {
+		return "invalid UTF-8"
+	}
+	return ""
 }

@@ -31,7 +31,7 @@ func TestSplit(t *testing.T) {
 	}
 	for _, tc := range tests {
 		t.Run(tc.name, func(t *testing.T) {
-			got := newSplitter(tc.comma).split(nil, tc.in)
+			got := newSplitter(tc.comma).splitStrings([]byte(tc.in))
 			if !reflect.DeepEqual(got, tc.want) {
 				t.Errorf("split(%q) = %q, want %q", tc.in, got, tc.want)
 			}
@@ -54,7 +54,7 @@ func TestDetectComma(t *testing.T) {
 		{"lag (ms);g2,x;y", ';'}, // two ';' against one ','
 	}
 	for _, tc := range tests {
-		if got := detectComma(tc.in); got != tc.want {
+		if got := detectComma([]byte(tc.in)); got != tc.want {
 			t.Errorf("detectComma(%q) = %q, want %q", tc.in, got, tc.want)
 		}
 	}

@@ -93,8 +93,8 @@ func Write(w io.Writer, meta []dls.Param, tauS []float64, tauUnit string, kind d
 	ends := make([]int, len(tauS))
 	prev := 0.0
 	for i, t := range tauS {
-		if !(t > 0) || math.IsInf(t, 0) {
-			return fmt.Errorf("csvdata: write: lag %d is %v s, want a positive number", i, t)
+		if !(t > 0) || math.IsInf(t*u.div, 0) {
+			return fmt.Errorf("csvdata: write: lag %d is %v s, want a positive number that is finite in %s", i, t, u.name)
 		}
 		start := len(lagText)
 		lagText = strconv.AppendFloat(lagText, t*u.div, 'e', 6, 64)

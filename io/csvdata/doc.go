@@ -1,0 +1,174 @@
+// Package csvdata reads correlogram exports, the input of dlsbatch, into
+// dls.Measurement values, and writes files of the same format (for the
+// simulator and for tests). This comment is the definition of the format.
+//
+// # The file
+//
+// A correlogram file is plain UTF-8 text. A UTF-8 byte order mark at the
+// start is skipped; lines end in "\n" or "\r\n". A file with a NUL byte or
+// bytes that are not UTF-8 (a spreadsheet workbook, a UTF-16 export) is
+// rejected as not text, as is a line longer than 4 MiB. In order, the file
+// holds:
+//
+//  1. optional metadata lines, each "# key: value";
+//  2. one header row naming the columns;
+//  3. data rows of numbers, one per lag time.
+//
+// Blank lines (nothing but spaces) are skipped everywhere, and so are data
+// rows whose cells are all empty (",,,"). A line whose first non-space
+// character is '#' is a comment line. A typical file:
+//
+//	# sample: LOT-0107
+//	# temperature_c: 25.0
+//	# wavelength_nm: 633
+//	# angle_deg: 173
+//	# solvent: water
+//	tau_s,g2
+//	5.0e-07,1.8861
+//	1.0e-06,1.8843
+//	...
+//
+// # Metadata lines
+//
+// A comment line before the header is a metadata line when the text after
+// '#' up to its first ':' is, once trimmed, a key: one or more ASCII
+// letters, digits, '_', '-' or '.'. Any other comment line ("# no colon",
+// "# created 12:30") is only a comment. Keys are case-insensitive and
+// stored in lower case; values are trimmed. The keys of the format are:
+//
+//	sample, run, temperature_c, wavelength_nm, angle_deg, solvent,
+//	viscosity_mpas, refractive_index, particle_ri, concentration_mg_ml,
+//	particle_density_g_cm3, volume_fraction, count_rate_kcps, duration_s
+//
+// Each value goes into Measurement.Meta as a dls.Param with Origin
+// dls.OriginFile and Where "file:line". The rules:
+//
+//   - sample, run and solvent take any text. particle_ri takes a complex
+//     number written as 1.59+0.0i (a real number such as 1.59 is accepted).
+//     Every other key takes a finite number with a decimal point (25.0, 633,
+//     1e-3). A value that breaks its rule makes the file fail with an error
+//     wrapping dls.ErrBadMetadata at that line; a unit or range check is
+//     left to the analysis.
+//   - An empty value ("# viscosity_mpas:") gives no value, as if the line
+//     were absent.
+//   - A key that is not of the format is ignored, with a warning on the
+//     measurement naming file and line (its error is dls.ErrUnknownMetadata).
+//   - A key given twice: the later line wins, with a warning.
+//   - A comment line after the header is ignored; when it looks like a
+//     metadata line of a known key it draws a warning, since metadata must
+//     come before the header.
+//
+// # The header row
+//
+// The first line that is neither blank nor a comment is the header row. Its
+// cells are separated by ',' or ';' or a tab: the delimiter is the one of
+// these that occurs most often in the header row outside double quotes (ties
+// in that order, ',' when none occurs) unless Options.Comma names it. A cell
+// is trimmed of surrounding spaces; a cell that starts with a double quote
+// runs to the closing quote and may hold the delimiter ("" inside stands for
+// one quote); quoted cells cannot span lines. Column names are compared
+// without regard to ASCII case, and two cells with the same name are an
+// error; cells with an empty name are unnamed columns, which are not read (a
+// trailing delimiter on every line is harmless). A header row made only of
+// numbers is reported as a missing header.
+//
+// The columns of the format:
+//
+//	tau_s | tau_ms | tau_us      lag time in s, ms or µs; exactly one
+//	g2                           normalised intensity autocorrelation (baseline ≈ 1)
+//	g2m1                         g2 − 1 (baseline ≈ 0)
+//	g1                           field autocorrelation
+//	sigma                        standard uncertainty of each correlation value
+//
+// A file holds one run (one correlation column, "g2", "g2m1" or "g1") or
+// several: correlation columns of one kind named "<kind>_<label>" (g2_a,
+// g2_b, …) sharing the lag column, each with an optional "sigma_<label>".
+// Each correlation column is one measurement whose Run is its label; an
+// unlabelled column (which may stand beside labelled ones) has the label
+// "". A plain "sigma" belongs to the unlabelled column and "sigma_<label>"
+// to "<kind>_<label>"; a sigma column without its correlation column, two
+// lag columns or correlation columns of two kinds are errors. Other columns
+// are not read, with a warning listing them.
+//
+// The run label: a labelled column's label is its run label, also stored
+// as the "run" metadata value (Where is the header line). A "# run: x" line
+// names the run of an unlabelled column; for a labelled column the column
+// label wins and the measurement carries a warning that "x" was replaced.
+//
+// # Foreign exports
+//
+// An export whose columns have other names is read by naming them in
+// Options: TauColumn with TauUnit (the unit may instead be carried by the
+// name: a trailing "(ms)", "[µs]" or a last word after '_' or ' ' of s, sec,
+// ms, msec, us, µs, μs or usec), CorrColumns with CorrKind (inferred only
+// from names of the format), and SigmaColumn. Named columns are matched
+// trimmed and case-insensitively. With one correlation column the run label
+// is "" (or the label of a "<kind>_<label>" name); with several, each run is
+// labelled by its label of the format or else by its column name. Unnamed
+// roles are still found by the names of the format, and other columns are
+// not read or checked (they may hold text).
+//
+// # Data rows
+//
+// Every data row has as many cells as the header row. The cells of the lag,
+// correlation and sigma columns hold numbers as Go's strconv.ParseFloat reads
+// them (1.5, 1.5e-6, 1E3, NaN and Inf are numbers but rejected as not
+// finite). When the delimiter is not ',', a cell with exactly one ',' and no
+// '.' uses the comma as its decimal mark ("1,5" in a ';' export is 1.5).
+// Lags are converted to seconds by dividing by 1e3 (ms) or 1e6 (µs), one
+// correctly rounded operation; they must be positive and strictly
+// increasing. Sigma values must be positive.
+//
+// A file must have at least MinPoints (8) data rows.
+//
+// # Errors
+//
+// Read never panics and never stops a batch: each file gives at least one
+// Entry, and each failure is a *dls.PosError whose Line is the 1-based line
+// of the fault (0 when it concerns the whole file, such as an empty one)
+// and whose Column is the 1-based cell of the row, 0 when no single cell is
+// at fault (metadata lines, the header row as a whole). Column counts cells,
+// not characters. The error wraps a sentinel for errors.Is:
+//
+//	dls.ErrEmpty          no bytes, or only blank and comment lines
+//	dls.ErrNotText        NUL bytes, invalid UTF-8, UTF-16, a line over 4 MiB
+//	dls.ErrBadHeader      missing header, no lag or no correlation column (the
+//	                      message lists the names found and those expected), a
+//	                      repeated name, two kinds, a sigma without its run
+//	dls.ErrBadMetadata    a metadata value that breaks its rule
+//	ErrCellCount          a row with the wrong number of cells
+//	dls.ErrMissingValue   an empty cell in a column that is read
+//	dls.ErrNotANumber     a cell that is not a number (with its *strconv.NumError)
+//	dls.ErrNonFinite      NaN, Inf, or a number beyond float64
+//	dls.ErrBadLag         a lag that is not positive or does not increase
+//	dls.ErrOutOfRange     a sigma that is not positive
+//	dls.ErrTooFewPoints   fewer than MinPoints data rows
+//	ErrBadOptions         Options no file can be read with
+//
+// Which runs fail: a problem with the lag column, the row structure, the
+// text, the header or the metadata fails every run of the file (one Entry
+// per run when the header could be read, else one Entry for the file). A bad
+// correlation or sigma value fails only its own run; the other runs of the
+// file are read in full.
+//
+// # Writing
+//
+// Write produces this format with ',' as delimiter, '\n' line ends, lags as
+// %.6e in the unit asked for, correlation values as %.7f and sigma as
+// %.6e, so that its output reads back to the same values within half a unit
+// of the last written digit.
+//
+// # Finding files
+//
+// Discover turns command-line paths into the sorted, duplicate-free list of
+// files to read: files as given, folders searched for *.csv in any letter
+// case, skipping hidden folders and files.
+//
+// References:
+//   - Y. Shafranovich, Common Format and MIME Type for Comma-Separated Values
+//     (CSV) Files, RFC 4180, IETF, 2005 (the quoting rules).
+//   - F. Yergeau, UTF-8, a transformation format of ISO 10646, RFC 3629,
+//     IETF, 2003.
+//   - BIPM, The International System of Units (SI), 9th edition, 2019 (the
+//     prefixes m and µ).
+package csvdata

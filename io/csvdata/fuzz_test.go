@@ -1,0 +1,144 @@
+package csvdata_test
+
+import (
+	"bytes"
+	"errors"
+	"math"
+	"os"
+	"path/filepath"
+	"strings"
+	"testing"
+
+	"dlsbatch/dls"
+	"dlsbatch/io/csvdata"
+)
+
+// FuzzRead: no input panics; every failure is a *dls.PosError with Line >=
+// 0; every measurement meets the documented invariants; and whatever reads
+// can be written with Write and read again to the same values within the
+// precision of Write's formats.
+func FuzzRead(f *testing.F) {
+	for _, dir := range []string{goodDir, badDir} {
+		paths, _ := filepath.Glob(filepath.Join(dir, "*.csv"))
+		for _, p := range paths {
+			data, err := os.ReadFile(p)
+			if err != nil {
+				f.Fatal(err)
+			}
+			f.Add(data)
+		}
+	}
+	f.Add([]byte("tau_s,g2\n1e-6,1.5\n2e-6,1.4\n3e-6,1.3\n4e-6,1.2\n5e-6,1.1\n6e-6,1.05\n7e-6,1.02\n8e-6,1.01\n"))
+	f.Fuzz(func(t *testing.T, data []byte) {
+		entries := csvdata.Read(bytes.NewReader(data), "f.csv", nil)
+		if len(entries) == 0 {
+			t.Fatal("no entries")
+		}
+		var ok []*dls.Measurement
+		for _, e := range entries {
+			if (e.Err == nil) == (e.M == nil) {
+				t.Fatalf("entry with error %v and measurement %v", e.Err, e.M != nil)
+			}
+			if e.Err != nil {
+				var pe *dls.PosError
+				if !errors.As(e.Err, &pe) || pe.Line < 0 || pe.Column < 0 || pe.File != "f.csv" {
+					t.Fatalf("error %v (%T) is not a positioned error", e.Err, e.Err)
+				}
+				continue
+			}
+			checkMeasurement(t, e.M)
+			ok = append(ok, e.M)
+		}
+		if len(ok) == 0 {
+			return
+		}
+
+		// Write what was read and read it again.
+		first := ok[0]
+		var meta []dls.Param
+		for _, p := range first.Meta.Params() {
+			if p.Key != dls.KeyRun {
+				meta = append(meta, p)
+			}
+		}
+		cols := make([]csvdata.Column, len(ok))
+		for i, m := range ok {
+			cols[i] = csvdata.Column{Label: m.Run, Values: m.Corr, Sigma: m.Sigma}
+		}
+		var b bytes.Buffer
+		if err := csvdata.Write(&b, meta, first.TauS, first.TauUnit, first.Kind, cols); err != nil {
+			// Labels the reader accepts but the writer cannot express, and
+			// lags closer than its seven significant digits, are refused
+			// by design; anything else is a bug.
+			if s := err.Error(); strings.Contains(s, "run label") || strings.Contains(s, "does not increase") {
+				return
+			}
+			t.Fatalf("write: %v", err)
+		}
+		again := csvdata.Read(&b, "g.csv", nil)
+		if len(again) != len(ok) {
+			t.Fatalf("re-read %d entries, want %d\n%s", len(again), len(ok), b.String())
+		}
+		for i, e := range again {
+			if e.Err != nil {
+				t.Fatalf("re-read run %d: %v\n%s", i, e.Err, b.String())
+			}
+			m, w := e.M, ok[i]
+			if m.Run != w.Run || m.Kind != w.Kind || m.TauUnit != w.TauUnit || len(m.TauS) != len(w.TauS) || (m.Sigma == nil) != (w.Sigma == nil) {
+				t.Fatalf("re-read run %d: run %q kind %v unit %s n %d, want %q %v %s %d",
+					i, m.Run, m.Kind, m.TauUnit, len(m.TauS), w.Run, w.Kind, w.TauUnit, len(w.TauS))
+			}
+			for _, p := range meta {
+				if got := m.Meta.String(p.Key); got != p.Value {
+					t.Fatalf("re-read meta %s = %q, want %q", p.Key, got, p.Value)
+				}
+			}
+			for k := range w.TauS {
+				// %.6e: 7 significant digits, rel <= 5e-7, with slack for the
+				// unit conversions and an absolute floor for subnormals.
+				if !approx(m.TauS[k], w.TauS[k], 5.1e-7, 1e-300) {
+					t.Fatalf("lag %d: %g, want %g", k, m.TauS[k], w.TauS[k])
+				}
+				// %.7f: abs <= 5e-8, plus one rounding of a large value.
+				if d := math.Abs(m.Corr[k] - w.Corr[k]); d > 5e-8+math.Abs(w.Corr[k])*0x1p-52 {
+					t.Fatalf("value %d: %g, want %g", k, m.Corr[k], w.Corr[k])
+				}
+				if w.Sigma != nil && !approx(m.Sigma[k], w.Sigma[k], 5.1e-7, 1e-300) {
+					t.Fatalf("sigma %d: %g, want %g", k, m.Sigma[k], w.Sigma[k])
+				}
+			}
+		}
+	})
+}
+
+func approx(a, b, rel, abs float64) bool {
+	return math.Abs(a-b) <= rel*math.Abs(b)+abs
+}
+
+// checkMeasurement asserts the invariants Read documents.
+func checkMeasurement(t *testing.T, m *dls.Measurement) {
+	t.Helper()
+	n := len(m.TauS)
+	if n < csvdata.MinPoints || len(m.Corr) != n || len(m.Lines) != n || (m.Sigma != nil && len(m.Sigma) != n) {
+		t.Fatalf("lengths: %d lags, %d values, %d lines, %d sigma", n, len(m.Corr), len(m.Lines), len(m.Sigma))
+	}
+	for k := 0; k < n; k++ {
+		if !(m.TauS[k] > 0) || math.IsInf(m.TauS[k], 0) || k > 0 && !(m.TauS[k] > m.TauS[k-1]) {
+			t.Fatalf("lag %d = %g after %v", k, m.TauS[k], m.TauS[:k])
+		}
+		if math.IsNaN(m.Corr[k]) || math.IsInf(m.Corr[k], 0) {
+			t.Fatalf("value %d = %g", k, m.Corr[k])
+		}
+		if m.Sigma != nil && (!(m.Sigma[k] > 0) || math.IsInf(m.Sigma[k], 0)) {
+			t.Fatalf("sigma %d = %g", k, m.Sigma[k])
+		}
+		if m.Lines[k] <= m.HeaderLine || k > 0 && m.Lines[k] <= m.Lines[k-1] {
+			t.Fatalf("line %d = %d (header %d)", k, m.Lines[k], m.HeaderLine)
+		}
+	}
+	switch m.Kind {
+	case dls.KindG2, dls.KindG2m1, dls.KindG1:
+	default:
+		t.Fatalf("kind %v", m.Kind)
+	}
+}
