@@ -2,7 +2,7 @@
 """Independent high-precision Mie efficiencies for test cross-checks.
 
 Computes the Mie coefficients directly from Riccati-Bessel functions of the
-particle argument (Bohren & Huffman 1983, Eqs. 4.56-4.57), in 60-digit arithmetic
+particle argument (Bohren & Huffman 1983, section 4.4), in 60-digit arithmetic
 (mpmath): psi_n from mpmath's Bessel function J_(n+1/2) at the two highest orders
 and downward recurrence, chi_n(x) by upward recurrence. It uses neither the
 logarithmic derivative D_n nor its continued fraction, which the Go code uses,
@@ -21,11 +21,11 @@ def riccati_psi(z, nmax):
     from mpmath's Bessel function, the rest by downward recurrence (stable for
     psi at every order)."""
     c = mp.sqrt(mp.pi * z / 2)
+    kw = dict(maxterms=10**6, maxprec=100000)
+    up = c * mp.besselj(nmax + mp.mpf(3) / 2, z, **kw)   # psi_(nmax+1)
+    cur = c * mp.besselj(nmax + mp.mpf(1) / 2, z, **kw)  # psi_nmax
     psi = [mp.mpc(0)] * (nmax + 2)
-    psi[nmax + 1] = c * mp.besselj(nmax + mp.mpf(3) / 2, z, maxterms=10**6, maxprec=100000)  # psi_nmax+1 (not stored)
-    psi_hi = psi[nmax + 1]
-    psi[nmax + 1] = c * mp.besselj(nmax + mp.mpf(1) / 2, z, maxterms=10**6, maxprec=100000)  # index nmax+1 = order nmax
-    cur, up = psi[nmax + 1], psi_hi
+    psi[nmax + 1] = cur
     for n in range(nmax, -1, -1):  # psi_(n-1) = (2n+1)/z psi_n - psi_(n+1)
         lo = (2 * n + 1) / z * cur - up
         psi[n] = lo
