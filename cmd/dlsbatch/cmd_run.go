@@ -20,6 +20,7 @@ import (
 	"dlsbatch/dls/batch"
 	"dlsbatch/io/csvdata"
 	"dlsbatch/io/report"
+	"dlsbatch/io/solventfile"
 )
 
 // runOptions are the flags of `dlsbatch run`.
@@ -41,6 +42,7 @@ type runOptions struct {
 	minLagS     float64
 	extrapolate bool
 	noCurves    bool
+	solventFile string
 }
 
 func newRunOptions() *runOptions {
@@ -73,6 +75,7 @@ func (o *runOptions) addFlags(fs *pflag.FlagSet) {
 	fs.Float64Var(&o.minLagS, "min-lag-s", 0, "ignore channels below this lag in s (afterpulsing, dead time)")
 	fs.BoolVar(&o.extrapolate, "extrapolate", false, "allow solvent correlations outside their valid range (every result touched is a warning)")
 	fs.BoolVar(&o.noCurves, "no-curves", false, "leave fitted curves and residuals out of results.json")
+	fs.StringVar(&o.solventFile, "solvent-file", "", "CSV of extra or replacement solvents (see 'dlsbatch solvents --help')")
 }
 
 const runUsage = `Usage: dlsbatch run [flags] PATH... --out DIR
@@ -94,11 +97,7 @@ func runRun(ctx context.Context, e env, args []string) int {
 	fs := pflag.NewFlagSet("run", pflag.ContinueOnError)
 	fs.SetOutput(e.stderr)
 	o.addFlags(fs)
-	fs.Usage = func() {
-		fmt.Fprint(e.stderr, runUsage)
-		fs.PrintDefaults()
-		fmt.Fprint(e.stderr, "\n"+exitCodesText)
-	}
+	fs.Usage = func() {} // pflag calls it on --help too; help is printed below
 	if err := fs.Parse(args); err != nil {
 		if errors.Is(err, pflag.ErrHelp) {
 			fmt.Fprint(e.stdout, runUsage)
@@ -107,6 +106,7 @@ func runRun(ctx context.Context, e env, args []string) int {
 			fmt.Fprint(e.stdout, "\n"+exitCodesText)
 			return exitOK
 		}
+		fmt.Fprintln(e.stderr, "run 'dlsbatch run --help' for the flags")
 		return exitUsage
 	}
 	paths := fs.Args()
@@ -216,6 +216,12 @@ func (o *runOptions) settings() (batch.Settings, *csvdata.Options, error) {
 	s.Defaults = append(o.defaults.params, s.Defaults...)
 	s.Extrapolate = o.extrapolate
 	s.KeepCurves = !o.noCurves
+	if o.solventFile != "" {
+		s.Solvents = dls.NewDefaultSolventTable()
+		if err := solventfile.Load(o.solventFile, s.Solvents); err != nil {
+			return s, nil, err
+		}
+	}
 	ro := &csvdata.Options{TauColumn: o.tauCol, TauUnit: o.tauUnit, CorrColumns: o.corrCols, SigmaColumn: o.sigmaCol}
 	if o.corrKind.value != "" {
 		k, err := dls.ParseCorrKind(o.corrKind.value)

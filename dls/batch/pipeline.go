@@ -25,6 +25,9 @@ type Settings struct {
 	Extrapolate bool
 	// KeepCurves stores data, fit and residuals in each result.
 	KeepCurves bool
+	// Solvents is the table solvent names are looked up in; nil means the
+	// built-in table (dls.LookupSolvent).
+	Solvents *dls.SolventTable
 }
 
 // DefaultSettings returns the documented defaults: cumulants.DefaultSettings,
@@ -205,14 +208,26 @@ func conditions(m *dls.Measurement, meta dls.Metadata, s *Settings) (state, []st
 		return st, nil, err
 	}
 	if !etaGiven || !nGiven {
-		sol, err := dls.LookupSolvent(st.solvent)
+		var sol *dls.Solvent
+		if s.Solvents != nil {
+			sol, err = s.Solvents.Lookup(st.solvent)
+		} else {
+			sol, err = dls.LookupSolvent(st.solvent)
+		}
 		if err != nil {
 			return st, nil, err
 		}
-		// A user-given viscosity or index needs no correlation, so its
-		// range does not apply to it: ask the table only for what is
-		// missing, and let range errors through only for that.
-		props, perr := sol.Props(tK, st.optics.WavelengthM, s.Extrapolate)
+		// A user-given viscosity or index needs no correlation, so the
+		// correlation's range does not apply to it: replace the law of a
+		// given value with that value before asking the table.
+		use := *sol
+		if etaGiven {
+			use.Viscosity = dls.ConstantViscosity{PaS: eta * 1e-3, TMinK: 0, TMaxK: math.Inf(1), Ref: "user-supplied"}
+		}
+		if nGiven {
+			use.Index = givenIndex(n)
+		}
+		props, perr := use.Props(tK, st.optics.WavelengthM, s.Extrapolate)
 		if perr != nil {
 			return st, nil, perr
 		}
@@ -242,3 +257,11 @@ func conditions(m *dls.Measurement, meta dls.Metadata, s *Settings) (state, []st
 	}
 	return st, warn, nil
 }
+
+// givenIndex is a user-supplied refractive index, valid at any state.
+type givenIndex float64
+
+func (g givenIndex) RefractiveIndex(float64, float64) float64 { return float64(g) }
+func (givenIndex) RangeK() (float64, float64)                 { return 0, math.Inf(1) }
+func (givenIndex) RangeLambdaM() (float64, float64)           { return 0, math.Inf(1) }
+func (givenIndex) Source(float64) string                      { return "user-supplied" }

@@ -108,6 +108,17 @@ func TestAnalyzeErrorsAndAssumptions(t *testing.T) {
 			delete(m, "refractive_index")
 		}, dls.StatusError, dls.ErrOutOfRange, "°C"},
 		{"explicit values need no correlation range", func(m map[string]string) { m["temperature_c"] = "150" }, dls.StatusOK, nil, ""},
+		// Water's viscosity correlation stops at 90 °C, its index at 110 °C
+		// (the ranges of the IAPWS-based table): a given viscosity at 95 °C
+		// needs only the index, which is in range; at 150 °C it is not.
+		{"given viscosity, index from table", func(m map[string]string) {
+			m["temperature_c"] = "95"
+			delete(m, "refractive_index")
+		}, dls.StatusOK, nil, ""},
+		{"given viscosity, index out of range", func(m map[string]string) {
+			m["temperature_c"] = "150"
+			delete(m, "refractive_index")
+		}, dls.StatusError, dls.ErrOutOfRange, "refractive index"},
 		{"solvent assumed", func(m map[string]string) { delete(m, "solvent") }, dls.StatusWarn, nil, "water assumed"},
 	}
 	for _, c := range cases {
@@ -186,5 +197,29 @@ func TestNaturalLess(t *testing.T) {
 		if got := naturalLess(c.a, c.b); got != c.want {
 			t.Errorf("naturalLess(%q, %q) = %v", c.a, c.b, got)
 		}
+	}
+}
+
+func TestAnalyzeUserSolventTable(t *testing.T) {
+	// A user entry replaces nothing built in and is found by name; its
+	// constant viscosity and index are used as given.
+	tab := dls.NewDefaultSolventTable()
+	if err := tab.Add(&dls.Solvent{Name: "buffer-x", Viscosity: dls.ConstantViscosity{PaS: 0.890022e-3, TMinK: 273, TMaxK: 333, Ref: "lab"},
+		Index: givenIndex(1.33162), Origin: "test"}); err != nil {
+		t.Fatal(err)
+	}
+	meta := workedMeta()
+	delete(meta, "viscosity_mpas")
+	delete(meta, "refractive_index")
+	meta["solvent"] = "buffer-x"
+	s := DefaultSettings()
+	s.Solvents = tab
+	r := Analyze(monoMeasurement(meta), &s)
+	if r.Status != dls.StatusOK || math.Abs(r.ZAvgNm-100) > 0.005 {
+		t.Errorf("status %s (%s), z %.4f nm; want ok and 100.00", r.Status, r.Message, r.ZAvgNm)
+	}
+	s.Solvents = nil
+	if r := Analyze(monoMeasurement(meta), &s); r.Status != dls.StatusError {
+		t.Errorf("the built-in table knows buffer-x: %s", r.Message)
 	}
 }
