@@ -30,24 +30,20 @@ func FuzzRead(f *testing.F) {
 	}
 	f.Add([]byte("tau_s,g2\n1e-6,1.5\n2e-6,1.4\n3e-6,1.3\n4e-6,1.2\n5e-6,1.1\n6e-6,1.05\n7e-6,1.02\n8e-6,1.01\n"))
 	f.Fuzz(func(t *testing.T, data []byte) {
+		// A foreign reading of the same bytes must also fail cleanly.
+		for _, e := range csvdata.Read(bytes.NewReader(data), "f.csv", foreignOptions) {
+			checkEntry(t, e)
+		}
+
 		entries := csvdata.Read(bytes.NewReader(data), "f.csv", nil)
 		if len(entries) == 0 {
 			t.Fatal("no entries")
 		}
 		var ok []*dls.Measurement
 		for _, e := range entries {
-			if (e.Err == nil) == (e.M == nil) {
-				t.Fatalf("entry with error %v and measurement %v", e.Err, e.M != nil)
+			if checkEntry(t, e) {
+				ok = append(ok, e.M)
 			}
-			if e.Err != nil {
-				var pe *dls.PosError
-				if !errors.As(e.Err, &pe) || pe.Line < 0 || pe.Column < 0 || pe.File != "f.csv" {
-					t.Fatalf("error %v (%T) is not a positioned error", e.Err, e.Err)
-				}
-				continue
-			}
-			checkMeasurement(t, e.M)
-			ok = append(ok, e.M)
 		}
 		if len(ok) == 0 {
 			return
@@ -109,6 +105,28 @@ func FuzzRead(f *testing.F) {
 			}
 		}
 	})
+}
+
+// foreignOptions name columns the way a user of a foreign export would.
+var foreignOptions = &csvdata.Options{TauColumn: "lag", TauUnit: "ms", CorrColumns: []string{"a", "g2_b"},
+	CorrKind: dls.KindG1, Comma: ';'}
+
+// checkEntry asserts the invariants of an Entry and reports whether it holds
+// a measurement.
+func checkEntry(t *testing.T, e csvdata.Entry) bool {
+	t.Helper()
+	if (e.Err == nil) == (e.M == nil) {
+		t.Fatalf("entry with error %v and measurement %v", e.Err, e.M != nil)
+	}
+	if e.Err != nil {
+		var pe *dls.PosError
+		if !errors.As(e.Err, &pe) || pe.Line < 0 || pe.Column < 0 || pe.File != "f.csv" {
+			t.Fatalf("error %v (%T) is not a positioned error", e.Err, e.Err)
+		}
+		return false
+	}
+	checkMeasurement(t, e.M)
+	return true
 }
 
 func approx(a, b, rel, abs float64) bool {

@@ -232,7 +232,7 @@ func resolve(names []string, o *Options) (*layout, *headerError) {
 	} else {
 		for i, n := range names {
 			k, label, ok := formatCorr(n)
-			if !ok {
+			if !ok || used[i] {
 				continue
 			}
 			if L.kind != 0 && k != L.kind {

@@ -353,6 +353,8 @@ func TestReadEdgeCases(t *testing.T) {
 			runs: []string{"A", "B"}, kind: dls.KindG2, first: 1e-12, meta: map[string]string{}},
 		{name: "format columns chosen by name", in: "tau_s,g2_a,g2_b\n" + rows(10, ",", ",1.1"), opt: &csvdata.Options{CorrColumns: []string{"g2_b"}},
 			runs: []string{"b"}, kind: dls.KindG2, first: 1e-6, meta: map[string]string{}},
+		{name: "lag option takes a name of the format", in: "g2_t (ms),g2\n" + ten, opt: &csvdata.Options{TauColumn: "g2_t (ms)"},
+			runs: []string{""}, kind: dls.KindG2, first: 1e-9, meta: map[string]string{}},
 		{name: "foreign kind unknown", in: "tau_s,corr\n" + ten, opt: &csvdata.Options{CorrColumns: []string{"corr"}}, line: 1, col: 2, sentinel: dls.ErrBadHeader},
 		{name: "foreign column missing", in: "tau_s,g2\n" + ten, opt: &csvdata.Options{TauColumn: "lag (s)"}, line: 1, sentinel: dls.ErrBadHeader},
 		{name: "explicit comma", in: "tau_s|g2\n" + strings.ReplaceAll(ten, ",", "|"), opt: &csvdata.Options{Comma: '|'},
