@@ -80,11 +80,20 @@ func (l *noiseLattice) sumProd(c []int) float64 {
 	for _, x := range c {
 		lo, hi = min(lo, x), max(hi, x)
 	}
+	// |d − c_i| ≤ hi − lo in the middle part: tabulate γ once.
+	tab := make([]float64, hi-lo+1)
+	for m := range tab {
+		tab[m] = l.gamma(m)
+	}
 	s := 0.0
 	for d := lo; d <= hi; d++ {
 		p := 1.0
 		for _, x := range c {
-			p *= l.gamma(d - x)
+			m := d - x
+			if m < 0 {
+				m = -m
+			}
+			p *= tab[m]
 		}
 		s += p
 	}
