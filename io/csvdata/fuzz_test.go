@@ -28,6 +28,7 @@ func FuzzRead(f *testing.F) {
 			f.Add(data)
 		}
 	}
+	f.Add([]byte("lag;a;g2_b;x\n1;0,9;0,8;t\n2;0,8;0,7;u\n3;0,7;0,6;v\n4;0,6;0,5;w\n5;0,5;0,4;x\n6;0,4;0,3;y\n7;0,3;0,2;z\n8;0,2;0,1;-\n"))
 	f.Add([]byte("tau_s,g2\n1e-6,1.5\n2e-6,1.4\n3e-6,1.3\n4e-6,1.2\n5e-6,1.1\n6e-6,1.05\n7e-6,1.02\n8e-6,1.01\n"))
 	f.Fuzz(func(t *testing.T, data []byte) {
 		// A foreign reading of the same bytes must also fail cleanly.

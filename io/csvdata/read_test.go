@@ -470,3 +470,31 @@ func TestBatchUnaffected(t *testing.T) {
 		t.Errorf("missing file: error %v, want a *dls.PosError without line", e[0].Err)
 	}
 }
+
+// TestFileErrorFailsEveryRun: a fault of the whole file gives one failed
+// Entry per run once the header is known.
+func TestFileErrorFailsEveryRun(t *testing.T) {
+	rows := "1e-6,1.9,1.8\n2e-6,1.8,1.7\n"
+	tests := []struct {
+		name     string
+		in       string
+		line     int
+		sentinel error
+	}{
+		{"bad metadata", "# angle_deg: wide\ntau_s,g2_a,g2_b\n" + rows, 1, dls.ErrBadMetadata},
+		{"too few points", "tau_s,g2_a,g2_b\n" + rows, 1, dls.ErrTooFewPoints},
+		{"not text after the header", "tau_s,g2_a,g2_b\n" + rows + "\x00\n", 4, dls.ErrNotText},
+		{"wrong cell count", "tau_s,g2_a,g2_b\n" + rows + "3e-6,1.7\n", 4, csvdata.ErrCellCount},
+	}
+	for _, tc := range tests {
+		t.Run(tc.name, func(t *testing.T) {
+			entries := csvdata.Read(strings.NewReader(tc.in), "x.csv", nil)
+			if len(entries) != 2 || entries[0].Run != "a" || entries[1].Run != "b" || entries[1].Index != 1 {
+				t.Fatalf("entries %+v, want runs a and b", entries)
+			}
+			for _, e := range entries {
+				posErr(t, e.Err, "x.csv", tc.line, 0, tc.sentinel)
+			}
+		})
+	}
+}
