@@ -69,8 +69,10 @@
 // at the baseline; a correlator normalised by the true mean would see
 // (1/N)[4β·S1 + β²·S2 + …] there. The formula was derived here and checked
 // against a photon-level simulation (Ornstein–Uhlenbeck fields, Poisson
-// counts, software correlator; see the tests): agreement within about 10 %
-// at every lag.
+// counts, software correlator; see the tests): σ agreed within about 10 %
+// (200–300 runs) at every lag tried for ν = 0.05, 0.5, 5 and 100 counts per
+// sample with β = 1 and 0.5, and within 5 % in a longer check (600–800
+// runs) at ν = 0.5, β = 0.5.
 //
 // Sample-time averaging: γ on the lattice of Δt_s is taken as
 // γ(0) = √(2(b − 1 + e^(−b))/b²), b = 2ΓΔt_s, and γ(m) = e^(−Γ|m|Δt_s)·sinh(ΓΔt_s)/(ΓΔt_s),
