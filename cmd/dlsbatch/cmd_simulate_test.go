@@ -4,6 +4,7 @@ import (
 	"bytes"
 	"context"
 	"encoding/json"
+	"errors"
 	"math"
 	"os"
 	"path/filepath"
@@ -11,6 +12,7 @@ import (
 	"strings"
 	"testing"
 
+	"dlsbatch/dls"
 	"dlsbatch/dls/mie"
 	"dlsbatch/io/csvdata"
 )
@@ -248,4 +250,60 @@ func TestSimulateSingleFileGuards(t *testing.T) {
 			t.Errorf("%v: exit %d, want %d", args, code, exitUsage)
 		}
 	}
+}
+
+// TestDemoUpToDate regenerates the demo data set from its plan with the
+// command in the plan's header and compares it byte for byte with
+// testdata/demo. A failure after a change to the simulator, the solvent
+// table or the Mie code means the demo must be regenerated with that
+// command.
+func TestDemoUpToDate(t *testing.T) {
+	if testing.Short() {
+		t.Skip("regenerates 22 files")
+	}
+	plan := filepath.Join("..", "..", "testdata", "demo-plan.csv")
+	want := filepath.Join("..", "..", "testdata", "demo")
+	out := filepath.Join(t.TempDir(), "demo")
+	if code, _, errs := simCmd(t, "--plan", plan, "--out", out); code != exitOK {
+		t.Fatalf("exit %d: %s", code, errs)
+	}
+	got, _ := filepath.Glob(filepath.Join(out, "*"))
+	ref, _ := filepath.Glob(filepath.Join(want, "*"))
+	if len(got) != len(ref) || len(ref) < 21 {
+		t.Fatalf("%d files generated, %d in testdata/demo", len(got), len(ref))
+	}
+	for _, p := range ref {
+		a, _ := os.ReadFile(p)
+		b, err := os.ReadFile(filepath.Join(out, filepath.Base(p)))
+		if err != nil || !bytes.Equal(a, b) {
+			t.Errorf("%s differs from a fresh run (regenerate with the command in testdata/demo-plan.csv)", filepath.Base(p))
+		}
+	}
+}
+
+// FuzzParsePlan: no panic, and every error names the plan (a positioned
+// error).
+func FuzzParsePlan(f *testing.F) {
+	f.Add([]byte(testPlan))
+	f.Add([]byte("file,population\na.csv,mono(100nm)\n"))
+	f.Add([]byte("file,runs\na.csv,\"1\n"))
+	if b, err := os.ReadFile(filepath.Join("..", "..", "testdata", "demo-plan.csv")); err == nil {
+		f.Add(b)
+	}
+	def := newSimOptions().job
+	f.Fuzz(func(t *testing.T, data []byte) {
+		jobs, err := parsePlan(data, "p.csv", def)
+		if err != nil {
+			var pe *dls.PosError
+			if !errors.As(err, &pe) || pe.File != "p.csv" {
+				t.Fatalf("error without position: %v", err)
+			}
+			return
+		}
+		for _, j := range jobs {
+			if j.job.file == "" || filepath.Base(j.job.file) != j.job.file {
+				t.Fatalf("bad file name accepted: %q", j.job.file)
+			}
+		}
+	})
 }
