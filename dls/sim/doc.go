@@ -33,7 +33,7 @@
 //	Γ̄ = Σ w_k Γ_k,  μ2 = Σ w_k (Γ_k − Γ̄)²,  PDI = μ2/Γ̄²
 //	d_z = k_B·T·q²/(3π·η·Γ̄) = 1/Σ(w_k/d_k)   (harmonic intensity mean)
 //
-// # Noise (Gaussian approximation, "route B")
+// # Noise (Gaussian approximation)
 //
 // Each channel gets independent Gaussian noise with the variance of the
 // symmetrically normalised correlator estimate

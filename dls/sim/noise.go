@@ -4,7 +4,7 @@ import (
 	"math"
 )
 
-// Noise model (route B). See doc.go for the derivation and its limits.
+// Gaussian noise model. See doc.go for the derivation and its limits.
 //
 // The field correlation is described on the lattice of one stage's sample
 // time Δt by a few exponentials (rates Γ_a, intensity weights w_a):

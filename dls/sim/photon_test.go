@@ -8,7 +8,7 @@ import (
 	"gonum.org/v1/gonum/stat/distuv"
 )
 
-// photonRun is a photon-level ("route A") simulation of one run: the field
+// photonRun is a photon-level simulation of one run: the field
 // is a sum of 1/β independent complex Ornstein–Uhlenbeck processes, updated
 // exactly, e(t+h) = r·e(t) + √(1−r²)·ξ with r = exp(−Γh) (which gives
 // g1 = exp(−Γτ)); the counts in each step are Poisson with mean nu·I. It
@@ -51,7 +51,7 @@ func symmetricG2(n []float64, k int) float64 {
 	return (p / fm) / ((a / fm) * (b / fm))
 }
 
-// TestNoiseModelAgainstPhotons checks the route-B variance against the
+// TestNoiseModelAgainstPhotons checks the Gaussian noise model's variance against the
 // scatter of photon-level runs, for a stage-0 grid at Δt = h and for a
 // later stage at Δt_s = 16h built, as a multi-tau correlator does, by
 // summing the counts of 16 base samples. Expected agreement: within a factor

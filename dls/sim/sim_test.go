@@ -285,6 +285,10 @@ func TestSpeckleLimit(t *testing.T) {
 		// ΓΔt = 1.5e-3 changes S2 from 1/(2ΓΔt) by < 0.1 %; τ/T = 1e-3.
 		{"speckle β=1", 1e-6, 10e-3, 1e8, 1, math.Sqrt(1 / (2 * 1500 * 10.0)), 3e-3},
 		{"speckle β=0.5", 1e-6, 10e-3, 1e8, 0.5, 0.5 * math.Sqrt(1/(2*1500*10.0)), 3e-3},
+		// 100 kcps, 10 s, Γ = 1500 /s, β = 1 at Δt = 1 µs (ν = 0.1): baseline
+		// form (1/N)[β²S2 + 2β/ν + 1/ν²] with S2 ≈ 1/(2ΓΔt); the speckle part
+		// alone is the 5.774e-3 above, the shot part dominates here.
+		{"100 kcps 1 µs", 1e-6, 10e-3, 1e5, 1, math.Sqrt((1/(2*1500*1e-6) + 2/0.1 + 1/0.01) * 1e-6 / 10), 3e-3},
 		// ν = 1e-4: speckle β²S2 = 333 is 3e-6 of 1/ν² = 1e8; 2β/ν adds 2e-4.
 		{"shot", 1e-6, 10e-3, 100, 1, 1 / (100 * math.Sqrt(10*1e-6)), 1e-3},
 	}
