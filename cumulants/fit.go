@@ -90,6 +90,18 @@ func Fit(m *dls.Measurement, s *Settings) (*Result, error) {
 		return nil, p.posErr(p.first, err)
 	}
 	if p.sigmaEstimated {
+		// Without σ the first fit weighted every channel alike. The noise of
+		// a multi-tau correlator changes by orders of magnitude along the lag
+		// axis (short sample times carry shot noise, long ones average it
+		// away), so estimate σ locally from the first fit's residuals and fit
+		// again with those weights, starting from the first fit.
+		p.sigma = localSigma(res.Residuals, p.first, res.FitLast, 1e-6*p.amp)
+		p.start = res
+		res2, err := p.fit(s, p.last)
+		p.start = nil
+		if err == nil {
+			res = res2
+		}
 		res.SigmaEstimated = true
 	}
 	res.FarBaseline = p.farBase
@@ -123,7 +135,8 @@ type prepared struct {
 	first, last    int     // fit range, inclusive
 	baseReached    bool
 	g1Tail         float64
-	warm           *Result // start of the range-check refits
+	start          *Result // warm start of a refit
+	fixBase        bool    // hold the baseline at start.Baseline
 }
 
 func (p *prepared) posErr(i int, err error) error {
@@ -174,16 +187,32 @@ func prepare(m *dls.Measurement, s *Settings) (*prepared, error) {
 		tailSigma = diffNoise(tail)
 	}
 
+	// Noise at the first channels, where a multi-tau correlator is noisiest:
+	// from σ if given, else from successive differences of up to 16
+	// channels (the decay changes little over them unless it is faster
+	// than the lag window resolves, which the range test below catches).
+	hn := min(16, n-first)
+	headSigma := diffNoise(m.Corr[first : first+hn])
+	if m.Sigma != nil {
+		headSigma = median(m.Sigma[first : first+hn])
+	}
+	// The intercept estimate averages the first 3 channels, or more (up to
+	// 16) while their noise exceeds 5 % of the amplitude: at low count
+	// rates the first channels are mostly shot noise.
 	headN := min(3, n-first)
 	head := mean(m.Corr[first : first+headN])
+	for headN < hn && headSigma/math.Sqrt(float64(headN)) > 0.05*math.Abs(head-p.farBase) {
+		headN++
+		head = mean(m.Corr[first : first+headN])
+	}
 	nom := nominalBaseline(m.Kind)
 	headAmp, tailAmp := head-nom, p.farBase-nom
 	if headAmp > 0 && tailAmp > 0.5*headAmp && headAmp > 5*tailSigma {
 		return nil, p.posErr(n-1, fmt.Errorf("%w within the lag window: the last channels are still at %.0f %% of the first (lags to %.3g s)", dls.ErrNoDecay, 100*tailAmp/headAmp, m.TauS[n-1]))
 	}
 	p.amp = head - p.farBase
-	if !(p.amp > 5*tailSigma) {
-		return nil, p.posErr(first, fmt.Errorf("%w: first channels %.4g, far channels %.4g ± %.2g", ErrNoSignal, head, p.farBase, tailSigma))
+	if !(p.amp > 5*tailSigma) || !(p.amp > 5*headSigma/math.Sqrt(float64(headN))) {
+		return nil, p.posErr(first, fmt.Errorf("%w: first channels %.4g ± %.2g, far channels %.4g ± %.2g", ErrNoSignal, head, headSigma/math.Sqrt(float64(headN)), p.farBase, tailSigma))
 	}
 
 	if m.Sigma != nil {
@@ -301,9 +330,10 @@ func (p *prepared) rangeCheck(s *Settings, r *Result) {
 	span := r.FitLast - p.first
 	ends := []int{p.first + int(math.Round(0.75*float64(span))), min(len(p.tau)-1, p.first+int(math.Round(1.25*float64(span))))}
 	shift := 0.0
+	significant := false
 	ran := false
-	p.warm = r
-	defer func() { p.warm = nil }()
+	p.start, p.fixBase = r, true
+	defer func() { p.start, p.fixBase = nil, false }()
 	for _, end := range ends {
 		if end == r.FitLast || end-p.first+1 < s.MinPoints {
 			continue
@@ -313,12 +343,20 @@ func (p *prepared) rangeCheck(s *Settings, r *Result) {
 			continue
 		}
 		ran = true
-		shift = math.Max(shift, math.Abs(alt.GammaPerS-r.GammaPerS)/r.GammaPerS)
+		d := math.Abs(alt.GammaPerS - r.GammaPerS)
+		shift = math.Max(shift, d/r.GammaPerS)
+		// The two fits share their data, so the variance of their
+		// difference is about the difference of their variances; a shift
+		// beyond 3 such standard deviations is not noise.
+		sd := math.Sqrt(math.Abs(alt.GammaSEPerS*alt.GammaSEPerS - r.GammaSEPerS*r.GammaSEPerS))
+		if d/r.GammaPerS > rangeShiftLimit && d > 3*sd {
+			significant = true
+		}
 	}
 	r.RangeChecked = ran
 	r.RangeShift = shift
-	if ran && shift > rangeShiftLimit {
-		r.Warnings = append(r.Warnings, fmt.Errorf("fit range sensitive: mean decay rate moves %.1f %% when the range end moves by 25 %%", 100*shift))
+	if significant {
+		r.Warnings = append(r.Warnings, fmt.Errorf("fit range sensitive: mean decay rate moves %.1f %% when the range end moves by 25 %%, beyond its noise", 100*shift))
 	}
 }
 
@@ -354,4 +392,35 @@ func diffNoise(v []float64) float64 {
 		d[i] = math.Abs(v[i+1] - v[i])
 	}
 	return median(d) / (0.6745 * math.Sqrt2)
+}
+
+// localSigma estimates the standard deviation of each channel's noise from
+// residuals r of a fit over channels first..last: 1.4826 times the median
+// absolute residual in a window of ±6 channels (clipped to the fit range),
+// which for normal errors estimates σ (the MAD's consistency factor) and is
+// robust to the odd outlier. Channels outside the range take the value of
+// the nearest end. floor keeps weights finite on noise-free data.
+func localSigma(r []float64, first, last int, floor float64) []float64 {
+	const half = 6
+	out := make([]float64, len(r))
+	buf := make([]float64, 0, 2*half+1)
+	for i := first; i <= last; i++ {
+		buf = buf[:0]
+		for k := max(first, i-half); k <= min(last, i+half); k++ {
+			buf = append(buf, math.Abs(r[k]))
+		}
+		sort.Float64s(buf)
+		med := buf[len(buf)/2]
+		if len(buf)%2 == 0 {
+			med = (buf[len(buf)/2-1] + buf[len(buf)/2]) / 2
+		}
+		out[i] = math.Max(1.4826*med, floor)
+	}
+	for i := 0; i < first; i++ {
+		out[i] = out[first]
+	}
+	for i := last + 1; i < len(r); i++ {
+		out[i] = out[last]
+	}
+	return out
 }

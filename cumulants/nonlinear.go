@@ -24,9 +24,9 @@ func (p *prepared) nonlinear(s *Settings, lin LinearEstimate, last int, r *Resul
 	if lin.PDI < 0 || lin.PDI > 1 {
 		par[3] = 0 // a wild linear μ2 is a poor start; the monodisperse one is safe
 	}
-	if p.warm != nil {
-		// Refits of the range check start from the main fit.
-		w := p.warm
+	if p.start != nil {
+		// Refits start from an earlier fit of the same data.
+		w := p.start
 		par = [5]float64{w.Baseline, w.Intercept, w.GammaPerS / g0, w.Mu2PerS2 / (g0 * g0), w.Mu3PerS3 / (g0 * g0 * g0)}
 	}
 	np := 4
@@ -37,7 +37,7 @@ func (p *prepared) nonlinear(s *Settings, lin LinearEstimate, last int, r *Resul
 	// refits keep the main fit's baseline, so that they test the cumulant
 	// series against the range and not how well a short range fixes B.
 	lo := 0
-	if p.warm != nil {
+	if p.fixBase {
 		lo = 1
 	}
 	k := np - lo
@@ -165,11 +165,9 @@ func (p *prepared) nonlinear(s *Settings, lin LinearEstimate, last int, r *Resul
 		r.Mu3PerS3 = par[4] * g0 * g0 * g0
 	}
 	r.PDI = par[3] / (par[2] * par[2])
-	if p.warm != nil {
-		// A range-check refit needs only Γ̄.
-		return nil
+	if !p.fixBase {
+		p.finish(r, last, k)
 	}
-	p.finish(r, last, k)
 
 	// Covariance (JᵀWJ)⁻¹, scaled by the reduced χ² when σ was estimated.
 	hs := mat.NewSymDense(k, nil)
@@ -178,10 +176,13 @@ func (p *prepared) nonlinear(s *Settings, lin LinearEstimate, last int, r *Resul
 			hs.SetSym(a-lo, b-lo, jtj[a][b])
 		}
 	}
+	sc := 1.0
+	if p.sigmaEstimated && m > k {
+		sc = chi / float64(m-k)
+	}
 	var ch mat.Cholesky
 	var cov mat.SymDense
 	if ch.Factorize(hs) && ch.InverseTo(&cov) == nil {
-		sc := r.scaleChi()
 		vg, vv, cgv := cov.At(2-lo, 2-lo)*sc, cov.At(3-lo, 3-lo)*sc, cov.At(2-lo, 3-lo)*sc
 		r.GammaSEPerS = math.Sqrt(math.Max(0, vg)) * g0
 		// PDI = v/g²: ∂/∂v = 1/g², ∂/∂g = −2v/g³.
