@@ -25,7 +25,7 @@ const (
 	// GridSettings.GammaMaxPerS is zero. Such a decay is down to
 	// exp(−5) ≈ 0.007 at the first lag; anything faster only lowers the
 	// apparent intercept.
-	DefaultGammaMaxTimesTauMin = 5.0
+	DefaultGammaMaxTimesTauMin = 1.0
 
 	// MinPoints is the smallest number of lags (and of usable data points)
 	// accepted.

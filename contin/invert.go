@@ -182,9 +182,6 @@ type problem struct {
 	s          Settings
 	N, ny      int
 	trG        float64
-	gnorm      float64
-	hnormG     float64
-	rnorm      float64
 	maxIter    int
 	rows       []ScanRow
 	solIdx     []int // row → index of its solution in ws.sols
@@ -361,25 +358,8 @@ func (p *problem) prepare(sigma []float64) {
 	for j := 0; j < g.n; j++ {
 		p.trG += ws.G[j*S+j]
 	}
-	p.gnorm, p.hnormG = 0, 0
-	for j := 0; j < p.N; j++ {
-		p.gnorm = math.Max(p.gnorm, math.Abs(ws.gv[j]))
-		var r float64
-		for _, v := range ws.G[j*S : j*S+p.N] {
-			r += math.Abs(v)
-		}
-		p.hnormG = math.Max(p.hnormG, r)
-	}
-	p.rnorm = 0
-	for j := 0; j < g.n; j++ {
-		var r float64
-		for _, v := range g.rband[5*j : 5*j+5] {
-			r += math.Abs(v)
-		}
-		p.rnorm = math.Max(p.rnorm, r)
-	}
 	ws.ne.N = p.N
-	ws.ne.gnorm = p.gnorm
+	ws.ne.tolFactor = float64(g.m+p.N) * eps
 	ws.as.init(p.N, g.n)
 }
 
@@ -393,7 +373,6 @@ func (p *problem) solveAt(lambda, a2 float64, refined bool) int {
 	var lin linSolver
 	ne := &ws.ne
 	ne.a2 = a2
-	ne.hnorm = p.hnormG + a2*p.rnorm
 	as.refactor(ne)
 	depBefore := as.depHit
 	iters, st := as.run(ne, p.maxIter)

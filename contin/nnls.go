@@ -28,11 +28,10 @@ type linSolver interface {
 	remove(pas []int, k int)
 	// solve sets s[pas[i]] to the unconstrained minimiser on pas.
 	solve(pas []int, s []float64)
-	// grad sets w = g − Hx (minus the gradient) for every variable.
-	grad(pas []int, x, w []float64)
-	// tol returns the threshold below which a gradient entry counts as
-	// zero at the point x.
-	tol(x []float64) float64
+	// grad sets w = g − Hx (minus the gradient) for every variable and
+	// tol to the rounding bound of each w_j: an entry w_j ≤ tol_j counts
+	// as zero.
+	grad(pas []int, x, w, tol []float64)
 	// lower returns the lower-triangular factor C (C·C' = H_PP, in pas
 	// order) and its row stride.
 	lower() ([]float64, int)
@@ -54,6 +53,7 @@ type activeSet struct {
 	pas     []int // passive variables, factor order
 	pos     []int // position of each variable in pas, −1 if active (held at 0)
 	x, s, w []float64
+	tol     []float64
 	skip    []bool // variables whose addition did not help, until pas changes
 	depHit  bool   // an addition was refused as numerically dependent
 }
@@ -65,6 +65,7 @@ func newActiveSet(maxN int) *activeSet {
 		x:    make([]float64, maxN),
 		s:    make([]float64, maxN),
 		w:    make([]float64, maxN),
+		tol:  make([]float64, maxN),
 		skip: make([]bool, maxN),
 	}
 	return a
@@ -128,11 +129,10 @@ func (a *activeSet) run(lin linSolver, maxIter int) (iters int, st solveStatus) 
 		return iters, solveLimit
 	}
 	for {
-		lin.grad(a.pas, a.x, a.w)
-		tol := lin.tol(a.x)
-		t, best := -1, tol
+		lin.grad(a.pas, a.x, a.w, a.tol)
+		t, best := -1, 0.0
 		for j := 0; j < a.nc; j++ {
-			if a.pos[j] < 0 && !a.skip[j] && a.w[j] > best {
+			if a.pos[j] < 0 && !a.skip[j] && a.w[j] > a.tol[j] && a.w[j] > best {
 				t, best = j, a.w[j]
 			}
 		}
@@ -221,19 +221,18 @@ func (a *activeSet) feasible(lin linSolver, solved bool, iters *int, maxIter int
 // by one row per added variable (O(p²)) and shrinks by Givens rotations
 // (O(p²)) when one leaves.
 type neSolver struct {
-	N      int       // variables
-	S      int       // stride of G
-	n      int       // rate points; R acts on variables < n
-	G      []float64 // Gram matrix, full storage, stride S
-	rband  []float64
-	a2     float64
-	g      []float64
-	C      []float64 // lower factor, stride N
-	z      []float64
-	p      int
-	hnorm  float64 // bound on ||H||_1
-	gnorm  float64 // ||g||_∞
-	depTol float64 // relative pivot below which a variable counts as dependent
+	N         int       // variables
+	S         int       // stride of G
+	n         int       // rate points; R acts on variables < n
+	G         []float64 // Gram matrix, full storage, stride S
+	rband     []float64
+	a2        float64
+	g         []float64
+	C         []float64 // lower factor, stride N
+	z         []float64
+	p         int
+	tolFactor float64 // relative rounding bound of the gradient entries
+	depTol    float64 // relative pivot below which a variable counts as dependent
 }
 
 func (e *neSolver) hAt(j, k int) float64 {
@@ -317,39 +316,52 @@ func (e *neSolver) solve(pas []int, s []float64) {
 	}
 }
 
-func (e *neSolver) grad(pas []int, x, w []float64) {
+// grad computes w = g − Gx − α²Rx and the rounding bound
+//
+//	tol_j = tolFactor·(|g_j| + Σ_k G_jk|x_k| + α²Σ_k |R_jk||x_k|),
+//
+// where G ≥ 0 entrywise (a Gram matrix of non-negative columns) and
+// tolFactor = (m + N)·eps bounds the relative error of the dot products
+// that formed G, g and Gx (Higham, Accuracy and Stability of Numerical
+// Algorithms, 2002, §3.1). A relative test on each entry, rather than one
+// scaled by ||H||·||x||, keeps small but significant gradients along
+// ill-conditioned directions.
+func (e *neSolver) grad(pas []int, x, w, tol []float64) {
 	N, S := e.N, e.S
 	copy(w[:N], e.g[:N])
+	for j := 0; j < N; j++ {
+		tol[j] = math.Abs(e.g[j])
+	}
 	for _, k := range pas {
 		xk := x[k]
 		if xk == 0 {
 			continue
 		}
+		ak := math.Abs(xk)
 		gk := e.G[k*S : k*S+N]
 		for j, v := range gk {
 			w[j] -= xk * v
+			tol[j] += ak * v
 		}
 	}
 	if e.a2 != 0 {
 		n, rb := e.n, e.rband
 		for j := 0; j < n; j++ {
-			var v float64
+			var v, u float64
 			for d := -2; d <= 2; d++ {
 				if k := j + d; k >= 0 && k < n {
-					v += rb[5*j+d+2] * x[k]
+					r := rb[5*j+d+2]
+					v += r * x[k]
+					u += math.Abs(r * x[k])
 				}
 			}
 			w[j] -= e.a2 * v
+			tol[j] += e.a2 * u
 		}
 	}
-}
-
-func (e *neSolver) tol(x []float64) float64 {
-	var xm float64
-	for _, v := range x[:e.N] {
-		xm = math.Max(xm, math.Abs(v))
+	for j := 0; j < N; j++ {
+		tol[j] *= e.tolFactor
 	}
-	return 10 * eps * float64(e.N) * (e.hnorm*xm + e.gnorm)
 }
 
 func (e *neSolver) lower() ([]float64, int) { return e.C, e.N }

@@ -174,9 +174,7 @@ func (q *qrSolver) solve(pas []int, s []float64) {
 // grad and tol use the normal equations: the gradient g − Hx is a forward
 // product, accurate to eps·(|g| + |H||x|) however ill-conditioned H is;
 // only solving with H_PP needs the QR factor.
-func (q *qrSolver) grad(pas []int, x, w []float64) { q.ne.grad(pas, x, w) }
-
-func (q *qrSolver) tol(x []float64) float64 { return q.ne.tol(x) }
+func (q *qrSolver) grad(pas []int, x, w, tol []float64) { q.ne.grad(pas, x, w, tol) }
 
 func (q *qrSolver) lower() ([]float64, int) {
 	N, rows := q.N, q.rows

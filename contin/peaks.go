@@ -198,3 +198,21 @@ func parabolicMode(lg, d []float64, k int) float64 {
 	}
 	return math.Min(math.Max(v, lo), hi)
 }
+
+// PeaksMeanPerS returns the amplitude-weighted mean rate over the bins of
+// the given peaks, Σ Fraction·MeanPerS / Σ Fraction (1/s), or 0 for no
+// peaks. Unlike Result.MeanRatePerS it leaves out the bins that Peaks
+// discards as ripple, which matters for the first moment: an amplitude ε
+// at the fast end of the grid adds about ε·Γmax to Σx_jΓ_j, and noise in
+// the first lags can leave such amplitudes at the level of the noise.
+func PeaksMeanPerS(peaks []Peak) float64 {
+	var s, f float64
+	for _, p := range peaks {
+		s += p.Fraction * p.MeanPerS
+		f += p.Fraction
+	}
+	if !(f > 0) {
+		return 0
+	}
+	return s / f
+}
