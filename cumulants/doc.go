@@ -58,12 +58,24 @@
 // rather than how well a short range fixes B, and warns when Γ̄ moves by
 // more than 2 % (common practice).
 //
+// With the free baseline and a range that ends at g1 = 0.1, B and μ2 are
+// strongly correlated. When the correlation has reached its baseline the
+// far channels (the last tenth) therefore join the nonlinear fit: the model
+// is B alone there, and those channels, the least noisy of a multi-tau
+// correlogram, determine B without fixing it. This halves the scatter of
+// the PDI on simulated data without bias. When the baseline is not reached
+// (dust, a slow component, a lag window too short) they stay out and B
+// floats on the fit range alone.
+//
 // # Uncertainty weights
 //
-// When the measurement carries σ per point it is used. Otherwise a constant
-// σ is estimated from the scatter of the far channels about their mean
-// (median absolute deviation of successive differences), and the standard
-// errors are scaled by the fit's reduced χ².
+// When the measurement carries σ per point it is used. Otherwise the noise
+// is estimated: the noise of a multi-tau correlator changes by orders of
+// magnitude along the lag axis (shot noise at short sample times, averaged
+// away at long ones), so a first fit with equal weights is followed by a
+// second whose σ at each channel is 1.4826 times the median absolute
+// residual of the first within ±6 channels (the normal-consistent MAD), and
+// the standard errors are scaled by the reduced χ².
 //
 // # References
 //

@@ -135,6 +135,7 @@ type prepared struct {
 	first, last    int     // fit range, inclusive
 	baseReached    bool
 	g1Tail         float64
+	tailN          int     // number of far channels
 	start          *Result // warm start of a refit
 	fixBase        bool    // hold the baseline at start.Baseline
 }
@@ -178,6 +179,7 @@ func prepare(m *dls.Measurement, s *Settings) (*prepared, error) {
 
 	// Far channels: the last tenth, at least five.
 	nt := max(5, (n-first)/10)
+	p.tailN = nt
 	tail := m.Corr[n-nt:]
 	p.farBase = mean(tail)
 	var tailSigma float64

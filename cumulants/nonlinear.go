@@ -18,6 +18,11 @@ import (
 // from the linear estimate. Lags are scaled by the starting rate Γ₀ so that
 // every parameter is of order one: t = Γ₀τ, g = Γ/Γ₀, v = μ2/Γ₀², w = μ3/Γ₀³.
 func (p *prepared) nonlinear(s *Settings, lin LinearEstimate, last int, r *Result) error {
+	// When the correlation has reached its baseline, the far channels join
+	// the fit: there the model is B alone, and these channels, whose noise
+	// is the smallest of the correlogram, pin the baseline that would
+	// otherwise trade off against μ2 inside a truncated range.
+	useTail := p.baseReached
 	g0 := lin.GammaPerS
 	// Parameters: B, β, g, v, w.
 	par := [5]float64{p.farBase, lin.Intercept, 1, lin.Mu2PerS2 / (g0 * g0), 0}
@@ -41,12 +46,20 @@ func (p *prepared) nonlinear(s *Settings, lin LinearEstimate, last int, r *Resul
 		lo = 1
 	}
 	k := np - lo
-	m := last - p.first + 1
+	idx := make([]int, 0, last-p.first+1+p.tailN)
+	for k := p.first; k <= last; k++ {
+		idx = append(idx, k)
+	}
+	if useTail {
+		for k := max(last+1, len(p.tau)-p.tailN); k < len(p.tau); k++ {
+			idx = append(idx, k)
+		}
+	}
+	m := len(idx)
 	t := make([]float64, m)
 	y := make([]float64, m)
 	w := make([]float64, m)
-	for i := range t {
-		k := p.first + i
+	for i, k := range idx {
 		t[i] = p.tau[k] * g0
 		y[i] = p.y[k]
 		w[i] = 1 / (p.sigma[k] * p.sigma[k])
@@ -126,7 +139,7 @@ func (p *prepared) nonlinear(s *Settings, lin LinearEstimate, last int, r *Resul
 		}
 		chiT := eval(&trial, &jtjT, &jtrT)
 		// A step that changes no parameter beyond 1e-9 of its size, or χ²
-		// beyond 1e-10 of itself, marks a minimum to working precision
+		// beyond 1e-8 of itself, marks a minimum to working precision
 		// whether or not rounding let χ² fall.
 		small := true
 		for a := lo; a < np; a++ {
@@ -134,7 +147,7 @@ func (p *prepared) nonlinear(s *Settings, lin LinearEstimate, last int, r *Resul
 				small = false
 			}
 		}
-		flat := math.Abs(chi-chiT) <= 1e-10*chi
+		flat := math.Abs(chi-chiT) <= 1e-8*chi
 		if chiT <= chi && isFinite(chiT) {
 			par, chi, jtj, jtr = trial, chiT, jtjT, jtrT
 			lambda = math.Max(lambda/10, 1e-12)
