@@ -63,6 +63,9 @@ type Result struct {
 
 	Fitted    []float64 // model at every lag
 	Residuals []float64 // data − model at every lag
+	// Sigma is the standard uncertainty of each data point used as weight:
+	// the measurement's own, or the local estimate (SigmaEstimated).
+	Sigma []float64
 	Warnings  []error
 }
 
@@ -325,6 +328,7 @@ func (p *prepared) finish(r *Result, last, nParams int) {
 		r.ReducedChi2 = chi / float64(k-nParams)
 	}
 	r.SigmaEstimated = p.sigmaEstimated
+	r.Sigma = p.sigma
 }
 
 // rangeCheck refits with the end of the range moved by ±25 % of its length.

@@ -65,6 +65,29 @@ type Result struct {
 	HasDuration       bool    `json:"-"`
 	CorrelationColumn string  `json:"correlation_column"`
 
+	// Size distribution (valid when HasDistribution).
+	HasDistribution  bool    `json:"-"`
+	ParticleRI       string  `json:"particle_ri"`
+	AlphaCriterion   string  `json:"alpha_criterion"`
+	Alpha            float64 `json:"alpha"`
+	Lambda           float64 `json:"alpha_lambda"`
+	DegreesOfFreedom float64 `json:"dof"`
+	ProbReject       float64 `json:"prob_reject"`
+	DistMeanRatePerS float64 `json:"dist_mean_rate_per_s"`
+	DistZAvgNm       float64 `json:"dist_z_avg_nm"`
+	// Intensity, Volume and Number summarise each weighting: peaks by
+	// decreasing area, percentiles and mean.
+	Intensity *WeightSummary `json:"intensity,omitempty"`
+	Volume    *WeightSummary `json:"volume,omitempty"`
+	Number    *WeightSummary `json:"number,omitempty"`
+	// Distribution holds the full distributions and the inversion's audit.
+	Distribution *SizeDistribution `json:"distribution,omitempty"`
+
+	// Assumptions name defaults that a result leans on without changing
+	// its status (e.g. an assumed particle refractive index, which only
+	// the volume and number weightings depend on).
+	Assumptions []string `json:"assumptions"`
+
 	// Params lists every input value used, with its origin.
 	Params []Param `json:"params"`
 	// Warnings lists each remark behind a warn status.
@@ -80,4 +103,55 @@ type Curves struct {
 	Fitted    []float64 `json:"fitted"`
 	Residuals []float64 `json:"residuals"`
 	Kind      string    `json:"kind"`
+}
+
+// Peak is one population of a size distribution.
+type Peak struct {
+	ModeNm  float64 `json:"mode_nm"`  // diameter of the maximum (parabolic refinement in ln d)
+	MeanNm  float64 `json:"mean_nm"`  // weighted mean diameter over the peak
+	SDNm    float64 `json:"sd_nm"`    // weighted standard deviation of the diameter over the peak
+	AreaPct float64 `json:"area_pct"` // share of the weighting, %
+	LowNm   float64 `json:"low_nm"`   // first bin of the peak
+	HighNm  float64 `json:"high_nm"`  // last bin of the peak
+}
+
+// WeightSummary summarises one weighting of a size distribution.
+type WeightSummary struct {
+	Peaks  []Peak  `json:"peaks"`
+	MeanNm float64 `json:"mean_nm"`
+	D10Nm  float64 `json:"d10_nm"`
+	D50Nm  float64 `json:"d50_nm"`
+	D90Nm  float64 `json:"d90_nm"`
+}
+
+// SizeDistribution is the full output of the inversion for one
+// measurement: the distributions on the diameter grid, the field
+// correlation it fitted, and every regularisation strength tried.
+type SizeDistribution struct {
+	DiameterNm []float64 `json:"diameter_nm"`
+	Intensity  []float64 `json:"intensity"`
+	Volume     []float64 `json:"volume"`
+	Number     []float64 `json:"number"`
+	MieMasked  []bool    `json:"mie_masked"`
+	// G1 is the field correlation derived from the data (signed square
+	// root of (g2 − B)/β), G1Sigma its propagated uncertainty, G1Fitted
+	// the inversion's model and G1Residuals their difference, all at the
+	// lags of Curves.TauS.
+	G1          []float64  `json:"g1"`
+	G1Sigma     []float64  `json:"g1_sigma"`
+	G1Fitted    []float64  `json:"g1_fitted"`
+	G1Residuals []float64  `json:"g1_residuals"`
+	Scan        []AlphaRow `json:"alpha_scan"`
+}
+
+// AlphaRow is one regularisation strength tried.
+type AlphaRow struct {
+	Lambda           float64 `json:"lambda"`
+	Alpha            float64 `json:"alpha"`
+	ChiSquare        float64 `json:"chi_square"`
+	DegreesOfFreedom float64 `json:"dof"`
+	NormLx           float64 `json:"norm_lx"`
+	ProbReject       float64 `json:"prob_reject"`
+	GCV              float64 `json:"gcv"`
+	Chosen           bool    `json:"chosen"`
 }

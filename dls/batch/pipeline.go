@@ -28,16 +28,20 @@ type Settings struct {
 	// Solvents is the table solvent names are looked up in; nil means the
 	// built-in table (dls.LookupSolvent).
 	Solvents *dls.SolventTable
+	// Distribution controls the regularised inversion into size
+	// distributions.
+	Distribution DistributionSettings
 }
 
 // DefaultSettings returns the documented defaults: cumulants.DefaultSettings,
 // no overrides, solvent water by default (reported as an assumption), no
-// extrapolation, curves kept.
+// extrapolation, curves kept, DefaultDistributionSettings.
 func DefaultSettings() Settings {
 	return Settings{
-		Cumulants:  cumulants.DefaultSettings(),
-		Defaults:   []dls.Param{{Key: dls.KeySolvent, Value: "water", Origin: dls.OriginDefault, Where: "built-in default"}},
-		KeepCurves: true,
+		Cumulants:    cumulants.DefaultSettings(),
+		Defaults:     []dls.Param{{Key: dls.KeySolvent, Value: "water", Origin: dls.OriginDefault, Where: "built-in default"}},
+		KeepCurves:   true,
+		Distribution: DefaultDistributionSettings(),
 	}
 }
 
@@ -144,8 +148,14 @@ func Analyze(m *dls.Measurement, s *Settings) *dls.Result {
 	for _, w := range fit.Warnings {
 		warn = append(warn, w.Error())
 	}
+	if s.Distribution.Enabled {
+		warn = append(warn, distribution(m, fit, cond, meta, &s.Distribution, r)...)
+	}
 	if s.KeepCurves {
 		r.Curves = &dls.Curves{TauS: m.TauS, Data: m.Corr, Fitted: fit.Fitted, Residuals: fit.Residuals, Kind: m.Kind.String()}
+	} else if r.Distribution != nil {
+		d := r.Distribution
+		d.G1, d.G1Sigma, d.G1Fitted, d.G1Residuals = nil, nil, nil, nil
 	}
 	r.Warnings = warn
 	r.Status = dls.StatusOK

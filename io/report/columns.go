@@ -1,7 +1,9 @@
 package report
 
 import (
+	"fmt"
 	"strconv"
+	"strings"
 
 	"dlsbatch/dls"
 )
@@ -82,6 +84,46 @@ var columns = []column{
 	}},
 	{"viscosity_source", cond(func(r *dls.Result) string { return r.ViscositySource })},
 	{"refractive_index_source", cond(func(r *dls.Result) string { return r.IndexSource })},
+	peakCol(0, "nm"), peakCol(0, "width_nm"), peakCol(0, "intensity_pct"),
+	peakCol(1, "nm"), peakCol(1, "width_nm"), peakCol(1, "intensity_pct"),
+	peakCol(2, "nm"), peakCol(2, "width_nm"), peakCol(2, "intensity_pct"),
+	{"d10_nm", dist(func(r *dls.Result) string { return fixed(r.Intensity.D10Nm, 3) })},
+	{"d50_nm", dist(func(r *dls.Result) string { return fixed(r.Intensity.D50Nm, 3) })},
+	{"d90_nm", dist(func(r *dls.Result) string { return fixed(r.Intensity.D90Nm, 3) })},
+	{"dist_z_avg_nm", dist(func(r *dls.Result) string { return fixed(r.DistZAvgNm, 3) })},
+	{"alpha_criterion", dist(func(r *dls.Result) string { return r.AlphaCriterion })},
+	{"alpha", dist(func(r *dls.Result) string { return sci(r.Alpha, 4) })},
+	{"dof", dist(func(r *dls.Result) string { return fixed(r.DegreesOfFreedom, 2) })},
+	{"particle_ri", dist(func(r *dls.Result) string { return r.ParticleRI })},
+	{"assumptions", func(r *dls.Result) string { return strings.Join(r.Assumptions, "; ") }},
+}
+
+func dist(f func(r *dls.Result) string) func(r *dls.Result) string {
+	return func(r *dls.Result) string {
+		if !r.HasDistribution || r.Intensity == nil {
+			return ""
+		}
+		return f(r)
+	}
+}
+
+// peakCol is a column of the k-th intensity peak (by decreasing area):
+// peakN_nm is the peak's mean diameter, peakN_width_nm its standard
+// deviation, peakN_intensity_pct its share of the intensity.
+func peakCol(k int, what string) column {
+	return column{fmt.Sprintf("peak%d_%s", k+1, what), dist(func(r *dls.Result) string {
+		if k >= len(r.Intensity.Peaks) {
+			return ""
+		}
+		p := r.Intensity.Peaks[k]
+		switch what {
+		case "nm":
+			return fixed(p.MeanNm, 2)
+		case "width_nm":
+			return fixed(p.SDNm, 2)
+		}
+		return fixed(p.AreaPct, 1)
+	})}
 }
 
 // ColumnNames returns the results.csv header.

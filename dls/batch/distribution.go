@@ -1,0 +1,237 @@
+package batch
+
+import (
+	"errors"
+	"fmt"
+	"math"
+	"sort"
+	"strings"
+
+	"dlsbatch/contin"
+	"dlsbatch/cumulants"
+	"dlsbatch/dls"
+	"dlsbatch/dls/mie"
+)
+
+// DistributionSettings control the size-distribution step.
+type DistributionSettings struct {
+	// Enabled runs the inversion; without it results carry cumulants only.
+	Enabled bool
+	Contin  contin.Settings
+	Grid    contin.GridSettings
+	Peaks   contin.PeakSettings
+	// DefaultParticleRI is used, and named in the result's assumptions,
+	// when a measurement gives no particle_ri: 1.59+0i, the common-practice
+	// value for polystyrene latex at visible wavelengths.
+	DefaultParticleRI complex128
+	Polarization      mie.Polarization
+	// Cache shares kernels between measurements with the same lag grid; it
+	// is safe for concurrent use. nil builds a grid per measurement.
+	Cache *contin.Cache
+}
+
+// DefaultDistributionSettings returns the documented defaults: the
+// inversion on, contin.DefaultSettings (probability to reject 0.5, free
+// baseline column), the default grid and peak rule, particle index
+// 1.59+0i, vertical polarisation, a fresh kernel cache.
+func DefaultDistributionSettings() DistributionSettings {
+	return DistributionSettings{
+		Enabled:           true,
+		Contin:            *contin.DefaultSettings(),
+		DefaultParticleRI: complex(1.59, 0),
+		Polarization:      mie.Vertical,
+		Cache:             &contin.Cache{},
+	}
+}
+
+// fieldCorrelation turns the correlogram into g1 with its uncertainty,
+// using the baseline B and coherence factor β of the cumulant fit. For g2
+// and g2m1 data u = (y − B)/β estimates g1², and
+//
+//	g1 = sign(u)·√|u|,   σ_g1 = σ_u / (2·√max(|u|, σ_u)),   σ_u = σ/β
+//
+// The signed root keeps noise about a zero baseline symmetric about zero,
+// so values at or below the baseline are neither clipped nor rectified into
+// a spurious slow component; the propagated σ gives those channels little
+// weight, and the floor at |u| = σ_u keeps it finite where u crosses zero.
+// For g1 data g1 = (y − B)/β and σ_g1 = σ/β.
+func fieldCorrelation(m *dls.Measurement, fit *cumulants.Result, first int) (g1, sigma []float64) {
+	n := len(m.TauS) - first
+	g1 = make([]float64, n)
+	sigma = make([]float64, n)
+	beta := fit.Intercept
+	for i := 0; i < n; i++ {
+		k := first + i
+		u := (m.Corr[k] - fit.Baseline) / beta
+		su := fit.Sigma[k] / beta
+		if m.Kind == dls.KindG1 {
+			g1[i], sigma[i] = u, su
+			continue
+		}
+		g1[i] = math.Copysign(math.Sqrt(math.Abs(u)), u)
+		sigma[i] = su / (2 * math.Sqrt(math.Max(math.Abs(u), su)))
+	}
+	return g1, sigma
+}
+
+// particleIndex resolves particle_ri: a complex index ("1.59+0.0i"), a
+// material of the Mie table ("polystyrene", evaluated at the wavelength),
+// or the default, which is then named as an assumption.
+func particleIndex(meta dls.Metadata, lambdaM float64, def complex128) (complex128, string, string, error) {
+	p, ok := meta.Get(dls.KeyParticleRI)
+	if !ok || strings.TrimSpace(p.Value) == "" {
+		s := mie.FormatComplexIndex(def)
+		return def, s, "particle refractive index not given: " + s + " assumed (volume and number weightings depend on it)", nil
+	}
+	if m, err := mie.ParseComplexIndex(p.Value); err == nil {
+		return m, mie.FormatComplexIndex(m), "", nil
+	}
+	m, src, err := mie.MaterialIndex(p.Value, lambdaM)
+	if err != nil {
+		return 0, "", "", fmt.Errorf("%s: particle_ri %q is neither a complex index (e.g. 1.59+0.0i) nor a known material: %w", p.Where, p.Value, err)
+	}
+	return m, mie.FormatComplexIndex(m) + " (" + p.Value + ": " + src + ")", "", nil
+}
+
+// distribution runs the inversion and fills the distribution fields of r.
+// Its failures do not fail the measurement: the cumulant result stands and
+// the reason becomes a warning.
+func distribution(m *dls.Measurement, fit *cumulants.Result, st state, meta dls.Metadata, s *DistributionSettings, r *dls.Result) (warn []string) {
+	fail := func(err error) []string {
+		return append(warn, "size distribution not computed: "+err.Error())
+	}
+	if !(fit.Intercept > 0) {
+		return fail(errors.New("the cumulant fit gives no positive intercept"))
+	}
+	mPart, riText, assumed, err := particleIndex(meta, st.optics.WavelengthM, s.DefaultParticleRI)
+	if err != nil {
+		return fail(err)
+	}
+	first := fit.FitFirst
+	tau := m.TauS[first:]
+	tK := dls.KelvinFromCelsius(st.tempC)
+	gs := sizeBoundedGrid(s.Grid, tau, tK, st.etaPaS, st.optics.Q())
+	var grid *contin.Grid
+	if s.Cache != nil {
+		grid, err = s.Cache.Grid(tau, &gs)
+	} else {
+		grid, err = contin.NewGrid(tau, &gs)
+	}
+	if err != nil {
+		return fail(err)
+	}
+	g1, sg := fieldCorrelation(m, fit, first)
+	cs := s.Contin
+	inv, err := contin.Invert(grid, g1, sg, &cs)
+	if err != nil {
+		return fail(err)
+	}
+	d, err := dls.NewDistribution(dls.DistributionInput{
+		GammaPerS: inv.GammaPerS, Amplitude: inv.Amplitude, TempK: tK, ViscosityPaS: st.etaPaS,
+		Optics: st.optics, ParticleIndex: mPart, Polarization: s.Polarization,
+	})
+	if err != nil {
+		return fail(err)
+	}
+	for _, w := range grid.Warnings() {
+		warn = append(warn, "size distribution: "+w.Error())
+	}
+	for _, w := range inv.Warnings {
+		warn = append(warn, "size distribution: "+w.Error())
+	}
+	warn = append(warn, d.Warnings...)
+	if assumed != "" {
+		r.Assumptions = append(r.Assumptions, assumed)
+	}
+
+	r.HasDistribution = true
+	r.ParticleRI = riText
+	r.AlphaCriterion = inv.Criterion.String()
+	r.Alpha, r.Lambda = inv.Alpha, inv.Lambda
+	r.DegreesOfFreedom = inv.DegreesOfFreedom
+	r.ProbReject = inv.ProbReject
+	r.DistMeanRatePerS = inv.MeanRatePerS
+	if inv.MeanRatePerS > 0 {
+		r.DistZAvgNm = dls.DiameterFromDiffusion(tK, st.etaPaS, dls.DiffusionFromRate(inv.MeanRatePerS, st.optics.Q())) * 1e9
+	}
+	r.Intensity = summarise(d, d.Intensity, &s.Peaks)
+	r.Volume = summarise(d, d.Volume, &s.Peaks)
+	r.Number = summarise(d, d.Number, &s.Peaks)
+	sd := &dls.SizeDistribution{
+		DiameterNm: d.DiameterNm, Intensity: d.Intensity, Volume: d.Volume, Number: d.Number, MieMasked: d.Masked,
+		G1: padFront(g1, first), G1Sigma: padFront(sg, first), G1Fitted: padFront(inv.Fitted, first), G1Residuals: padFront(inv.Residuals, first),
+	}
+	for i, row := range inv.Scan {
+		sd.Scan = append(sd.Scan, dls.AlphaRow{Lambda: row.Lambda, Alpha: row.Alpha, ChiSquare: row.ChiSquare,
+			DegreesOfFreedom: row.DegreesOfFreedom, NormLx: row.NormLx, ProbReject: row.ProbReject, GCV: row.GCV, Chosen: i == inv.Chosen})
+	}
+	r.Distribution = sd
+	return warn
+}
+
+// Sizes the rate grid is allowed to reach (common practice): particles
+// above about 20 µm sediment and fluctuate in number rather than diffuse
+// through the scattering volume, and below 0.5 nm are single molecules of
+// the solvent's size.
+const (
+	maxGridDiameterM = 20e-6
+	minGridDiameterM = 0.5e-9
+)
+
+// sizeBoundedGrid narrows the rate grid that the lag window supports
+// (contin's default, [0.2/τ_max, 1/τ_min]) to the rates of diameters in
+// [minGridDiameterM, maxGridDiameterM], unless the settings fix the bounds.
+func sizeBoundedGrid(gs contin.GridSettings, tau []float64, tK, etaPaS, q float64) contin.GridSettings {
+	rate := func(dM float64) float64 { return dls.DiffusionFromDiameter(tK, etaPaS, dM) * q * q }
+	if gs.GammaMinPerS == 0 {
+		gs.GammaMinPerS = math.Max(contin.DefaultGammaMinTimesTauMax/tau[len(tau)-1], rate(maxGridDiameterM))
+	}
+	if gs.GammaMaxPerS == 0 {
+		gs.GammaMaxPerS = math.Min(contin.DefaultGammaMaxTimesTauMin/tau[0], rate(minGridDiameterM))
+	}
+	return gs
+}
+
+// padFront aligns an array over lags first.. with the full lag axis; the
+// channels before first (dropped by the minimum lag) are 0.
+func padFront(v []float64, first int) []float64 {
+	if first == 0 {
+		return v
+	}
+	return append(make([]float64, first), v...)
+}
+
+// summarise finds the peaks of one weighting (largest area first), its
+// mean and its percentiles. The peak rule is contin.Peaks, which applies to
+// any ascending log-spaced grid: here the diameters.
+func summarise(d *dls.Distribution, w []float64, ps *contin.PeakSettings) *dls.WeightSummary {
+	ws := &dls.WeightSummary{
+		D10Nm: d.Percentile(w, 0.1),
+		D50Nm: d.Percentile(w, 0.5),
+		D90Nm: d.Percentile(w, 0.9),
+	}
+	var sw, swd float64
+	for j, v := range w {
+		sw += v
+		swd += v * d.DiameterNm[j]
+	}
+	if sw > 0 {
+		ws.MeanNm = swd / sw
+	}
+	for _, p := range contin.Peaks(d.DiameterNm, w, ps) {
+		var a, ad float64
+		for j := p.Lo; j <= p.Hi; j++ {
+			a += w[j]
+			ad += w[j] * d.DiameterNm[j]
+		}
+		mean := ad / a
+		var v float64
+		for j := p.Lo; j <= p.Hi; j++ {
+			v += w[j] * (d.DiameterNm[j] - mean) * (d.DiameterNm[j] - mean)
+		}
+		ws.Peaks = append(ws.Peaks, dls.Peak{ModeNm: p.ModePerS, MeanNm: mean, SDNm: math.Sqrt(v / a),
+			AreaPct: 100 * p.Fraction, LowNm: d.DiameterNm[p.Lo], HighNm: d.DiameterNm[p.Hi]})
+	}
+	sort.SliceStable(ws.Peaks, func(i, j int) bool { return ws.Peaks[i].AreaPct > ws.Peaks[j].AreaPct })
+	return ws
+}
