@@ -125,10 +125,6 @@ type Result struct {
 
 // Thresholds of the solver.
 const (
-	// neCondMax: when the condition estimate of H_PP = G_PP + α²R_PP
-	// exceeds it, the normal equations may have lost more than about 7
-	// digits and the solve is repeated with the QR solver.
-	neCondMax = 1e9
 	// neDepTol: a Cholesky pivot d² below neDepTol·h_tt means the column is
 	// numerically dependent in the normal equations; the solve is then
 	// repeated with QR.
@@ -138,6 +134,12 @@ const (
 	edgeFraction = 0.01
 	edgeBins     = 3
 )
+
+// neCondMax: when the condition estimate of H_PP = G_PP + α²R_PP exceeds
+// it, the normal equations may have lost more than about 7 digits and the
+// solve is repeated with the QR solver. A variable only so that tests can
+// force the QR path.
+var neCondMax = 1e9
 
 type workspace struct {
 	sw, wy, fit []float64

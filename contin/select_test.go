@@ -1,0 +1,157 @@
+package contin
+
+import (
+	"errors"
+	"fmt"
+	"math"
+	"testing"
+)
+
+// TestSelectionFamily: on a family of simulated correlograms (helpers_test
+// populations, 1e-3 and 3e-3 noise, three seeds) every criterion chooses a
+// finite strength strictly inside the default scan (no ErrScanEdge), the
+// choice is the criterion's optimum over the rows it ranks, and a second
+// run gives identical bits.
+func TestSelectionFamily(t *testing.T) {
+	g, tau := testGrid(t)
+	cases := append(append([]recoveryCase{}, unimodalCases...), bimodalCases...)
+	for _, c := range cases {
+		for _, noise := range []float64{1e-3, 3e-3} {
+			for seed := uint64(1); seed <= 3; seed++ {
+				y, sig := noisy(g1Of(c.pops, tau), noise, 40+seed)
+				for _, crit := range []Criterion{ProbReject, GCV, LCurve} {
+					name := fmt.Sprintf("%s/noise=%g/seed=%d/%v", c.name, noise, seed, crit)
+					s := DefaultSettings()
+					s.Criterion = crit
+					r, err := Invert(g, y, sig, s)
+					if err != nil {
+						t.Fatalf("%s: %v", name, err)
+					}
+					checkFinite(t, r)
+					if !(r.Lambda > s.LambdaMin && r.Lambda < s.LambdaMax) {
+						t.Errorf("%s: λ = %g outside (%g, %g)", name, r.Lambda, s.LambdaMin, s.LambdaMax)
+					}
+					for _, w := range r.Warnings {
+						if errors.Is(w, ErrScanEdge) || errors.Is(w, ErrNoCorner) {
+							t.Errorf("%s: %v", name, w)
+						}
+					}
+					ch := r.Scan[r.Chosen]
+					for i, row := range r.Scan {
+						switch crit {
+						case ProbReject:
+							if math.Abs(row.ProbReject-0.5) < math.Abs(ch.ProbReject-0.5) {
+								t.Errorf("%s: row %d has P closer to 0.5", name, i)
+							}
+						case GCV:
+							if !row.Refined && row.GCV < ch.GCV {
+								t.Errorf("%s: row %d has lower GCV", name, i)
+							}
+						case LCurve:
+							if row.Curvature > ch.Curvature {
+								t.Errorf("%s: row %d has larger curvature", name, i)
+							}
+						}
+					}
+					r2, _ := Invert(g, y, sig, s)
+					if math.Float64bits(r2.Lambda) != math.Float64bits(r.Lambda) || r2.Chosen != r.Chosen {
+						t.Errorf("%s: second run chose λ = %v, first %v", name, r2.Lambda, r.Lambda)
+					}
+					for j := range r.Amplitude {
+						if math.Float64bits(r2.Amplitude[j]) != math.Float64bits(r.Amplitude[j]) {
+							t.Fatalf("%s: second run differs at bin %d", name, j)
+						}
+					}
+				}
+			}
+		}
+	}
+}
+
+// statProblem builds a problem with hand-made scan rows for the selection
+// statistics.
+func statProblem(ny int, rows []ScanRow) *problem {
+	ws := &workspace{sw: make([]float64, ny)}
+	y := make([]float64, ny)
+	for i := range y {
+		ws.sw[i], y[i] = 1, 1
+	}
+	s, _ := DefaultSettings().normalise()
+	s.NAlpha = len(rows)
+	return &problem{ws: ws, y: y, ny: ny, s: s, rows: rows}
+}
+
+// TestProbRejectFormula checks Provencher's F statistic
+// F = (V − V₀)/V₀ · (N_y − N_DF₀)/N_DF₀ and its probability against the
+// closed form of the F distribution with 2 numerator degrees of freedom,
+// CDF(f; 2, d) = 1 − (1 + 2f/d)^(−d/2) (regularised incomplete beta
+// I_x(1, d/2) = 1 − (1 − x)^(d/2); Abramowitz & Stegun 26.6.2 and 26.5.23),
+// and GCV = N_y·V/(N_y − N_DF)² (Golub, Heath & Wahba 1979, eq. 1.4).
+func TestProbRejectFormula(t *testing.T) {
+	const ny = 50
+	rows := []ScanRow{
+		{Lambda: 1e-6, ChiSquare: 40, DegreesOfFreedom: 2},
+		{Lambda: 1e-5, ChiSquare: 41, DegreesOfFreedom: 1.8},
+		{Lambda: 1e-4, ChiSquare: 44, DegreesOfFreedom: 1.5},
+		{Lambda: 1e-3, ChiSquare: 60, DegreesOfFreedom: 1.2},
+		{Lambda: 1e-2, ChiSquare: 200, DegreesOfFreedom: 1},
+	}
+	p := statProblem(ny, rows)
+	p.statistics(len(rows), nil)
+	for i, r := range p.rows {
+		f := (r.ChiSquare - 40) / 40 * (ny - 2) / 2
+		want := 1 - math.Pow(1+2*f/(ny-2), -(ny-2)/2.0)
+		if !withinAbs(r.ProbReject, want, 1e-12) {
+			t.Errorf("row %d: P = %.15g, closed form %.15g", i, r.ProbReject, want)
+		}
+		gcv := ny * r.ChiSquare / ((ny - r.DegreesOfFreedom) * (ny - r.DegreesOfFreedom))
+		if !within(r.GCV, gcv, 1e-14) {
+			t.Errorf("row %d: GCV %g, want %g", i, r.GCV, gcv)
+		}
+	}
+	if p.rows[0].ProbReject != 0 {
+		t.Errorf("reference row P = %g", p.rows[0].ProbReject)
+	}
+}
+
+// TestLCurveCorner: points on the curve (log₁₀(1 + 10^t), log₁₀(1 + 10^−t)),
+// t = −3 … 3, are symmetric about the diagonal with equal axis ranges, so
+// the corner of maximum curvature is at t = 0 (the middle row) by symmetry.
+func TestLCurveCorner(t *testing.T) {
+	var rows []ScanRow
+	for k := 0; k <= 12; k++ {
+		tt := -3 + 0.5*float64(k)
+		rho := math.Log10(1 + math.Pow(10, tt))
+		eta := math.Log10(1 + math.Pow(10, -tt))
+		rows = append(rows, ScanRow{Lambda: math.Pow(10, tt), ChiSquare: math.Pow(10, 2*rho), NormLx: math.Pow(10, eta), DegreesOfFreedom: 3})
+	}
+	p := statProblem(40, rows)
+	p.s.Criterion = LCurve
+	p.statistics(len(rows), nil)
+	if k := p.pickLCurve(); k != 6 {
+		t.Errorf("corner at row %d, want 6 (t = 0)", k)
+	}
+	if !(p.rows[6].Curvature > 0) {
+		t.Errorf("corner curvature %g not positive", p.rows[6].Curvature)
+	}
+	// Menger curvature of three points on a circle of radius 2 traversed
+	// counter-clockwise is 1/2 (circle through three points).
+	if k := menger([2]float64{2, 0}, [2]float64{0, 2}, [2]float64{-2, 0}); !within(k, 0.5, 1e-14) {
+		t.Errorf("Menger curvature %g, want 0.5", k)
+	}
+}
+
+func TestParseCriterion(t *testing.T) {
+	for _, c := range []Criterion{ProbReject, GCV, LCurve, Fixed} {
+		got, err := ParseCriterion(" " + c.String() + " ")
+		if err != nil || got != c {
+			t.Errorf("%v: %v %v", c, got, err)
+		}
+	}
+	if _, err := ParseCriterion("discrepancy"); !errors.Is(err, ErrBadSettings) {
+		t.Errorf("unknown name: %v", err)
+	}
+	if s := Criterion(7).String(); s != "Criterion(7)" {
+		t.Errorf("%q", s)
+	}
+}
