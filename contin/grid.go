@@ -13,18 +13,18 @@ import (
 const (
 	// DefaultNGamma is the number of decay-rate points when
 	// GridSettings.NGamma is zero: 100 points over the default range of a
-	// 0.5 µs–1 s lag window give about 13 points per decade, inside the
-	// 12–20 per decade usually recommended for this problem.
+	// 0.5 µs–1 s lag window (7 decades) give about 14 points per decade,
+	// inside the 12–20 per decade usually recommended for this problem.
 	DefaultNGamma = 100
 	// DefaultGammaMinTimesTauMax sets the slowest rate, Γmin = 0.2/τmax,
 	// when GridSettings.GammaMinPerS is zero. Such a decay has fallen only
 	// to exp(−0.2) ≈ 0.82 at the last lag; anything slower cannot be told
 	// from a baseline offset.
 	DefaultGammaMinTimesTauMax = 0.2
-	// DefaultGammaMaxTimesTauMin sets the fastest rate, Γmax = 5/τmin, when
+	// DefaultGammaMaxTimesTauMin sets the fastest rate, Γmax = 1/τmin, when
 	// GridSettings.GammaMaxPerS is zero. Such a decay is down to
-	// exp(−5) ≈ 0.007 at the first lag; anything faster only lowers the
-	// apparent intercept.
+	// exp(−1) at the first lag; faster rates are seen only in the first few
+	// lags and mostly end up fitting their noise.
 	DefaultGammaMaxTimesTauMin = 1.0
 
 	// MinPoints is the smallest number of lags (and of usable data points)

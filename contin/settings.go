@@ -104,7 +104,7 @@ type Settings struct {
 }
 
 // DefaultSettings returns the documented defaults: ProbReject at 0.5 over
-// 20 values of λ from 1e-9 to 1e-1 refined by 4 bisection steps, with the
+// 21 values of λ from 1e-10 to 1 refined by 4 bisection steps, with the
 // baseline column.
 func DefaultSettings() *Settings {
 	return &Settings{

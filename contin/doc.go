@@ -1,0 +1,202 @@
+// Package contin computes the regularised non-negative inverse Laplace
+// transform of a decay: given y(τ_i) ≈ g1(τ_i) at m lag times with
+// standard uncertainties σ_i, it finds a non-negative rate spectrum (the
+// CONTIN method of Provencher 1982). It knows nothing of particles or
+// files: it turns decays into rate spectra; sizes are derived elsewhere.
+//
+// # Model
+//
+// The field autocorrelation is a superposition of exponential decays with
+// an intensity-weighted spectrum Gt over ln Γ,
+//
+//	g1(τ) = ∫ Gt(ln Γ) exp(−Γτ) d ln Γ  (+ B, an optional constant)
+//
+// discretised on n log-spaced rates Γ_j with trapezoid weights w_j = Δ ln Γ
+// (halved at both ends). The unknowns are the amplitudes per log bin
+// x_j = w_j·Gt_j, so that
+//
+//	y_i ≈ Σ_j A_ij x_j + B,   A_ij = exp(−Γ_j τ_i).
+//
+// Optionally (GridSettings.ChannelWidthS) each lag is averaged over its
+// channel's triangular window of half-width Δt_i, which gives
+//
+//	A_ij = exp(−Γ_j τ_i)·[sinh(Γ_j Δt_i/2)/(Γ_j Δt_i/2)]².
+//
+// Kernel entries below 1e-25 of their column's largest are set to zero, so
+// that the long tails of fast decays cost nothing.
+//
+// # Problem
+//
+// With weights W = diag(1/σ_i²) and L the second-difference operator on
+// Gt = x/w, Invert solves for each regularisation strength α
+//
+//	minimise ||W½(A x + B − y)||² + α²·||L x/w||²  subject to x ≥ 0,
+//
+// where B (Settings.Baseline) is free in sign and not regularised. L has
+// n+2 rows: the second differences at the points −1 … n with Gt taken as
+// zero at the two points beyond each end, so that R = L'L is the band
+// (1, −4, 6, −4, 1)/(w_j w_k) everywhere and the solution is driven to
+// zero at both ends of the grid instead of piling up there (Provencher's
+// end-point treatment; the choice of two zero points is from memory of
+// CONTIN's defaults, not checked against the program text).
+//
+// The strength is dimensionless through
+//
+//	α² = λ·tr(G)/tr(R),   G = [A 1]'W[A 1] restricted to the rates,
+//
+// so one λ range serves any grid and any noise level.
+//
+// # Choosing α
+//
+// Invert solves on NAlpha log-spaced λ (default 21 values from 1e-10 to
+// 1) from the smallest up, each solve warm-started from the previous
+// passive set, and records every row (λ, α, V, N_DF, ||Lx||, P_reject,
+// GCV, curvature) in Result.Scan. V = Σ W_i r_i² is the weighted residual
+// sum of squares and
+//
+//	N_DF = tr[(G_PP + α²R_PP)⁻¹ G_PP] = p − α²·tr[(G_PP + α²R_PP)⁻¹ R_PP]
+//
+// the effective number of degrees of freedom on the passive set P (the p
+// unknowns off their bound, the baseline included), from the Cholesky or
+// QR factor of the passive-set problem.
+//
+// The default criterion, ProbReject (Provencher 1982), takes the
+// least-regularised row as reference (V₀, N_DF₀) and computes for every
+// row
+//
+//	F        = [(V − V₀)/V₀]·(N_y − N_DF₀)/N_DF₀
+//	P_reject = CDF_F(F; N_DF₀, N_y − N_DF₀)
+//
+// choosing the row whose P_reject is closest to 0.5: the smoothest solution
+// whose misfit is not significantly worse than the reference's. The choice
+// is refined by 4 bisection steps in log λ between the two rows that
+// bracket 0.5. (The formula is as generally quoted for CONTIN; from memory,
+// not checked against the 1982 text.) The other criteria:
+//
+//   - GCV (Golub, Heath & Wahba 1979): minimise N_y·V/(N_y − N_DF)².
+//     It needs no noise level but tends to under-smooth, more so when the
+//     errors are correlated between channels, as DLS errors are.
+//
+//   - LCurve (Hansen 1992; Hansen & O'Leary 1993): the corner of
+//     (log ||W½r||, log ||Lx||) of largest signed Menger curvature (the
+//     curvature of the circle through three neighbouring points), with
+//     both axes scaled to unit range over the scan and points closer than
+//     2 % of the diagonal to their predecessor pruned (with x ≥ 0 the
+//     curve has a flat plateau at small α whose points coincide to
+//     rounding).
+//
+//   - Fixed: Settings.Lambda (or Settings.Alpha) as given.
+//
+// Result.Picks records what each criterion would choose, so GCV and the
+// L-curve can serve as cross-checks of the default. The discrepancy
+// principle (V ≈ N_y) is not offered: it trusts σ, which DLS rarely
+// allows.
+//
+// # Solver
+//
+// The active-set method of Lawson & Hanson (1974, ch. 23) on the normal
+// equations (G + α²R) x = A'Wy, as in the fast NNLS of Bro & De Jong
+// (1997): G and A'Wy are formed once per correlogram, and the Cholesky
+// factor of the passive-set matrix grows by one row per added variable and
+// shrinks by Givens rotations when one leaves, O(p²) each. Safeguards:
+//
+//   - a gradient entry w_j counts as positive only above its own rounding
+//     bound (m + N)·eps·(|g_j| + Σ_k G_jk|x_k| + α²Σ_k|R_jk||x_k|)
+//     (dot-product error bound, Higham 2002, §3.1); a threshold scaled by
+//     ||H||·||x|| instead stops too early on low-noise data;
+//   - a variable whose addition gives it a non-positive value is taken out
+//     again and not retried until the passive set changes (no cycling);
+//   - the step length x_j/(x_j − s_j) is taken only where x_j − s_j > 0;
+//   - at most Settings.MaxIter iterations (default 3·N) per strength; a
+//     solve that reaches it keeps its last feasible iterate, the row and
+//     Result have Status IterationLimit and a warning wraps
+//     ErrIterationLimit;
+//   - when the Frobenius condition estimate of G_PP + α²R_PP exceeds 1e9,
+//     or a pivot shows a numerically dependent column, the solve is
+//     repeated by Householder QR on the augmented matrix [W½A; αL], which
+//     never squares the condition number (small α and low noise).
+//
+// # Weights and data
+//
+// Data are g1 values (the caller converts g2 with the baseline and
+// coherence factor of a cumulant fit). sigma nil means equal weights; the
+// choice of α does not depend on a constant weight, and afterwards the
+// noise level is estimated as σ̂ = sqrt(V₁/(N_y − N_DF)) from the
+// unit-weight residuals V₁ of the chosen solution (Result.NoiseSigma;
+// ChiSquare, Alpha, GCV and the scan are then given for weights 1/σ̂²). An
+// entry σ_i = +Inf gives its point zero weight, which masks a lag without a
+// new grid. Values at or below zero, which noise produces in the tail, are
+// fitted with their weights like any other: nothing is clipped, dropped or
+// transformed. A caller taking g1 = sqrt((g2 − B)/β) should propagate
+// σ_g1 = σ_g2/(2β|g1|) (or use a signed square root near zero) rather than
+// weight the rectified tail equally.
+//
+// Invert refuses data that do not decay: the mean of the first tenth of
+// the points (at least 3) must exceed that of the last tenth by more than
+// three standard errors (from σ, or without σ from 1.4826·median|Δy|/√2).
+//
+// # Defaults and why
+//
+//   - Rates: 100 points over [0.2/τmax, 1/τmin]. Slower decays cannot be
+//     told from a baseline offset (exp(−0.2) ≈ 0.82 at the last lag). A
+//     decay faster than 1/τmin has fallen below exp(−1) at the first lag;
+//     such rates are fitted to the noise of the first few lags, and an
+//     amplitude ε there moves the mean rate Σx_jΓ_j/Σx_j by about ε·Γmax.
+//     A wider range also works but expect noise-level amplitude at its fast
+//     end; ErrGridEdge warns when more than 1 % of the amplitude sits in
+//     the three outermost bins at either end.
+//   - λ from 1e-10 (the plateau of the practically unregularised
+//     non-negative fit on typical grids: the F-test reference) to 1 (a
+//     featureless hump), 21 values, 4 bisection steps.
+//   - ProbReject at 0.5, as Provencher recommends; the free baseline on.
+//
+// Result.MeanRatePerS is the first moment over the whole grid; because of
+// the fast end described above it is not robust at realistic noise, and
+// PeaksMeanPerS over the peaks found by Peaks is the better comparison
+// with a cumulant mean rate. Peaks applies a documented rule that ignores
+// the numerical ripple of regularised solutions.
+//
+// Known behaviour: two peaks are resolved down to a rate ratio of about 2
+// at noise 1e-3 at best (an estimate from the eigenvalue analysis of
+// McWhirter & Pike 1978, from memory; the tests assert ratios of 4 and
+// more);
+// regularisation broadens peaks and can merge close ones; the amplitudes
+// need not sum to one (a sum far from one suggests a wrong coherence
+// factor or a decay faster than the first lag).
+//
+// # Sharing work
+//
+// A Grid holds everything that depends only on the lags and rates (kernel,
+// its supports, R, its trace, and on first use the unit-weight Gram
+// matrix, reused whenever all σ are equal) and is safe for concurrent use.
+// Cache shares grids across a batch keyed by a hash of the lags and
+// settings. Per call, Invert forms G = A'WA (skipped for equal σ), then
+// does O(p²) work per active-set step; scratch space comes from a pool
+// owned by the grid, so a call allocates little beyond its Result.
+//
+// # References
+//
+//   - S. W. Provencher, A constrained regularization method for inverting
+//     data represented by linear algebraic or integral equations, Comput.
+//     Phys. Commun. 27 (1982) 213–227.
+//   - S. W. Provencher, CONTIN: a general purpose constrained
+//     regularization program for inverting noisy linear algebraic and
+//     integral equations, Comput. Phys. Commun. 27 (1982) 229–242.
+//   - C. L. Lawson and R. J. Hanson, Solving Least Squares Problems,
+//     Prentice-Hall, 1974 (SIAM reprint 1995).
+//   - R. Bro and S. De Jong, A fast non-negativity-constrained least
+//     squares algorithm, J. Chemometrics 11 (1997) 393–401.
+//   - P. C. Hansen, Analysis of discrete ill-posed problems by means of
+//     the L-curve, SIAM Review 34 (1992) 561–580.
+//   - P. C. Hansen and D. P. O'Leary, The use of the L-curve in the
+//     regularization of discrete ill-posed problems, SIAM J. Sci. Comput.
+//     14 (1993) 1487–1503.
+//   - G. H. Golub, M. Heath and G. Wahba, Generalized cross-validation as a
+//     method for choosing a good ridge parameter, Technometrics 21 (1979)
+//     215–223.
+//   - J. G. McWhirter and E. R. Pike, On the numerical inversion of the
+//     Laplace transform and similar Fredholm integral equations of the
+//     first kind, J. Phys. A 11 (1978) 1729–1745.
+//   - N. J. Higham, Accuracy and Stability of Numerical Algorithms, 2nd
+//     ed., SIAM, 2002.
+package contin
