@@ -65,8 +65,8 @@ type Result struct {
 	Residuals []float64 // data − model at every lag
 	// Sigma is the standard uncertainty of each data point used as weight:
 	// the measurement's own, or the local estimate (SigmaEstimated).
-	Sigma []float64
-	Warnings  []error
+	Sigma    []float64
+	Warnings []error
 }
 
 // rangeShiftLimit is the relative change of Γ̄ under the range check above
@@ -98,7 +98,7 @@ func Fit(m *dls.Measurement, s *Settings) (*Result, error) {
 		// axis (short sample times carry shot noise, long ones average it
 		// away), so estimate σ locally from the first fit's residuals and fit
 		// again with those weights, starting from the first fit.
-		p.sigma = localSigma(res.Residuals, p.first, res.FitLast, 1e-6*p.amp)
+		p.sigma = dls.LocalSigma(res.Residuals, p.first, res.FitLast, 1e-6*p.amp)
 		p.start = res
 		res2, err := p.fit(s, p.last)
 		p.start = nil
@@ -398,35 +398,4 @@ func diffNoise(v []float64) float64 {
 		d[i] = math.Abs(v[i+1] - v[i])
 	}
 	return median(d) / (0.6745 * math.Sqrt2)
-}
-
-// localSigma estimates the standard deviation of each channel's noise from
-// residuals r of a fit over channels first..last: 1.4826 times the median
-// absolute residual in a window of ±6 channels (clipped to the fit range),
-// which for normal errors estimates σ (the MAD's consistency factor) and is
-// robust to the odd outlier. Channels outside the range take the value of
-// the nearest end. floor keeps weights finite on noise-free data.
-func localSigma(r []float64, first, last int, floor float64) []float64 {
-	const half = 6
-	out := make([]float64, len(r))
-	buf := make([]float64, 0, 2*half+1)
-	for i := first; i <= last; i++ {
-		buf = buf[:0]
-		for k := max(first, i-half); k <= min(last, i+half); k++ {
-			buf = append(buf, math.Abs(r[k]))
-		}
-		sort.Float64s(buf)
-		med := buf[len(buf)/2]
-		if len(buf)%2 == 0 {
-			med = (buf[len(buf)/2-1] + buf[len(buf)/2]) / 2
-		}
-		out[i] = math.Max(1.4826*med, floor)
-	}
-	for i := 0; i < first; i++ {
-		out[i] = out[first]
-	}
-	for i := last + 1; i < len(r); i++ {
-		out[i] = out[last]
-	}
-	return out
 }

@@ -45,7 +45,10 @@ func DefaultDistributionSettings() DistributionSettings {
 }
 
 // fieldCorrelation turns the correlogram into g1 with its uncertainty,
-// using the baseline B and coherence factor β of the cumulant fit. For g2
+// using the coherence factor β of the cumulant fit and the baseline B: the
+// far-channel mean when the correlation has reached it (measured, and free
+// of the cumulant model, which a broad or multimodal sample biases), else
+// the cumulant fit's. For g2
 // and g2m1 data u = (y − B)/β estimates g1², and
 //
 //	g1 = sign(u)·√|u|,   σ_g1 = σ_u / (2·√max(|u|, σ_u)),   σ_u = σ/β
@@ -55,15 +58,15 @@ func DefaultDistributionSettings() DistributionSettings {
 // a spurious slow component; the propagated σ gives those channels little
 // weight, and the floor at |u| = σ_u keeps it finite where u crosses zero.
 // For g1 data g1 = (y − B)/β and σ_g1 = σ/β.
-func fieldCorrelation(m *dls.Measurement, fit *cumulants.Result, first int) (g1, sigma []float64) {
+func fieldCorrelation(m *dls.Measurement, fit *cumulants.Result, first int, sigmaY []float64) (g1, sigma []float64) {
 	n := len(m.TauS) - first
 	g1 = make([]float64, n)
 	sigma = make([]float64, n)
-	beta := fit.Intercept
+	beta, base := inversionBaseline(fit)
 	for i := 0; i < n; i++ {
 		k := first + i
-		u := (m.Corr[k] - fit.Baseline) / beta
-		su := fit.Sigma[k] / beta
+		u := (m.Corr[k] - base) / beta
+		su := sigmaY[k] / beta
 		if m.Kind == dls.KindG1 {
 			g1[i], sigma[i] = u, su
 			continue
@@ -72,6 +75,32 @@ func fieldCorrelation(m *dls.Measurement, fit *cumulants.Result, first int) (g1,
 		sigma[i] = su / (2 * math.Sqrt(math.Max(math.Abs(u), su)))
 	}
 	return g1, sigma
+}
+
+// inversionBaseline returns the coherence factor and baseline that map the
+// correlogram to g1 (see fieldCorrelation).
+func inversionBaseline(fit *cumulants.Result) (beta, base float64) {
+	if fit.BaselineReached {
+		return fit.Intercept, fit.FarBaseline
+	}
+	return fit.Intercept, fit.Baseline
+}
+
+// correlogramResiduals maps the inversion's fitted g1 (over lags first..)
+// back to the correlogram's units and returns data − model at every lag
+// (0 before first).
+func correlogramResiduals(m *dls.Measurement, fit *cumulants.Result, first int, g1Fit []float64) []float64 {
+	beta, base := inversionBaseline(fit)
+	r := make([]float64, len(m.Corr))
+	for i, f := range g1Fit {
+		k := first + i
+		u := f
+		if m.Kind != dls.KindG1 {
+			u = f * math.Abs(f)
+		}
+		r[k] = m.Corr[k] - (base + beta*u)
+	}
+	return r
 }
 
 // particleIndex resolves particle_ri: a complex index ("1.59+0.0i"), a
@@ -120,11 +149,28 @@ func distribution(m *dls.Measurement, fit *cumulants.Result, st state, meta dls.
 	if err != nil {
 		return fail(err)
 	}
-	g1, sg := fieldCorrelation(m, fit, first)
+	g1, sg := fieldCorrelation(m, fit, first, fit.Sigma)
 	cs := s.Contin
+	// With the baseline reached, the measured far-channel baseline is
+	// subtracted exactly and a free constant column would only trade
+	// against the slowest component; it stays for data whose baseline the
+	// lag window did not reach.
+	cs.Baseline = cs.Baseline && !fit.BaselineReached
 	inv, err := contin.Invert(grid, g1, sg, &cs)
 	if err != nil {
 		return fail(err)
+	}
+	if fit.SigmaEstimated {
+		// The estimated σ came from the cumulant fit's residuals, which
+		// hold that model's misfit where the sample is broad or multimodal.
+		// The inversion's own model follows such samples: estimate σ again
+		// from its residuals (mapped back to the correlogram's units) and
+		// invert once more with those weights.
+		sigma := dls.LocalSigma(correlogramResiduals(m, fit, first, inv.Fitted), first, len(m.TauS)-1, 1e-6*fit.Intercept)
+		g1, sg = fieldCorrelation(m, fit, first, sigma)
+		if inv2, err := contin.Invert(grid, g1, sg, &cs); err == nil {
+			inv = inv2
+		}
 	}
 	d, err := dls.NewDistribution(dls.DistributionInput{
 		GammaPerS: inv.GammaPerS, Amplitude: inv.Amplitude, TempK: tK, ViscosityPaS: st.etaPaS,
