@@ -1,0 +1,75 @@
+package dls
+
+// Flag is a quality-control finding on a measurement or a sample: a stable
+// code (listed by `dlsbatch flags`) and a sentence saying what was seen.
+type Flag struct {
+	Code    string `json:"code"`
+	Message string `json:"message"`
+}
+
+// Sample aggregates the measurements of one sample (same sample name, and
+// lot when given) in a batch.
+type Sample struct {
+	Name    string `json:"sample"`
+	Lot     string `json:"lot"`
+	Product string `json:"product"`
+	// Role is "sample", "reference" or "blank".
+	Role  string `json:"role"`
+	Group string `json:"group"`
+
+	// Runs indexes the sample's measurements in the batch's result list
+	// (results.csv order); Used those that enter the statistics.
+	Runs []int `json:"runs"`
+	Used []int `json:"used"`
+	// Outliers indexes runs flagged by the outlier rule, and
+	// OutliersExcluded says whether they were left out of the statistics.
+	Outliers         []int `json:"outliers"`
+	OutliersExcluded bool  `json:"outliers_excluded"`
+
+	NRuns int `json:"n_runs"`
+	NUsed int `json:"n_used"`
+
+	ZAvgMeanNm float64 `json:"z_avg_mean_nm"`
+	ZAvgSDNm   float64 `json:"z_avg_sd_nm"`
+	ZAvgRSDPct float64 `json:"z_avg_rsd_pct"`
+	PDIMean    float64 `json:"pdi_mean"`
+	PDISD      float64 `json:"pdi_sd"`
+	PDIRSDPct  float64 `json:"pdi_rsd_pct"`
+	// Peak1MeanNm is the mean over the used runs of the main intensity
+	// peak's mean diameter (0 when no run has a distribution).
+	Peak1MeanNm float64 `json:"peak1_mean_nm"`
+	D90MeanNm   float64 `json:"d90_mean_nm"`
+
+	TemperaturesC []float64 `json:"temperatures_c"`
+
+	// Flags lists the QC findings of the sample and of its runs.
+	Flags []Flag `json:"flags"`
+
+	// Verdict is the outcome against the product's specification; nil
+	// when no specification applies.
+	Verdict *Verdict `json:"verdict,omitempty"`
+}
+
+// Verdict outcomes.
+const (
+	VerdictPass    = "pass"
+	VerdictFail    = "fail"
+	VerdictInvalid = "invalid"
+)
+
+// Verdict is a sample's outcome against its specification.
+type Verdict struct {
+	Outcome string `json:"outcome"`
+	// Reason says why in words: the failed limits, or why the batch is
+	// invalid (a failed system suitability test).
+	Reason string  `json:"reason"`
+	Checks []Check `json:"checks"`
+}
+
+// Check is one limit of a specification evaluated on a sample.
+type Check struct {
+	Quantity string  `json:"quantity"` // e.g. "z_avg_nm", "pdi", "d90_nm"
+	Limit    string  `json:"limit"`    // the limit as written, e.g. "90 ≤ x ≤ 110"
+	Value    float64 `json:"value"`
+	Pass     bool    `json:"pass"`
+}
