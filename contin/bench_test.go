@@ -3,7 +3,10 @@ package contin
 import (
 	"fmt"
 	"math"
+	"path/filepath"
 	"testing"
+
+	"gonum.org/v1/gonum/floats"
 )
 
 // benchProblem is a correlogram on a multi-tau grid: one log-normal
@@ -52,6 +55,65 @@ func BenchmarkInvert(b *testing.B) {
 					}
 				}
 			})
+		}
+	}
+}
+
+// benchFile is the input of testdata/contin/bench_scipy.py: the benchmark
+// correlograms with the default grid and scan, so that scipy can be timed
+// on the same matrices and strengths.
+type benchFile struct {
+	Name             string    `json:"name"`
+	TauS             []float64 `json:"tau_s"`
+	Y                []float64 `json:"y"`
+	Sigma            []float64 `json:"sigma"`
+	NGamma           int       `json:"n_gamma"`
+	GammaMinPerS     float64   `json:"gamma_min_per_s"`
+	GammaMaxPerS     float64   `json:"gamma_max_per_s"`
+	GammaPerS        []float64 `json:"gamma_per_s"`
+	Baseline         bool      `json:"baseline"`
+	Lambdas          []float64 `json:"lambdas"`
+	Refine           int       `json:"refine"`
+	TargetProbReject float64   `json:"target_prob_reject"`
+	GoChosenLambda   float64   `json:"go_chosen_lambda"`
+}
+
+// TestBenchProblems keeps testdata/contin/bench_m*.json in step with
+// benchProblem and the default settings (rewritten with -update).
+func TestBenchProblems(t *testing.T) {
+	for _, m := range []int{152, 200} {
+		tau, y, sigma := benchProblem(m)
+		g, err := NewGrid(tau, nil)
+		if err != nil {
+			t.Fatal(err)
+		}
+		r, err := Invert(g, y, sigma, nil)
+		if err != nil {
+			t.Fatal(err)
+		}
+		s := DefaultSettings()
+		var lams []float64
+		for _, row := range r.Scan {
+			if !row.Refined {
+				lams = append(lams, row.Lambda)
+			}
+		}
+		gs := g.Settings()
+		bf := benchFile{
+			Name: fmt.Sprintf("bench_m%d", len(tau)), TauS: tau, Y: y, Sigma: sigma,
+			NGamma: gs.NGamma, GammaMinPerS: gs.GammaMinPerS, GammaMaxPerS: gs.GammaMaxPerS, GammaPerS: g.GammaPerS(),
+			Baseline: s.Baseline, Lambdas: lams, Refine: s.Refine, TargetProbReject: s.TargetProbReject,
+			GoChosenLambda: r.Lambda,
+		}
+		path := filepath.Join(refDir, bf.Name+".json")
+		if *update {
+			writeJSON(t, path, bf)
+			continue
+		}
+		var onDisk benchFile
+		readJSON(t, path, &onDisk)
+		if !floats.Equal(onDisk.Y, bf.Y) || !floats.Equal(onDisk.Lambdas, bf.Lambdas) || onDisk.GoChosenLambda != bf.GoChosenLambda {
+			t.Errorf("%s differs from the generator (run with -update)", path)
 		}
 	}
 }

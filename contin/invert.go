@@ -190,6 +190,7 @@ type problem struct {
 	nsol       int
 	totalIters int
 	qrSolves   int
+	qrReady    bool // ws.qr holds this problem's data rows
 }
 
 // Invert computes the regularised non-negative inverse Laplace transform of
@@ -389,7 +390,11 @@ func (p *problem) solveAt(lambda, a2 float64, refined bool) int {
 		if ws.qr == nil {
 			ws.qr = newQRSolver(g.n+1, g.m+g.n+2, ne)
 		}
-		ws.qr.setup(g, ws.sw, p.y, math.Sqrt(a2), p.N)
+		if !p.qrReady {
+			ws.qr.setup(g, ws.sw, p.y, p.N)
+			p.qrReady = true
+		}
+		ws.qr.setAlpha(math.Sqrt(a2))
 		as.refactor(ws.qr)
 		it, stq := as.run(ws.qr, p.maxIter)
 		iters += it

@@ -2,6 +2,8 @@ package contin
 
 import (
 	"math"
+
+	"gonum.org/v1/gonum/floats"
 )
 
 // This file holds the active-set method of Lawson & Hanson (1974, ch. 23)
@@ -328,39 +330,38 @@ func (e *neSolver) solve(pas []int, s []float64) {
 // ill-conditioned directions.
 func (e *neSolver) grad(pas []int, x, w, tol []float64) {
 	N, S := e.N, e.S
-	copy(w[:N], e.g[:N])
-	for j := 0; j < N; j++ {
-		tol[j] = math.Abs(e.g[j])
+	w, tol = w[:N], tol[:N]
+	copy(w, e.g[:N])
+	for j, v := range e.g[:N] {
+		tol[j] = math.Abs(v)
 	}
 	for _, k := range pas {
 		xk := x[k]
 		if xk == 0 {
 			continue
 		}
-		ak := math.Abs(xk)
 		gk := e.G[k*S : k*S+N]
-		for j, v := range gk {
-			w[j] -= xk * v
-			tol[j] += ak * v
-		}
+		floats.AddScaled(w, -xk, gk)
+		floats.AddScaled(tol, math.Abs(xk), gk)
 	}
-	if e.a2 != 0 {
+	if a2 := e.a2; a2 != 0 {
 		n, rb := e.n, e.rband
+		x := x[:n]
 		for j := 0; j < n; j++ {
 			var v, u float64
-			for d := -2; d <= 2; d++ {
-				if k := j + d; k >= 0 && k < n {
-					r := rb[5*j+d+2]
-					v += r * x[k]
-					u += math.Abs(r * x[k])
-				}
+			b := rb[5*j : 5*j+5]
+			for d := max(-2, -j); d <= min(2, n-1-j); d++ {
+				r := b[d+2] * x[j+d]
+				v += r
+				u += math.Abs(r)
 			}
-			w[j] -= e.a2 * v
-			tol[j] += e.a2 * u
+			w[j] -= a2 * v
+			tol[j] += a2 * u
 		}
 	}
-	for j := 0; j < N; j++ {
-		tol[j] *= e.tolFactor
+	f := e.tolFactor
+	for j := range tol {
+		tol[j] *= f
 	}
 }
 

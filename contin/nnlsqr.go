@@ -25,6 +25,8 @@ type qrSolver struct {
 	colNorm []float64
 	depTol  float64
 	ne      *neSolver // same problem on the normal equations, for grad and tol
+	g       *Grid
+	alpha   float64 // α of the regularisation rows now in M
 }
 
 func newQRSolver(maxN, maxRows int, ne *neSolver) *qrSolver {
@@ -42,12 +44,14 @@ func newQRSolver(maxN, maxRows int, ne *neSolver) *qrSolver {
 	}
 }
 
-// setup fills the augmented matrix for the grid g, square-root weights sw,
-// data y and regularisation α; N is n (no baseline) or n+1.
-func (q *qrSolver) setup(g *Grid, sw, y []float64, alpha float64, N int) {
+// setup fills the data rows of the augmented matrix for the grid g,
+// square-root weights sw and data y, with N = n (no baseline) or n+1
+// unknowns; setAlpha then fills the regularisation rows. The data rows are
+// the same for every α of one inversion, so setup runs once per Invert.
+func (q *qrSolver) setup(g *Grid, sw, y []float64, N int) {
 	m, n := g.m, g.n
 	rows := m + n + 2
-	q.N, q.rows = N, rows
+	q.N, q.rows, q.g = N, rows, g
 	for j := 0; j < N; j++ {
 		col := q.M[j*rows : (j+1)*rows]
 		a := g.at[j*m : (j+1)*m]
@@ -58,10 +62,6 @@ func (q *qrSolver) setup(g *Grid, sw, y []float64, alpha float64, N int) {
 		for i := range reg {
 			reg[i] = 0
 		}
-		if j < n {
-			c := alpha / g.w[j]
-			reg[j], reg[j+1], reg[j+2] = c, -2*c, c
-		}
 	}
 	for i := 0; i < m; i++ {
 		q.b[i] = sw[i] * y[i]
@@ -69,8 +69,25 @@ func (q *qrSolver) setup(g *Grid, sw, y []float64, alpha float64, N int) {
 	for i := m; i < rows; i++ {
 		q.b[i] = 0
 	}
-	for j := 0; j < N; j++ {
-		q.colNorm[j] = norm2(q.M[j*rows : (j+1)*rows])
+	q.alpha = math.NaN()
+}
+
+// setAlpha fills the regularisation rows α·L (column j holds
+// α·(1, −2, 1)/w_j at rows j, j+1, j+2 of the block) and the column norms
+// ||M_j|| = sqrt(G_jj + α²R_jj), then clears the factor.
+func (q *qrSolver) setAlpha(alpha float64) {
+	g, m, rows := q.g, q.g.m, q.rows
+	if alpha != q.alpha {
+		for j := 0; j < g.n && j < q.N; j++ {
+			reg := q.M[j*rows+m : (j+1)*rows]
+			c := alpha / g.w[j]
+			reg[j], reg[j+1], reg[j+2] = c, -2*c, c
+		}
+		q.alpha = alpha
+	}
+	a2 := alpha * alpha
+	for j := 0; j < q.N; j++ {
+		q.colNorm[j] = math.Sqrt(q.ne.G[j*q.ne.S+j] + a2*g.rAt(j, j))
 	}
 	q.reset()
 }
