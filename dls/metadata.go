@@ -50,6 +50,10 @@ const (
 	KeyVolumeFraction  = "volume_fraction"
 	KeyCountRateKcps   = "count_rate_kcps"
 	KeyDurationS       = "duration_s"
+	KeyLot             = "lot"
+	KeyProduct         = "product"
+	KeyRole            = "role"
+	KeyGroup           = "group"
 )
 
 // MetadataKeys lists every key of the input contract, in the order used for
@@ -58,6 +62,7 @@ var MetadataKeys = []string{
 	KeySample, KeyRun, KeyTemperatureC, KeyWavelengthNm, KeyAngleDeg, KeySolvent,
 	KeyViscosityMPaS, KeyRefractiveIndex, KeyParticleRI, KeyConcentration,
 	KeyParticleDensity, KeyVolumeFraction, KeyCountRateKcps, KeyDurationS,
+	KeyLot, KeyProduct, KeyRole, KeyGroup,
 }
 
 // IsMetadataKey reports whether key belongs to the input contract.

@@ -38,13 +38,16 @@
 //
 //	sample, run, temperature_c, wavelength_nm, angle_deg, solvent,
 //	viscosity_mpas, refractive_index, particle_ri, concentration_mg_ml,
-//	particle_density_g_cm3, volume_fraction, count_rate_kcps, duration_s
+//	particle_density_g_cm3, volume_fraction, count_rate_kcps, duration_s,
+//	lot, product, role, group
 //
 // Each value goes into Measurement.Meta as a dls.Param with Origin
 // dls.OriginFile and Where "file:line". The rules:
 //
-//   - sample, run and solvent take any text. particle_ri takes a complex
-//     number written as 1.59+0.0i (a real number such as 1.59 is accepted).
+//   - sample, run, solvent, lot, product, role and group take any text.
+//     particle_ri takes a complex number written as 1.59+0.0i (a real
+//     number such as 1.59 is accepted) or the name of a material of the Mie
+//     table (polystyrene, Au, …), evaluated at the measurement's wavelength.
 //     Every other key takes a finite number with a decimal point (25.0, 633,
 //     1e-3). A value that breaks its rule makes the file fail with an error
 //     wrapping dls.ErrBadMetadata at that line; a unit or range check is

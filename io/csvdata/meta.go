@@ -41,6 +41,24 @@ func parseMetaLine(t string) (key, value string, ok bool) {
 	return strings.ToLower(key), strings.TrimSpace(body[c+1:]), true
 }
 
+// isMaterialName reports a particle_ri value that names a material (e.g.
+// "polystyrene", "SiO2_fused"): a letter, then letters, digits, '_', '-'
+// or spaces.
+func isMaterialName(v string) bool {
+	if v == "" || !(v[0] >= 'a' && v[0] <= 'z' || v[0] >= 'A' && v[0] <= 'Z') {
+		return false
+	}
+	for i := 0; i < len(v); i++ {
+		c := v[i]
+		switch {
+		case c >= 'a' && c <= 'z', c >= 'A' && c <= 'Z', c >= '0' && c <= '9', c == '_', c == '-', c == ' ':
+		default:
+			return false
+		}
+	}
+	return true
+}
+
 func validKey(k string) bool {
 	if k == "" {
 		return false
@@ -63,6 +81,9 @@ func checkMetaValue(key, v string) error {
 	switch {
 	case key == dls.KeyParticleRI:
 		c, err := strconv.ParseComplex(v, 128)
+		if err != nil && isMaterialName(v) {
+			return nil // a material of the Mie table, resolved by the analysis
+		}
 		if err != nil {
 			return fmt.Errorf("%s %q is not a complex number such as 1.59+0.0i: %w: %w", key, v, dls.ErrBadMetadata, err)
 		}

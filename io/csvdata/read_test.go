@@ -498,3 +498,20 @@ func TestFileErrorFailsEveryRun(t *testing.T) {
 		})
 	}
 }
+
+func TestParticleRIMaterialName(t *testing.T) {
+	// A material name is kept for the analysis to resolve; a malformed
+	// number is still an error.
+	ten := ""
+	for i := 1; i <= 10; i++ {
+		ten += strconv.Itoa(i) + "e-6," + strconv.FormatFloat(1+0.9*math.Exp(-float64(i)*0.1), 'f', 4, 64) + "\n"
+	}
+	es := csvdata.Read(strings.NewReader("# particle_ri: polystyrene\ntau_s,g2\n"+ten), "m.csv", nil)
+	if es[0].Err != nil || es[0].M.Meta.String(dls.KeyParticleRI) != "polystyrene" {
+		t.Errorf("material name: %+v", es[0])
+	}
+	es = csvdata.Read(strings.NewReader("# particle_ri: 1.59+i0.01\ntau_s,g2\n"+ten), "m.csv", nil)
+	if es[0].Err == nil {
+		t.Error("malformed complex index accepted")
+	}
+}
