@@ -117,3 +117,20 @@ func TestBenchProblems(t *testing.T) {
 		}
 	}
 }
+
+// BenchmarkNewGrid times building a grid (kernel, supports, regulariser)
+// and its unit-weight Gram matrix, the work a Cache saves per lag grid.
+func BenchmarkNewGrid(b *testing.B) {
+	for _, m := range []int{152, 200} {
+		tau, _, _ := benchProblem(m)
+		b.Run(fmt.Sprintf("m=%d", len(tau)), func(b *testing.B) {
+			for b.Loop() {
+				g, err := NewGrid(tau, nil)
+				if err != nil {
+					b.Fatal(err)
+				}
+				g.unitGram()
+			}
+		})
+	}
+}

@@ -64,8 +64,6 @@ type ScanRow struct {
 	// Refined marks rows added by the bisection of ProbReject.
 	Refined bool
 	Status  Status
-
-	cond float64
 }
 
 // Picks holds, for each criterion, the index into Result.Scan of the row
@@ -373,18 +371,15 @@ func (p *problem) a2Of(lambda float64) float64 { return lambda * p.trG / p.g.trR
 func (p *problem) solveAt(lambda, a2 float64, refined bool) int {
 	g, ws, as := p.g, p.ws, p.ws.as
 	row := ScanRow{Lambda: lambda, Alpha: math.Sqrt(a2), Refined: refined}
-	var lin linSolver
 	ne := &ws.ne
 	ne.a2 = a2
 	as.refactor(ne)
 	depBefore := as.depHit
 	iters, st := as.run(ne, p.maxIter)
-	lin = ne
 	useQR := as.depHit || depBefore
 	if !useQR {
 		lowerInverse(ne.C, ne.N, len(as.pas), ws.inv)
-		row.cond = ne.condF(as.pas, ws.inv)
-		useQR = !(row.cond < neCondMax)
+		useQR = !(ne.condF(as.pas, ws.inv) < neCondMax)
 	}
 	if useQR {
 		if ws.qr == nil {
@@ -399,10 +394,9 @@ func (p *problem) solveAt(lambda, a2 float64, refined bool) int {
 		it, stq := as.run(ws.qr, p.maxIter)
 		iters += it
 		st = stq
-		lin = ws.qr
 		row.QR = true
 		p.qrSolves++
-		C, cs := lin.lower()
+		C, cs := ws.qr.lower()
 		lowerInverse(C, cs, len(as.pas), ws.inv)
 	}
 	row.Iterations = iters
@@ -431,7 +425,6 @@ func (p *problem) solveAt(lambda, a2 float64, refined bool) int {
 	row.ChiSquare = V
 	row.NormLx = g.normLx(x)
 	row.Passive = len(as.pas)
-	_ = lin
 	row.DegreesOfFreedom = passiveDF(ws.inv, as.pas, as.pos, g.n, g.rband, a2)
 
 	k := p.nsol
