@@ -52,7 +52,9 @@ type Peak struct {
 //
 // Negative or non-finite amplitudes count as zero. Peaks are returned in
 // increasing Γ; nil when the spectrum is zero. It panics if the lengths
-// differ.
+// differ. The rule needs only an ascending, positive abscissa, so it
+// applies equally to a spectrum mapped onto ascending diameters; the
+// fields named …PerS then carry the abscissa's unit.
 func Peaks(gammaPerS, amplitude []float64, s *PeakSettings) []Peak {
 	if len(gammaPerS) != len(amplitude) {
 		panic("contin: Peaks: lengths of rates and amplitudes differ")
