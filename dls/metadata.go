@@ -65,6 +65,16 @@ var MetadataKeys = []string{
 	KeyLot, KeyProduct, KeyRole, KeyGroup,
 }
 
+// IsNumericKey reports whether the value of key must be a finite number.
+func IsNumericKey(key string) bool {
+	switch key {
+	case KeyTemperatureC, KeyWavelengthNm, KeyAngleDeg, KeyViscosityMPaS, KeyRefractiveIndex, KeyConcentration,
+		KeyParticleDensity, KeyVolumeFraction, KeyCountRateKcps, KeyDurationS:
+		return true
+	}
+	return false
+}
+
 // IsMetadataKey reports whether key belongs to the input contract.
 func IsMetadataKey(key string) bool {
 	for _, k := range MetadataKeys {

@@ -196,9 +196,13 @@ func distribution(m *dls.Measurement, fit *cumulants.Result, st state, meta dls.
 	r.Alpha, r.Lambda = inv.Alpha, inv.Lambda
 	r.DegreesOfFreedom = inv.DegreesOfFreedom
 	r.ProbReject = inv.ProbReject
-	r.DistMeanRatePerS = inv.MeanRatePerS
-	if inv.MeanRatePerS > 0 {
-		r.DistZAvgNm = dls.DiameterFromDiffusion(tK, st.etaPaS, dls.DiffusionFromRate(inv.MeanRatePerS, st.optics.Q())) * 1e9
+	// The mean rate over the peaks leaves out the scattered amplitude that
+	// noise at the first lags leaves near the fast end of the grid, which
+	// would otherwise add about x·Γ_max to the mean.
+	rp := contin.Peaks(inv.GammaPerS, inv.Amplitude, &s.Peaks)
+	r.DistMeanRatePerS = contin.PeaksMeanPerS(rp)
+	if r.DistMeanRatePerS > 0 {
+		r.DistZAvgNm = dls.DiameterFromDiffusion(tK, st.etaPaS, dls.DiffusionFromRate(r.DistMeanRatePerS, st.optics.Q())) * 1e9
 	}
 	r.Intensity = summarise(d, d.Intensity, &s.Peaks)
 	r.Volume = summarise(d, d.Volume, &s.Peaks)

@@ -54,8 +54,8 @@ func TestDistributionMonomodal(t *testing.T) {
 	// An intensity-weighted lognormal of median 100 nm is, per log bin, a
 	// Gaussian in ln d with its maximum at the median: the intensity peak's
 	// mode must be 100 nm within 5 %, and there must be one peak. The
-	// distribution's mean rate Σx_jΓ_j/Σx_j estimates the same intensity
-	// mean rate as the first cumulant: within 2 %.
+	// distribution's mean rate Σx_jΓ_j/Σx_j over its peaks estimates the
+	// same intensity mean rate as the first cumulant: within 2 %.
 	s := DefaultSettings()
 	for seed := uint64(1); seed <= 3; seed++ {
 		r := Analyze(simulated(t, "lognormal(100nm,0.15,intensity)", seed), &s)

@@ -10,20 +10,6 @@ import (
 	"dlsbatch/dls"
 )
 
-// numericKeys are the metadata keys whose value must be a finite number.
-var numericKeys = map[string]bool{
-	dls.KeyTemperatureC:    true,
-	dls.KeyWavelengthNm:    true,
-	dls.KeyAngleDeg:        true,
-	dls.KeyViscosityMPaS:   true,
-	dls.KeyRefractiveIndex: true,
-	dls.KeyConcentration:   true,
-	dls.KeyParticleDensity: true,
-	dls.KeyVolumeFraction:  true,
-	dls.KeyCountRateKcps:   true,
-	dls.KeyDurationS:       true,
-}
-
 // parseMetaLine splits a comment line (starting with '#') into key and
 // value. ok is false for a line that is a plain comment: no colon, or text
 // before the first colon that is not a key (a key is one or more ASCII
@@ -74,10 +60,10 @@ func validKey(k string) bool {
 	return true
 }
 
-// checkMetaValue checks the syntax of a value of a known key: a finite
+// CheckMetaValue checks the syntax of a value of a known key: a finite
 // number for the numeric keys, a finite complex number such as 1.59+0.0i (or
 // a real number) for particle_ri, any text for sample, run and solvent.
-func checkMetaValue(key, v string) error {
+func CheckMetaValue(key, v string) error {
 	switch {
 	case key == dls.KeyParticleRI:
 		c, err := strconv.ParseComplex(v, 128)
@@ -90,7 +76,7 @@ func checkMetaValue(key, v string) error {
 		if cmplx.IsNaN(c) || cmplx.IsInf(c) {
 			return fmt.Errorf("%s %q: %w: %w", key, v, dls.ErrBadMetadata, dls.ErrNonFinite)
 		}
-	case numericKeys[key]:
+	case dls.IsNumericKey(key):
 		f, err := strconv.ParseFloat(v, 64)
 		if err != nil {
 			hint := ""

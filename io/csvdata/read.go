@@ -189,7 +189,7 @@ func (p *parser) metaLineAt(t string) {
 	if value == "" {
 		return // an empty value gives no value
 	}
-	if err := checkMetaValue(key, value); err != nil {
+	if err := CheckMetaValue(key, value); err != nil {
 		p.setFileErr(p.posErr(p.line, 0, err))
 		return
 	}

@@ -1,0 +1,192 @@
+// Package sheet reads sample sheets: CSV tables that set metadata per
+// measurement file for a batch.
+//
+// A sample sheet has one header row and one row per file (or group of
+// files). Columns:
+//
+//	file      required  a file name ("03_lot7.csv"), a path relative to the
+//	                    input folder ("night2/03_lot7.csv"), or a glob
+//	                    ("*_lot7*.csv", "night2/*.csv")
+//	run       optional  a run label: the row then applies to that run only
+//	any metadata key    sample, temperature_c, wavelength_nm, angle_deg,
+//	                    solvent, viscosity_mpas, refractive_index,
+//	                    particle_ri, concentration_mg_ml,
+//	                    particle_density_g_cm3, volume_fraction,
+//	                    count_rate_kcps, duration_s, lot, product, role,
+//	                    group
+//
+// Empty cells set nothing. Unknown columns are an error (a misspelt column
+// would otherwise be silently ignored), and so is a value that breaks its
+// key's rule; every error names file, line and column. Lines starting with
+// '#' are comments.
+//
+// Every row that matches a measurement applies, in sheet order: a later
+// row overrides an earlier one, so a glob row can set what a group shares
+// and a row for one file what it alone needs. Sheet values rank below
+// command-line flags and above the file's own metadata. The sheet's values
+// are never used as paths: patterns are only compared with the names of
+// files found under the inputs.
+package sheet
+
+import (
+	"errors"
+	"fmt"
+	"io"
+	"os"
+	"path"
+	"path/filepath"
+	"strings"
+
+	"dlsbatch/dls"
+	"dlsbatch/io/csvdata"
+	"dlsbatch/io/csvtable"
+)
+
+// Roles a sample-sheet row may give.
+var Roles = []string{"sample", "reference", "blank"}
+
+// Row is one row of a sample sheet.
+type Row struct {
+	Line    int
+	Pattern string
+	Run     string
+	Params  []dls.Param // Origin dls.OriginSheet, Where "sheet.csv:line:column"
+}
+
+// Sheet is a parsed sample sheet.
+type Sheet struct {
+	File string
+	Rows []Row
+}
+
+// Columns lists the columns a sheet may have.
+func Columns() []string {
+	c := []string{"file"}
+	for _, k := range dls.MetadataKeys {
+		c = append(c, k)
+	}
+	return c
+}
+
+// ReadFile parses the sample sheet at path.
+func ReadFile(p string) (*Sheet, error) {
+	f, err := os.Open(p)
+	if err != nil {
+		return nil, fmt.Errorf("sample sheet: %w", err)
+	}
+	defer f.Close()
+	return Parse(f, p)
+}
+
+// Parse reads a sample sheet from r; name identifies it in errors and
+// provenance.
+func Parse(r io.Reader, name string) (*Sheet, error) {
+	t, err := csvtable.Read(r, name)
+	if err != nil {
+		return nil, err
+	}
+	if err := t.CheckHeader(Columns(), []string{"file"}); err != nil {
+		return nil, err
+	}
+	fileCol, runCol := t.Col("file"), t.Col(dls.KeyRun)
+	s := &Sheet{File: name}
+	for i, rec := range t.Rows {
+		row := Row{Line: t.Line(i), Pattern: filepath.ToSlash(rec[fileCol])}
+		if row.Pattern == "" {
+			return nil, t.Err(i, fileCol, errors.New("empty file pattern"))
+		}
+		if _, err := path.Match(row.Pattern, ""); err != nil {
+			return nil, t.Err(i, fileCol, fmt.Errorf("pattern %q: %w", row.Pattern, err))
+		}
+		if runCol >= 0 {
+			row.Run = rec[runCol]
+		}
+		for j, v := range rec {
+			key := t.Header[j]
+			if j == fileCol || j == runCol || v == "" {
+				continue
+			}
+			if err := csvdata.CheckMetaValue(key, v); err != nil {
+				return nil, t.Err(i, j, err)
+			}
+			if key == dls.KeyRole && !validRole(v) {
+				return nil, t.Err(i, j, fmt.Errorf("role %q: want one of %s: %w", v, strings.Join(Roles, ", "), dls.ErrBadMetadata))
+			}
+			p := t.Pos[i+1][j]
+			row.Params = append(row.Params, dls.Param{Key: key, Value: v, Origin: dls.OriginSheet,
+				Where: fmt.Sprintf("%s:%d:%d", name, p[0], p[1])})
+		}
+		s.Rows = append(s.Rows, row)
+	}
+	return s, nil
+}
+
+func validRole(v string) bool {
+	for _, r := range Roles {
+		if strings.EqualFold(v, r) {
+			return true
+		}
+	}
+	return false
+}
+
+// matches reports whether pattern names a file whose path relative to its
+// input folder is rel (slash-separated): the pattern is compared with the
+// relative path and, when it has no '/', with the base name.
+func matches(pattern, rel string) bool {
+	if ok, _ := path.Match(pattern, rel); ok {
+		return true
+	}
+	if !strings.Contains(pattern, "/") {
+		ok, _ := path.Match(pattern, path.Base(rel))
+		return ok
+	}
+	return false
+}
+
+// Apply sets, with sheet precedence, the values of every row matching the
+// measurement (rel is its path relative to its input folder) and returns
+// the indices of the rows applied.
+func (s *Sheet) Apply(m *dls.Measurement, rel string) []int {
+	rel = filepath.ToSlash(rel)
+	var used []int
+	for i, row := range s.Rows {
+		if !matches(row.Pattern, rel) || (row.Run != "" && row.Run != m.Run) {
+			continue
+		}
+		for _, p := range row.Params {
+			m.Meta.Set(p)
+		}
+		used = append(used, i)
+	}
+	return used
+}
+
+// Unmatched lists the rows that match none of the files (relative paths)
+// given: each is a mistake worth reporting.
+func (s *Sheet) Unmatched(rels []string) []Row {
+	var out []Row
+	for _, row := range s.Rows {
+		hit := false
+		for _, r := range rels {
+			if matches(row.Pattern, filepath.ToSlash(r)) {
+				hit = true
+				break
+			}
+		}
+		if !hit {
+			out = append(out, row)
+		}
+	}
+	return out
+}
+
+// Matches reports whether some row applies to the file rel.
+func (s *Sheet) Matches(rel string) bool {
+	for _, row := range s.Rows {
+		if matches(row.Pattern, filepath.ToSlash(rel)) {
+			return true
+		}
+	}
+	return false
+}

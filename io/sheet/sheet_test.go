@@ -1,0 +1,150 @@
+package sheet
+
+import (
+	"errors"
+	"strings"
+	"testing"
+
+	"dlsbatch/dls"
+)
+
+const good = `# overnight queue, bench 2
+file,sample,lot,product,role,temperature_c,particle_ri
+*.csv,,,,sample,25,
+01_ref*.csv,PS100 reference,RM-7,latex-100,reference,,polystyrene
+05_lot7.csv,Lot 7,L7,NP-gold,,37,0.18+3.43i
+night2/*.csv,,,,,20,
+`
+
+func TestParseAndApply(t *testing.T) {
+	s, err := Parse(strings.NewReader(good), "sheet.csv")
+	if err != nil {
+		t.Fatal(err)
+	}
+	if len(s.Rows) != 4 || s.Rows[0].Line != 3 {
+		t.Fatalf("rows %+v", s.Rows)
+	}
+	apply := func(rel string) *dls.Measurement {
+		m := &dls.Measurement{File: rel}
+		m.Meta.Set(dls.Param{Key: dls.KeyTemperatureC, Value: "30", Origin: dls.OriginFile, Where: rel + ":2"})
+		s.Apply(m, rel)
+		return m
+	}
+	// The glob row sets 25 °C over the file's 30 (sheet outranks file);
+	// the specific row overrides the glob row (later rows win).
+	m := apply("05_lot7.csv")
+	if p, _ := m.Meta.Get(dls.KeyTemperatureC); p.Value != "37" || p.Origin != dls.OriginSheet || p.Where != "sheet.csv:5:31" {
+		t.Errorf("temperature %+v", p)
+	}
+	if m.Meta.String(dls.KeyLot) != "L7" || m.Meta.String(dls.KeyRole) != "sample" {
+		t.Errorf("lot %q role %q", m.Meta.String(dls.KeyLot), m.Meta.String(dls.KeyRole))
+	}
+	m = apply("01_ref-start.csv")
+	if m.Meta.String(dls.KeyRole) != "reference" || m.Meta.String(dls.KeySample) != "PS100 reference" {
+		t.Errorf("reference row not applied: %+v", m.Meta.Params())
+	}
+	// A pattern with a folder matches the relative path only.
+	if m := apply("night2/x.csv"); m.Meta.String(dls.KeyTemperatureC) != "20" {
+		t.Errorf("night2 row not applied: %s", m.Meta.String(dls.KeyTemperatureC))
+	}
+	if m := apply("night3/x.csv"); m.Meta.String(dls.KeyTemperatureC) != "25" {
+		t.Errorf("night2 row applied to night3: %s", m.Meta.String(dls.KeyTemperatureC))
+	}
+	un := s.Unmatched([]string{"01_ref-start.csv", "05_lot7.csv"})
+	if len(un) != 1 || un[0].Pattern != "night2/*.csv" {
+		t.Errorf("unmatched %+v, want the night2 row", un)
+	}
+}
+
+func TestRunRows(t *testing.T) {
+	s, err := Parse(strings.NewReader("file,run,concentration_mg_ml\nd.csv,r1,1.0\nd.csv,r2,0.5\n"), "s.csv")
+	if err != nil {
+		t.Fatal(err)
+	}
+	for run, want := range map[string]string{"r1": "1.0", "r2": "0.5", "r3": ""} {
+		m := &dls.Measurement{File: "d.csv", Run: run}
+		s.Apply(m, "d.csv")
+		if got := m.Meta.String(dls.KeyConcentration); got != want {
+			t.Errorf("run %s: concentration %q, want %q", run, got, want)
+		}
+	}
+}
+
+func TestParseErrors(t *testing.T) {
+	cases := []struct {
+		name, in   string
+		line, col  int
+		want       error
+		substrings []string
+	}{
+		{"unknown column", "file,sampel\na.csv,x\n", 1, 6, dls.ErrBadHeader, []string{`"sampel"`, "known:"}},
+		{"missing file column", "sample\nx\n", 1, 0, dls.ErrBadHeader, []string{`"file"`}},
+		{"duplicate column", "file,lot,lot\na,1,2\n", 1, 10, dls.ErrBadHeader, []string{"twice"}},
+		{"non-numeric temperature", "file,temperature_c\na.csv,25\nb.csv,warm\n", 3, 7, dls.ErrBadMetadata, []string{"temperature_c", "warm"}},
+		{"bad role", "file,role\na.csv,standard\n", 2, 7, dls.ErrBadMetadata, []string{"standard"}},
+		{"bad pattern", "file\n[a.csv\n", 2, 1, nil, []string{"pattern"}},
+		{"ragged row", "file,lot\na.csv,1,2\n", 2, 1, dls.ErrBadHeader, []string{"3 cells"}},
+		{"empty", "# nothing\n", 0, 0, dls.ErrEmpty, nil},
+		{"not text", "file\x00\n", 0, 0, dls.ErrNotText, nil},
+	}
+	for _, c := range cases {
+		t.Run(c.name, func(t *testing.T) {
+			_, err := Parse(strings.NewReader(c.in), "s.csv")
+			var pe *dls.PosError
+			if !errors.As(err, &pe) {
+				t.Fatalf("error %v is not positioned", err)
+			}
+			if pe.Line != c.line || (c.col > 0 && pe.Column != c.col) {
+				t.Errorf("%v: at %d:%d, want %d:%d", err, pe.Line, pe.Column, c.line, c.col)
+			}
+			if c.want != nil && !errors.Is(err, c.want) {
+				t.Errorf("%v does not wrap %v", err, c.want)
+			}
+			for _, s := range c.substrings {
+				if !strings.Contains(err.Error(), s) {
+					t.Errorf("%v lacks %q", err, s)
+				}
+			}
+		})
+	}
+}
+
+func TestHostileStringsAreOnlyValues(t *testing.T) {
+	// A sample name with HTML or path syntax is carried as a value; the
+	// pattern that looks like a path only matches file names found.
+	in := "file,sample\n../../etc/passwd,<script>alert(1)</script>\n"
+	s, err := Parse(strings.NewReader(in), "s.csv")
+	if err != nil {
+		t.Fatal(err)
+	}
+	m := &dls.Measurement{File: "x.csv"}
+	if used := s.Apply(m, "x.csv"); len(used) != 0 {
+		t.Error("a path-like pattern matched an unrelated file")
+	}
+	if un := s.Unmatched([]string{"x.csv"}); len(un) != 1 {
+		t.Error("the row matching nothing is not reported")
+	}
+	if s.Rows[0].Params[0].Value != "<script>alert(1)</script>" {
+		t.Errorf("value changed: %q", s.Rows[0].Params[0].Value)
+	}
+}
+
+func FuzzParse(f *testing.F) {
+	f.Add(good)
+	f.Add("file,run,temperature_c\na,r1,25\n")
+	f.Add("file\n\"a,b\n")
+	f.Fuzz(func(t *testing.T, in string) {
+		s, err := Parse(strings.NewReader(in), "f.csv")
+		if err != nil {
+			var pe *dls.PosError
+			if !errors.As(err, &pe) {
+				t.Fatalf("unpositioned error %v", err)
+			}
+			return
+		}
+		for _, r := range s.Rows {
+			m := &dls.Measurement{File: "a.csv", Run: r.Run}
+			s.Apply(m, "a.csv")
+		}
+	})
+}
