@@ -19,6 +19,15 @@ type Result struct {
 	Run     string `json:"run"`
 	Status  Status `json:"status"`
 	Message string `json:"message"`
+	// Lot, Product, Role and Group come from the metadata (sample sheet
+	// or file); Role is "sample" unless given.
+	Lot     string `json:"lot"`
+	Product string `json:"product"`
+	Role    string `json:"role"`
+	Group   string `json:"group"`
+	// Flags are the QC findings on this measurement (codes listed by
+	// `dlsbatch flags`).
+	Flags []Flag `json:"flags"`
 
 	// Conditions (valid when HasConditions).
 	HasConditions   bool    `json:"-"`

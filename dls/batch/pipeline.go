@@ -9,6 +9,7 @@ import (
 
 	"dlsbatch/cumulants"
 	"dlsbatch/dls"
+	"dlsbatch/dls/qc"
 )
 
 // Settings control the analysis of every measurement in a batch. Start
@@ -31,6 +32,8 @@ type Settings struct {
 	// Distribution controls the regularised inversion into size
 	// distributions.
 	Distribution DistributionSettings
+	// QC holds the thresholds of the quality-control flags.
+	QC qc.Thresholds
 }
 
 // DefaultSettings returns the documented defaults: cumulants.DefaultSettings,
@@ -42,6 +45,7 @@ func DefaultSettings() Settings {
 		Defaults:     []dls.Param{{Key: dls.KeySolvent, Value: "water", Origin: dls.OriginDefault, Where: "built-in default"}},
 		KeepCurves:   true,
 		Distribution: DefaultDistributionSettings(),
+		QC:           qc.DefaultThresholds(),
 	}
 }
 
@@ -67,8 +71,15 @@ func Analyze(m *dls.Measurement, s *Settings) *dls.Result {
 		File:              m.File,
 		Run:               m.Run,
 		Sample:            meta.String(dls.KeySample),
+		Lot:               meta.String(dls.KeyLot),
+		Product:           meta.String(dls.KeyProduct),
+		Role:              strings.ToLower(meta.String(dls.KeyRole)),
+		Group:             meta.String(dls.KeyGroup),
 		CorrelationColumn: m.CorrColumn,
 		Params:            meta.Params(),
+	}
+	if r.Role == "" {
+		r.Role = "sample"
 	}
 	warn := append([]string(nil), m.Warnings...)
 	if p, ok := meta.Get(dls.KeySolvent); ok && p.Origin == dls.OriginDefault {
@@ -82,6 +93,7 @@ func Analyze(m *dls.Measurement, s *Settings) *dls.Result {
 		r.Status = dls.StatusError
 		r.Message = err.Error()
 		r.Warnings = warn
+		r.Flags = qc.Measurement(r, m.TauS, s.QC)
 		return r
 	}
 
@@ -158,10 +170,15 @@ func Analyze(m *dls.Measurement, s *Settings) *dls.Result {
 		d.G1, d.G1Sigma, d.G1Fitted, d.G1Residuals = nil, nil, nil, nil
 	}
 	r.Warnings = warn
+	r.Flags = qc.Measurement(r, m.TauS, s.QC)
 	r.Status = dls.StatusOK
-	if len(warn) > 0 {
+	msg := append([]string(nil), warn...)
+	for _, f := range r.Flags {
+		msg = append(msg, f.Code+": "+f.Message)
+	}
+	if len(msg) > 0 {
 		r.Status = dls.StatusWarn
-		r.Message = strings.Join(warn, "; ")
+		r.Message = strings.Join(msg, "; ")
 	}
 	return r
 }

@@ -9,6 +9,7 @@ import (
 	"sync"
 
 	"dlsbatch/dls"
+	"dlsbatch/dls/qc"
 )
 
 // Input is one item read from a file: a measurement, or the reason none
@@ -93,7 +94,9 @@ func (rn *Runner) analyzeFile(path string) []*dls.Result {
 			if err == nil {
 				err = errors.New("reader returned no measurement")
 			}
-			res = append(res, &dls.Result{File: in.File, Run: in.Run, Status: dls.StatusError, Message: err.Error()})
+			r := &dls.Result{File: in.File, Run: in.Run, Role: "sample", Status: dls.StatusError, Message: err.Error()}
+			r.Flags = qc.Measurement(r, nil, rn.Settings.QC)
+			res = append(res, r)
 			continue
 		}
 		res = append(res, Analyze(in.M, &rn.Settings))

@@ -1,0 +1,388 @@
+// Package qc raises quality-control flags on measurement results and
+// aggregates the measurements of each sample.
+//
+// Every flag has a stable code (never renamed or reused), a one-line
+// meaning listed by `dlsbatch flags`, and a threshold that is a documented
+// setting. The default thresholds are common practice in DLS laboratories
+// (marked so below; recalled, not taken from a cited standard) and are
+// meant to be tuned by each site to its instruments and products.
+//
+// Aggregation groups results by sample name, lot and temperature (to
+// 0.1 °C; a sample measured at two temperatures is two samples). Results
+// that could not be read carry no temperature and join the sample's first
+// group. A run's z-average is
+// an outlier when it lies more than OutlierK robust standard deviations from
+// the sample's median, the robust standard deviation being 1.4826 times the
+// median absolute deviation (normal-consistent MAD; Rousseeuw & Croux,
+// "Alternatives to the median absolute deviation", J. Am. Stat. Assoc. 88,
+// 1273, 1993), floored at 0.5 % of the median so that near-identical
+// repeats do not make every small difference an outlier. The rule needs at
+// least three analysed runs. Whether outliers are left out of the
+// statistics is a setting, and is recorded on every sample.
+package qc
+
+import (
+	"fmt"
+	"math"
+	"sort"
+
+	"dlsbatch/dls"
+)
+
+// Flag codes. Stable: add new ones, never rename or reuse.
+const (
+	LowIntercept   = "LOW-INTERCEPT"
+	HighIntercept  = "HIGH-INTERCEPT"
+	NoBaseline     = "NO-BASELINE"
+	BaselineOffset = "BASELINE-OFFSET"
+	Dust           = "DUST"
+	PoorFit        = "POOR-FIT"
+	HighPDI        = "HIGH-PDI"
+	OutsideWindow  = "OUTSIDE-WINDOW"
+	Multimodal     = "MULTIMODAL"
+	DistMismatch   = "DIST-MISMATCH"
+	LowCountRate   = "LOW-COUNT-RATE"
+	Failed         = "FAILED"
+	Outlier        = "OUTLIER"
+	FewRuns        = "FEW-RUNS"
+	HighRSD        = "HIGH-RSD"
+	NoValidRuns    = "NO-VALID-RUNS"
+)
+
+// Thresholds are the settings behind the flags. Defaults: DefaultThresholds.
+type Thresholds struct {
+	MinIntercept     float64 // LOW-INTERCEPT below this coherence factor
+	MaxIntercept     float64 // HIGH-INTERCEPT above
+	MaxBaselineShift float64 // BASELINE-OFFSET when |far baseline − nominal| / intercept exceeds this
+	DustSizeFactor   float64 // DUST: intensity above this many z-averages …
+	DustMinNm        float64 // … and above this diameter …
+	DustMinPct       float64 // … holding more than this % of the intensity
+	MaxReducedChi2   float64 // POOR-FIT when σ was given and χ²/ν exceeds this
+	MaxRMSRatio      float64 // POOR-FIT when the cumulant rms exceeds this multiple of the distribution fit's
+	MaxPDI           float64 // HIGH-PDI above
+	MinDecayLags     float64 // OUTSIDE-WINDOW when 1/Γ̄ is below this many first lags …
+	MaxDecayFraction float64 // … or above this fraction of the last lag
+	MinPeakPct       float64 // MULTIMODAL: a second intensity peak holding at least this %
+	MaxDistMismatch  float64 // DIST-MISMATCH when the distribution's z-average differs by more than this fraction
+	MinCountRateKcps float64 // LOW-COUNT-RATE below (when the count rate is known)
+	OutlierK         float64 // OUTLIER beyond this many robust SDs of the median
+	MinRuns          int     // FEW-RUNS below this number of analysed runs
+	MaxRSDPct        float64 // HIGH-RSD above this repeatability RSD of the z-average, %
+}
+
+// DefaultThresholds returns the defaults (common practice, from memory,
+// to be tuned per site): intercept 0.1–1.0, baseline offset 0.5 % of the
+// intercept, dust = over 1 % of the intensity above both 10 z-averages and
+// 1 µm, χ²/ν
+// above 3, cumulant rms over 2× the distribution fit's, PDI above 0.3,
+// decay time below 5 first lags or above 10 % of the last lag, second peak
+// of 5 %, distribution z-average off by 10 %, count rate below 10 kcps,
+// outliers beyond 3 robust SDs, at least 3 runs, RSD above 5 %.
+func DefaultThresholds() Thresholds {
+	return Thresholds{
+		MinIntercept: 0.1, MaxIntercept: 1.0, MaxBaselineShift: 0.005,
+		DustSizeFactor: 10, DustMinNm: 1000, DustMinPct: 1,
+		MaxReducedChi2: 3, MaxRMSRatio: 2,
+		MaxPDI:       0.3,
+		MinDecayLags: 5, MaxDecayFraction: 0.1,
+		MinPeakPct: 5, MaxDistMismatch: 0.10,
+		MinCountRateKcps: 10,
+		OutlierK:         3, MinRuns: 3, MaxRSDPct: 5,
+	}
+}
+
+// Definition describes one flag for listings.
+type Definition struct {
+	Code, Level, Meaning, Threshold string
+}
+
+// Definitions lists every flag with the threshold of t, in a fixed order.
+func Definitions(t Thresholds) []Definition {
+	return []Definition{
+		{LowIntercept, "run", "coherence factor low: stray light, multiple scattering, weak or fast signal", fmt.Sprintf("intercept < %g", t.MinIntercept)},
+		{HighIntercept, "run", "coherence factor above 1: afterpulsing, number fluctuations or a bad normalisation", fmt.Sprintf("intercept > %g", t.MaxIntercept)},
+		{NoBaseline, "run", "the correlation had not decayed by the last lag: dust, a slow component, or too short a lag window", "g1 ≥ 0.05 at the far channels"},
+		{BaselineOffset, "run", "the far-channel baseline is off its nominal value: drift, dust or a slow process", fmt.Sprintf("|far baseline − nominal| > %g × intercept", t.MaxBaselineShift)},
+		{Dust, "run", "intermittent large scatterers: intensity far above the main population", fmt.Sprintf("> %g %% of the intensity above %g × z-average and %g nm", t.DustMinPct, t.DustSizeFactor, t.DustMinNm)},
+		{PoorFit, "run", "the cumulant fit does not describe the data within their noise", fmt.Sprintf("χ²/ν > %g (σ given) or rms > %g × the distribution fit's", t.MaxReducedChi2, t.MaxRMSRatio)},
+		{HighPDI, "run", "too polydisperse for the cumulant mean to mean much: read the distribution", fmt.Sprintf("PDI > %g", t.MaxPDI)},
+		{OutsideWindow, "run", "the decay time lies outside what the lag window resolves", fmt.Sprintf("1/Γ̄ < %g first lags or > %g × last lag", t.MinDecayLags, t.MaxDecayFraction)},
+		{Multimodal, "run", "the intensity distribution has more than one population", fmt.Sprintf("second peak ≥ %g %%", t.MinPeakPct)},
+		{DistMismatch, "run", "the distribution and the cumulants disagree on the mean size", fmt.Sprintf("|dist z-average / z-average − 1| > %g", t.MaxDistMismatch)},
+		{LowCountRate, "run", "low count rate: noisy data, or too dilute a sample", fmt.Sprintf("count rate < %g kcps", t.MinCountRateKcps)},
+		{Failed, "run", "the measurement could not be analysed (see its message)", "status error"},
+		{Outlier, "sample", "a run's z-average is far from the sample's other runs", fmt.Sprintf("|z − median| > %g × 1.4826 × MAD (MAD ≥ 0.5 %% of the median), ≥ 3 runs", t.OutlierK)},
+		{FewRuns, "sample", "fewer analysed runs than a repeatability statement needs", fmt.Sprintf("runs used < %d", t.MinRuns)},
+		{HighRSD, "sample", "poor repeatability of the z-average", fmt.Sprintf("RSD > %g %%", t.MaxRSDPct)},
+		{NoValidRuns, "sample", "no run of the sample could be analysed", "runs used = 0"},
+	}
+}
+
+// Measurement returns the flags of one result.
+func Measurement(r *dls.Result, tau []float64, t Thresholds) []dls.Flag {
+	var f []dls.Flag
+	add := func(code, format string, a ...any) {
+		f = append(f, dls.Flag{Code: code, Message: fmt.Sprintf(format, a...)})
+	}
+	if r.Status == dls.StatusError {
+		add(Failed, "%s", r.Message)
+		return f
+	}
+	if !r.HasCumulants {
+		return f
+	}
+	if r.Intercept < t.MinIntercept {
+		add(LowIntercept, "intercept %.3f < %g", r.Intercept, t.MinIntercept)
+	}
+	if r.Intercept > t.MaxIntercept {
+		add(HighIntercept, "intercept %.3f > %g", r.Intercept, t.MaxIntercept)
+	}
+	if !r.BaselineReached {
+		add(NoBaseline, "the correlation had not decayed by the last lag")
+	}
+	nominal := 0.0
+	if r.Curves == nil || r.Curves.Kind == "g2" {
+		nominal = 1
+	}
+	if r.Intercept > 0 {
+		if sh := math.Abs(r.FarBaseline-nominal) / r.Intercept; sh > t.MaxBaselineShift {
+			add(BaselineOffset, "far baseline %.5f, %.2f %% of the intercept from %g", r.FarBaseline, 100*sh, nominal)
+		}
+	}
+	if r.Intensity != nil && r.Distribution != nil {
+		limit := math.Max(t.DustSizeFactor*r.ZAvgNm, t.DustMinNm)
+		var above float64
+		for j, d := range r.Distribution.DiameterNm {
+			if d > limit {
+				above += r.Distribution.Intensity[j]
+			}
+		}
+		if 100*above > t.DustMinPct {
+			add(Dust, "%.1f %% of the intensity above %.0f nm", 100*above, limit)
+		}
+		if len(r.Intensity.Peaks) > 1 && r.Intensity.Peaks[1].AreaPct >= t.MinPeakPct {
+			add(Multimodal, "%d intensity peaks; second at %.0f nm holds %.1f %%", len(r.Intensity.Peaks), r.Intensity.Peaks[1].MeanNm, r.Intensity.Peaks[1].AreaPct)
+		}
+		if r.DistZAvgNm > 0 {
+			if d := r.DistZAvgNm/r.ZAvgNm - 1; math.Abs(d) > t.MaxDistMismatch {
+				add(DistMismatch, "distribution z-average %.1f nm vs cumulants %.1f nm (%+.0f %%)", r.DistZAvgNm, r.ZAvgNm, 100*d)
+			}
+		}
+		if rms := distributionRMS(r); rms > 0 && r.FitRMS > t.MaxRMSRatio*rms {
+			add(PoorFit, "cumulant rms %.2g is %.1f × the distribution fit's", r.FitRMS, r.FitRMS/rms)
+		}
+	}
+	if !r.SigmaEstimated && r.ReducedChi2 > t.MaxReducedChi2 {
+		add(PoorFit, "reduced χ² %.2f > %g", r.ReducedChi2, t.MaxReducedChi2)
+	}
+	if r.PDI > t.MaxPDI {
+		add(HighPDI, "PDI %.3f > %g", r.PDI, t.MaxPDI)
+	}
+	if len(tau) > 0 && r.GammaMeanPerS > 0 {
+		dt := 1 / r.GammaMeanPerS
+		if dt < t.MinDecayLags*tau[0] {
+			add(OutsideWindow, "decay time %.3g s is under %g first lags (%.3g s): the size is near the lower limit of the window", dt, t.MinDecayLags, tau[0])
+		}
+		if dt > t.MaxDecayFraction*tau[len(tau)-1] {
+			add(OutsideWindow, "decay time %.3g s exceeds %g of the last lag (%.3g s): the size is near the upper limit of the window", dt, t.MaxDecayFraction, tau[len(tau)-1])
+		}
+	}
+	if r.HasCountRate && r.CountRateKcps < t.MinCountRateKcps {
+		add(LowCountRate, "count rate %.1f kcps < %g", r.CountRateKcps, t.MinCountRateKcps)
+	}
+	return f
+}
+
+// distributionRMS is the rms residual of the inversion in the units of the
+// correlogram over the cumulant fit's range, or 0 when not available.
+func distributionRMS(r *dls.Result) float64 {
+	d := r.Distribution
+	if d == nil || r.Curves == nil || len(d.G1Fitted) != len(r.Curves.Data) {
+		return 0
+	}
+	var ss float64
+	n := 0
+	for i, tau := range r.Curves.TauS {
+		if tau < r.FitFirstTauS || tau > r.FitLastTauS {
+			continue
+		}
+		f := d.G1Fitted[i]
+		u := f
+		if r.Curves.Kind != "g1" {
+			u = f * math.Abs(f)
+		}
+		base := r.Baseline
+		if r.BaselineReached {
+			base = r.FarBaseline
+		}
+		res := r.Curves.Data[i] - (base + r.Intercept*u)
+		ss += res * res
+		n++
+	}
+	if n == 0 {
+		return 0
+	}
+	return math.Sqrt(ss / float64(n))
+}
+
+// Options control aggregation.
+type Options struct {
+	Thresholds      Thresholds
+	ExcludeOutliers bool
+}
+
+// Aggregate groups results into samples (by sample name and lot, in the
+// order of first appearance), flags outlier runs, and computes each
+// sample's statistics over its analysed runs (less the outliers when
+// ExcludeOutliers is set).
+func Aggregate(results []*dls.Result, o Options) []*dls.Sample {
+	var order []string
+	by := map[string]*dls.Sample{}
+	first := map[string]string{} // sample+lot → key of its first group
+	for i, r := range results {
+		base := r.Sample + "\x00" + r.Lot
+		key := base
+		if r.HasConditions {
+			key += fmt.Sprintf("\x00%.1f", r.TemperatureC)
+		} else if k, ok := first[base]; ok {
+			key = k
+		}
+		s := by[key]
+		if s == nil {
+			s = &dls.Sample{Name: r.Sample, Lot: r.Lot, Product: r.Product, Role: r.Role, Group: r.Group, OutliersExcluded: o.ExcludeOutliers}
+			by[key] = s
+			order = append(order, key)
+			if _, ok := first[base]; !ok {
+				first[base] = key
+			}
+		}
+		s.Runs = append(s.Runs, i)
+	}
+	out := make([]*dls.Sample, 0, len(order))
+	for _, k := range order {
+		s := by[k]
+		aggregate(s, results, o)
+		out = append(out, s)
+	}
+	return out
+}
+
+func aggregate(s *dls.Sample, results []*dls.Result, o Options) {
+	t := o.Thresholds
+	s.NRuns = len(s.Runs)
+	var ok []int
+	temps := map[float64]bool{}
+	for _, i := range s.Runs {
+		r := results[i]
+		if r.HasCumulants {
+			ok = append(ok, i)
+			temps[math.Round(r.TemperatureC*100)/100] = true
+		}
+		for _, f := range r.Flags {
+			s.Flags = append(s.Flags, dls.Flag{Code: f.Code, Message: runID(r) + ": " + f.Message})
+		}
+	}
+	for tc := range temps {
+		s.TemperaturesC = append(s.TemperaturesC, tc)
+	}
+	sort.Float64s(s.TemperaturesC)
+	if len(ok) >= 3 {
+		z := make([]float64, len(ok))
+		for k, i := range ok {
+			z[k] = results[i].ZAvgNm
+		}
+		med := median(z)
+		dev := make([]float64, len(z))
+		for k, v := range z {
+			dev[k] = math.Abs(v - med)
+		}
+		sd := math.Max(1.4826*median(dev), 0.005*med)
+		for k, i := range ok {
+			if dev[k] > t.OutlierK*sd {
+				s.Outliers = append(s.Outliers, i)
+				s.Flags = append(s.Flags, dls.Flag{Code: Outlier, Message: fmt.Sprintf("%s: z-average %.2f nm vs median %.2f nm (%.1f robust SD)", runID(results[i]), z[k], med, dev[k]/sd)})
+			}
+		}
+	}
+	for _, i := range ok {
+		if o.ExcludeOutliers && contains(s.Outliers, i) {
+			continue
+		}
+		s.Used = append(s.Used, i)
+	}
+	s.NUsed = len(s.Used)
+	if s.NUsed == 0 {
+		s.Flags = append(s.Flags, dls.Flag{Code: NoValidRuns, Message: "no run could be analysed"})
+		return
+	}
+	var z, p, pk, d90 []float64
+	for _, i := range s.Used {
+		r := results[i]
+		z = append(z, r.ZAvgNm)
+		p = append(p, r.PDI)
+		if r.Intensity != nil && len(r.Intensity.Peaks) > 0 {
+			pk = append(pk, r.Intensity.Peaks[0].MeanNm)
+			d90 = append(d90, r.Intensity.D90Nm)
+		}
+	}
+	s.ZAvgMeanNm, s.ZAvgSDNm = meanSD(z)
+	s.PDIMean, s.PDISD = meanSD(p)
+	if s.ZAvgMeanNm != 0 {
+		s.ZAvgRSDPct = 100 * s.ZAvgSDNm / s.ZAvgMeanNm
+	}
+	if s.PDIMean != 0 {
+		s.PDIRSDPct = 100 * s.PDISD / math.Abs(s.PDIMean)
+	}
+	if len(pk) > 0 {
+		s.Peak1MeanNm, _ = meanSD(pk)
+		s.D90MeanNm, _ = meanSD(d90)
+	}
+	if s.NUsed < t.MinRuns {
+		s.Flags = append(s.Flags, dls.Flag{Code: FewRuns, Message: fmt.Sprintf("%d run(s) used, %d wanted", s.NUsed, t.MinRuns)})
+	}
+	if s.NUsed >= 2 && s.ZAvgRSDPct > t.MaxRSDPct {
+		s.Flags = append(s.Flags, dls.Flag{Code: HighRSD, Message: fmt.Sprintf("z-average RSD %.1f %% > %g %%", s.ZAvgRSDPct, t.MaxRSDPct)})
+	}
+}
+
+func runID(r *dls.Result) string {
+	if r.Run == "" {
+		return r.File
+	}
+	return r.File + "[" + r.Run + "]"
+}
+
+func contains(v []int, x int) bool {
+	for _, y := range v {
+		if y == x {
+			return true
+		}
+	}
+	return false
+}
+
+func median(v []float64) float64 {
+	c := append([]float64(nil), v...)
+	sort.Float64s(c)
+	n := len(c)
+	if n%2 == 1 {
+		return c[n/2]
+	}
+	return (c[n/2-1] + c[n/2]) / 2
+}
+
+// meanSD returns the mean and the sample standard deviation (n − 1); the SD
+// of a single value is 0.
+func meanSD(v []float64) (m, sd float64) {
+	for _, x := range v {
+		m += x
+	}
+	m /= float64(len(v))
+	if len(v) < 2 {
+		return m, 0
+	}
+	for _, x := range v {
+		sd += (x - m) * (x - m)
+	}
+	return m, math.Sqrt(sd / float64(len(v)-1))
+}

@@ -1,0 +1,165 @@
+// Package specfile reads product specifications: a CSV table that QA staff
+// can edit in a spreadsheet, one limit per row. CSV keeps each limit on its
+// own line, so a change shows as a one-line difference under version
+// control and in an audit trail.
+//
+//	product   required  product name, matched (case-insensitively) with the
+//	                    product of each sample (sample sheet or file)
+//	quantity  required  z_avg_nm, pdi, z_avg_rsd_pct, d90_nm, peak1_nm,
+//	                    intensity_pct_above, runs
+//	min, max  optional  inclusive bounds; either or both
+//	target,   optional  a certified or nominal value and its tolerance,
+//	tol                 instead of min and max: target − tol ≤ x ≤ target + tol
+//	at_nm     optional  the diameter for intensity_pct_above (required there,
+//	                    not allowed elsewhere)
+//	note      optional  free text (e.g. the certificate it comes from)
+//
+// Example:
+//
+//	product,quantity,min,max,target,tol,at_nm,note
+//	latex-100,z_avg_nm,,,101.8,3.0,,reference latex; lab acceptance window
+//	gold-20,z_avg_nm,18,22,,,,
+//	gold-20,pdi,,0.10,,,,
+//	gold-20,intensity_pct_above,,2,,,100,no aggregates
+//	gold-20,runs,3,,,,,
+//
+// A malformed row, an unknown column or an unknown quantity is an error
+// naming file, line and column, reported before any analysis starts.
+package specfile
+
+import (
+	"fmt"
+	"io"
+	"math"
+	"os"
+	"strconv"
+	"strings"
+
+	"dlsbatch/dls"
+	"dlsbatch/dls/spec"
+	"dlsbatch/io/csvtable"
+)
+
+// Columns of a specification file.
+var Columns = []string{"product", "quantity", "min", "max", "target", "tol", "at_nm", "note"}
+
+// ReadFile parses the specification at path.
+func ReadFile(path string) (*spec.Spec, error) {
+	f, err := os.Open(path)
+	if err != nil {
+		return nil, fmt.Errorf("specification: %w", err)
+	}
+	defer f.Close()
+	return Parse(f, path)
+}
+
+// Parse reads a specification from r; name identifies it in errors.
+func Parse(r io.Reader, name string) (*spec.Spec, error) {
+	t, err := csvtable.Read(r, name)
+	if err != nil {
+		return nil, err
+	}
+	if err := t.CheckHeader(Columns, []string{"product", "quantity"}); err != nil {
+		return nil, err
+	}
+	col := func(n string) int { return t.Col(n) }
+	s := &spec.Spec{File: name}
+	seen := map[string]int{}
+	for i, rec := range t.Rows {
+		get := func(n string) (string, int) {
+			c := col(n)
+			if c < 0 {
+				return "", -1
+			}
+			return rec[c], c
+		}
+		num := func(n string) (float64, bool, error) {
+			v, c := get(n)
+			if v == "" {
+				return 0, false, nil
+			}
+			x, err := strconv.ParseFloat(v, 64)
+			if err != nil || math.IsNaN(x) || math.IsInf(x, 0) {
+				return 0, false, t.Err(i, c, fmt.Errorf("%q is not a finite number: %w", v, dls.ErrNotANumber))
+			}
+			return x, true, nil
+		}
+		product, pc := get("product")
+		quantity, qc := get("quantity")
+		if product == "" {
+			return nil, t.Err(i, pc, fmt.Errorf("empty product"))
+		}
+		if _, ok := spec.Quantities[quantity]; !ok {
+			return nil, t.Err(i, qc, fmt.Errorf("unknown quantity %q (known: %s)", quantity, strings.Join(spec.QuantityNames(), ", ")))
+		}
+		l := spec.Limit{Product: product, Quantity: quantity, Where: fmt.Sprintf("%s:%d", name, t.Line(i))}
+		var err error
+		var hasT, hasTol bool
+		var target, tol float64
+		if l.Min, l.HasMin, err = num("min"); err != nil {
+			return nil, err
+		}
+		if l.Max, l.HasMax, err = num("max"); err != nil {
+			return nil, err
+		}
+		if target, hasT, err = num("target"); err != nil {
+			return nil, err
+		}
+		if tol, hasTol, err = num("tol"); err != nil {
+			return nil, err
+		}
+		at, hasAt, err := num("at_nm")
+		if err != nil {
+			return nil, err
+		}
+		_, tc := get("target")
+		switch {
+		case hasT != hasTol:
+			return nil, t.Err(i, tc, fmt.Errorf("target and tol go together"))
+		case hasT && (l.HasMin || l.HasMax):
+			return nil, t.Err(i, tc, fmt.Errorf("give either target and tol, or min and/or max"))
+		case hasT && tol < 0:
+			_, c := get("tol")
+			return nil, t.Err(i, c, fmt.Errorf("tolerance %g is negative", tol))
+		case hasT:
+			l.Min, l.Max, l.HasMin, l.HasMax = target-tol, target+tol, true, true
+			l.Text = fmt.Sprintf("%s ± %s", fmtNum(target), fmtNum(tol))
+		case !l.HasMin && !l.HasMax:
+			_, c := get("min")
+			return nil, t.Err(i, c, fmt.Errorf("no limit: give min, max, or target and tol"))
+		case l.HasMin && l.HasMax && l.Min > l.Max:
+			_, c := get("min")
+			return nil, t.Err(i, c, fmt.Errorf("min %g is above max %g", l.Min, l.Max))
+		case l.HasMin && l.HasMax:
+			l.Text = fmt.Sprintf("%s … %s", fmtNum(l.Min), fmtNum(l.Max))
+		case l.HasMin:
+			l.Text = "≥ " + fmtNum(l.Min)
+		default:
+			l.Text = "≤ " + fmtNum(l.Max)
+		}
+		_, ac := get("at_nm")
+		switch {
+		case quantity == "intensity_pct_above" && (!hasAt || at <= 0):
+			return nil, t.Err(i, ac, fmt.Errorf("intensity_pct_above needs a positive at_nm"))
+		case quantity != "intensity_pct_above" && hasAt:
+			return nil, t.Err(i, ac, fmt.Errorf("at_nm applies only to intensity_pct_above"))
+		}
+		if hasAt {
+			l.AtNm = at
+			l.Quantity = quantity
+			l.Text += fmt.Sprintf(" (above %s nm)", fmtNum(at))
+		}
+		key := strings.ToLower(product) + "\x00" + quantity + "\x00" + fmtNum(at)
+		if prev, dup := seen[key]; dup {
+			return nil, t.Err(i, qc, fmt.Errorf("%s %s already limited on line %d", product, quantity, prev))
+		}
+		seen[key] = t.Line(i)
+		s.Limits = append(s.Limits, l)
+	}
+	if len(s.Limits) == 0 {
+		return nil, &dls.PosError{File: name, Err: dls.ErrEmpty}
+	}
+	return s, nil
+}
+
+func fmtNum(v float64) string { return strconv.FormatFloat(v, 'g', -1, 64) }
