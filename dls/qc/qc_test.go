@@ -1,0 +1,173 @@
+package qc
+
+import (
+	"math"
+	"strings"
+	"testing"
+
+	"dlsbatch/dls"
+)
+
+// clean is a result that raises no flag: a 100 nm latex, intercept 0.92,
+// baseline reached at 1.0001, PDI 0.02, one intensity peak, distribution
+// agreeing with the cumulants.
+func clean() *dls.Result {
+	tau := []float64{1e-6, 1e-5, 1e-4, 1e-3, 1e-2, 1e-1, 1}
+	return &dls.Result{
+		File: "a.csv", Sample: "latex", Status: dls.StatusOK, HasConditions: true, HasCumulants: true, HasDistribution: true,
+		TemperatureC: 25, ZAvgNm: 100, PDI: 0.02, Intercept: 0.92, Baseline: 1, FarBaseline: 1.0001, BaselineReached: true,
+		GammaMeanPerS: 3400, FitRMS: 1e-3, ReducedChi2: 1.1, SigmaEstimated: true, DistZAvgNm: 101, HasCountRate: true, CountRateKcps: 250,
+		Intensity:    &dls.WeightSummary{Peaks: []dls.Peak{{MeanNm: 100, AreaPct: 100}}},
+		Distribution: &dls.SizeDistribution{DiameterNm: []float64{50, 100, 200, 2000}, Intensity: []float64{0.1, 0.8, 0.1, 0}},
+		Curves:       &dls.Curves{TauS: tau, Kind: "g2"},
+	}
+}
+
+func TestFlagsFireAndStayQuiet(t *testing.T) {
+	tau := clean().Curves.TauS
+	th := DefaultThresholds()
+	if f := Measurement(clean(), tau, th); len(f) != 0 {
+		t.Fatalf("clean result raises %v", f)
+	}
+	// Each case changes the clean result just past one threshold (the
+	// defaults of DefaultThresholds) and must raise that flag.
+	cases := []struct {
+		code string
+		edit func(r *dls.Result)
+	}{
+		{LowIntercept, func(r *dls.Result) { r.Intercept = 0.09 }},
+		{HighIntercept, func(r *dls.Result) { r.Intercept = 1.02; r.FarBaseline = 1 }},
+		{NoBaseline, func(r *dls.Result) { r.BaselineReached = false }},
+		{BaselineOffset, func(r *dls.Result) { r.FarBaseline = 1.006 }}, // 0.65 % of 0.92 > 0.5 %
+		{Dust, func(r *dls.Result) { r.Distribution.Intensity = []float64{0.1, 0.78, 0.1, 0.02} }},
+		{PoorFit, func(r *dls.Result) { r.SigmaEstimated = false; r.ReducedChi2 = 3.5 }},
+		{HighPDI, func(r *dls.Result) { r.PDI = 0.31 }},
+		{OutsideWindow, func(r *dls.Result) { r.GammaMeanPerS = 1 / (4e-6) }}, // 4 µs < 5 first lags
+		{OutsideWindow, func(r *dls.Result) { r.GammaMeanPerS = 1 / (0.11) }}, // > 10 % of 1 s
+		{Multimodal, func(r *dls.Result) { r.Intensity.Peaks = append(r.Intensity.Peaks, dls.Peak{MeanNm: 400, AreaPct: 5}) }},
+		{DistMismatch, func(r *dls.Result) { r.DistZAvgNm = 111 }},
+		{LowCountRate, func(r *dls.Result) { r.CountRateKcps = 9 }},
+		{Failed, func(r *dls.Result) { r.Status = dls.StatusError; r.Message = "x.csv:3: bad" }},
+	}
+	for _, c := range cases {
+		r := clean()
+		c.edit(r)
+		f := Measurement(r, tau, th)
+		found := false
+		for _, x := range f {
+			if x.Code == c.code {
+				found = true
+			}
+		}
+		if !found {
+			t.Errorf("%s did not fire: %v", c.code, f)
+		}
+	}
+	// Just inside every threshold: quiet.
+	r := clean()
+	r.Intercept, r.PDI, r.DistZAvgNm, r.CountRateKcps = 0.1, 0.3, 109.99, 10
+	r.FarBaseline = 1 + 0.0049*0.1
+	if f := Measurement(r, tau, th); len(f) != 0 {
+		t.Errorf("values at the thresholds raise %v", f)
+	}
+}
+
+func TestDefinitionsCoverCodes(t *testing.T) {
+	seen := map[string]bool{}
+	for _, d := range Definitions(DefaultThresholds()) {
+		if seen[d.Code] || d.Meaning == "" || d.Threshold == "" {
+			t.Errorf("definition %+v duplicated or incomplete", d)
+		}
+		seen[d.Code] = true
+	}
+	for _, c := range []string{LowIntercept, HighIntercept, NoBaseline, BaselineOffset, Dust, PoorFit, HighPDI, OutsideWindow,
+		Multimodal, DistMismatch, LowCountRate, Failed, Outlier, FewRuns, HighRSD, NoValidRuns} {
+		if !seen[c] {
+			t.Errorf("%s has no definition", c)
+		}
+	}
+}
+
+func TestAggregateStatistics(t *testing.T) {
+	// Hand-computed: z = 100, 102, 104 → mean 102, SD = 2 (n − 1),
+	// RSD = 1.9608 %; PDI 0.02, 0.04, 0.06 → mean 0.04, SD 0.02.
+	var rs []*dls.Result
+	for i, z := range []float64{100, 102, 104} {
+		r := clean()
+		r.ZAvgNm, r.PDI = z, 0.02*float64(i+1)
+		rs = append(rs, r)
+	}
+	other := clean()
+	other.Sample = "gold"
+	rs = append(rs, other)
+	s := Aggregate(rs, Options{Thresholds: DefaultThresholds()})
+	if len(s) != 2 || s[0].Name != "latex" || s[0].NUsed != 3 {
+		t.Fatalf("samples %+v", s)
+	}
+	a := s[0]
+	near := func(got, want, tol float64) bool { return math.Abs(got-want) <= tol }
+	if !near(a.ZAvgMeanNm, 102, 1e-12) || !near(a.ZAvgSDNm, 2, 1e-12) || !near(a.ZAvgRSDPct, 100*2.0/102, 1e-12) {
+		t.Errorf("z stats %+v", a)
+	}
+	if !near(a.PDIMean, 0.04, 1e-15) || !near(a.PDISD, 0.02, 1e-15) {
+		t.Errorf("pdi stats %.17g %.17g", a.PDIMean, a.PDISD)
+	}
+	for _, f := range a.Flags {
+		if f.Code == Outlier || f.Code == HighRSD || f.Code == FewRuns {
+			t.Errorf("unexpected flag %v", f)
+		}
+	}
+	if b := s[1]; b.NUsed != 1 || !hasFlag(b.Flags, FewRuns) {
+		t.Errorf("single run: %+v", b)
+	}
+}
+
+func TestOutlierRule(t *testing.T) {
+	// z = 100, 100.4, 99.8, 100.2, 108: median 100.2, MAD 0.2 → robust SD
+	// max(1.4826·0.2, 0.5 % of 100.2) = 0.501; 108 is 15.6 SD out, 99.8
+	// is 0.8 SD: only 108 is an outlier. Excluding it gives mean 100.1.
+	var rs []*dls.Result
+	for _, z := range []float64{100, 100.4, 99.8, 100.2, 108} {
+		r := clean()
+		r.ZAvgNm = z
+		rs = append(rs, r)
+	}
+	for _, excl := range []bool{false, true} {
+		s := Aggregate(rs, Options{Thresholds: DefaultThresholds(), ExcludeOutliers: excl})[0]
+		if len(s.Outliers) != 1 || s.Outliers[0] != 4 || s.OutliersExcluded != excl {
+			t.Fatalf("outliers %v (excluded %v)", s.Outliers, s.OutliersExcluded)
+		}
+		want := (100 + 100.4 + 99.8 + 100.2 + 108) / 5
+		if excl {
+			want = 100.1
+		}
+		if math.Abs(s.ZAvgMeanNm-want) > 1e-9 {
+			t.Errorf("exclude %v: mean %.6f, want %.6f", excl, s.ZAvgMeanNm, want)
+		}
+		if !hasFlag(s.Flags, Outlier) {
+			t.Error("no OUTLIER flag")
+		}
+	}
+}
+
+func TestAggregateSplitsTemperatures(t *testing.T) {
+	a, b := clean(), clean()
+	b.TemperatureC = 37
+	bad := &dls.Result{File: "x.csv", Sample: "latex", Status: dls.StatusError, Message: "x.csv:1: empty", Flags: []dls.Flag{{Code: Failed, Message: "empty"}}}
+	s := Aggregate([]*dls.Result{a, b, bad}, Options{Thresholds: DefaultThresholds()})
+	if len(s) != 2 || s[0].NRuns != 2 || s[1].NRuns != 1 {
+		t.Fatalf("groups %+v", s)
+	}
+	if !hasFlag(s[0].Flags, Failed) || !strings.Contains(s[0].Flags[0].Message, "x.csv") {
+		t.Errorf("failed run not carried to its sample: %+v", s[0].Flags)
+	}
+}
+
+func hasFlag(f []dls.Flag, code string) bool {
+	for _, x := range f {
+		if x.Code == code {
+			return true
+		}
+	}
+	return false
+}

@@ -1,0 +1,94 @@
+package specfile
+
+import (
+	"errors"
+	"strings"
+	"testing"
+
+	"dlsbatch/dls"
+)
+
+const good = `product,quantity,min,max,target,tol,at_nm,note
+latex-100,z_avg_nm,,,101.8,3.0,,lab window
+gold-20,z_avg_nm,18,22,,,,
+gold-20,pdi,,0.10,,,,
+gold-20,intensity_pct_above,,2,,,100,no aggregates
+gold-20,runs,3,,,,,
+`
+
+func TestParse(t *testing.T) {
+	s, err := Parse(strings.NewReader(good), "spec.csv")
+	if err != nil {
+		t.Fatal(err)
+	}
+	if len(s.Limits) != 5 {
+		t.Fatalf("%d limits", len(s.Limits))
+	}
+	l := s.Limits[0]
+	// target ± tol becomes the inclusive interval [98.8, 104.8].
+	if !l.HasMin || !l.HasMax || l.Min != 101.8-3.0 || l.Max != 101.8+3.0 || l.Text != "101.8 ± 3" {
+		t.Errorf("target row: %+v", l)
+	}
+	if l := s.Limits[3]; l.AtNm != 100 || !l.HasMax || l.HasMin {
+		t.Errorf("intensity row: %+v", l)
+	}
+	if p := s.Products(); len(p) != 2 || p[0] != "gold-20" {
+		t.Errorf("products %v", p)
+	}
+}
+
+func TestParseErrors(t *testing.T) {
+	h := "product,quantity,min,max,target,tol,at_nm\n"
+	cases := []struct {
+		name, in  string
+		line, col int
+		substr    string
+	}{
+		{"unknown quantity", h + "p,zavg,1,2,,,\n", 2, 3, "unknown quantity"},
+		{"unknown column", "product,quantity,maximum\np,pdi,1\n", 1, 18, "unknown column"},
+		{"no limit", h + "p,pdi,,,,,\n", 2, 7, "no limit"},
+		{"min above max", h + "p,pdi,0.3,0.1,,,\n", 2, 7, "above max"},
+		{"not a number", h + "p,pdi,,low,,,\n", 2, 8, "not a finite number"},
+		{"target without tol", h + "p,z_avg_nm,,,100,,\n", 2, 14, "together"},
+		{"target and min", h + "p,z_avg_nm,90,,100,2,\n", 2, 16, "either"},
+		{"at_nm missing", h + "p,intensity_pct_above,,2,,,\n", 2, 28, "at_nm"},
+		{"at_nm misplaced", h + "p,pdi,,0.1,,,100\n", 2, 14, "only to"},
+		{"duplicate", h + "p,pdi,,0.1,,,\np,pdi,,0.2,,,\n", 3, 3, "already limited"},
+		{"empty", "# nothing\n", 0, 0, "empty"},
+	}
+	for _, c := range cases {
+		t.Run(c.name, func(t *testing.T) {
+			_, err := Parse(strings.NewReader(c.in), "spec.csv")
+			var pe *dls.PosError
+			if !errors.As(err, &pe) {
+				t.Fatalf("error %v is not positioned", err)
+			}
+			if pe.Line != c.line || pe.Column != c.col {
+				t.Errorf("%v at %d:%d, want %d:%d", err, pe.Line, pe.Column, c.line, c.col)
+			}
+			if !strings.Contains(err.Error(), c.substr) {
+				t.Errorf("%v lacks %q", err, c.substr)
+			}
+		})
+	}
+}
+
+func FuzzParse(f *testing.F) {
+	f.Add(good)
+	f.Add("product,quantity,min\np,pdi,1\n")
+	f.Fuzz(func(t *testing.T, in string) {
+		s, err := Parse(strings.NewReader(in), "f.csv")
+		if err != nil {
+			var pe *dls.PosError
+			if !errors.As(err, &pe) {
+				t.Fatalf("unpositioned error %v", err)
+			}
+			return
+		}
+		for _, l := range s.Limits {
+			if l.HasMin && l.HasMax && l.Min > l.Max {
+				t.Fatalf("inverted limit %+v", l)
+			}
+		}
+	})
+}
