@@ -18,9 +18,13 @@ import (
 	"dlsbatch/cumulants"
 	"dlsbatch/dls"
 	"dlsbatch/dls/batch"
+	"dlsbatch/dls/qc"
+	"dlsbatch/dls/spec"
 	"dlsbatch/io/csvdata"
 	"dlsbatch/io/report"
+	"dlsbatch/io/sheet"
 	"dlsbatch/io/solventfile"
+	"dlsbatch/io/specfile"
 )
 
 // runOptions are the flags of `dlsbatch run`.
@@ -43,6 +47,9 @@ type runOptions struct {
 	extrapolate bool
 	noCurves    bool
 	solventFile string
+	sheetFile   string
+	specFile    string
+	exclude     bool
 }
 
 func newRunOptions() *runOptions {
@@ -76,6 +83,9 @@ func (o *runOptions) addFlags(fs *pflag.FlagSet) {
 	fs.BoolVar(&o.extrapolate, "extrapolate", false, "allow solvent correlations outside their valid range (every result touched is a warning)")
 	fs.BoolVar(&o.noCurves, "no-curves", false, "leave fitted curves and residuals out of results.json")
 	fs.StringVar(&o.solventFile, "solvent-file", "", "CSV of extra or replacement solvents (see 'dlsbatch solvents --help')")
+	fs.StringVar(&o.sheetFile, "sheet", "", "sample sheet (CSV): per-file sample, lot, product, role and conditions")
+	fs.StringVar(&o.specFile, "spec", "", "specification (CSV): limits per product; verdicts and system suitability")
+	fs.BoolVar(&o.exclude, "exclude-outliers", false, "leave outlier runs out of each sample's statistics (they are flagged either way)")
 }
 
 const runUsage = `Usage: dlsbatch run [flags] PATH... --out DIR
@@ -128,11 +138,26 @@ func runRun(ctx context.Context, e env, args []string) int {
 		return exitUsage
 	}
 	if !o.force {
-		for _, name := range []string{"results.csv", "results.json"} {
+		for _, name := range []string{"results.csv", "samples.csv", "results.json"} {
 			if _, err := os.Stat(filepath.Join(o.out, name)); err == nil {
 				fmt.Fprintf(e.stderr, "dlsbatch run: %s already exists; use --force to replace it\n", filepath.Join(o.out, name))
 				return exitUsage
 			}
+		}
+	}
+
+	var sh *sheet.Sheet
+	if o.sheetFile != "" {
+		if sh, err = sheet.ReadFile(o.sheetFile); err != nil {
+			fmt.Fprintf(e.stderr, "dlsbatch run: sample sheet: %v\n", err)
+			return exitUsage
+		}
+	}
+	var sp *spec.Spec
+	if o.specFile != "" {
+		if sp, err = specfile.ReadFile(o.specFile); err != nil {
+			fmt.Fprintf(e.stderr, "dlsbatch run: specification: %v\n", err)
+			return exitUsage
 		}
 	}
 
@@ -145,8 +170,39 @@ func runRun(ctx context.Context, e env, args []string) int {
 		return exitFatal
 	}
 
+	rels := relativePaths(files, paths)
+	var sheetReport *report.SheetReport
+	if sh != nil {
+		sheetReport = &report.SheetReport{File: o.sheetFile, UnmatchedFiles: []string{}, UnusedRows: []string{}}
+		for _, f := range files {
+			if !sh.Matches(rels[f]) {
+				sheetReport.UnmatchedFiles = append(sheetReport.UnmatchedFiles, f)
+				fmt.Fprintf(e.stderr, "dlsbatch run: %s: no row of the sample sheet matches this file\n", f)
+			}
+		}
+		var all []string
+		for _, f := range files {
+			all = append(all, rels[f])
+		}
+		for _, row := range sh.Unmatched(all) {
+			msg := fmt.Sprintf("%s:%d: row %q matches no file", o.sheetFile, row.Line, row.Pattern)
+			sheetReport.UnusedRows = append(sheetReport.UnusedRows, msg)
+			fmt.Fprintf(e.stderr, "dlsbatch run: %s\n", msg)
+		}
+	}
+
 	rn := &batch.Runner{
-		Read:     func(path string) []batch.Input { return readInputs(path, readOpts) },
+		Read: func(path string) []batch.Input {
+			in := readInputs(path, readOpts)
+			if sh != nil {
+				for _, x := range in {
+					if x.M != nil {
+						sh.Apply(x.M, rels[path])
+					}
+				}
+			}
+			return in
+		},
 		Settings: settings,
 		Workers:  o.jobs,
 	}
@@ -165,6 +221,8 @@ func runRun(ctx context.Context, e env, args []string) int {
 		defer bar.Finish()
 	}
 	results, runErr := rn.Run(ctx, files)
+	samples := qc.Aggregate(results, qc.Options{Thresholds: settings.QC, ExcludeOutliers: o.exclude})
+	outcome := spec.Evaluate(sp, samples, results)
 
 	doc := &report.Document{
 		Tool:     "dlsbatch",
@@ -172,30 +230,64 @@ func runRun(ctx context.Context, e env, args []string) int {
 		Caution:  report.Caution,
 		Settings: o.describe(settings),
 		Counts:   report.CountResults(results),
+		Batch:    outcome,
+		Sheet:    sheetReport,
+		Samples:  samples,
 		Results:  results,
 	}
-	if err := writeOutputs(o.out, results, doc); err != nil {
+	if err := writeOutputs(o.out, results, samples, doc); err != nil {
 		fmt.Fprintf(e.stderr, "dlsbatch run: %v\n", err)
 		return exitFatal
 	}
 	if !o.quiet {
-		if err := report.WriteSummary(e.stdout, results, 10); err != nil {
+		if err := report.WriteSummary(e.stdout, results, samples, outcome, 10); err != nil {
 			fmt.Fprintf(e.stderr, "dlsbatch run: %v\n", err)
 		}
-		fmt.Fprintf(e.stdout, "results: %s, %s\n%s\n", filepath.Join(o.out, "results.csv"), filepath.Join(o.out, "results.json"), report.Caution)
+		fmt.Fprintf(e.stdout, "results: %s (results.csv, samples.csv, results.json)\n%s\n", o.out, report.Caution)
 	}
 	if runErr != nil {
 		fmt.Fprintf(e.stderr, "dlsbatch run: interrupted; the %d results finished are written\n", len(results))
 		return exitInterrupted
 	}
-	c := doc.Counts
+	return exitCode(doc.Counts, outcome)
+}
+
+// exitCode maps the outcome of a finished run to the documented codes; the
+// verdicts outrank the analysis: an invalid batch, then failed samples, then
+// measurements that could not be analysed.
+func exitCode(c report.Counts, b spec.Batch) int {
 	switch {
 	case c.Total == 0 || c.Error == c.Total:
 		return exitFatal
+	case b.Specified && !b.Valid:
+		return exitInvalid
+	case b.Fail > 0:
+		return exitSpecFailed
 	case c.Error > 0:
 		return exitSomeFailed
 	}
 	return exitOK
+}
+
+// relativePaths maps each discovered file to its path relative to the
+// input argument it was found under (its base name for a file named
+// directly), for matching sample-sheet patterns.
+func relativePaths(files, inputs []string) map[string]string {
+	out := make(map[string]string, len(files))
+	for _, f := range files {
+		rel := filepath.Base(f)
+		for _, in := range inputs {
+			if st, err := os.Stat(in); err != nil || !st.IsDir() {
+				continue
+			}
+			if r, err := filepath.Rel(in, f); err == nil && !strings.HasPrefix(r, "..") {
+				rel = r
+				break
+			}
+		}
+		out[f] = filepath.ToSlash(rel)
+	}
+	return out
 }
 
 // settings turns the flags into analysis and reading settings.
@@ -302,12 +394,15 @@ func checkOutside(out string, inputs []string) error {
 // writeOutputs writes results.csv and results.json, each through a
 // temporary file renamed into place, so that a failed write never leaves a
 // half file under the final name.
-func writeOutputs(dir string, results []*dls.Result, doc *report.Document) error {
+func writeOutputs(dir string, results []*dls.Result, samples []*dls.Sample, doc *report.Document) error {
 	if err := os.MkdirAll(dir, 0o755); err != nil {
 		return fmt.Errorf("output folder: %w", err)
 	}
-	var csvBuf, jsonBuf bytes.Buffer
+	var csvBuf, smpBuf, jsonBuf bytes.Buffer
 	if err := report.WriteCSV(&csvBuf, results); err != nil {
+		return err
+	}
+	if err := report.WriteSamplesCSV(&smpBuf, samples, results); err != nil {
 		return err
 	}
 	if err := report.WriteJSON(&jsonBuf, doc); err != nil {
@@ -316,7 +411,7 @@ func writeOutputs(dir string, results []*dls.Result, doc *report.Document) error
 	for _, f := range []struct {
 		name string
 		data io.Reader
-	}{{"results.csv", &csvBuf}, {"results.json", &jsonBuf}} {
+	}{{"results.csv", &csvBuf}, {"samples.csv", &smpBuf}, {"results.json", &jsonBuf}} {
 		if err := writeAtomic(filepath.Join(dir, f.name), f.data); err != nil {
 			return err
 		}

@@ -17,6 +17,8 @@ const (
 	exitFatal       = 1   // nothing usable
 	exitUsage       = 2   // usage error
 	exitSomeFailed  = 3   // some measurements could not be analysed; the rest are written
+	exitSpecFailed  = 4   // some samples failed their specification
+	exitInvalid     = 5   // batch invalid: system suitability failed or not shown
 	exitInterrupted = 130 // interrupted (SIGINT/SIGTERM)
 )
 
@@ -42,6 +44,7 @@ func subcommands() []subcommand {
 		{"run", "analyse correlogram files and folders into results", runRun},
 		{"simulate", "write synthetic correlograms of a stated population", runSimulate},
 		{"solvents", "list the solvent table with valid ranges and sources", runSolvents},
+		{"flags", "list the quality-control flags with their meaning and threshold", runFlags},
 	}
 }
 
@@ -93,5 +96,7 @@ const exitCodesText = `Exit codes:
   1    fatal: nothing usable was produced
   2    usage error (bad flag, unreadable settings)
   3    some measurements could not be analysed (status error); the rest are written
+  4    some samples failed their specification (--spec)
+  5    batch invalid: the reference standard failed or was not measured (--spec)
   130  interrupted
 `

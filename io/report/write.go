@@ -7,11 +7,12 @@ import (
 	"fmt"
 	"io"
 	"math"
-	"sort"
+	"strconv"
 	"strings"
 	"text/tabwriter"
 
 	"dlsbatch/dls"
+	"dlsbatch/dls/spec"
 )
 
 // Caution is carried by every report: the results support, not replace,
@@ -48,7 +49,17 @@ type Document struct {
 	Caution  string         `json:"caution"`
 	Settings map[string]any `json:"settings"`
 	Counts   Counts         `json:"counts"`
+	Batch    spec.Batch     `json:"batch"`
+	Sheet    *SheetReport   `json:"sheet,omitempty"`
+	Samples  []*dls.Sample  `json:"samples"`
 	Results  []*dls.Result  `json:"results"`
+}
+
+// SheetReport records how a sample sheet matched the files of a run.
+type SheetReport struct {
+	File           string   `json:"file"`
+	UnmatchedFiles []string `json:"unmatched_files"`
+	UnusedRows     []string `json:"unused_rows"`
 }
 
 // Counts are the numbers of results by status.
@@ -104,7 +115,8 @@ func WriteJSON(w io.Writer, doc *Document) error {
 	for _, f := range []struct {
 		name string
 		v    any
-	}{{"tool", doc.Tool}, {"version", doc.Version}, {"caution", doc.Caution}, {"settings", doc.Settings}, {"counts", doc.Counts}} {
+	}{{"tool", doc.Tool}, {"version", doc.Version}, {"caution", doc.Caution}, {"settings", doc.Settings}, {"counts", doc.Counts},
+		{"batch", doc.Batch}, {"sheet", doc.Sheet}, {"samples", doc.Samples}} {
 		if err := field(f.name, f.v, false); err != nil {
 			return fmt.Errorf("results json: %w", err)
 		}
@@ -146,63 +158,59 @@ func checkFinite(r *dls.Result) error {
 }
 
 // WriteSummary prints a short table for the terminal: one line per sample
-// (measurements, how many analysed, mean and standard deviation of the
-// z-average, mean PDI), then the counts and the first problems.
-func WriteSummary(w io.Writer, results []*dls.Result, maxProblems int) error {
-	type agg struct {
-		name         string
-		n, used      int
-		z, pdi       []float64
-		temperatures map[string]bool
-	}
-	bySample := map[string]*agg{}
-	var order []string
-	for _, r := range results {
-		key := r.Sample
-		if key == "" {
-			key = r.File
-		}
-		a := bySample[key]
-		if a == nil {
-			a = &agg{name: key, temperatures: map[string]bool{}}
-			bySample[key] = a
-			order = append(order, key)
-		}
-		a.n++
-		if r.HasCumulants {
-			a.used++
-			a.z = append(a.z, r.ZAvgNm)
-			a.pdi = append(a.pdi, r.PDI)
-		}
-		if r.HasConditions {
-			a.temperatures[fixed(r.TemperatureC, 1)] = true
-		}
-	}
+// (verdict when a specification is in force, runs used of measured, mean
+// and SD of the z-average, mean PDI, flag codes), then the batch outcome,
+// the counts, and the first problems with file and line.
+func WriteSummary(w io.Writer, results []*dls.Result, samples []*dls.Sample, b spec.Batch, maxProblems int) error {
 	tw := tabwriter.NewWriter(w, 0, 0, 2, ' ', 0)
-	fmt.Fprintln(tw, "sample\tT °C\tmeasured\tanalysed\tz-average nm\tSD nm\tPDI\t")
-	for _, k := range order {
-		a := bySample[k]
-		ts := make([]string, 0, len(a.temperatures))
-		for t := range a.temperatures {
-			ts = append(ts, t)
+	head := "sample\tT °C\truns\tz-average nm\tSD nm\tPDI\tflags\t"
+	if b.Specified {
+		head = "verdict\t" + head
+	}
+	fmt.Fprintln(tw, head)
+	for _, smp := range samples {
+		name := smp.Name
+		if smp.Lot != "" {
+			name += " (" + smp.Lot + ")"
 		}
-		sort.Strings(ts)
+		ts := make([]string, len(smp.TemperaturesC))
+		for i, t := range smp.TemperaturesC {
+			ts[i] = fixed(t, 1)
+		}
 		zs, sd, pd := "–", "–", "–"
-		if len(a.z) > 0 {
-			m, s := meanSD(a.z)
-			pm, _ := meanSD(a.pdi)
-			zs, pd = fixed(m, 1), fixed(pm, 3)
-			if len(a.z) > 1 {
-				sd = fixed(s, 1)
+		if smp.NUsed > 0 {
+			zs, pd = fixed(smp.ZAvgMeanNm, 1), fixed(smp.PDIMean, 3)
+			if smp.NUsed > 1 {
+				sd = fixed(smp.ZAvgSDNm, 1)
 			}
 		}
-		fmt.Fprintf(tw, "%s\t%s\t%d\t%d\t%s\t%s\t%s\t\n", a.name, strings.Join(ts, ","), a.n, a.used, zs, sd, pd)
+		row := fmt.Sprintf("%s\t%s\t%d/%d\t%s\t%s\t%s\t%s\t", name, strings.Join(ts, ","), smp.NUsed, smp.NRuns, zs, sd, pd, flagCodes(smp.Flags))
+		if b.Specified {
+			v := "–"
+			if smp.Verdict != nil {
+				v = strings.ToUpper(smp.Verdict.Outcome)
+			}
+			row = v + "\t" + row
+		}
+		fmt.Fprintln(tw, row)
 	}
 	if err := tw.Flush(); err != nil {
 		return err
 	}
 	c := CountResults(results)
 	fmt.Fprintf(w, "\n%d measurements: %d ok, %d warn, %d error\n", c.Total, c.OK, c.Warn, c.Error)
+	if b.Specified {
+		if b.Valid {
+			fmt.Fprintf(w, "batch valid (system suitability passed): %d pass, %d fail, %d without specification\n", b.Pass, b.Fail, b.NoSpec)
+		} else {
+			fmt.Fprintf(w, "BATCH INVALID: %s\n", b.Reason)
+		}
+		for _, smp := range samples {
+			if smp.Verdict != nil && smp.Verdict.Outcome == dls.VerdictFail {
+				fmt.Fprintf(w, "  FAIL  %s: %s\n", smp.Name, smp.Verdict.Reason)
+			}
+		}
+	}
 	shown := 0
 	for _, r := range results {
 		if r.Status == dls.StatusOK {
@@ -225,6 +233,72 @@ func WriteSummary(w io.Writer, results []*dls.Result, maxProblems int) error {
 		}
 		fmt.Fprintf(w, "  %-5s %s: %s\n", r.Status, id, msg)
 		shown++
+	}
+	return nil
+}
+
+// flagCodes lists the distinct codes of flags, in first-seen order.
+func flagCodes(f []dls.Flag) string {
+	seen := map[string]bool{}
+	var out []string
+	for _, x := range f {
+		if !seen[x.Code] {
+			seen[x.Code] = true
+			out = append(out, x.Code)
+		}
+	}
+	return strings.Join(out, " ")
+}
+
+// WriteSamplesCSV writes samples.csv: one row per sample with its
+// statistics, flags and verdict.
+func WriteSamplesCSV(w io.Writer, samples []*dls.Sample, results []*dls.Result) error {
+	cw := csv.NewWriter(w)
+	cw.Write([]string{"sample", "lot", "product", "role", "group", "temperature_c", "n_runs", "n_used",
+		"z_avg_mean_nm", "z_avg_sd_nm", "z_avg_rsd_pct", "pdi_mean", "pdi_sd", "peak1_mean_nm", "d90_mean_nm",
+		"outliers", "outliers_excluded", "flags", "verdict", "verdict_reason"})
+	for _, s := range samples {
+		ts := make([]string, len(s.TemperaturesC))
+		for i, t := range s.TemperaturesC {
+			ts[i] = fixed(t, 2)
+		}
+		var out []string
+		for _, i := range s.Outliers {
+			id := results[i].File
+			if results[i].Run != "" {
+				id += "[" + results[i].Run + "]"
+			}
+			out = append(out, id)
+		}
+		stat := func(v float64, prec int) string {
+			if s.NUsed == 0 {
+				return ""
+			}
+			return fixed(v, prec)
+		}
+		sd := func(v float64, prec int) string {
+			if s.NUsed < 2 {
+				return ""
+			}
+			return fixed(v, prec)
+		}
+		opt := func(v float64) string {
+			if v == 0 {
+				return ""
+			}
+			return fixed(v, 3)
+		}
+		verdict, reason := "", ""
+		if s.Verdict != nil {
+			verdict, reason = s.Verdict.Outcome, s.Verdict.Reason
+		}
+		cw.Write([]string{s.Name, s.Lot, s.Product, s.Role, s.Group, strings.Join(ts, " "), strconv.Itoa(s.NRuns), strconv.Itoa(s.NUsed),
+			stat(s.ZAvgMeanNm, 3), sd(s.ZAvgSDNm, 3), sd(s.ZAvgRSDPct, 2), stat(s.PDIMean, 4), sd(s.PDISD, 4), opt(s.Peak1MeanNm), opt(s.D90MeanNm),
+			strings.Join(out, " "), strconv.FormatBool(s.OutliersExcluded), flagCodes(s.Flags), verdict, reason})
+	}
+	cw.Flush()
+	if err := cw.Error(); err != nil {
+		return fmt.Errorf("samples csv: %w", err)
 	}
 	return nil
 }

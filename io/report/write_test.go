@@ -9,6 +9,7 @@ import (
 	"testing"
 
 	"dlsbatch/dls"
+	"dlsbatch/dls/spec"
 )
 
 func sampleResults() []*dls.Result {
@@ -95,7 +96,9 @@ func TestWriteJSONDeterministicAndFinite(t *testing.T) {
 
 func TestWriteSummary(t *testing.T) {
 	var b bytes.Buffer
-	if err := WriteSummary(&b, sampleResults(), 10); err != nil {
+	rs := sampleResults()
+	smp := []*dls.Sample{{Name: "lot, 7", NRuns: 1, NUsed: 1, ZAvgMeanNm: 100.0004, TemperaturesC: []float64{25}}, {Name: "", NRuns: 1}}
+	if err := WriteSummary(&b, rs, smp, spec.Batch{}, 10); err != nil {
 		t.Fatal(err)
 	}
 	s := b.String()
