@@ -115,9 +115,10 @@ func Fit(m *dls.Measurement, s *Settings) (*Result, error) {
 	if s.RangeCheck {
 		p.rangeCheck(s, res)
 	}
-	// A PDI below zero by more than twice its standard error (or 1e-4,
-	// whichever is larger) cannot be a distribution's variance.
-	if res.PDI < -math.Max(2*res.PDISE, 1e-4) {
+	// A PDI below zero by more than three standard errors (or 1e-4,
+	// whichever is larger) cannot be a distribution's variance; nearer
+	// zero it is the noise of a narrow sample.
+	if res.PDI < -math.Max(3*res.PDISE, 1e-4) {
 		res.Warnings = append(res.Warnings, fmt.Errorf("negative second cumulant (PDI %.3g ± %.2g): noise, or a fit range too short; reported as fitted", res.PDI, res.PDISE))
 	}
 	return res, nil

@@ -325,3 +325,53 @@ func TestHelpListsExitCodes(t *testing.T) {
 		}
 	}
 }
+
+func TestDemoInvalidBatch(t *testing.T) {
+	// The second demo night: the reference latex reads about 109 nm against
+	// its window 100.8 ± 3 nm, so system suitability fails and the lot's
+	// verdict is invalid (exit 5), whatever its own values.
+	out := filepath.Join(t.TempDir(), "o")
+	code, stdout, stderr := runCmd(t, "run", "../../testdata/demo-invalid", "--sheet", "../../testdata/demo-invalid-sheet.csv",
+		"--spec", "../../testdata/demo-spec.csv", "--out", out)
+	if code != exitInvalid {
+		t.Fatalf("exit %d, want %d\n%s\n%s", code, exitInvalid, stdout, stderr)
+	}
+	b, err := os.ReadFile(filepath.Join(out, "samples.csv"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	rows, _ := csv.NewReader(bytes.NewReader(b)).ReadAll()
+	verdict := map[string]string{}
+	for _, r := range rows[1:] {
+		verdict[r[1]] = r[18]
+	}
+	if verdict["G2413"] != "invalid" || verdict["RL-100-B7"] != "fail" {
+		t.Errorf("verdicts %v, want G2413 invalid and the reference failed", verdict)
+	}
+	if !strings.Contains(stdout, "BATCH INVALID") {
+		t.Errorf("summary does not say the batch is invalid:\n%s", stdout)
+	}
+}
+
+func TestMalformedSheetStopsBeforeAnalysis(t *testing.T) {
+	// A malformed sample sheet or specification is a usage error naming
+	// file, line and column, and no results are written.
+	in := t.TempDir()
+	writeMono(t, filepath.Join(in, "a.csv"), "a", 1)
+	bad := filepath.Join(t.TempDir(), "sheet.csv")
+	os.WriteFile(bad, []byte("file,temperature_c\na.csv,warm\n"), 0o644)
+	badSpec := filepath.Join(t.TempDir(), "spec.csv")
+	os.WriteFile(badSpec, []byte("product,quantity,max\np,sizee,3\n"), 0o644)
+	for _, c := range []struct {
+		flag, path, where string
+	}{{"--sheet", bad, "sheet.csv:2:7"}, {"--spec", badSpec, "spec.csv:2:3"}} {
+		out := filepath.Join(t.TempDir(), "o")
+		code, _, stderr := runCmd(t, "run", in, c.flag, c.path, "--out", out)
+		if code != exitUsage || !strings.Contains(stderr, c.where) {
+			t.Errorf("%s: exit %d, stderr %q; want %d naming %s", c.flag, code, stderr, exitUsage, c.where)
+		}
+		if _, err := os.Stat(filepath.Join(out, "results.csv")); err == nil {
+			t.Errorf("%s: results were written despite the bad file", c.flag)
+		}
+	}
+}

@@ -72,7 +72,7 @@ type Thresholds struct {
 
 // DefaultThresholds returns the defaults (common practice, from memory,
 // to be tuned per site): intercept 0.1–1.0, baseline offset 0.5 % of the
-// intercept, dust = over 1 % of the intensity above both 10 z-averages and
+// intercept, dust = over 5 % of the intensity above both 10 z-averages and
 // 1 µm, χ²/ν
 // above 3, cumulant rms over 2× the distribution fit's, PDI above 0.3,
 // decay time below 5 first lags or above 10 % of the last lag, second peak
@@ -81,7 +81,7 @@ type Thresholds struct {
 func DefaultThresholds() Thresholds {
 	return Thresholds{
 		MinIntercept: 0.1, MaxIntercept: 1.0, MaxBaselineShift: 0.005,
-		DustSizeFactor: 10, DustMinNm: 1000, DustMinPct: 1,
+		DustSizeFactor: 10, DustMinNm: 1000, DustMinPct: 5,
 		MaxReducedChi2: 3, MaxRMSRatio: 2,
 		MaxPDI:       0.3,
 		MinDecayLags: 5, MaxDecayFraction: 0.1,

@@ -39,7 +39,7 @@ func TestFlagsFireAndStayQuiet(t *testing.T) {
 		{HighIntercept, func(r *dls.Result) { r.Intercept = 1.02; r.FarBaseline = 1 }},
 		{NoBaseline, func(r *dls.Result) { r.BaselineReached = false }},
 		{BaselineOffset, func(r *dls.Result) { r.FarBaseline = 1.006 }}, // 0.65 % of 0.92 > 0.5 %
-		{Dust, func(r *dls.Result) { r.Distribution.Intensity = []float64{0.1, 0.78, 0.1, 0.02} }},
+		{Dust, func(r *dls.Result) { r.Distribution.Intensity = []float64{0.1, 0.74, 0.1, 0.06} }},
 		{PoorFit, func(r *dls.Result) { r.SigmaEstimated = false; r.ReducedChi2 = 3.5 }},
 		{HighPDI, func(r *dls.Result) { r.PDI = 0.31 }},
 		{OutsideWindow, func(r *dls.Result) { r.GammaMeanPerS = 1 / (4e-6) }}, // 4 µs < 5 first lags
