@@ -177,7 +177,9 @@ func verdict(smp *dls.Sample, limits []Limit, results []*dls.Result) *dls.Verdic
 	return v
 }
 
-func trim(v float64) string { return strings.TrimRight(strings.TrimRight(fmt.Sprintf("%.4f", v), "0"), ".") }
+func trim(v float64) string {
+	return strings.TrimRight(strings.TrimRight(fmt.Sprintf("%.4f", v), "0"), ".")
+}
 
 // value returns the sample's value of the limit's quantity, and whether it
 // exists.
