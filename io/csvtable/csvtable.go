@@ -78,7 +78,7 @@ func Read(r io.Reader, file string) (*Table, error) {
 		} else {
 			if len(rec) != len(t.Header) {
 				return nil, &dls.PosError{File: file, Line: fp[0][0], Column: 1,
-					Err: fmt.Errorf("%d cells, the header has %d: %w", len(rec), len(t.Header), dls.ErrBadHeader)}
+					Err: fmt.Errorf("%d fields, the header has %d: %w", len(rec), len(t.Header), dls.ErrBadHeader)}
 			}
 			t.Rows = append(t.Rows, rec)
 		}

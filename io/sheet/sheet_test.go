@@ -83,7 +83,7 @@ func TestParseErrors(t *testing.T) {
 		{"non-numeric temperature", "file,temperature_c\na.csv,25\nb.csv,warm\n", 3, 7, dls.ErrBadMetadata, []string{"temperature_c", "warm"}},
 		{"bad role", "file,role\na.csv,standard\n", 2, 7, dls.ErrBadMetadata, []string{"standard"}},
 		{"bad pattern", "file\n[a.csv\n", 2, 1, nil, []string{"pattern"}},
-		{"ragged row", "file,lot\na.csv,1,2\n", 2, 1, dls.ErrBadHeader, []string{"3 cells"}},
+		{"ragged row", "file,lot\na.csv,1,2\n", 2, 1, dls.ErrBadHeader, []string{"3 fields"}},
 		{"empty", "# nothing\n", 0, 0, dls.ErrEmpty, nil},
 		{"not text", "file\x00\n", 0, 0, dls.ErrNotText, nil},
 	}

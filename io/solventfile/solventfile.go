@@ -1,9 +1,7 @@
 package solventfile
 
 import (
-	"bytes"
 	"encoding/csv"
-	"errors"
 	"fmt"
 	"io"
 	"math"
@@ -12,9 +10,8 @@ import (
 	"strings"
 	"unicode"
 
-	"github.com/gocarina/gocsv"
-
 	"dlsbatch/dls"
+	"dlsbatch/io/csvtable"
 )
 
 // Models of the viscosity_model and index_model columns.
@@ -72,112 +69,33 @@ var Columns = []string{"name", "aliases", "t_min_c", "t_max_c", "viscosity_model
 var required = []string{"name", "t_min_c", "t_max_c", "viscosity_model", "viscosity_params",
 	"index_model", "index_params", "source"}
 
-// posReader is the CSVReader given to gocsv: it reads with encoding/csv and
-// keeps the line and column of every field for messages.
-type posReader struct {
-	r   *csv.Reader
-	pos [][][2]int // record → field → (line, column)
-}
-
-func (p *posReader) Read() ([]string, error) {
-	rec, err := p.r.Read()
-	if err != nil {
-		return nil, err
-	}
-	fp := make([][2]int, len(rec))
-	for i := range rec {
-		l, c := p.r.FieldPos(i)
-		fp[i] = [2]int{l, c}
-	}
-	p.pos = append(p.pos, fp)
-	if len(p.pos) == 1 { // header: case-insensitive names
-		for i := range rec {
-			rec[i] = strings.ToLower(strings.TrimSpace(rec[i]))
-		}
-	}
-	return rec, nil
-}
-
-func (p *posReader) ReadAll() ([][]string, error) {
-	var out [][]string
-	for {
-		rec, err := p.Read()
-		if err == io.EOF {
-			return out, nil
-		}
-		if err != nil {
-			return nil, err
-		}
-		out = append(out, rec)
-	}
-}
-
 // Parse reads a solvent file from r; file names it in errors. Every error is
 // a *dls.PosError.
 func Parse(r io.Reader, file string) ([]Entry, error) {
-	data, err := io.ReadAll(r)
+	t, err := csvtable.Read(r, file)
 	if err != nil {
-		return nil, &dls.PosError{File: file, Err: err}
-	}
-	data = bytes.TrimPrefix(data, []byte("\xef\xbb\xbf"))
-	if bytes.IndexByte(data, 0) >= 0 {
-		return nil, &dls.PosError{File: file, Err: dls.ErrNotText}
-	}
-	cr := csv.NewReader(bytes.NewReader(data))
-	cr.Comment = '#'
-	cr.FieldsPerRecord = -1
-	cr.TrimLeadingSpace = true
-	pr := &posReader{r: cr}
-	records, err := pr.ReadAll()
-	if err != nil {
-		var pe *csv.ParseError
-		if errors.As(err, &pe) {
-			return nil, &dls.PosError{File: file, Line: pe.Line, Column: pe.Column, Err: pe.Err}
-		}
-		return nil, &dls.PosError{File: file, Err: err}
-	}
-	if len(records) == 0 {
-		return nil, &dls.PosError{File: file, Err: dls.ErrEmpty}
-	}
-	header := records[0]
-	hpos := pr.pos[0]
-	if err := checkHeader(header, hpos, file); err != nil {
 		return nil, err
 	}
-	for i, rec := range records[1:] {
-		if len(rec) != len(header) {
-			p := pr.pos[i+1]
-			return nil, &dls.PosError{File: file, Line: p[0][0], Column: p[0][1],
-				Err: fmt.Errorf("%d fields, the header has %d: %w", len(rec), len(header), dls.ErrBadHeader)}
-		}
+	if err := t.CheckHeader(Columns, required); err != nil {
+		return nil, err
 	}
-
 	var rows []row
-	if len(records) > 1 {
-		if err := gocsv.UnmarshalCSV(&sliceReader{records: records}, &rows); err != nil {
-			return nil, &dls.PosError{File: file, Line: hpos[0][0], Err: err}
+	if len(t.Rows) > 0 {
+		if err := t.Unmarshal(&rows); err != nil {
+			return nil, err
 		}
-	}
-	col := make(map[string]int, len(header))
-	for i, h := range header {
-		col[h] = i
 	}
 	seen := make(map[string]int)
 	out := make([]Entry, 0, len(rows))
 	for i, rw := range rows {
-		fp := pr.pos[i+1]
 		at := func(name string, err error) error {
-			j, ok := col[name]
-			if !ok {
-				return &dls.PosError{File: file, Line: fp[0][0], Err: err}
-			}
-			return &dls.PosError{File: file, Line: fp[j][0], Column: fp[j][1], Err: fmt.Errorf("%s: %w", name, err)}
+			return t.Err(i, t.Col(name), err)
 		}
 		e, err := parseRow(rw, at)
 		if err != nil {
 			return nil, err
 		}
-		e.File, e.Line = file, fp[0][0]
+		e.File, e.Line = file, t.Line(i)
 		for _, k := range append([]string{e.Name}, e.Aliases...) {
 			key := strings.ToLower(k)
 			if prev, dup := seen[key]; dup {
@@ -188,52 +106,6 @@ func Parse(r io.Reader, file string) ([]Entry, error) {
 		out = append(out, e)
 	}
 	return out, nil
-}
-
-// sliceReader hands records already read to gocsv.
-type sliceReader struct {
-	records [][]string
-	i       int
-}
-
-func (s *sliceReader) Read() ([]string, error) {
-	if s.i >= len(s.records) {
-		return nil, io.EOF
-	}
-	s.i++
-	return s.records[s.i-1], nil
-}
-
-func (s *sliceReader) ReadAll() ([][]string, error) {
-	out := s.records[s.i:]
-	s.i = len(s.records)
-	return out, nil
-}
-
-func checkHeader(header []string, pos [][2]int, file string) error {
-	known := make(map[string]bool, len(Columns))
-	for _, c := range Columns {
-		known[c] = true
-	}
-	seen := make(map[string]bool)
-	for i, h := range header {
-		switch {
-		case !known[h]:
-			return &dls.PosError{File: file, Line: pos[i][0], Column: pos[i][1],
-				Err: fmt.Errorf("unknown column %q (want %s): %w", h, strings.Join(Columns, ", "), dls.ErrBadHeader)}
-		case seen[h]:
-			return &dls.PosError{File: file, Line: pos[i][0], Column: pos[i][1],
-				Err: fmt.Errorf("column %q appears twice: %w", h, dls.ErrBadHeader)}
-		}
-		seen[h] = true
-	}
-	for _, r := range required {
-		if !seen[r] {
-			return &dls.PosError{File: file, Line: pos[0][0],
-				Err: fmt.Errorf("missing column %q: %w", r, dls.ErrBadHeader)}
-		}
-	}
-	return nil
 }
 
 // number parses one finite number.
