@@ -16,11 +16,12 @@ import (
 	"dlsbatch/io/csvdata"
 )
 
-// BenchmarkReadAndAnalyze reads one 200-channel correlogram from disk and
+// BenchmarkReadAndAnalyze reads one 200-channel correlogram (a demo file)
+// from disk and
 // runs the whole per-measurement pipeline on it (metadata, solvent
 // properties, cumulant fit, Stokes–Einstein).
 func BenchmarkReadAndAnalyze(b *testing.B) {
-	path := "../../testdata/demo/01_ref-ps100-start.csv"
+	path := "../../testdata/demo/02_gold20-G2411-1.csv"
 	s := batch.DefaultSettings()
 	b.ReportAllocs()
 	for b.Loop() {
