@@ -1,5 +1,7 @@
 package dls
 
+import "math"
+
 // Status is the outcome class of one measurement.
 type Status string
 
@@ -163,4 +165,45 @@ type AlphaRow struct {
 	ProbReject       float64 `json:"prob_reject"`
 	GCV              float64 `json:"gcv"`
 	Chosen           bool    `json:"chosen"`
+}
+
+// Finite reports whether every number of the result's cumulant part
+// (conditions, fit, curves) and of its distribution part is finite; JSON
+// cannot carry NaN or Inf, and no output may hold one.
+func (r *Result) Finite() (cumulantsOK, distributionOK bool) {
+	ok := func(vs ...[]float64) bool {
+		for _, v := range vs {
+			for _, x := range v {
+				if math.IsNaN(x) || math.IsInf(x, 0) {
+					return false
+				}
+			}
+		}
+		return true
+	}
+	scalars := []float64{r.TemperatureC, r.ViscosityMPaS, r.RefractiveIndex, r.WavelengthNm, r.AngleDeg, r.QPerM,
+		r.GammaMeanPerS, r.GammaSEPerS, r.Mu2PerS2, r.Mu3PerS3, r.DiffusionM2PerS, r.ZAvgNm, r.ZAvgSENm, r.PDI, r.PDISE,
+		r.Intercept, r.Baseline, r.FarBaseline, r.FitRMS, r.ReducedChi2, r.FitFirstTauS, r.FitLastTauS, r.RangeShiftPct,
+		r.LinearZAvgNm, r.LinearPDI, r.CountRateKcps, r.DurationS}
+	cumulantsOK = ok(scalars)
+	if r.Curves != nil {
+		cumulantsOK = cumulantsOK && ok(r.Curves.Fitted, r.Curves.Residuals)
+	}
+	distributionOK = ok([]float64{r.Alpha, r.Lambda, r.DegreesOfFreedom, r.ProbReject, r.DistMeanRatePerS, r.DistZAvgNm})
+	for _, w := range []*WeightSummary{r.Intensity, r.Volume, r.Number} {
+		if w == nil {
+			continue
+		}
+		distributionOK = distributionOK && ok([]float64{w.MeanNm, w.D10Nm, w.D50Nm, w.D90Nm})
+		for _, p := range w.Peaks {
+			distributionOK = distributionOK && ok([]float64{p.ModeNm, p.MeanNm, p.SDNm, p.AreaPct, p.LowNm, p.HighNm})
+		}
+	}
+	if d := r.Distribution; d != nil {
+		distributionOK = distributionOK && ok(d.DiameterNm, d.Intensity, d.Volume, d.Number, d.G1, d.G1Sigma, d.G1Fitted, d.G1Residuals)
+		for _, s := range d.Scan {
+			distributionOK = distributionOK && ok([]float64{s.Lambda, s.Alpha, s.ChiSquare, s.DegreesOfFreedom, s.NormLx, s.ProbReject, s.GCV})
+		}
+	}
+	return cumulantsOK, distributionOK
 }

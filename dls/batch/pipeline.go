@@ -163,6 +163,16 @@ func Analyze(m *dls.Measurement, s *Settings) *dls.Result {
 	if s.Distribution.Enabled {
 		warn = append(warn, distribution(m, fit, cond, meta, &s.Distribution, r)...)
 	}
+	// Last guard: no output may carry NaN or Inf. A non-finite cumulant
+	// result fails the measurement; a non-finite distribution is dropped.
+	if cOK, dOK := r.Finite(); !cOK {
+		*r = dls.Result{File: r.File, Run: r.Run, Sample: r.Sample, Lot: r.Lot, Product: r.Product, Role: r.Role,
+			Group: r.Group, CorrelationColumn: r.CorrelationColumn, Params: r.Params}
+		return fail(fmt.Errorf("numerical failure: the cumulant fit gave a non-finite value"))
+	} else if !dOK {
+		dropDistribution(r)
+		warn = append(warn, "size distribution dropped: the inversion gave a non-finite value")
+	}
 	if s.KeepCurves {
 		r.Curves = &dls.Curves{TauS: m.TauS, Data: m.Corr, Fitted: fit.Fitted, Residuals: fit.Residuals, Kind: m.Kind.String()}
 	} else if r.Distribution != nil {
@@ -292,3 +302,11 @@ func (g givenIndex) RefractiveIndex(float64, float64) float64 { return float64(g
 func (givenIndex) RangeK() (float64, float64)                 { return 0, math.Inf(1) }
 func (givenIndex) RangeLambdaM() (float64, float64)           { return 0, math.Inf(1) }
 func (givenIndex) Source(float64) string                      { return "user-supplied" }
+
+// dropDistribution removes every distribution result from r.
+func dropDistribution(r *dls.Result) {
+	r.HasDistribution = false
+	r.Intensity, r.Volume, r.Number, r.Distribution = nil, nil, nil, nil
+	r.Alpha, r.Lambda, r.DegreesOfFreedom, r.ProbReject, r.DistMeanRatePerS, r.DistZAvgNm = 0, 0, 0, 0, 0, 0
+	r.AlphaCriterion, r.ParticleRI = "", ""
+}

@@ -141,18 +141,8 @@ func WriteJSON(w io.Writer, doc *Document) error {
 }
 
 func checkFinite(r *dls.Result) error {
-	vals := []float64{r.TemperatureC, r.ViscosityMPaS, r.RefractiveIndex, r.WavelengthNm, r.AngleDeg, r.QPerM,
-		r.GammaMeanPerS, r.GammaSEPerS, r.Mu2PerS2, r.Mu3PerS3, r.DiffusionM2PerS, r.ZAvgNm, r.ZAvgSENm, r.PDI, r.PDISE,
-		r.Intercept, r.Baseline, r.FarBaseline, r.FitRMS, r.ReducedChi2, r.FitFirstTauS, r.FitLastTauS, r.RangeShiftPct,
-		r.LinearZAvgNm, r.LinearPDI, r.CountRateKcps, r.DurationS}
-	if r.Curves != nil {
-		vals = append(vals, r.Curves.Fitted...)
-		vals = append(vals, r.Curves.Residuals...)
-	}
-	for _, v := range vals {
-		if math.IsNaN(v) || math.IsInf(v, 0) {
-			return fmt.Errorf("non-finite value in result")
-		}
+	if c, d := r.Finite(); !c || !d {
+		return fmt.Errorf("non-finite value in result")
 	}
 	return nil
 }
