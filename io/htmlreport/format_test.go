@@ -1,0 +1,48 @@
+package htmlreport
+
+import (
+	"math"
+	"testing"
+)
+
+// Number formats of the pages. Expected strings follow from the stated
+// rule (n significant digits; fixed decimals; no negative zero), worked
+// by hand; exact strings, no tolerance.
+func TestFormats(t *testing.T) {
+	for _, tc := range []struct {
+		name, got, want string
+	}{
+		{"sig 4 of 100.95187", sig(100.95187, 4), "101.0"},
+		{"sig 4 of 0.0050686", sig(0.0050686, 4), "0.005069"},
+		{"sig 4 of -0.0144", sig(-0.0144, 4), "-0.01440"},
+		{"sig 4 below 1e-3 uses an exponent", sig(1.380649e-23, 4), "1.381e-23"},
+		{"sig 4 of 1e6 uses an exponent", sig(2.5e6, 4), "2.500e+06"},
+		{"sig of zero", sig(0, 4), "0"},
+		{"sig of NaN", sig(math.NaN(), 4), "—"},
+		{"fixed has no negative zero", fixed(-0.0001, 3), "0.000"},
+		{"fixed keeps a real sign", fixed(-0.0144, 3), "-0.014"},
+		{"fixed of +Inf", fixed(math.Inf(1), 1), "—"},
+		{"size ≥ 100 nm: integer", size(101.325), "101"},
+		{"size 10–100 nm: one decimal", size(19.46), "19.5"},
+		{"size < 10 nm: two decimals", size(8.234), "8.23"},
+		{"lag in ns", lag(2.5e-8), "25.0 ns"},
+		{"lag in µs", lag(6.656e-4), "666 µs"},
+		{"lag in ms", lag(3.356e-3), "3.36 ms"},
+		{"lag in s", lag(3.355443), "3.36 s"},
+		{"mean ± SD of two runs", meanSD(100.94, 0.42, 2, 1), "100.9 ± 0.4"},
+		{"one run: no SD", meanSD(100.94, 0, 1, 1), "100.9"},
+		{"no run: dash", meanSD(0, 0, 0, 1), "—"},
+		{"RSD needs two runs", spread(0.4, 1, 1), "—"},
+		{"temperatures", temperatures([]float64{25, 37.04}), "25.0, 37.0"},
+		{"setting nil", settingValue(nil), "—"},
+		{"setting string", settingValue("nonlinear"), "nonlinear"},
+		{"setting list as JSON", settingValue([]string{"solvent=water"}), `["solvent=water"]`},
+		{"setting map as JSON, keys sorted", settingValue(map[string]int{"b": 2, "a": 1}), `{"a":1,"b":2}`},
+		{"setting float as JSON", settingValue(1.380649e-23), "1.380649e-23"},
+		{"setting bool", settingValue(true), "true"},
+	} {
+		if tc.got != tc.want {
+			t.Errorf("%s: got %q, want %q", tc.name, tc.got, tc.want)
+		}
+	}
+}
