@@ -61,13 +61,15 @@ for p in "${pages[@]}"; do
   log="$shots/$name.log"
   profile=$(mktemp -d)
   rm -f "$png"
-  # timeout guards against a browser that never exits; --virtual-time-budget
-  # lets the page settle before the screenshot.
+  # timeout guards against a browser that never exits. --virtual-time-budget
+  # lets layout and raster finish before the screenshot (virtual time runs
+  # fast on an idle page; with 2 s a long table came out half painted on a
+  # loaded machine).
   status=0
   timeout 180 "$CHROMIUM" --headless --no-sandbox --disable-gpu --disable-quic --no-first-run \
     --disable-background-networking --disable-component-update --disable-sync \
     --user-data-dir="$profile" --enable-logging=stderr --v=0 \
-    --window-size=1280,1600 --hide-scrollbars --virtual-time-budget=2000 \
+    --window-size=1280,1600 --hide-scrollbars --virtual-time-budget=10000 \
     --screenshot="$png" "file://$p" >"$log" 2>&1 || status=$?
   rm -rf "$profile"
   [ "$status" -eq 0 ] || { tail -n 20 "$log" >&2; fail "chromium exited with status $status on $name.html"; }

@@ -28,6 +28,10 @@
 //	              [d_first/2, 2·d_last] widened to whole decades, where d_first
 //	              and d_last bound the bins above 0.2 % of a weighting's maximum
 //
+// A sample page plots at most Report.MaxPlotRuns runs (default
+// DefaultMaxPlotRuns = 24, the first in Sample.Runs order, so that a page
+// stays under about 1 MB); every run is still in the tables.
+//
 // Safety: every user string (sample, lot, product, file name, message,
 // parameter value) goes through html/template's contextual escaping, and
 // file names come only from positions (index.html, sample-0001.html, …).

@@ -147,7 +147,7 @@ func correlogramSVG(c *dls.Curves, lo, hi float64) template.HTML {
 		}
 	}
 	addWindow(p, data, lo, hi)
-	return render(p)
+	return render(p, "correlation data and cumulant fit against lag time")
 }
 
 // residualSVG plots data − fit against lag time with a zero line.
@@ -174,7 +174,7 @@ func residualSVG(c *dls.Curves, lo, hi float64) template.HTML {
 		p.Y.Min, p.Y.Max = -m*1.05, m*1.05
 	}
 	addWindow(p, res, lo, hi)
-	return render(p)
+	return render(p, "residuals of the cumulant fit against lag time")
 }
 
 // points draws data points as small squares in a single SVG path: one
@@ -278,7 +278,7 @@ func distributionSVG(d *dls.SizeDistribution) template.HTML {
 		return ""
 	}
 	p.X.Min, p.X.Max = lo, hi
-	return render(p)
+	return render(p, "intensity, volume and number size distributions against diameter")
 }
 
 // cropRange returns the diameter range to show.
@@ -347,10 +347,10 @@ func correlationLabel(kind string) string {
 // by a class (the page sets the width), and fonts fall back to
 // metric-compatible families when Liberation Sans is not installed.
 //
-// The SVG is trusted HTML: its only text is the axis labels and tick
-// labels written here (gonum/plot escapes text as well); no user string
+// The SVG is trusted HTML: its only text is the label, the axis labels
+// and the tick labels written here (gonum/plot escapes text as well); no user string
 // reaches a plot.
-func render(p *plot.Plot) template.HTML {
+func render(p *plot.Plot, label string) template.HTML {
 	c := vgsvg.New(plotWidth, plotHeight)
 	// A small margin at the top and right keeps the last tick label and
 	// the data off the edge.
@@ -366,7 +366,7 @@ func render(p *plot.Plot) template.HTML {
 	}
 	s = s[i:]
 	if j := strings.Index(s, "viewBox="); j >= 0 {
-		s = `<svg class="plot" role="img" ` + s[j:]
+		s = `<svg class="plot" role="img" aria-label="` + label + `" ` + s[j:]
 	}
 	s = strings.ReplaceAll(s, "font-family:Liberation Sans;", "font-family:'Liberation Sans',Arimo,Arial,Helvetica,sans-serif;")
 	return template.HTML(s)
