@@ -205,6 +205,7 @@ func distribution(m *dls.Measurement, fit *cumulants.Result, st state, meta dls.
 		r.DistZAvgNm = dls.DiameterFromDiffusion(tK, st.etaPaS, dls.DiffusionFromRate(r.DistMeanRatePerS, st.optics.Q())) * 1e9
 	}
 	r.Intensity = summarise(d, d.Intensity, &s.Peaks)
+	keepPeaks(d, r.Intensity)
 	r.Volume = summarise(d, d.Volume, &s.Peaks)
 	r.Number = summarise(d, d.Number, &s.Peaks)
 	sd := &dls.SizeDistribution{
@@ -240,6 +241,39 @@ func sizeBoundedGrid(gs contin.GridSettings, tau []float64, tK, etaPaS, q float6
 		gs.GammaMaxPerS = math.Min(contin.DefaultGammaMaxTimesTauMin/tau[0], rate(minGridDiameterM))
 	}
 	return gs
+}
+
+// keepPeaks confines the volume and number weights to the bins of the
+// intensity peaks. Outside them the intensity solution is ripple (below
+// the peak rule's minimum share), and the factors 1/d³ and 1/d⁶ of the
+// conversion would turn a ripple of 0.1 % at the small end of the grid into
+// most of the number distribution (Finsy 1994; Patty & Frisken 2006).
+func keepPeaks(d *dls.Distribution, in *dls.WeightSummary) {
+	if len(in.Peaks) == 0 {
+		return
+	}
+	keep := make([]bool, len(d.DiameterNm))
+	for _, p := range in.Peaks {
+		for j, x := range d.DiameterNm {
+			if x >= p.LowNm && x <= p.HighNm {
+				keep[j] = true
+			}
+		}
+	}
+	for _, w := range [][]float64{d.Volume, d.Number} {
+		var sum float64
+		for j := range w {
+			if !keep[j] {
+				w[j] = 0
+			}
+			sum += w[j]
+		}
+		if sum > 0 {
+			for j := range w {
+				w[j] /= sum
+			}
+		}
+	}
 }
 
 // padFront aligns an array over lags first.. with the full lag axis; the
