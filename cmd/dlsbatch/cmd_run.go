@@ -21,6 +21,7 @@ import (
 	"dlsbatch/dls/qc"
 	"dlsbatch/dls/spec"
 	"dlsbatch/io/csvdata"
+	"dlsbatch/io/htmlreport"
 	"dlsbatch/io/report"
 	"dlsbatch/io/sheet"
 	"dlsbatch/io/solventfile"
@@ -50,6 +51,7 @@ type runOptions struct {
 	sheetFile   string
 	specFile    string
 	exclude     bool
+	noReport    bool
 }
 
 func newRunOptions() *runOptions {
@@ -86,6 +88,7 @@ func (o *runOptions) addFlags(fs *pflag.FlagSet) {
 	fs.StringVar(&o.sheetFile, "sheet", "", "sample sheet (CSV): per-file sample, lot, product, role and conditions")
 	fs.StringVar(&o.specFile, "spec", "", "specification (CSV): limits per product; verdicts and system suitability")
 	fs.BoolVar(&o.exclude, "exclude-outliers", false, "leave outlier runs out of each sample's statistics (they are flagged either way)")
+	fs.BoolVar(&o.noReport, "no-report", false, "do not write the HTML report (DIR/report/)")
 }
 
 const runUsage = `Usage: dlsbatch run [flags] PATH... --out DIR
@@ -239,17 +242,47 @@ func runRun(ctx context.Context, e env, args []string) int {
 		fmt.Fprintf(e.stderr, "dlsbatch run: %v\n", err)
 		return exitFatal
 	}
+	if !o.noReport {
+		if err := htmlreport.Write(filepath.Join(o.out, "report"), htmlReport(doc, samples, results)); err != nil {
+			fmt.Fprintf(e.stderr, "dlsbatch run: report: %v\n", err)
+			return exitFatal
+		}
+	}
 	if !o.quiet {
 		if err := report.WriteSummary(e.stdout, results, samples, outcome, 10); err != nil {
 			fmt.Fprintf(e.stderr, "dlsbatch run: %v\n", err)
 		}
-		fmt.Fprintf(e.stdout, "results: %s (results.csv, samples.csv, results.json)\n%s\n", o.out, report.Caution)
+		what := "results.csv, samples.csv, results.json"
+		if !o.noReport {
+			what += ", report/index.html"
+		}
+		fmt.Fprintf(e.stdout, "results: %s (%s)\n%s\n", o.out, what, report.Caution)
 	}
 	if runErr != nil {
 		fmt.Fprintf(e.stderr, "dlsbatch run: interrupted; the %d results finished are written\n", len(results))
 		return exitInterrupted
 	}
 	return exitCode(doc.Counts, outcome)
+}
+
+// htmlReport builds the report model from the run's document.
+func htmlReport(doc *report.Document, samples []*dls.Sample, results []*dls.Result) *htmlreport.Report {
+	b := htmlreport.BatchStatus{Suitability: htmlreport.SuitabilityNotAssessed}
+	if doc.Batch.Specified {
+		b.Suitability, b.Reason = htmlreport.SuitabilityValid, "every reference standard within its limits"
+		if !doc.Batch.Valid {
+			b.Suitability, b.Reason = htmlreport.SuitabilityInvalid, doc.Batch.Reason
+		}
+		for i, smp := range samples {
+			if smp.Role == "reference" && smp.Verdict != nil {
+				for _, c := range smp.Verdict.Checks {
+					b.Checks = append(b.Checks, htmlreport.SuitabilityCheck{Sample: i, Check: c})
+				}
+			}
+		}
+	}
+	return &htmlreport.Report{Tool: doc.Tool, Version: doc.Version, Caution: doc.Caution, Settings: doc.Settings,
+		Results: results, Samples: samples, Batch: b}
 }
 
 // exitCode maps the outcome of a finished run to the documented codes; the
