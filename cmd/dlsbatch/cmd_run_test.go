@@ -375,3 +375,42 @@ func TestMalformedSheetStopsBeforeAnalysis(t *testing.T) {
 		}
 	}
 }
+
+func TestHostileSheetNamesInReport(t *testing.T) {
+	// Sample names from a sheet with HTML and path syntax are shown as
+	// text in the report and never become file names.
+	in := t.TempDir()
+	writeMono(t, filepath.Join(in, "a.csv"), "a", 1)
+	writeMono(t, filepath.Join(in, "b.csv"), "b", 1)
+	sh := filepath.Join(t.TempDir(), "sheet.csv")
+	os.WriteFile(sh, []byte("file,sample,lot\na.csv,<script>alert(1)</script>,../../etc/passwd\nb.csv,../../x,\"<img src=x onerror=alert(2)>\"\n"), 0o644)
+	out := filepath.Join(t.TempDir(), "o")
+	if code, _, stderr := runCmd(t, "run", in, "--sheet", sh, "--out", out, "-q"); code != exitOK {
+		t.Fatalf("exit %d: %s", code, stderr)
+	}
+	var names []string
+	filepath.WalkDir(out, func(p string, d os.DirEntry, err error) error {
+		if err == nil && !d.IsDir() {
+			rel, _ := filepath.Rel(out, p)
+			names = append(names, rel)
+		}
+		return nil
+	})
+	want := "report/index.html report/sample-0001.html report/sample-0002.html results.csv results.json samples.csv"
+	if strings.Join(names, " ") != want {
+		t.Errorf("files written: %v, want %s", names, want)
+	}
+	for _, page := range []string{"index.html", "sample-0001.html", "sample-0002.html"} {
+		b, err := os.ReadFile(filepath.Join(out, "report", page))
+		if err != nil {
+			t.Fatal(err)
+		}
+		s := string(b)
+		if strings.Contains(s, "<script") || strings.Contains(s, "<img") {
+			t.Errorf("%s holds an unescaped element from the sheet", page)
+		}
+		if page == "index.html" && !strings.Contains(s, "&lt;script&gt;alert(1)&lt;/script&gt;") {
+			t.Errorf("index does not show the sample name as text")
+		}
+	}
+}
