@@ -10,6 +10,7 @@ import (
 	"unicode/utf8"
 
 	"dlsbatch/dls"
+	"dlsbatch/io/report"
 )
 
 // DefaultCaution is shown when Report.Caution is empty: the report
@@ -104,16 +105,8 @@ func Count(samples []*dls.Sample, results []*dls.Result) Counts {
 			c.None++
 		}
 	}
-	for _, r := range results {
-		switch r.Status {
-		case dls.StatusOK:
-			c.OK++
-		case dls.StatusWarn:
-			c.Warn++
-		default:
-			c.Error++
-		}
-	}
+	rc := report.CountResults(results)
+	c.OK, c.Warn, c.Error = rc.OK, rc.Warn, rc.Error
 	return c
 }
 

@@ -6,7 +6,6 @@ import (
 	"encoding/json"
 	"fmt"
 	"io"
-	"math"
 	"strconv"
 	"strings"
 	"text/tabwriter"
@@ -293,16 +292,3 @@ func WriteSamplesCSV(w io.Writer, samples []*dls.Sample, results []*dls.Result) 
 	return nil
 }
 
-func meanSD(v []float64) (m, sd float64) {
-	for _, x := range v {
-		m += x
-	}
-	m /= float64(len(v))
-	if len(v) < 2 {
-		return m, 0
-	}
-	for _, x := range v {
-		sd += (x - m) * (x - m)
-	}
-	return m, math.Sqrt(sd / float64(len(v)-1))
-}
