@@ -291,4 +291,3 @@ func WriteSamplesCSV(w io.Writer, samples []*dls.Sample, results []*dls.Result) 
 	}
 	return nil
 }
-
