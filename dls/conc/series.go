@@ -198,7 +198,6 @@ func FitDilutionSeries(pts []Point, s *SeriesSettings) (*Series, error) {
 	}
 	x := make([]float64, n)
 	y := make([]float64, n)
-	w := make([]float64, n)
 	for i, p := range pts {
 		for _, v := range []float64{p.Concentration, p.DiffusionM2PerS, p.DiffusionSEM2PerS} {
 			if math.IsNaN(v) || math.IsInf(v, 0) {
@@ -213,22 +212,32 @@ func FitDilutionSeries(pts []Point, s *SeriesSettings) (*Series, error) {
 		case !(p.DiffusionSEM2PerS > 0):
 			return nil, fmt.Errorf("point %d: standard uncertainty %g m²/s of D is not positive: %w", i+1, p.DiffusionSEM2PerS, ErrRange)
 		}
+		for _, v := range []float64{p.CountRateKcps, p.PDI, p.PDISE, p.Intercept, p.InterceptSE} {
+			if math.IsNaN(v) || math.IsInf(v, 0) {
+				return nil, fmt.Errorf("point %d: count rate, PDI or intercept: %w", i+1, dls.ErrNonFinite)
+			}
+		}
+		if p.CountRateKcps < 0 || p.PDISE < 0 || p.InterceptSE < 0 {
+			return nil, fmt.Errorf("point %d: negative count rate or standard uncertainty: %w", i+1, ErrRange)
+		}
 		x[i], y[i] = p.Concentration, p.DiffusionM2PerS
-		w[i] = 1 / (p.DiffusionSEM2PerS * p.DiffusionSEM2PerS)
 	}
 	distinct := countDistinct(x)
 	if distinct < 3 {
 		return nil, fmt.Errorf("%d distinct concentrations: %w", distinct, ErrTooFewConcentrations)
 	}
-	// Weights of order 1e24 or more are fine for LinearRegression (it
-	// normalises them) but scale the covariance sums; work in units of the
-	// median D to keep every sum near 1.
+	// Weights 1/u² of order 1e26 /(m²/s)² would scale the covariance sums;
+	// work in units of the median D to keep every sum near 1.
 	ref := median(y)
 	ys := make([]float64, n)
 	ws := make([]float64, n)
 	for i := range y {
 		ys[i] = y[i] / ref
-		ws[i] = w[i] * ref * ref
+		r := ref / pts[i].DiffusionSEM2PerS
+		ws[i] = r * r
+		if math.IsInf(ws[i], 0) || ws[i] == 0 {
+			return nil, fmt.Errorf("point %d: standard uncertainty %g m²/s of D is out of proportion to D: %w", i+1, pts[i].DiffusionSEM2PerS, ErrRange)
+		}
 	}
 	l := fitLine(x, ys, ws, true, set.Scaling == ScaleBirge)
 	a, b := l.a*ref, l.b*ref
@@ -320,7 +329,33 @@ func FitDilutionSeries(pts []Point, s *SeriesSettings) (*Series, error) {
 			warn("coherence factor β changes with concentration (slope %.3g per unit, %s = %.2f, p = %.2g): multiple scattering or number fluctuations", r.Intercept.Slope, r.Intercept.Test, r.Intercept.Statistic, r.Intercept.PValue)
 		}
 	}
+	if !finite(r.D0SEM2PerS, r.SlopeM2PerS, r.SlopeSEM2PerS, r.CovD0Slope, r.KD, r.KDSE, r.ChiSquare, r.ReducedChi2, r.ChiSquarePProb, r.MaxKDC, r.DiameterNm, r.DiameterSENm) {
+		return nil, fmt.Errorf("dilution series is numerically degenerate (concentrations or uncertainties of extreme magnitude): %w", ErrRange)
+	}
+	for _, t := range []*Trend{r.PDI, r.Intercept} {
+		if t != nil && !finite(t.Slope, t.SlopeSE, t.Statistic, t.PValue, t.RelativeSpread) {
+			return nil, fmt.Errorf("%s trend is numerically degenerate: %w", t.Quantity, ErrRange)
+		}
+	}
+	for _, res := range r.Residuals {
+		if !finite(res.FittedM2PerS, res.ResidualM2PerS, res.Normalized) {
+			return nil, fmt.Errorf("dilution series residuals are numerically degenerate: %w", ErrRange)
+		}
+	}
+	if r.CountRate != nil && !(finite(r.CountRate.SlopeKcpsPerUnit, r.CountRate.MaxDeviation) && finite(r.CountRate.Deviations...)) {
+		return nil, fmt.Errorf("count-rate check is numerically degenerate: %w", ErrRange)
+	}
 	return r, nil
+}
+
+// finite reports whether every value is a finite number.
+func finite(v ...float64) bool {
+	for _, x := range v {
+		if math.IsNaN(x) || math.IsInf(x, 0) {
+			return false
+		}
+	}
+	return true
 }
 
 // countRateCheck fits I = s·c through the origin (unweighted) and reports
@@ -333,6 +368,11 @@ func countRateCheck(pts []Point, tol float64) *Proportionality {
 	}
 	_, s := stat.LinearRegression(c, iv, nil, true)
 	pr := &Proportionality{SlopeKcpsPerUnit: s, Tolerance: tol, Deviations: make([]float64, len(pts))}
+	if !(s > 0) {
+		// No count rate at all: nothing is proportional; flag it.
+		pr.MaxDeviation, pr.Flagged = 1, true
+		return pr
+	}
 	for i := range pts {
 		if c[i] == 0 {
 			continue
@@ -340,13 +380,7 @@ func countRateCheck(pts []Point, tol float64) *Proportionality {
 		pr.Deviations[i] = (iv[i] - s*c[i]) / (s * c[i])
 		pr.MaxDeviation = math.Max(pr.MaxDeviation, math.Abs(pr.Deviations[i]))
 	}
-	if !(s > 0) {
-		pr.MaxDeviation = math.Inf(1)
-	}
-	pr.Flagged = !(pr.MaxDeviation <= tol)
-	if math.IsInf(pr.MaxDeviation, 0) {
-		pr.MaxDeviation = 1 // JSON-safe marker; Flagged says the rest
-	}
+	pr.Flagged = pr.MaxDeviation > tol
 	return pr
 }
 
@@ -365,6 +399,10 @@ func trendCheck(name string, x, v, u []float64, set SeriesSettings) *Trend {
 		w = make([]float64, len(u))
 		for i, ui := range u {
 			w[i] = 1 / (ui * ui)
+			if math.IsInf(w[i], 0) {
+				known, w = false, nil // an uncertainty too small to weigh by
+				break
+			}
 		}
 	}
 	l := fitLine(x, v, w, known, set.Scaling == ScaleBirge)
