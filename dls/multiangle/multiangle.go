@@ -249,6 +249,18 @@ func Analyze(angles []Angle, tK, etaPaS float64, s *Settings) (*Result, error) {
 		r.ZeroQDiameterSENm = r.ZeroQDiameterNm * r.ZeroQDiffusionSEM2PerS / r.ZeroQDiffusionM2PerS
 	}
 
+	vals := []float64{r.DiffusionSEM2PerS, r.InterceptPerS, r.InterceptSEPerS, r.InterceptZ, r.InterceptP, r.ChiSquare, r.ReducedChi2,
+		r.ScaleFactor, r.DiameterNm, r.DiameterSENm, r.TrendSlopeNmUm2, r.TrendSlopeSENmUm2, r.TrendZ, r.TrendP, r.TrendPct,
+		r.SpreadMeanNm, r.SpreadChi2, r.SpreadP, r.ZeroQDiffusionM2PerS, r.ZeroQDiffusionSEM2PerS, r.ZeroQDiameterNm, r.ZeroQDiameterSENm}
+	for _, a := range r.PerAngle {
+		vals = append(vals, a.Q2PerM2, a.FittedGammaPerS, a.Normalized, a.DAppM2PerS, a.DAppSEM2PerS, a.SizeNm, a.SizeSENm)
+	}
+	for _, v := range vals {
+		if math.IsNaN(v) || math.IsInf(v, 0) {
+			return nil, fmt.Errorf("inputs of extreme magnitude make the analysis numerically degenerate: %w", dls.ErrOutOfRange)
+		}
+	}
+
 	warn := func(f string, args ...any) { r.Warnings = append(r.Warnings, fmt.Sprintf(f, args...)) }
 	if r.TrendFlagged {
 		warn("apparent size changes with angle: %.3g nm per µm⁻² (%.1f standard uncertainties, %+.1f %% across the angles measured): the intensity weighting depends on q (broad or large sample), so one size does not describe it; extrapolated to q → 0: %.4g nm", r.TrendSlopeNmUm2, r.TrendZ, r.TrendPct, r.ZeroQDiameterNm)

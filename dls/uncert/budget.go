@@ -260,6 +260,15 @@ func ZAverage(in *Inputs) (*Budget, error) {
 		b.EffectiveDOF = uc2 * uc2 / wsDen
 		b.CoverageFactorT95 = distuv.StudentsT{Mu: 0, Sigma: 1, Nu: b.EffectiveDOF}.Quantile(0.975)
 	}
+	vals := []float64{b.ZAvgNm, b.CombinedUNm, b.RelativeUPct, b.ExpandedUNm, b.EffectiveDOF, b.CoverageFactorT95}
+	for _, c := range comps {
+		vals = append(vals, c.Sensitivity, c.ContributionNm, c.VarianceSharePct)
+	}
+	for _, v := range vals {
+		if math.IsNaN(v) || math.IsInf(v, 0) {
+			return nil, bad("inputs of extreme magnitude give a non-finite budget")
+		}
+	}
 	b.Notes = append(b.Notes,
 		"inputs taken as uncorrelated",
 		"temperature dependence of the refractive index neglected (about 1e-5 relative)",
