@@ -11,20 +11,21 @@ import (
 )
 
 // Default standard uncertainties of the Type B inputs (see the package
-// documentation for their basis).
+// documentation for their basis), the coverage factor and the step of the
+// temperature derivative.
 const (
-	DefaultTemperatureUK   = 0.1             // K
-	DefaultViscosityRelU   = 0.01            // IAPWS 2008, liquid water at 0.1 MPa (from memory)
-	DIPPRViscosityRelU     = 0.03            // DIPPR-101 fits, "a few percent", taken as 3 %
-	DefaultIndexU          = 1e-4            // absolute
-	DefaultAngleURad       = 0.1 * deg       // 0.1°
-	DefaultWavelengthUM    = 0.0             // m
-	DefaultCoverageFactor  = 2.0             // k
-	DerivativeStepK        = 0.01            // h of the central difference for η'(T), K
-	deg                    = math.Pi / 180.0 // one degree in radians
-	unitRad                = "rad"
-	maxSensibleRelativeUnc = 1.0 // a relative u beyond 100 % is a mistake
+	DefaultTemperatureUncertaintyK = 0.1                 // K
+	DefaultViscosityRelUncertainty = 0.01                // IAPWS 2008, liquid water at 0.1 MPa (from memory)
+	DIPPRViscosityRelUncertainty   = 0.03                // DIPPR-101 fits, "a few percent", taken as 3 %
+	DefaultIndexUncertainty        = 1e-4                // absolute
+	DefaultAngleUncertaintyRad     = 0.1 * math.Pi / 180 // 0.1°
+	DefaultWavelengthUncertaintyM  = 0.0                 // m
+	DefaultCoverageFactor          = 2.0                 // k
+	DerivativeStepK                = 0.01                // h of the central difference for η'(T), K
 )
+
+// maxRelativeUncertainty bounds u(η)/η: 100 % or more is a mistake.
+const maxRelativeUncertainty = 1.0
 
 // Uncertainties are the standard uncertainties of the Type B inputs.
 // Start from DefaultUncertainties; a zero field means that input is taken
@@ -43,23 +44,23 @@ type Uncertainties struct {
 // water), 1e-4, 0.1°, and an exact wavelength.
 func DefaultUncertainties() Uncertainties {
 	return Uncertainties{
-		TemperatureK: DefaultTemperatureUK, ViscosityRel: DefaultViscosityRelU,
-		RefractiveIndex: DefaultIndexU, AngleRad: DefaultAngleURad, WavelengthM: DefaultWavelengthUM,
+		TemperatureK: DefaultTemperatureUncertaintyK, ViscosityRel: DefaultViscosityRelUncertainty,
+		RefractiveIndex: DefaultIndexUncertainty, AngleRad: DefaultAngleUncertaintyRad, WavelengthM: DefaultWavelengthUncertaintyM,
 		ViscosityBasis: "IAPWS 2008 liquid water at 0.1 MPa, about 1 % (from memory)",
 	}
 }
 
-// ViscosityRelU returns the default relative standard uncertainty of a
+// ViscosityRelUncertainty returns the default relative standard uncertainty of a
 // solvent table's viscosity law and its basis: 1 % for the built-in water
 // law (IAPWS 2008), 3 % for a DIPPR-101 fit. ok is false for any other law
 // (a mixture formula, an Andrade law or a measured constant): the caller
 // must state the uncertainty.
-func ViscosityRelU(law dls.ViscosityLaw) (rel float64, basis string, ok bool) {
+func ViscosityRelUncertainty(law dls.ViscosityLaw) (rel float64, basis string, ok bool) {
 	if w, err := dls.LookupSolvent("water"); err == nil && law == w.Viscosity {
-		return DefaultViscosityRelU, DefaultUncertainties().ViscosityBasis, true
+		return DefaultViscosityRelUncertainty, DefaultUncertainties().ViscosityBasis, true
 	}
 	if _, isDIPPR := law.(dls.DIPPR101); isDIPPR {
-		return DIPPRViscosityRelU, "DIPPR-101 correlation, Perry's Handbook: a few percent, taken as 3 %", true
+		return DIPPRViscosityRelUncertainty, "DIPPR-101 correlation, Perry's Handbook: a few percent, taken as 3 %", true
 	}
 	return 0, "", false
 }
@@ -168,7 +169,7 @@ func ZAverage(in *Inputs) (*Budget, error) {
 			return nil, bad("%s = %g is not a non-negative number", c.name, c.v)
 		}
 	}
-	if u.ViscosityRel >= maxSensibleRelativeUnc {
+	if u.ViscosityRel >= maxRelativeUncertainty {
 		return nil, bad("relative viscosity uncertainty %g is 100 %% or more", u.ViscosityRel)
 	}
 	if in.GammaDOF < 0 || math.IsNaN(in.GammaDOF) {
@@ -203,15 +204,15 @@ func ZAverage(in *Inputs) (*Budget, error) {
 		etaBasis = "stated by the caller"
 	}
 	tBasis := "stated by the caller"
-	if u.TemperatureK == DefaultTemperatureUK {
+	if u.TemperatureK == DefaultTemperatureUncertaintyK {
 		tBasis = "default 0.1 K (assumed: thermostatted cell, calibrated sensor)"
 	}
 	nBasis := "stated by the caller"
-	if u.RefractiveIndex == DefaultIndexU {
+	if u.RefractiveIndex == DefaultIndexUncertainty {
 		nBasis = "default 1e-4 (assumed)"
 	}
 	aBasis := "stated by the caller"
-	if u.AngleRad == DefaultAngleURad {
+	if u.AngleRad == DefaultAngleUncertaintyRad {
 		aBasis = "default 0.1° (assumed)"
 	}
 	lBasis := "stated by the caller"
@@ -227,7 +228,7 @@ func ZAverage(in *Inputs) (*Budget, error) {
 			Sensitivity: -dNm / eta, Basis: etaBasis},
 		{Name: "refractive_index", Symbol: "n", Type: "B", Value: in.RefractiveIndex, StandardUncertainty: u.RefractiveIndex, Unit: "1",
 			Sensitivity: 2 * dNm / in.RefractiveIndex, Basis: nBasis},
-		{Name: "angle", Symbol: "θ", Type: "B", Value: in.AngleRad, StandardUncertainty: u.AngleRad, Unit: unitRad,
+		{Name: "angle", Symbol: "θ", Type: "B", Value: in.AngleRad, StandardUncertainty: u.AngleRad, Unit: "rad",
 			Sensitivity: dNm / math.Tan(in.AngleRad/2), Basis: aBasis},
 		{Name: "wavelength", Symbol: "λ0", Type: "B", Value: in.WavelengthM, StandardUncertainty: u.WavelengthM, Unit: "m",
 			Sensitivity: -2 * dNm / in.WavelengthM, Basis: lBasis},

@@ -289,8 +289,8 @@ func TestBudgetJSON(t *testing.T) {
 	}
 }
 
-// TestViscosityRelU: the defaults for the solvent table's laws.
-func TestViscosityRelU(t *testing.T) {
+// TestViscosityRelUncertainty: the defaults for the solvent table's laws.
+func TestViscosityRelUncertaintyncertainty(t *testing.T) {
 	for _, c := range []struct {
 		solvent string
 		want    float64
@@ -300,12 +300,12 @@ func TestViscosityRelU(t *testing.T) {
 		if err != nil {
 			t.Fatal(err)
 		}
-		got, basis, ok := ViscosityRelU(s.Viscosity)
+		got, basis, ok := ViscosityRelUncertainty(s.Viscosity)
 		if ok != c.ok || !scalar.EqualWithinAbs(got, c.want, 1e-15) || (ok && basis == "") {
 			t.Errorf("%s: %g %q %v", c.solvent, got, basis, ok)
 		}
 	}
-	if _, _, ok := ViscosityRelU(dls.ConstantViscosity{PaS: 1e-3}); ok {
+	if _, _, ok := ViscosityRelUncertainty(dls.ConstantViscosity{PaS: 1e-3}); ok {
 		t.Error("a measured constant got a default uncertainty")
 	}
 }

@@ -22,7 +22,7 @@
 //	     formulation for liquid water at 0.1 MPa (about 1 % or better, from
 //	     memory of Huber et al. 2009); 3 % for the DIPPR-101 fits of other
 //	     solvents ("a few percent" in Perry's Handbook, taken as 3 %); for a
-//	     viscosity the user measured, the user's value (ViscosityRelU)
+//	     viscosity the user measured, the user's value (Uncertainties.ViscosityRel)
 //	n    Type B: default 1e-4 absolute (assumed)
 //	θ    Type B: default 0.1° (assumed for a fixed-angle instrument)
 //	λ0   Type B: default 0 (a He–Ne line is known far better than matters;
