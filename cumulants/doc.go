@@ -73,9 +73,12 @@
 // is estimated: the noise of a multi-tau correlator changes by orders of
 // magnitude along the lag axis (shot noise at short sample times, averaged
 // away at long ones), so a first fit with equal weights is followed by a
-// second whose σ at each channel is 1.4826 times the median absolute
-// residual of the first within ±6 channels (the normal-consistent MAD), and
-// the standard errors are scaled by the reduced χ².
+// second whose σ at each channel is the rms residual of the first within
+// ±10 channels (dls.LocalSigma). Weights estimated from the data are noisy
+// and would make (JᵀWJ)⁻¹ overstate the information, so the standard
+// errors then come from the heteroscedasticity-consistent sandwich
+// covariance with the HC3 leverage correction (White 1980; MacKinnon &
+// White 1985), which matches the observed scatter on simulated data.
 //
 // # References
 //
@@ -88,5 +91,10 @@
 //     light scattering: non-linear cumulant analysis", J. Phys.: Condens.
 //     Matter 27, 145102 (2015).
 //   - ISO 22412:2017, Particle size analysis — Dynamic light scattering.
+//   - H. White, "A heteroskedasticity-consistent covariance matrix estimator
+//     and a direct test for heteroskedasticity", Econometrica 48, 817 (1980).
+//   - J. G. MacKinnon and H. White, "Some heteroskedasticity-consistent
+//     covariance matrix estimators with improved finite sample properties",
+//     J. Econometrics 29, 305 (1985).
 //   - K. Levenberg (1944), D. W. Marquardt (1963): damped least squares.
 package cumulants

@@ -93,3 +93,47 @@ func TestRecoveryRealisticNoise(t *testing.T) {
 		}
 	}
 }
+
+func TestStandardErrorHonestOnMultiTauNoise(t *testing.T) {
+	// Without a σ column the weights are estimated from residuals; the
+	// sandwich covariance must still give standard errors that match the
+	// observed scatter of Γ̄ over repeated simulated measurements (100 nm,
+	// 173°, 200 kcps, 10 s). With 200 repeats the observed SD is known to
+	// about 1/√400 = 5 %; the ratio must lie within 0.85–1.15. With the
+	// simulator's σ given, the same must hold.
+	if testing.Short() {
+		t.Skip("400 fits")
+	}
+	grid, err := sim.NewGrid(sim.DefaultGridSpec())
+	if err != nil {
+		t.Fatal(err)
+	}
+	optics := dls.Optics{WavelengthM: 632.8e-9, AngleRad: 173 * math.Pi / 180, RefractiveIndex: 1.33162}
+	pop, _ := sim.ParsePopulation("lognormal(100nm,0.05,number)")
+	model, err := sim.NewModel(pop, sim.Conditions{TemperatureK: 298.15, ViscosityPaS: 0.890022e-3, Optics: optics}, nil)
+	if err != nil {
+		t.Fatal(err)
+	}
+	for _, given := range []bool{false, true} {
+		var gs, ses []float64
+		for seed := uint64(1); seed <= 200; seed++ {
+			out, err := sim.Simulate(model, &sim.Config{Grid: grid, Beta: 0.9, Baseline: 1, CountRateHz: 2e5, DurationS: 10, Runs: 1, Seed: seed})
+			if err != nil {
+				t.Fatal(err)
+			}
+			m := &dls.Measurement{File: "x", Kind: dls.KindG2, TauS: out.TauS, Corr: out.Runs[0].G2}
+			if given {
+				m.Sigma = out.Runs[0].Sigma
+			}
+			r, err := cumulants.Fit(m, nil)
+			if err != nil {
+				t.Fatal(err)
+			}
+			gs = append(gs, r.GammaPerS)
+			ses = append(ses, r.GammaSEPerS)
+		}
+		if ratio := meanOf(ses) / stddev(gs); ratio < 0.85 || ratio > 1.15 {
+			t.Errorf("σ given %v: mean SE / observed SD = %.3f, want 0.85–1.15", given, ratio)
+		}
+	}
+}
