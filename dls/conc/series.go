@@ -9,6 +9,7 @@ import (
 	"gonum.org/v1/gonum/stat/distuv"
 
 	"dlsbatch/dls"
+	"dlsbatch/dls/linefit"
 )
 
 // Point is one measurement of a dilution series.
@@ -239,12 +240,12 @@ func FitDilutionSeries(pts []Point, s *SeriesSettings) (*Series, error) {
 			return nil, fmt.Errorf("point %d: standard uncertainty %g m²/s of D is out of proportion to D: %w", i+1, pts[i].DiffusionSEM2PerS, ErrRange)
 		}
 	}
-	l := fitLine(x, ys, ws, true, set.Scaling == ScaleBirge)
-	a, b := l.a*ref, l.b*ref
+	l := linefit.Fit(x, ys, ws, true, set.Scaling == ScaleBirge)
+	a, b := l.A*ref, l.B*ref
 	if !(a > 0) {
 		return nil, fmt.Errorf("dilution series extrapolates to D0 = %.4g m²/s at c = 0, not positive: %w", a, ErrRange)
 	}
-	varA, varB, cov := l.varA*ref*ref, l.varB*ref*ref, l.cov*ref*ref
+	varA, varB, cov := l.VarA*ref*ref, l.VarB*ref*ref, l.Cov*ref*ref
 	kd := b / a
 	// k_D = b/a: ∂/∂a = −b/a², ∂/∂b = 1/a.
 	ga, gb := -b/(a*a), 1/a
@@ -253,15 +254,15 @@ func FitDilutionSeries(pts []Point, s *SeriesSettings) (*Series, error) {
 		Unit: unit, Points: n, Distinct: distinct,
 		D0M2PerS: a, D0SEM2PerS: math.Sqrt(varA), SlopeM2PerS: b, SlopeSEM2PerS: math.Sqrt(varB),
 		CovD0Slope: cov, KD: kd, KDSE: math.Sqrt(math.Max(0, varKD)),
-		Scaling: set.Scaling.String(), ScaleFactor: l.scale,
-		ChiSquare: l.chi2, DOF: l.dof, ReducedChi2: l.chi2 / float64(l.dof),
-		ChiSquarePProb: distuv.ChiSquared{K: float64(l.dof)}.Survival(l.chi2),
+		Scaling: set.Scaling.String(), ScaleFactor: l.Scale,
+		ChiSquare: l.Chi2, DOF: l.DOF, ReducedChi2: l.Chi2 / float64(l.DOF),
+		ChiSquarePProb: distuv.ChiSquared{K: float64(l.DOF)}.Survival(l.Chi2),
 	}
 	for i, p := range pts {
-		res := p.DiffusionM2PerS - l.fitted[i]*ref
+		res := p.DiffusionM2PerS - l.Fitted[i]*ref
 		r.Residuals = append(r.Residuals, Residual{
 			Concentration: p.Concentration, DiffusionM2PerS: p.DiffusionM2PerS,
-			FittedM2PerS: l.fitted[i] * ref, ResidualM2PerS: res, Normalized: res / p.DiffusionSEM2PerS,
+			FittedM2PerS: l.Fitted[i] * ref, ResidualM2PerS: res, Normalized: res / p.DiffusionSEM2PerS,
 		})
 	}
 	cmax := x[0]
@@ -288,7 +289,7 @@ func FitDilutionSeries(pts []Point, s *SeriesSettings) (*Series, error) {
 		if set.Scaling == ScaleNone {
 			how = "the covariance is not scaled (ScaleNone): the uncertainties are too small"
 		}
-		warn("D scatters about the line more than its stated uncertainties allow (χ²/ν = %.3g on %d degrees of freedom, p = %.2g); %s", r.ReducedChi2, l.dof, r.ChiSquarePProb, how)
+		warn("D scatters about the line more than its stated uncertainties allow (χ²/ν = %.3g on %d degrees of freedom, p = %.2g); %s", r.ReducedChi2, l.DOF, r.ChiSquarePProb, how)
 	}
 	if r.MaxKDC > FirstOrderLimit {
 		warn("|k_D·c| reaches %.3g at %s, beyond the first-order range (%.2g): curvature may bias D0", r.MaxKDC, label(cmax), FirstOrderLimit)
@@ -405,9 +406,9 @@ func trendCheck(name string, x, v, u []float64, set SeriesSettings) *Trend {
 			}
 		}
 	}
-	l := fitLine(x, v, w, known, set.Scaling == ScaleBirge)
-	st, p := slopeTest(l, known)
-	t := &Trend{Quantity: name, Slope: l.b, SlopeSE: math.Sqrt(l.varB), Statistic: st, PValue: p, Test: "t"}
+	l := linefit.Fit(x, v, w, known, set.Scaling == ScaleBirge)
+	st, p := linefit.SlopeTest(l, known)
+	t := &Trend{Quantity: name, Slope: l.B, SlopeSE: math.Sqrt(l.VarB), Statistic: st, PValue: p, Test: "t"}
 	if known {
 		t.Test = "z"
 	}
@@ -425,7 +426,7 @@ func trendCheck(name string, x, v, u []float64, set SeriesSettings) *Trend {
 		// A perfect line (zero residual, no stated u) has no test; keep the
 		// record JSON-safe.
 		t.Statistic, t.PValue, t.SlopeSE = 0, 1, 0
-		if l.b != 0 && !known {
+		if l.B != 0 && !known {
 			t.PValue = 0
 			t.Flagged = true
 		}

@@ -8,6 +8,7 @@ import (
 	"gonum.org/v1/gonum/stat/distuv"
 
 	"dlsbatch/dls"
+	"dlsbatch/dls/linefit"
 )
 
 // Angle is the cumulant result of one measurement of the sample at one
@@ -179,17 +180,17 @@ func Analyze(angles []Angle, tK, etaPaS float64, s *Settings) (*Result, error) {
 	}
 
 	// Γ̄ against q².
-	l := fitLine(x, y, w, true, true)
-	d := l.b * um2 // m²/s
+	l := linefit.Fit(x, y, w, true, true)
+	d := l.B * um2 // m²/s
 	if !(d > 0) {
 		return nil, fmt.Errorf("decay rate does not grow with q² (slope %.4g m²/s): not a diffusive sample, or angles mislabelled", d)
 	}
 	r := &Result{
 		Angles: n, Distinct: distinct,
-		DiffusionM2PerS: d, DiffusionSEM2PerS: math.Sqrt(l.varB) * um2,
-		InterceptPerS: l.a, InterceptSEPerS: math.Sqrt(l.varA),
+		DiffusionM2PerS: d, DiffusionSEM2PerS: math.Sqrt(l.VarB) * um2,
+		InterceptPerS: l.A, InterceptSEPerS: math.Sqrt(l.VarA),
 		InterceptLimit: set.InterceptLimit, TrendLimit: set.TrendLimit,
-		ChiSquare: l.chi2, DOF: l.dof, ReducedChi2: l.chi2 / float64(l.dof), ScaleFactor: l.scale,
+		ChiSquare: l.Chi2, DOF: l.DOF, ReducedChi2: l.Chi2 / float64(l.DOF), ScaleFactor: l.Scale,
 	}
 	r.InterceptZ = r.InterceptPerS / r.InterceptSEPerS
 	r.InterceptP = 2 * distuv.UnitNormal.Survival(math.Abs(r.InterceptZ))
@@ -210,7 +211,7 @@ func Analyze(angles []Angle, tK, etaPaS float64, s *Settings) (*Result, error) {
 		r.PerAngle = append(r.PerAngle, AngleResult{
 			AngleDeg: a.AngleRad * 180 / math.Pi, QPerM: a.QPerM, Q2PerM2: q2,
 			GammaPerS: a.GammaPerS, GammaSEPerS: a.GammaSEPerS,
-			FittedGammaPerS: l.fitted[i], Normalized: l.residuals[i] / a.GammaSEPerS,
+			FittedGammaPerS: l.Fitted[i], Normalized: l.Residuals[i] / a.GammaSEPerS,
 			DAppM2PerS: da, DAppSEM2PerS: da * rel, SizeNm: size, SizeSENm: size * rel,
 		})
 		sizes[i], wSize[i] = size, 1/((size*rel)*(size*rel))
@@ -218,15 +219,15 @@ func Analyze(angles []Angle, tK, etaPaS float64, s *Settings) (*Result, error) {
 		dapp[i] = da * 1e12
 		wD[i] = 1 / ((dapp[i] * rel) * (dapp[i] * rel))
 	}
-	lt := fitLine(x, sizes, wSize, true, false)
-	r.TrendSlopeNmUm2 = lt.b
-	r.TrendSlopeSENmUm2 = math.Sqrt(lt.varB)
-	r.TrendZ = lt.b / r.TrendSlopeSENmUm2
+	lt := linefit.Fit(x, sizes, wSize, true, false)
+	r.TrendSlopeNmUm2 = lt.B
+	r.TrendSlopeSENmUm2 = math.Sqrt(lt.VarB)
+	r.TrendZ = lt.B / r.TrendSlopeSENmUm2
 	r.TrendP = 2 * distuv.UnitNormal.Survival(math.Abs(r.TrendZ))
 	r.TrendFlagged = math.Abs(r.TrendZ) > set.TrendLimit
 	xmin, xmax := minMax(x)
-	if lt.a != 0 {
-		r.TrendPct = 100 * lt.b * (xmax - xmin) / lt.a
+	if lt.A != 0 {
+		r.TrendPct = 100 * lt.B * (xmax - xmin) / lt.A
 	}
 	var sw, swd float64
 	for i := range sizes {
@@ -241,9 +242,9 @@ func Analyze(angles []Angle, tK, etaPaS float64, s *Settings) (*Result, error) {
 	r.SpreadDOF = n - 1
 	r.SpreadP = (distuv.ChiSquared{K: float64(r.SpreadDOF)}).Survival(r.SpreadChi2)
 	r.SpreadFlagged = r.SpreadP < 2*distuv.UnitNormal.Survival(set.TrendLimit)
-	lz := fitLine(x, dapp, wD, true, true)
-	r.ZeroQDiffusionM2PerS = lz.a * 1e-12
-	r.ZeroQDiffusionSEM2PerS = math.Sqrt(lz.varA) * 1e-12
+	lz := linefit.Fit(x, dapp, wD, true, true)
+	r.ZeroQDiffusionM2PerS = lz.A * 1e-12
+	r.ZeroQDiffusionSEM2PerS = math.Sqrt(lz.VarA) * 1e-12
 	if r.ZeroQDiffusionM2PerS > 0 {
 		r.ZeroQDiameterNm = dls.DiameterFromDiffusion(tK, etaPaS, r.ZeroQDiffusionM2PerS) * 1e9
 		r.ZeroQDiameterSENm = r.ZeroQDiameterNm * r.ZeroQDiffusionSEM2PerS / r.ZeroQDiffusionM2PerS
@@ -275,7 +276,7 @@ func Analyze(angles []Angle, tK, etaPaS float64, s *Settings) (*Result, error) {
 		}
 		warn("decay rate against q² has a non-zero intercept %.4g ± %.2g /s (%.1f standard uncertainties, limit %.3g): %s", r.InterceptPerS, r.InterceptSEPerS, r.InterceptZ, set.InterceptLimit, why)
 	}
-	if r.ScaleFactor > 1 && (distuv.ChiSquared{K: float64(l.dof)}).Survival(l.chi2) < 0.01 {
+	if r.ScaleFactor > 1 && (distuv.ChiSquared{K: float64(l.DOF)}).Survival(l.Chi2) < 0.01 {
 		warn("decay rates scatter about the line beyond their standard errors (χ²/ν = %.3g): uncertainties widened by √(χ²/ν)", r.ReducedChi2)
 	}
 	return r, nil
