@@ -54,6 +54,14 @@ const (
 	KeyProduct         = "product"
 	KeyRole            = "role"
 	KeyGroup           = "group"
+	// Medium of the continuous phase: the volume fraction of a much smaller
+	// colloid, micelle or excipient in it, or its measured viscosity
+	// relative to the solvent (a viscometer reading).
+	KeyMediumVolumeFraction = "medium_volume_fraction"
+	KeyMediumRelViscosity   = "medium_relative_viscosity"
+	// KeyKD is the interaction parameter k_D of the sized particles per
+	// volume fraction, or "hard-sphere" for Batchelor's 1.45.
+	KeyKD = "kd"
 )
 
 // MetadataKeys lists every key of the input contract, in the order used for
@@ -63,13 +71,15 @@ var MetadataKeys = []string{
 	KeyViscosityMPaS, KeyRefractiveIndex, KeyParticleRI, KeyConcentration,
 	KeyParticleDensity, KeyVolumeFraction, KeyCountRateKcps, KeyDurationS,
 	KeyLot, KeyProduct, KeyRole, KeyGroup,
+	KeyMediumVolumeFraction, KeyMediumRelViscosity, KeyKD,
 }
 
 // IsNumericKey reports whether the value of key must be a finite number.
 func IsNumericKey(key string) bool {
 	switch key {
 	case KeyTemperatureC, KeyWavelengthNm, KeyAngleDeg, KeyViscosityMPaS, KeyRefractiveIndex, KeyConcentration,
-		KeyParticleDensity, KeyVolumeFraction, KeyCountRateKcps, KeyDurationS:
+		KeyParticleDensity, KeyVolumeFraction, KeyCountRateKcps, KeyDurationS,
+		KeyMediumVolumeFraction, KeyMediumRelViscosity:
 		return true
 	}
 	return false

@@ -99,12 +99,41 @@ type Result struct {
 	// the volume and number weightings depend on).
 	Assumptions []string `json:"assumptions"`
 
+	// Correction names the concentration corrections applied: "none",
+	// "medium" (the continuous phase's viscosity raised by a small colloid
+	// or excipient), "kd" (collective diffusion of the sized particles
+	// corrected to infinite dilution with a stated k_D), or "medium+kd".
+	Correction string      `json:"correction"`
+	Medium     *MediumNote `json:"medium,omitempty"`
+	// ZAvgD0Nm is the size at infinite dilution when a k_D correction
+	// applies (z_avg_nm stays the measured, collective value).
+	ZAvgD0Nm float64 `json:"z_avg_d0_nm"`
+	KD       float64 `json:"kd"`
+	KDPhi    float64 `json:"kd_volume_fraction"`
+
+	// Uncertainty of the z-average (GUM): combined standard and expanded
+	// (k = 2), with the budget.
+	ZAvgUcNm       float64 `json:"z_avg_uc_nm"`
+	ZAvgExpandedNm float64 `json:"z_avg_expanded_nm"`
+	Budget         any     `json:"uncertainty_budget,omitempty"`
+
 	// Params lists every input value used, with its origin.
 	Params []Param `json:"params"`
 	// Warnings lists each remark behind a warn status.
 	Warnings []string `json:"warnings"`
 	// Curves holds the data and the fit for plotting and audit.
 	Curves *Curves `json:"curves,omitempty"`
+}
+
+// MediumNote records a medium correction: the relation used, φ, the
+// relative viscosity and, when both a φ and a viscometer reading are
+// given, the consistency check between them.
+type MediumNote struct {
+	Model             string  `json:"model"`
+	VolumeFraction    float64 `json:"volume_fraction"`
+	RelativeViscosity float64 `json:"relative_viscosity"`
+	SolventMPaS       float64 `json:"solvent_viscosity_mpas"`
+	Check             string  `json:"check"`
 }
 
 // Curves are per-lag arrays of one measurement.
@@ -184,7 +213,7 @@ func (r *Result) Finite() (cumulantsOK, distributionOK bool) {
 	scalars := []float64{r.TemperatureC, r.ViscosityMPaS, r.RefractiveIndex, r.WavelengthNm, r.AngleDeg, r.QPerM,
 		r.GammaMeanPerS, r.GammaSEPerS, r.Mu2PerS2, r.Mu3PerS3, r.DiffusionM2PerS, r.ZAvgNm, r.ZAvgSENm, r.PDI, r.PDISE,
 		r.Intercept, r.Baseline, r.FarBaseline, r.FitRMS, r.ReducedChi2, r.FitFirstTauS, r.FitLastTauS, r.RangeShiftPct,
-		r.LinearZAvgNm, r.LinearPDI, r.CountRateKcps, r.DurationS}
+		r.LinearZAvgNm, r.LinearPDI, r.CountRateKcps, r.DurationS, r.ZAvgD0Nm, r.KD, r.KDPhi, r.ZAvgUcNm, r.ZAvgExpandedNm}
 	cumulantsOK = ok(scalars)
 	if r.Curves != nil {
 		cumulantsOK = cumulantsOK && ok(r.Curves.Fitted, r.Curves.Residuals)

@@ -6,6 +6,7 @@ import (
 	"errors"
 	"fmt"
 	"io"
+	"math"
 	"os"
 	"path/filepath"
 	"runtime"
@@ -20,6 +21,7 @@ import (
 	"dlsbatch/dls/batch"
 	"dlsbatch/dls/qc"
 	"dlsbatch/dls/spec"
+	"dlsbatch/dls/uncert"
 	"dlsbatch/io/csvdata"
 	"dlsbatch/io/htmlreport"
 	"dlsbatch/io/report"
@@ -52,6 +54,10 @@ type runOptions struct {
 	specFile    string
 	exclude     bool
 	noReport    bool
+	uTempK      float64
+	uViscRel    float64
+	uIndex      float64
+	uAngleDeg   float64
 }
 
 func newRunOptions() *runOptions {
@@ -89,6 +95,10 @@ func (o *runOptions) addFlags(fs *pflag.FlagSet) {
 	fs.StringVar(&o.specFile, "spec", "", "specification (CSV): limits per product; verdicts and system suitability")
 	fs.BoolVar(&o.exclude, "exclude-outliers", false, "leave outlier runs out of each sample's statistics (they are flagged either way)")
 	fs.BoolVar(&o.noReport, "no-report", false, "do not write the HTML report (DIR/report/)")
+	fs.Float64Var(&o.uTempK, "u-temperature-k", uncert.DefaultTemperatureUncertaintyK, "standard uncertainty of the sample temperature, K (GUM budget)")
+	fs.Float64Var(&o.uViscRel, "u-viscosity-rel", 0, "relative standard uncertainty of the viscosity (0: from the correlation, 1 % for IAPWS water, 3 % for DIPPR-101)")
+	fs.Float64Var(&o.uIndex, "u-refractive-index", uncert.DefaultIndexUncertainty, "standard uncertainty of the medium's refractive index")
+	fs.Float64Var(&o.uAngleDeg, "u-angle-deg", uncert.DefaultAngleUncertaintyRad*180/math.Pi, "standard uncertainty of the scattering angle, degrees")
 }
 
 const runUsage = `Usage: dlsbatch run [flags] PATH... --out DIR
@@ -341,6 +351,16 @@ func (o *runOptions) settings() (batch.Settings, *csvdata.Options, error) {
 	s.Defaults = append(o.defaults.params, s.Defaults...)
 	s.Extrapolate = o.extrapolate
 	s.KeepCurves = !o.noCurves
+	if o.uTempK < 0 || o.uViscRel < 0 || o.uIndex < 0 || o.uAngleDeg < 0 {
+		return s, nil, fmt.Errorf("uncertainties must not be negative")
+	}
+	s.Uncertainty.TemperatureK = o.uTempK
+	s.Uncertainty.ViscosityRel = o.uViscRel
+	if o.uViscRel > 0 {
+		s.Uncertainty.ViscosityBasis = "stated with --u-viscosity-rel"
+	}
+	s.Uncertainty.RefractiveIndex = o.uIndex
+	s.Uncertainty.AngleRad = o.uAngleDeg * math.Pi / 180
 	if o.solventFile != "" {
 		s.Solvents = dls.NewDefaultSolventTable()
 		if err := solventfile.Load(o.solventFile, s.Solvents); err != nil {

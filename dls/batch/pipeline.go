@@ -10,6 +10,7 @@ import (
 	"dlsbatch/cumulants"
 	"dlsbatch/dls"
 	"dlsbatch/dls/qc"
+	"dlsbatch/dls/uncert"
 )
 
 // Settings control the analysis of every measurement in a batch. Start
@@ -34,6 +35,11 @@ type Settings struct {
 	Distribution DistributionSettings
 	// QC holds the thresholds of the quality-control flags.
 	QC qc.Thresholds
+	// Uncertainty holds the Type B standard uncertainties of the GUM
+	// budget (a zero viscosity uncertainty means: from the correlation);
+	// CoverageFactor is k of the expanded uncertainty.
+	Uncertainty    uncert.Uncertainties
+	CoverageFactor float64
 }
 
 // DefaultSettings returns the documented defaults: cumulants.DefaultSettings,
@@ -41,11 +47,13 @@ type Settings struct {
 // extrapolation, curves kept, DefaultDistributionSettings.
 func DefaultSettings() Settings {
 	return Settings{
-		Cumulants:    cumulants.DefaultSettings(),
-		Defaults:     []dls.Param{{Key: dls.KeySolvent, Value: "water", Origin: dls.OriginDefault, Where: "built-in default"}},
-		KeepCurves:   true,
-		Distribution: DefaultDistributionSettings(),
-		QC:           qc.DefaultThresholds(),
+		Cumulants:      cumulants.DefaultSettings(),
+		Defaults:       []dls.Param{{Key: dls.KeySolvent, Value: "water", Origin: dls.OriginDefault, Where: "built-in default"}},
+		KeepCurves:     true,
+		Distribution:   DefaultDistributionSettings(),
+		QC:             qc.DefaultThresholds(),
+		Uncertainty:    defaultUncertainties(),
+		CoverageFactor: uncert.DefaultCoverageFactor,
 	}
 }
 
@@ -160,6 +168,16 @@ func Analyze(m *dls.Measurement, s *Settings) *dls.Result {
 	for _, w := range fit.Warnings {
 		warn = append(warn, w.Error())
 	}
+	r.Correction, r.Medium = "none", cond.medium
+	if cond.medium != nil {
+		r.Correction = "medium"
+	}
+	kw, err := applyKD(r, meta)
+	if err != nil {
+		return fail(err)
+	}
+	warn = append(warn, kw...)
+	warn = append(warn, budget(r, fit, cond, s)...)
 	if s.Distribution.Enabled {
 		warn = append(warn, distribution(m, fit, cond, meta, &s.Distribution, r)...)
 	}
@@ -201,6 +219,11 @@ type state struct {
 	etaSource string
 	nSource   string
 	optics    dls.Optics
+	// etaLaw is η(T) of the continuous phase, for the uncertainty budget's
+	// ∂d/∂T: the solvent's correlation (times the medium factor), or a
+	// constant for a user-supplied viscosity.
+	etaLaw dls.ViscosityLaw
+	medium *dls.MediumNote
 }
 
 // conditions resolves temperature, optics and medium from the metadata.
@@ -270,6 +293,7 @@ func conditions(m *dls.Measurement, meta dls.Metadata, s *Settings) (state, []st
 		}
 		if !etaGiven {
 			eta, st.etaSource = props.ViscosityPaS*1e3, props.ViscositySource
+			st.etaLaw = sol.Viscosity
 		}
 		if !nGiven {
 			n, st.nSource = props.RefractiveIndex, props.IndexSource
@@ -288,6 +312,16 @@ func conditions(m *dls.Measurement, meta dls.Metadata, s *Settings) (state, []st
 		return st, nil, fmt.Errorf("%w: viscosity %g mPa·s must be positive", dls.ErrBadMetadata, eta)
 	}
 	st.etaPaS = eta * 1e-3
+	if st.etaLaw == nil {
+		st.etaLaw = dls.ConstantViscosity{PaS: st.etaPaS, TMinK: 0, TMaxK: math.Inf(1), Ref: "user-supplied"}
+	}
+	if !etaGiven {
+		mw, err := applyMedium(&st, meta)
+		if err != nil {
+			return st, nil, err
+		}
+		warn = append(warn, mw...)
+	}
 	st.optics.RefractiveIndex = n
 	if err := st.optics.Validate(); err != nil {
 		return st, nil, fmt.Errorf("%w: %v", dls.ErrBadMetadata, err)
@@ -309,4 +343,12 @@ func dropDistribution(r *dls.Result) {
 	r.Intensity, r.Volume, r.Number, r.Distribution = nil, nil, nil, nil
 	r.Alpha, r.Lambda, r.DegreesOfFreedom, r.ProbReject, r.DistMeanRatePerS, r.DistZAvgNm = 0, 0, 0, 0, 0, 0
 	r.AlphaCriterion, r.ParticleRI = "", ""
+}
+
+// defaultUncertainties are uncert's defaults with the viscosity's left to
+// the correlation used.
+func defaultUncertainties() uncert.Uncertainties {
+	u := uncert.DefaultUncertainties()
+	u.ViscosityRel, u.ViscosityBasis = 0, ""
+	return u
 }

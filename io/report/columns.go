@@ -96,6 +96,18 @@ var columns = []column{
 	{"dof", dist(func(r *dls.Result) string { return fixed(r.DegreesOfFreedom, 2) })},
 	{"particle_ri", dist(func(r *dls.Result) string { return r.ParticleRI })},
 	{"assumptions", func(r *dls.Result) string { return strings.Join(r.Assumptions, "; ") }},
+	{"z_avg_uc_nm", cum(func(r *dls.Result) string { return nonzero(r.ZAvgUcNm, 3) })},
+	{"z_avg_expanded_nm", cum(func(r *dls.Result) string { return nonzero(r.ZAvgExpandedNm, 3) })},
+	{"correction", cum(func(r *dls.Result) string { return r.Correction })},
+	{"z_avg_d0_nm", cum(func(r *dls.Result) string { return nonzero(r.ZAvgD0Nm, 3) })},
+}
+
+// nonzero formats v, or gives an empty cell when v is 0 (not computed).
+func nonzero(v float64, prec int) string {
+	if v == 0 {
+		return ""
+	}
+	return fixed(v, prec)
 }
 
 func dist(f func(r *dls.Result) string) func(r *dls.Result) string {
