@@ -234,6 +234,7 @@ func runRun(ctx context.Context, e env, args []string) int {
 		defer bar.Finish()
 	}
 	results, runErr := rn.Run(ctx, files)
+	groups := batch.Groups(results)
 	samples := qc.Aggregate(results, qc.Options{Thresholds: settings.QC, ExcludeOutliers: o.exclude})
 	outcome := spec.Evaluate(sp, samples, results)
 
@@ -245,6 +246,7 @@ func runRun(ctx context.Context, e env, args []string) int {
 		Counts:   report.CountResults(results),
 		Batch:    outcome,
 		Sheet:    sheetReport,
+		Groups:   &groups,
 		Samples:  samples,
 		Results:  results,
 	}

@@ -50,6 +50,7 @@ type Document struct {
 	Counts   Counts         `json:"counts"`
 	Batch    spec.Batch     `json:"batch"`
 	Sheet    *SheetReport   `json:"sheet,omitempty"`
+	Groups   any            `json:"groups,omitempty"`
 	Samples  []*dls.Sample  `json:"samples"`
 	Results  []*dls.Result  `json:"results"`
 }
@@ -115,7 +116,7 @@ func WriteJSON(w io.Writer, doc *Document) error {
 		name string
 		v    any
 	}{{"tool", doc.Tool}, {"version", doc.Version}, {"caution", doc.Caution}, {"settings", doc.Settings}, {"counts", doc.Counts},
-		{"batch", doc.Batch}, {"sheet", doc.Sheet}, {"samples", doc.Samples}} {
+		{"batch", doc.Batch}, {"sheet", doc.Sheet}, {"groups", doc.Groups}, {"samples", doc.Samples}} {
 		if err := field(f.name, f.v, false); err != nil {
 			return fmt.Errorf("results json: %w", err)
 		}
