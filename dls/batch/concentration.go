@@ -43,6 +43,14 @@ func applyMedium(st *state, meta dls.Metadata) ([]string, error) {
 		}
 		med = &conc.Medium{RelativeViscosity: etaR, Model: "measured", SolventViscosityPaS: st.etaPaS, MediumViscosityPaS: st.etaPaS * etaR}
 		note.Model, note.RelativeViscosity = "measured relative viscosity", etaR
+		if !hasPhi {
+			// No stated φ to check against: report the hydrodynamic
+			// volume fraction the reading implies.
+			if impl, model, err := conc.VolumeFractionFromViscosity(etaR, nil); err == nil {
+				note.VolumeFraction = impl
+				note.Check = fmt.Sprintf("the reading implies a hydrodynamic volume fraction of %.4g (%s)", impl, model)
+			}
+		}
 		if hasPhi {
 			note.VolumeFraction = phi
 			// A viscometer reading carries about 1 % (common practice) when

@@ -83,6 +83,21 @@ func TestMediumAndKD(t *testing.T) {
 	}
 }
 
+func TestMediumReadingImpliesFraction(t *testing.T) {
+	// η_r = 1.025 alone: Einstein's relation inverted gives φ = 0.01
+	// (1 + 2.5·0.01 = 1.025), reported with the correction.
+	meta := workedMeta()
+	delete(meta, "viscosity_mpas")
+	delete(meta, "refractive_index")
+	meta["medium_relative_viscosity"] = "1.025"
+	s := DefaultSettings()
+	s.Distribution.Enabled = false
+	r := Analyze(monoMeasurement(meta), &s)
+	if r.Medium == nil || math.Abs(r.Medium.VolumeFraction-0.01) > 1e-6 || !strings.Contains(r.Medium.Check, "implies") {
+		t.Errorf("medium note %+v", r.Medium)
+	}
+}
+
 func TestBudgetInPipeline(t *testing.T) {
 	// Noise-free data: the Type A part is ~0, so the budget is Type B
 	// only. With the defaults for water (u(T) 0.1 K, u(η)/η 1 %, u(n) 1e-4,
