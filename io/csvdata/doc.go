@@ -39,12 +39,14 @@
 //	sample, run, temperature_c, wavelength_nm, angle_deg, solvent,
 //	viscosity_mpas, refractive_index, particle_ri, concentration_mg_ml,
 //	particle_density_g_cm3, volume_fraction, count_rate_kcps, duration_s,
-//	lot, product, role, group
+//	lot, product, role, group, medium_volume_fraction,
+//	medium_relative_viscosity, kd
 //
 // Each value goes into Measurement.Meta as a dls.Param with Origin
 // dls.OriginFile and Where "file:line". The rules:
 //
-//   - sample, run, solvent, lot, product, role and group take any text.
+//   - sample, run, solvent, lot, product, role, group and kd (a number, or
+//     hard-sphere) take any text here; the analysis checks kd.
 //     particle_ri takes a complex number written as 1.59+0.0i (a real
 //     number such as 1.59 is accepted) or the name of a material of the Mie
 //     table (polystyrene, Au, …), evaluated at the measurement's wavelength.

@@ -13,7 +13,8 @@
 //	                    particle_ri, concentration_mg_ml,
 //	                    particle_density_g_cm3, volume_fraction,
 //	                    count_rate_kcps, duration_s, lot, product, role,
-//	                    group
+//	                    group, medium_volume_fraction,
+//	                    medium_relative_viscosity, kd
 //
 // Empty cells set nothing. Unknown columns are an error (a misspelt column
 // would otherwise be silently ignored), and so is a value that breaks its
