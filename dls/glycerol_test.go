@@ -37,7 +37,7 @@ func TestGlycerolWaterCheng(t *testing.T) {
 // IAPWS 2008 at 20 °C (1.0049 vs 1.0016 mPa·s) and about 0.6 % above at
 // 80–90 °C; 1 % over 0–90 °C checks eq. 21 against IAPWS at that level. The
 // classic table value for 50 wt % glycerol at 20 °C is 6.00 mPa·s (from
-// memory, grade C; three digits, so 0.1 %).
+// memory; three digits, so 0.1 %).
 func TestGlycerolWaterLimits(t *testing.T) {
 	for tC := 0.0; tC <= 90; tC += 10 {
 		tK := KelvinFromCelsius(tC)
@@ -45,7 +45,7 @@ func TestGlycerolWaterLimits(t *testing.T) {
 		mediumRel(t, "Cheng water limit vs IAPWS", GlycerolWaterViscosityPaS(0, tK), iapws, 1e-2)
 	}
 	mediumRel(t, "50 wt % at 20 °C", GlycerolWaterViscosityPaS(0.5, KelvinFromCelsius(20))*1e3, 6.00, 1e-3)
-	// Pure glycerol, CRC Handbook (from memory, grade C): 1412 mPa·s at
+	// Pure glycerol, CRC Handbook (from memory): 1412 mPa·s at
 	// 20 °C, where Cheng's eq. 22 agrees (1414, 0.5 % tolerance), and 934 at
 	// 25 °C, where eq. 22 gives 906, 3 % lower (5 % tolerance; a known
 	// disagreement, glycerol being hygroscopic and steeply T-dependent).
@@ -82,7 +82,7 @@ func TestGlycerolWaterLimits(t *testing.T) {
 }
 
 // Index at 20 °C, 589.3 nm against the CRC "Concentrative properties of
-// aqueous solutions" glycerol table (from memory, grade D; relative to air,
+// aqueous solutions" glycerol table (from memory; relative to air,
 // times 1.00027). The ideal Lorentz–Lorenz mixing neglects the volume
 // contraction of glycerol–water and runs low by up to 6e-3 at 60 wt %;
 // the tolerance 6e-3 is that model error, and the sign is checked too.

@@ -111,7 +111,7 @@ func TestSolventWaterProps(t *testing.T) {
 }
 
 // Viscosity at 25 °C against CRC Handbook of Chemistry and Physics,
-// "Viscosity of liquids" (values from memory, grade C). Tolerance 5 %: the
+// "Viscosity of liquids" (values from memory). Tolerance 5 %: the
 // DIPPR-101 fits of Perry's are stated to a few percent and the handbook
 // values carry three digits. Entries that disagree by more are listed in
 // TestSolventViscosityDisagreements.
@@ -138,7 +138,7 @@ func TestSolventViscosity25C(t *testing.T) {
 // tolerance, the test pins the size of the disagreement so that a change of
 // data shows up.
 func TestSolventViscosityDisagreements(t *testing.T) {
-	// Acetonitrile: CRC 0.369 mPa·s at 25 °C (from memory, grade C); Perry's
+	// Acetonitrile: CRC 0.369 mPa·s at 25 °C (from memory); Perry's
 	// DIPPR-101 gives 0.342, 7 % lower. Solvent guides commonly quote
 	// 0.34–0.35 mPa·s at 25 °C (from memory, low confidence), close to the
 	// correlation, so the table keeps it. Tolerances: 10 % against CRC, 3 %
@@ -161,8 +161,8 @@ func TestSolventViscosityDisagreements(t *testing.T) {
 	mediumClose(t, "toluene η(298.15 K) vs JPCRD", p.ViscosityPaS*1e3, 0.5542, 0.0033)
 }
 
-// Viscosity at 50 °C against CRC "Viscosity of liquids" (from memory, grade
-// C–D), the second temperature of the check; tolerance 5 % as at 25 °C.
+// Viscosity at 50 °C against CRC "Viscosity of liquids" (from memory, lower
+// confidence), the second temperature of the check; tolerance 5 % as at 25 °C.
 func TestSolventViscosity50C(t *testing.T) {
 	crc := map[string]float64{ // mPa·s at 50 °C
 		"ethanol": 0.694, "methanol": 0.396, "2-propanol": 1.028, "1-propanol": 1.107,
@@ -249,7 +249,7 @@ func TestDispersionFormulas(t *testing.T) {
 }
 
 // Index at 589.3 nm and 20 °C against the handbook n_D (CRC "Physical
-// Constants of Organic Compounds", from memory, grade C), which is relative
+// Constants of Organic Compounds", from memory), which is relative
 // to air: times n_air = 1.00027 (from memory) for the absolute index.
 // Tolerance 1.5e-3: the handbook's four decimals, the dn/dT correction from
 // the temperature of the data (≈2 K × 1e-4 /K uncertainty) and the scatter

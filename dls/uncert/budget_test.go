@@ -215,11 +215,11 @@ func TestTemperatureSensitivityWater(t *testing.T) {
 		tK := tc + 273.15
 		rho, dRho := patekDensityAndSlope(tK, dls.StandardAtmospherePa)
 		if got := dls.WaterDensityKgM3(tK); !scalar.EqualWithinRel(got, rho, 1e-12) {
-			t.Fatalf("%g °C: density %.12g, analytic transcription %.12g", tc, got, rho)
+			t.Fatalf("%g °C: density %.12g, independent analytic form %.12g", tc, got, rho)
 		}
 		lnMu, dT, dR := iapwsLnViscosityAndSlopes(tK, rho)
 		if got := w.Viscosity.ViscosityPaS(tK); !scalar.EqualWithinRel(got, math.Exp(lnMu), 1e-12) {
-			t.Fatalf("%g °C: viscosity %.12g, analytic transcription %.12g", tc, got, math.Exp(lnMu))
+			t.Fatalf("%g °C: viscosity %.12g, independent analytic form %.12g", tc, got, math.Exp(lnMu))
 		}
 		dlnEta := dT + dR*dRho
 		in := handInputs()
