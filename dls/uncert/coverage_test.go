@@ -29,9 +29,11 @@ import (
 //
 // Two configurations: the defaults at 173° with 10 s runs (the viscosity
 // and the fit's Γ̄ dominate the variance), and a 90° case in which every
-// input weighs (mean variance shares from 4 to 34 %, printed in the log). Expected coverage 95.45 % (normal, k = 2); tolerance ±3 % as asked
-// of the budget, which is 3.2 binomial standard deviations at n = 500
-// (√(0.95·0.05/500) ≈ 0.97 %).
+// input weighs (mean variance shares from 4 to 34 %, printed in the log),
+// and the first again with σ left out of the files, as in most exports, so
+// that the fit estimates its weights and standard error from the data.
+// Expected coverage 95.45 % (normal, k = 2); tolerance ±3 %, which is 3.2
+// binomial standard deviations at n = 500 (√(0.95·0.05/500) ≈ 0.97 %).
 func TestCoverage(t *testing.T) {
 	if testing.Short() {
 		t.Skip("simulates and fits 1000 correlograms (about 2 s)")
@@ -61,9 +63,11 @@ func TestCoverage(t *testing.T) {
 		angleDeg float64
 		durS     float64
 		u        uncert.Uncertainties
+		noSigma  bool // fit without the simulator's σ: weights and SE estimated from the data
 	}{
-		{"defaults 173°", 173, 10, uncert.DefaultUncertainties()},
-		{"every input 90°", 90, 30, uncert.Uncertainties{TemperatureK: 0.3, ViscosityRel: 0.005, RefractiveIndex: 2e-3, AngleRad: 0.5 * math.Pi / 180, WavelengthM: 1e-9}},
+		{"defaults 173°", 173, 10, uncert.DefaultUncertainties(), false},
+		{"every input 90°", 90, 30, uncert.Uncertainties{TemperatureK: 0.3, ViscosityRel: 0.005, RefractiveIndex: 2e-3, AngleRad: 0.5 * math.Pi / 180, WavelengthM: 1e-9}, false},
+		{"defaults 173°, σ estimated", 173, 10, uncert.DefaultUncertainties(), true},
 	}
 	for ci, c := range cases {
 		t.Run(c.name, func(t *testing.T) {
@@ -89,6 +93,9 @@ func TestCoverage(t *testing.T) {
 					t.Fatal(err)
 				}
 				m := &dls.Measurement{File: "coverage", Kind: dls.KindG2, TauS: out.TauS, Corr: out.Runs[0].G2, Sigma: out.Runs[0].Sigma}
+				if c.noSigma {
+					m.Sigma = nil
+				}
 				fit, err := cumulants.Fit(m, nil)
 				if err != nil {
 					t.Fatal(err)
