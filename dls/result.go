@@ -99,10 +99,12 @@ type Result struct {
 	// the volume and number weightings depend on).
 	Assumptions []string `json:"assumptions"`
 
-	// Correction names the concentration corrections applied: "none",
-	// "medium" (the continuous phase's viscosity raised by a small colloid
-	// or excipient), "kd" (collective diffusion of the sized particles
-	// corrected to infinite dilution with a stated k_D), or "medium+kd".
+	// Correction names the concentration corrections applied, joined by
+	// "+": "none", "medium" (the continuous phase's viscosity raised by a
+	// small colloid or excipient), "kd" (collective diffusion of the sized
+	// particles corrected to infinite dilution with a stated k_D),
+	// "dilution-series" (the measurement's group was extrapolated to
+	// infinite dilution; see groups in results.json).
 	Correction string      `json:"correction"`
 	Medium     *MediumNote `json:"medium,omitempty"`
 	// ZAvgD0Nm is the size at infinite dilution when a k_D correction

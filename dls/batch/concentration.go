@@ -120,11 +120,7 @@ func applyKD(r *dls.Result, meta dls.Metadata) ([]string, error) {
 	warn = append(warn, d.Warnings...)
 	r.KD, r.KDPhi = kd, f.Value
 	r.ZAvgD0Nm = r.ZAvgNm * d.Factor
-	if r.Correction == "medium" {
-		r.Correction = "medium+kd"
-	} else {
-		r.Correction = "kd"
-	}
+	r.Correction = appendCorrection(r.Correction, "kd")
 	return warn, nil
 }
 

@@ -75,6 +75,10 @@ func Groups(results []*dls.Result) GroupReport {
 			rep.MultiAngle = append(rep.MultiAngle, ag)
 			if ag.Error != "" {
 				warnAll(results, idx, "multi-angle group "+strconv.Quote(g)+": "+ag.Error)
+			} else if res := ag.Result; res.InterceptFlagged || res.TrendFlagged || res.SpreadFlagged {
+				for _, w := range res.Warnings {
+					warnAll(results, idx, "multi-angle group "+strconv.Quote(g)+": "+w)
+				}
 			}
 		}
 		if len(concs) > 1 {
@@ -83,6 +87,15 @@ func Groups(results []*dls.Result) GroupReport {
 			rep.Dilution = append(rep.Dilution, dg)
 			if dg.Error != "" {
 				warnAll(results, idx, "dilution series "+strconv.Quote(g)+": "+dg.Error)
+			} else {
+				// The group's size at infinite dilution is the corrected
+				// value of these measurements: name it on each.
+				for _, i := range idx {
+					results[i].Correction = appendCorrection(results[i].Correction, "dilution-series")
+				}
+				for _, w := range dg.Result.Warnings {
+					warnAll(results, idx, "dilution series "+strconv.Quote(g)+": "+w)
+				}
 			}
 		}
 	}
@@ -164,4 +177,12 @@ func warnAll(results []*dls.Result, idx []int, msg string) {
 		}
 		r.Message += msg
 	}
+}
+
+// appendCorrection adds a correction's name to a result's list.
+func appendCorrection(have, add string) string {
+	if have == "" || have == "none" {
+		return add
+	}
+	return have + "+" + add
 }

@@ -58,10 +58,11 @@ func TestGroupsMultiAngle(t *testing.T) {
 
 func TestGroupsDilutionAndBadGroups(t *testing.T) {
 	// An exact series D = D0·(1 + k_D·c) with D0 = 4.9e-12 m²/s and
-	// k_D = 0.02 mL/mg at 1, 2, 4, 8 mg/mL: D0 and k_D back to 1e-9.
+	// k_D = 0.01 mL/mg at 1, 2, 4, 8 mg/mL (|k_D·c| ≤ 0.08, inside the
+	// first-order range): D0 and k_D back to 1e-9.
 	mk := func(group string, c, angle float64) *dls.Result {
-		d := 4.9e-12 * (1 + 0.02*c)
-		return &dls.Result{File: fmt.Sprintf("%s-%g-%g.csv", group, c, angle), Sample: "protein", Group: group, Status: dls.StatusOK,
+		d := 4.9e-12 * (1 + 0.01*c)
+		return &dls.Result{File: fmt.Sprintf("%s-%g-%g.csv", group, c, angle), Sample: "protein", Group: group, Status: dls.StatusOK, Correction: "none",
 			HasConditions: true, HasCumulants: true, TemperatureC: 25, ViscosityMPaS: 0.890022, AngleDeg: angle, WavelengthNm: 632.8,
 			RefractiveIndex: 1.33162, DiffusionM2PerS: d, GammaMeanPerS: 1000, GammaSEPerS: 1, PDI: 0.05, PDISE: 0.01, Intercept: 0.9,
 			Params: []dls.Param{{Key: dls.KeyConcentration, Value: fmt.Sprint(c)}}}
@@ -78,7 +79,7 @@ func TestGroupsDilutionAndBadGroups(t *testing.T) {
 		t.Fatalf("dilution groups %+v", rep.Dilution)
 	}
 	s := rep.Dilution[0].Result
-	if s == nil || math.Abs(s.D0M2PerS/4.9e-12-1) > 1e-9 || math.Abs(s.KD/0.02-1) > 1e-9 {
+	if s == nil || math.Abs(s.D0M2PerS/4.9e-12-1) > 1e-9 || math.Abs(s.KD/0.01-1) > 1e-9 {
 		t.Errorf("series %+v", s)
 	}
 	// Two concentrations and two angles are too few: an error in the
@@ -92,8 +93,8 @@ func TestGroupsDilutionAndBadGroups(t *testing.T) {
 		}
 	}
 	for _, r := range rs {
-		if r.Status != dls.StatusOK {
-			t.Errorf("%s of the good series: %s", r.File, r.Message)
+		if r.Status != dls.StatusOK || r.Correction != "dilution-series" {
+			t.Errorf("%s of the good series: status %s (%s), correction %q", r.File, r.Status, r.Message, r.Correction)
 		}
 	}
 }
