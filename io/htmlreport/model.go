@@ -153,7 +153,7 @@ func buildIndex(r *Report) indexPage {
 			Total:   len(s.Runs),
 			ZAvg:    meanSD(s.ZAvgMeanNm, s.ZAvgSDNm, len(s.Used), 1),
 			PDI:     meanOnly(s.PDIMean, len(s.Used), 3),
-			Flags:   s.Flags,
+			Flags:   mergeFlags(s.Flags),
 		})
 	}
 	p.Settings = settingsRows(r.Settings)
@@ -356,6 +356,19 @@ func conditions(r *dls.Result) []keyValue {
 		)
 	}
 	if r.HasCumulants {
+		if r.ZAvgExpandedNm > 0 {
+			out = append(out, keyValue{"z-average ± U (k = 2) (nm)", fixed(r.ZAvgNm, 2) + " ± " + fixed(r.ZAvgExpandedNm, 2)})
+		}
+		if r.Correction != "" && r.Correction != "none" {
+			v := r.Correction
+			if r.ZAvgD0Nm > 0 {
+				v += fmt.Sprintf(" (size at infinite dilution %s nm, k_D %s at φ %s)", fixed(r.ZAvgD0Nm, 2), sig(r.KD, 3), sig(r.KDPhi, 3))
+			}
+			if r.Medium != nil {
+				v += fmt.Sprintf(" (medium: %s, η_r %s, φ %s)", r.Medium.Model, sig(r.Medium.RelativeViscosity, 4), sig(r.Medium.VolumeFraction, 3))
+			}
+			out = append(out, keyValue{"concentration correction", v})
+		}
 		out = append(out,
 			keyValue{"cumulant fit", fmt.Sprintf("%s, order %d, %d points, %s to %s", r.Method, r.Order, r.FitPoints, lag(r.FitFirstTauS), lag(r.FitLastTauS))},
 			keyValue{"intercept β", fixed(r.Intercept, 4)},
@@ -519,4 +532,20 @@ func temperatures(ts []float64) string {
 		parts[i] = fixed(t, 1)
 	}
 	return strings.Join(parts, ", ")
+}
+
+// mergeFlags keeps one flag per code, in first-seen order, its messages
+// joined, so that a code raised on several runs shows once on the index.
+func mergeFlags(f []dls.Flag) []dls.Flag {
+	var out []dls.Flag
+	at := map[string]int{}
+	for _, x := range f {
+		if i, ok := at[x.Code]; ok {
+			out[i].Message += "; " + x.Message
+			continue
+		}
+		at[x.Code] = len(out)
+		out = append(out, x)
+	}
+	return out
 }

@@ -429,3 +429,10 @@ func TestUnknownOutcome(t *testing.T) {
 		t.Errorf("unknown outcome shown as %q, want invalid", got.Word)
 	}
 }
+
+func TestMergeFlags(t *testing.T) {
+	got := mergeFlags([]dls.Flag{{Code: "A", Message: "r1"}, {Code: "B", Message: "x"}, {Code: "A", Message: "r2"}})
+	if len(got) != 2 || got[0].Code != "A" || got[0].Message != "r1; r2" || got[1].Code != "B" {
+		t.Errorf("merged %+v", got)
+	}
+}
