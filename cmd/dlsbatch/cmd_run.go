@@ -186,22 +186,7 @@ func runRun(ctx context.Context, e env, args []string) int {
 	rels := relativePaths(files, paths)
 	var sheetReport *report.SheetReport
 	if sh != nil {
-		sheetReport = &report.SheetReport{File: o.sheetFile, UnmatchedFiles: []string{}, UnusedRows: []string{}}
-		for _, f := range files {
-			if !sh.Matches(rels[f]) {
-				sheetReport.UnmatchedFiles = append(sheetReport.UnmatchedFiles, f)
-				fmt.Fprintf(e.stderr, "dlsbatch run: %s: no row of the sample sheet matches this file\n", f)
-			}
-		}
-		var all []string
-		for _, f := range files {
-			all = append(all, rels[f])
-		}
-		for _, row := range sh.Unmatched(all) {
-			msg := fmt.Sprintf("%s:%d: row %q matches no file", o.sheetFile, row.Line, row.Pattern)
-			sheetReport.UnusedRows = append(sheetReport.UnusedRows, msg)
-			fmt.Fprintf(e.stderr, "dlsbatch run: %s\n", msg)
-		}
+		sheetReport = sheetCheck(e, sh, o.sheetFile, files, rels)
 	}
 
 	rn := &batch.Runner{
@@ -275,6 +260,27 @@ func runRun(ctx context.Context, e env, args []string) int {
 		return exitInterrupted
 	}
 	return exitCode(doc.Counts, outcome)
+}
+
+// sheetCheck reports, on stderr and in results.json, the files that no
+// sample-sheet row matches and the rows that match no file.
+func sheetCheck(e env, sh *sheet.Sheet, name string, files []string, rels map[string]string) *report.SheetReport {
+	rep := &report.SheetReport{File: name, UnmatchedFiles: []string{}, UnusedRows: []string{}}
+	all := make([]string, len(files))
+	for i, f := range files {
+		all[i] = rels[f]
+		if !sh.Matches(rels[f]) {
+			rep.UnmatchedFiles = append(rep.UnmatchedFiles, f)
+			fmt.Fprintf(e.stderr, "dlsbatch run: %s: no row of the sample sheet matches this file\n", f)
+		}
+	}
+	unused := sh.Unmatched(all)
+	for _, row := range unused {
+		msg := fmt.Sprintf("%s:%d: row %q matches no file", name, row.Line, row.Pattern)
+		rep.UnusedRows = append(rep.UnusedRows, msg)
+		fmt.Fprintf(e.stderr, "dlsbatch run: %s\n", msg)
+	}
+	return rep
 }
 
 // htmlReport builds the report model from the run's document.
