@@ -414,3 +414,34 @@ func TestHostileSheetNamesInReport(t *testing.T) {
 		}
 	}
 }
+
+func TestSheetReportsUnmatched(t *testing.T) {
+	// A file no row matches and a row matching no file are both reported
+	// (stderr and results.json), never silently ignored.
+	in := t.TempDir()
+	writeMono(t, filepath.Join(in, "a.csv"), "a", 1)
+	writeMono(t, filepath.Join(in, "b.csv"), "b", 1)
+	sh := filepath.Join(t.TempDir(), "sheet.csv")
+	os.WriteFile(sh, []byte("file,lot\na.csv,L1\nzz*.csv,L9\n"), 0o644)
+	out := filepath.Join(t.TempDir(), "o")
+	code, _, stderr := runCmd(t, "run", in, "--sheet", sh, "--out", out, "-q")
+	if code != exitOK {
+		t.Fatalf("exit %d: %s", code, stderr)
+	}
+	if !strings.Contains(stderr, "b.csv: no row of the sample sheet matches") || !strings.Contains(stderr, `row "zz*.csv" matches no file`) {
+		t.Errorf("stderr %q", stderr)
+	}
+	b, _ := os.ReadFile(filepath.Join(out, "results.json"))
+	var doc struct {
+		Sheet struct {
+			UnmatchedFiles []string `json:"unmatched_files"`
+			UnusedRows     []string `json:"unused_rows"`
+		} `json:"sheet"`
+	}
+	if err := json.Unmarshal(b, &doc); err != nil {
+		t.Fatal(err)
+	}
+	if len(doc.Sheet.UnmatchedFiles) != 1 || !strings.HasSuffix(doc.Sheet.UnmatchedFiles[0], "b.csv") || len(doc.Sheet.UnusedRows) != 1 {
+		t.Errorf("sheet report %+v", doc.Sheet)
+	}
+}
