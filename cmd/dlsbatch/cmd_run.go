@@ -16,9 +16,11 @@ import (
 	"github.com/schollz/progressbar/v3"
 	"github.com/spf13/pflag"
 
+	"dlsbatch/contin"
 	"dlsbatch/cumulants"
 	"dlsbatch/dls"
 	"dlsbatch/dls/batch"
+	"dlsbatch/dls/mie"
 	"dlsbatch/dls/qc"
 	"dlsbatch/dls/spec"
 	"dlsbatch/dls/uncert"
@@ -58,6 +60,13 @@ type runOptions struct {
 	uViscRel    float64
 	uIndex      float64
 	uAngleDeg   float64
+
+	noDist     bool
+	criterion  *enumFlag
+	lambda     float64
+	target     float64
+	gridPoints int
+	particleRI string
 }
 
 func newRunOptions() *runOptions {
@@ -67,8 +76,10 @@ func newRunOptions() *runOptions {
 		defaults: paramsFlag{flag: "default", origin: dls.OriginDefault},
 		corrKind: newEnum("", "g2", "g2m1", "g1"),
 		method:   newEnum(d.Method.String(), "nonlinear", "linear"),
-		order:    d.Order,
-		cutoff:   d.Cutoff,
+		criterion: newEnum(contin.ProbReject.String(), contin.ProbReject.String(), contin.GCV.String(),
+			contin.LCurve.String(), contin.Fixed.String()),
+		order:  d.Order,
+		cutoff: d.Cutoff,
 	}
 }
 
@@ -95,6 +106,12 @@ func (o *runOptions) addFlags(fs *pflag.FlagSet) {
 	fs.StringVar(&o.specFile, "spec", "", "specification (CSV): limits per product; verdicts and system suitability")
 	fs.BoolVar(&o.exclude, "exclude-outliers", false, "leave outlier runs out of each sample's statistics (they are flagged either way)")
 	fs.BoolVar(&o.noReport, "no-report", false, "do not write the HTML report (DIR/report/)")
+	fs.BoolVar(&o.noDist, "no-distribution", false, "cumulants only: skip the size distributions")
+	fs.Var(o.criterion, "alpha-criterion", "choice of the regularisation strength: probability to reject (Provencher), gcv, l-curve, or fixed (with --alpha-lambda)")
+	fs.Float64Var(&o.lambda, "alpha-lambda", 0, "dimensionless strength λ (α² = λ·tr(A'WA)/tr(L'L)) for --alpha-criterion fixed")
+	fs.Float64Var(&o.target, "prob-reject-target", contin.DefaultTargetProbReject, "target probability to reject for the default criterion")
+	fs.IntVar(&o.gridPoints, "grid-points", contin.DefaultNGamma, "points of the log-spaced decay-rate grid of the inversion")
+	fs.StringVar(&o.particleRI, "default-particle-ri", "1.59+0i", "particle refractive index (complex, e.g. 1.59+0i) where a measurement gives none; only the volume and number weightings use it")
 	fs.Float64Var(&o.uTempK, "u-temperature-k", uncert.DefaultTemperatureUncertaintyK, "standard uncertainty of the sample temperature, K (GUM budget)")
 	fs.Float64Var(&o.uViscRel, "u-viscosity-rel", 0, "relative standard uncertainty of the viscosity (0: from the correlation, 1 % for IAPWS water, 3 % for DIPPR-101)")
 	fs.Float64Var(&o.uIndex, "u-refractive-index", uncert.DefaultIndexUncertainty, "standard uncertainty of the medium's refractive index")
@@ -369,6 +386,31 @@ func (o *runOptions) settings() (batch.Settings, *csvdata.Options, error) {
 	}
 	s.Uncertainty.RefractiveIndex = o.uIndex
 	s.Uncertainty.AngleRad = o.uAngleDeg * math.Pi / 180
+	s.Distribution.Enabled = !o.noDist
+	crit, err := contin.ParseCriterion(o.criterion.value)
+	if err != nil {
+		return s, nil, err
+	}
+	s.Distribution.Contin.Criterion = crit
+	if crit == contin.Fixed {
+		if !(o.lambda > 0) {
+			return s, nil, fmt.Errorf("--alpha-criterion fixed needs a positive --alpha-lambda")
+		}
+		s.Distribution.Contin.Lambda = o.lambda
+	}
+	if !(o.target > 0 && o.target < 1) {
+		return s, nil, fmt.Errorf("--prob-reject-target %g: want a value between 0 and 1", o.target)
+	}
+	s.Distribution.Contin.TargetProbReject = o.target
+	if o.gridPoints < 20 || o.gridPoints > 400 {
+		return s, nil, fmt.Errorf("--grid-points %d: want 20 to 400", o.gridPoints)
+	}
+	s.Distribution.Grid.NGamma = o.gridPoints
+	ri, err := mie.ParseComplexIndex(o.particleRI)
+	if err != nil {
+		return s, nil, fmt.Errorf("--default-particle-ri: %w", err)
+	}
+	s.Distribution.DefaultParticleRI = ri
 	if o.solventFile != "" {
 		s.Solvents = dls.NewDefaultSolventTable()
 		if err := solventfile.Load(o.solventFile, s.Solvents); err != nil {
@@ -396,21 +438,37 @@ func (o *runOptions) describe(s batch.Settings) map[string]any {
 		return out
 	}
 	return map[string]any{
-		"cumulant_method":   s.Cumulants.Method.String(),
-		"cumulant_order":    s.Cumulants.Order,
-		"g1_cutoff":         s.Cumulants.Cutoff,
-		"min_lag_s":         s.Cumulants.MinTauS,
-		"min_points":        s.Cumulants.MinPoints,
-		"range_check":       s.Cumulants.RangeCheck,
-		"extrapolate":       s.Extrapolate,
-		"set":               kv(s.Overrides),
-		"default":           kv(s.Defaults),
-		"lag_column":        o.tauCol,
-		"lag_unit":          o.tauUnit,
-		"corr_columns":      o.corrCols,
-		"corr_kind":         o.corrKind.value,
-		"sigma_column":      o.sigmaCol,
-		"boltzmann_j_per_k": dls.BoltzmannJPerK,
+		"cumulant_method":     s.Cumulants.Method.String(),
+		"cumulant_order":      s.Cumulants.Order,
+		"g1_cutoff":           s.Cumulants.Cutoff,
+		"min_lag_s":           s.Cumulants.MinTauS,
+		"min_points":          s.Cumulants.MinPoints,
+		"range_check":         s.Cumulants.RangeCheck,
+		"extrapolate":         s.Extrapolate,
+		"set":                 kv(s.Overrides),
+		"default":             kv(s.Defaults),
+		"lag_column":          o.tauCol,
+		"lag_unit":            o.tauUnit,
+		"corr_columns":        o.corrCols,
+		"corr_kind":           o.corrKind.value,
+		"sigma_column":        o.sigmaCol,
+		"boltzmann_j_per_k":   dls.BoltzmannJPerK,
+		"solvent_file":        o.solventFile,
+		"sheet":               o.sheetFile,
+		"spec":                o.specFile,
+		"exclude_outliers":    o.exclude,
+		"u_temperature_k":     s.Uncertainty.TemperatureK,
+		"u_viscosity_rel":     o.uViscRel,
+		"u_refractive_index":  s.Uncertainty.RefractiveIndex,
+		"u_angle_deg":         o.uAngleDeg,
+		"coverage_factor":     s.CoverageFactor,
+		"distribution":        s.Distribution.Enabled,
+		"alpha_criterion":     s.Distribution.Contin.Criterion.String(),
+		"alpha_lambda":        s.Distribution.Contin.Lambda,
+		"prob_reject_target":  s.Distribution.Contin.TargetProbReject,
+		"grid_points":         s.Distribution.Grid.NGamma,
+		"default_particle_ri": mie.FormatComplexIndex(s.Distribution.DefaultParticleRI),
+		"qc_thresholds":       s.QC,
 	}
 }
 

@@ -51,23 +51,23 @@ const (
 
 // Thresholds are the settings behind the flags. Defaults: DefaultThresholds.
 type Thresholds struct {
-	MinIntercept     float64 // LOW-INTERCEPT below this coherence factor
-	MaxIntercept     float64 // HIGH-INTERCEPT above
-	MaxBaselineShift float64 // BASELINE-OFFSET when |far baseline − nominal| / intercept exceeds this
-	DustSizeFactor   float64 // DUST: intensity above this many z-averages …
-	DustMinNm        float64 // … and above this diameter …
-	DustMinPct       float64 // … holding more than this % of the intensity
-	MaxReducedChi2   float64 // POOR-FIT when σ was given and χ²/ν exceeds this
-	MaxRMSRatio      float64 // POOR-FIT when the cumulant rms exceeds this multiple of the distribution fit's
-	MaxPDI           float64 // HIGH-PDI above
-	MinDecayLags     float64 // OUTSIDE-WINDOW when 1/Γ̄ is below this many first lags …
-	MaxDecayFraction float64 // … or above this fraction of the last lag
-	MinPeakPct       float64 // MULTIMODAL: a second intensity peak holding at least this %
-	MaxDistMismatch  float64 // DIST-MISMATCH when the distribution's z-average differs by more than this fraction
-	MinCountRateKcps float64 // LOW-COUNT-RATE below (when the count rate is known)
-	OutlierK         float64 // OUTLIER beyond this many robust SDs of the median
-	MinRuns          int     // FEW-RUNS below this number of analysed runs
-	MaxRSDPct        float64 // HIGH-RSD above this repeatability RSD of the z-average, %
+	MinIntercept     float64 `json:"min_intercept"`       // LOW-INTERCEPT below this coherence factor
+	MaxIntercept     float64 `json:"max_intercept"`       // HIGH-INTERCEPT above
+	MaxBaselineShift float64 `json:"max_baseline_shift"`  // BASELINE-OFFSET when |far baseline − nominal| / intercept exceeds this
+	DustSizeFactor   float64 `json:"dust_size_factor"`    // DUST: intensity above this many z-averages …
+	DustMinNm        float64 `json:"dust_min_nm"`         // … and above this diameter …
+	DustMinPct       float64 `json:"dust_min_pct"`        // … holding more than this % of the intensity
+	MaxReducedChi2   float64 `json:"max_reduced_chi2"`    // POOR-FIT when σ was given and χ²/ν exceeds this
+	MaxRMSRatio      float64 `json:"max_rms_ratio"`       // POOR-FIT when the cumulant rms exceeds this multiple of the distribution fit's
+	MaxPDI           float64 `json:"max_pdi"`             // HIGH-PDI above
+	MinDecayLags     float64 `json:"min_decay_lags"`      // OUTSIDE-WINDOW when 1/Γ̄ is below this many first lags …
+	MaxDecayFraction float64 `json:"max_decay_fraction"`  // … or above this fraction of the last lag
+	MinPeakPct       float64 `json:"min_peak_pct"`        // MULTIMODAL: a second intensity peak holding at least this %
+	MaxDistMismatch  float64 `json:"max_dist_mismatch"`   // DIST-MISMATCH when the distribution's z-average differs by more than this fraction
+	MinCountRateKcps float64 `json:"min_count_rate_kcps"` // LOW-COUNT-RATE below (when the count rate is known)
+	OutlierK         float64 `json:"outlier_k"`           // OUTLIER beyond this many robust SDs of the median
+	MinRuns          int     `json:"min_runs"`            // FEW-RUNS below this number of analysed runs
+	MaxRSDPct        float64 `json:"max_rsd_pct"`         // HIGH-RSD above this repeatability RSD of the z-average, %
 }
 
 // DefaultThresholds returns the defaults (common practice, from memory,
