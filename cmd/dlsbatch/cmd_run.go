@@ -121,9 +121,13 @@ func (o *runOptions) addFlags(fs *pflag.FlagSet) {
 const runUsage = `Usage: dlsbatch run [flags] PATH... --out DIR
 
 Reads every correlogram CSV named, or found below a named folder (*.csv,
-recursively), fits cumulants to each measurement and writes
-DIR/results.csv (one row per measurement) and DIR/results.json (the same
-records with fitted curves and the provenance of every parameter).
+recursively), and for each measurement fits cumulants (z-average, PDI),
+inverts it into intensity, volume and number size distributions, and
+states the z-average's uncertainty. Writes to DIR:
+  results.csv    one row per measurement
+  samples.csv    one row per sample: statistics, QC flags, verdict
+  results.json   the same with curves, distributions, budgets, provenance
+  report/        an offline HTML report (index.html)
 Input files are only ever read.
 
 Metadata precedence, highest first: --set, sample sheet, the file's
