@@ -2,7 +2,6 @@ package main
 
 import (
 	"context"
-	"errors"
 	"fmt"
 	"text/tabwriter"
 
@@ -21,15 +20,8 @@ defaults; each site should review them against its instruments and products.
 
 func runFlags(ctx context.Context, e env, args []string) int {
 	fs := pflag.NewFlagSet("flags", pflag.ContinueOnError)
-	fs.SetOutput(e.stderr)
-	fs.Usage = func() {}
-	if err := fs.Parse(args); err != nil {
-		if errors.Is(err, pflag.ErrHelp) {
-			fmt.Fprint(e.stdout, flagsUsage)
-			return exitOK
-		}
-		fmt.Fprintf(e.stderr, "dlsbatch flags: %v\n", err)
-		return exitUsage
+	if code, done := parseFlags(fs, e, "flags", flagsUsage, args); done {
+		return code
 	}
 	if fs.NArg() > 0 {
 		fmt.Fprintf(e.stderr, "dlsbatch flags: takes no arguments\n")

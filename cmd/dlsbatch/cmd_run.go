@@ -3,7 +3,6 @@ package main
 import (
 	"bytes"
 	"context"
-	"errors"
 	"fmt"
 	"io"
 	"math"
@@ -139,19 +138,9 @@ Flags:
 func runRun(ctx context.Context, e env, args []string) int {
 	o := newRunOptions()
 	fs := pflag.NewFlagSet("run", pflag.ContinueOnError)
-	fs.SetOutput(e.stderr)
 	o.addFlags(fs)
-	fs.Usage = func() {} // pflag calls it on --help too; help is printed below
-	if err := fs.Parse(args); err != nil {
-		if errors.Is(err, pflag.ErrHelp) {
-			fmt.Fprint(e.stdout, runUsage)
-			fs.SetOutput(e.stdout)
-			fs.PrintDefaults()
-			fmt.Fprint(e.stdout, "\n"+exitCodesText)
-			return exitOK
-		}
-		fmt.Fprintln(e.stderr, "run 'dlsbatch run --help' for the flags")
-		return exitUsage
+	if code, done := parseFlags(fs, e, "run", runUsage, args); done {
+		return code
 	}
 	paths := fs.Args()
 	if len(paths) == 0 {

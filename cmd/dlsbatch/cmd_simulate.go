@@ -128,22 +128,9 @@ Flags:
 func runSimulate(ctx context.Context, e env, args []string) int {
 	o := newSimOptions()
 	fs := pflag.NewFlagSet("simulate", pflag.ContinueOnError)
-	fs.SetOutput(e.stderr)
 	o.addFlags(fs)
-	fs.Usage = func() {
-		fmt.Fprint(e.stderr, simulateUsage)
-		fs.PrintDefaults()
-		fmt.Fprint(e.stderr, "\n"+exitCodesText)
-	}
-	if err := fs.Parse(args); err != nil {
-		if errors.Is(err, pflag.ErrHelp) {
-			fmt.Fprint(e.stdout, simulateUsage)
-			fs.SetOutput(e.stdout)
-			fs.PrintDefaults()
-			fmt.Fprint(e.stdout, "\n"+exitCodesText)
-			return exitOK
-		}
-		return exitUsage
+	if code, done := parseFlags(fs, e, "simulate", simulateUsage, args); done {
+		return code
 	}
 	if fs.NArg() > 0 {
 		fmt.Fprintf(e.stderr, "dlsbatch simulate: unexpected argument %q\n", fs.Arg(0))

@@ -2,7 +2,6 @@ package main
 
 import (
 	"context"
-	"errors"
 	"fmt"
 	"io"
 	"math"
@@ -55,24 +54,9 @@ Flags:
 func runSolvents(ctx context.Context, e env, args []string) int {
 	var o solventsOptions
 	fs := pflag.NewFlagSet("solvents", pflag.ContinueOnError)
-	fs.SetOutput(e.stderr)
 	o.addFlags(fs)
-	usage := func(w io.Writer) {
-		fmt.Fprintf(w, solventsUsage)
-		fs.SetOutput(w)
-		fs.PrintDefaults()
-		fs.SetOutput(e.stderr)
-		fmt.Fprint(w, "\n"+exitCodesText)
-	}
-	fs.Usage = func() {} // pflag calls it for --help too; printed below instead
-	if err := fs.Parse(args); err != nil {
-		if errors.Is(err, pflag.ErrHelp) {
-			usage(e.stdout)
-			return exitOK
-		}
-		fmt.Fprintf(e.stderr, "dlsbatch solvents: %v\n\n", err)
-		usage(e.stderr)
-		return exitUsage
+	if code, done := parseFlags(fs, e, "solvents", solventsUsage, args); done {
+		return code
 	}
 	atState := fs.Changed("temperature-c") || fs.Changed("wavelength-nm")
 

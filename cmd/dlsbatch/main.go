@@ -4,11 +4,14 @@ package main
 
 import (
 	"context"
+	"errors"
 	"fmt"
 	"io"
 	"os"
 	"os/signal"
 	"syscall"
+
+	"github.com/spf13/pflag"
 )
 
 // Exit codes. Keep this list and usageText in step.
@@ -100,3 +103,26 @@ const exitCodesText = `Exit codes:
   5    batch invalid: the reference standard failed or was not measured (--spec)
   130  interrupted
 `
+
+// parseFlags parses args into fs for the subcommand name. For --help it
+// prints usage (its text, the flags and the exit codes) to stdout and
+// returns exitOK with done set; on a bad flag it reports the error and a
+// hint on stderr and returns exitUsage with done set.
+func parseFlags(fs *pflag.FlagSet, e env, name, usage string, args []string) (code int, done bool) {
+	fs.SetOutput(e.stderr)
+	fs.Usage = func() {} // pflag calls it on --help and on errors; printed here instead
+	err := fs.Parse(args)
+	switch {
+	case err == nil:
+		return 0, false
+	case errors.Is(err, pflag.ErrHelp):
+		fmt.Fprint(e.stdout, usage)
+		fs.SetOutput(e.stdout)
+		fs.PrintDefaults()
+		fs.SetOutput(e.stderr)
+		fmt.Fprint(e.stdout, "\n"+exitCodesText)
+		return exitOK, true
+	}
+	fmt.Fprintf(e.stderr, "dlsbatch %s: %v\nrun 'dlsbatch %s --help' for the flags\n", name, err, name)
+	return exitUsage, true
+}
