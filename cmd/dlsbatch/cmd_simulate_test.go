@@ -2,7 +2,6 @@ package main
 
 import (
 	"bytes"
-	"context"
 	"encoding/json"
 	"errors"
 	"math"
@@ -20,9 +19,7 @@ import (
 // simCmd runs `dlsbatch simulate ARGS` with buffers.
 func simCmd(t *testing.T, args ...string) (int, string, string) {
 	t.Helper()
-	var out, errb bytes.Buffer
-	code := runSimulate(context.Background(), env{stdin: strings.NewReader(""), stdout: &out, stderr: &errb}, args)
-	return code, out.String(), errb.String()
+	return runCmd(t, append([]string{"simulate"}, args...)...)
 }
 
 func TestSimulateHelp(t *testing.T) {
