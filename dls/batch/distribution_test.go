@@ -90,7 +90,7 @@ func TestDistributionBimodal(t *testing.T) {
 	// puts the modes at 30 and 301 nm for any λ up to 1e-4. With noise, the
 	// default criterion (probability to reject 0.5, Provencher 1982) picks
 	// a strength that broadens the slow peak, whose g1 tail carries large
-	// propagated uncertainties, and moves its mode 4–12 % up over these
+	// propagated uncertainties, and moves its mode 3–10 % up over these
 	// seeds (the bias stays at 1000 s, so it is the regulariser's, not the
 	// noise's). At the default the slow mode is therefore held to 15 %; a
 	// less conservative target, 0.1, is held to the 10 %.
