@@ -127,6 +127,7 @@ states the z-average's uncertainty. Writes to DIR:
   samples.csv    one row per sample: statistics, QC flags, verdict
   results.json   the same with curves, distributions, budgets, provenance
   report/        an offline HTML report (index.html)
+  manifest.json  SHA-256 of every input and output, and the settings
 Input files are only ever read.
 
 Metadata precedence, highest first: --set, sample sheet, the file's
@@ -161,7 +162,7 @@ func runRun(ctx context.Context, e env, args []string) int {
 		return exitUsage
 	}
 	if !o.force {
-		for _, name := range []string{"results.csv", "samples.csv", "results.json"} {
+		for _, name := range []string{"results.csv", "samples.csv", "results.json", "manifest.json"} {
 			if _, err := os.Stat(filepath.Join(o.out, name)); err == nil {
 				fmt.Fprintf(e.stderr, "dlsbatch run: %s already exists; use --force to replace it\n", filepath.Join(o.out, name))
 				return exitUsage
@@ -245,7 +246,8 @@ func runRun(ctx context.Context, e env, args []string) int {
 		Samples:  samples,
 		Results:  results,
 	}
-	if err := writeOutputs(o.out, results, samples, doc); err != nil {
+	written, err := writeOutputs(o.out, results, samples, doc)
+	if err != nil {
 		fmt.Fprintf(e.stderr, "dlsbatch run: %v\n", err)
 		return exitFatal
 	}
@@ -255,11 +257,15 @@ func runRun(ctx context.Context, e env, args []string) int {
 			return exitFatal
 		}
 	}
+	if err := writeManifest(o, doc.Settings, files, written); err != nil {
+		fmt.Fprintf(e.stderr, "dlsbatch run: %v\n", err)
+		return exitFatal
+	}
 	if !o.quiet {
 		if err := report.WriteSummary(e.stdout, results, samples, outcome, 10); err != nil {
 			fmt.Fprintf(e.stderr, "dlsbatch run: %v\n", err)
 		}
-		what := "results.csv, samples.csv, results.json"
+		what := "results.csv, samples.csv, results.json, manifest.json"
 		if !o.noReport {
 			what += ", report/index.html"
 		}
@@ -506,29 +512,77 @@ func checkOutside(out string, inputs []string) error {
 // writeOutputs writes results.csv and results.json, each through a
 // temporary file renamed into place, so that a failed write never leaves a
 // half file under the final name.
-func writeOutputs(dir string, results []*dls.Result, samples []*dls.Sample, doc *report.Document) error {
+func writeOutputs(dir string, results []*dls.Result, samples []*dls.Sample, doc *report.Document) ([]report.FileHash, error) {
 	if err := os.MkdirAll(dir, 0o755); err != nil {
-		return fmt.Errorf("output folder: %w", err)
+		return nil, fmt.Errorf("output folder: %w", err)
 	}
 	var csvBuf, smpBuf, jsonBuf bytes.Buffer
 	if err := report.WriteCSV(&csvBuf, results); err != nil {
-		return err
+		return nil, err
 	}
 	if err := report.WriteSamplesCSV(&smpBuf, samples, results); err != nil {
-		return err
+		return nil, err
 	}
 	if err := report.WriteJSON(&jsonBuf, doc); err != nil {
-		return err
+		return nil, err
 	}
+	var hashes []report.FileHash
 	for _, f := range []struct {
 		name string
-		data io.Reader
+		data *bytes.Buffer
 	}{{"results.csv", &csvBuf}, {"samples.csv", &smpBuf}, {"results.json", &jsonBuf}} {
+		hashes = append(hashes, report.HashBytes(f.name, f.data.Bytes()))
 		if err := writeAtomic(filepath.Join(dir, f.name), f.data); err != nil {
-			return err
+			return nil, err
 		}
 	}
-	return nil
+	return hashes, nil
+}
+
+// writeManifest writes DIR/manifest.json: the tool version, the settings,
+// and the SHA-256 of every input read and every output written (report
+// pages included), with paths as given or relative to DIR.
+func writeManifest(o *runOptions, settings map[string]any, files []string, written []report.FileHash) error {
+	m := &report.Manifest{Tool: "dlsbatch", Version: version, Settings: settings, Tables: []report.FileHash{}, Outputs: written}
+	for _, f := range files {
+		h, err := report.HashFile(f)
+		if err != nil {
+			return err
+		}
+		m.Inputs = append(m.Inputs, h)
+	}
+	for _, t := range []string{o.sheetFile, o.specFile, o.solventFile} {
+		if t == "" {
+			continue
+		}
+		h, err := report.HashFile(t)
+		if err != nil {
+			return err
+		}
+		m.Tables = append(m.Tables, h)
+	}
+	if !o.noReport {
+		entries, err := os.ReadDir(filepath.Join(o.out, "report"))
+		if err != nil {
+			return fmt.Errorf("manifest: %w", err)
+		}
+		for _, en := range entries { // ReadDir sorts by name
+			if en.IsDir() {
+				continue
+			}
+			h, err := report.HashFile(filepath.Join(o.out, "report", en.Name()))
+			if err != nil {
+				return err
+			}
+			h.Path = "report/" + en.Name()
+			m.Outputs = append(m.Outputs, h)
+		}
+	}
+	var b bytes.Buffer
+	if err := report.WriteManifest(&b, m); err != nil {
+		return err
+	}
+	return writeAtomic(filepath.Join(o.out, "manifest.json"), &b)
 }
 
 func writeAtomic(path string, r io.Reader) error {

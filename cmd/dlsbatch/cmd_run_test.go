@@ -4,6 +4,7 @@ import (
 	"bytes"
 	"context"
 	"crypto/sha256"
+	"fmt"
 	"encoding/csv"
 	"encoding/json"
 	"math"
@@ -218,7 +219,7 @@ func TestRunSameBytesAnyJobs(t *testing.T) {
 		out := filepath.Join(t.TempDir(), "out")
 		runCmd(t, "run", in, "--out", out, "-j", j, "--quiet")
 		got := map[string][]byte{}
-		for _, name := range []string{"results.csv", "results.json"} {
+		for _, name := range []string{"results.csv", "samples.csv", "results.json", "manifest.json", "report/index.html"} {
 			b, err := os.ReadFile(filepath.Join(out, name))
 			if err != nil {
 				t.Fatal(err)
@@ -405,7 +406,7 @@ func TestHostileSheetNamesInReport(t *testing.T) {
 		}
 		return nil
 	})
-	want := "report/index.html report/sample-0001.html report/sample-0002.html results.csv results.json samples.csv"
+	want := "manifest.json report/index.html report/sample-0001.html report/sample-0002.html results.csv results.json samples.csv"
 	if strings.Join(names, " ") != want {
 		t.Errorf("files written: %v, want %s", names, want)
 	}
@@ -452,5 +453,60 @@ func TestSheetReportsUnmatched(t *testing.T) {
 	}
 	if len(doc.Sheet.UnmatchedFiles) != 1 || !strings.HasSuffix(doc.Sheet.UnmatchedFiles[0], "b.csv") || len(doc.Sheet.UnusedRows) != 1 {
 		t.Errorf("sheet report %+v", doc.Sheet)
+	}
+}
+
+func TestManifest(t *testing.T) {
+	// manifest.json holds the SHA-256 of each input and output (checked
+	// here against crypto/sha256 of the files themselves) and the settings.
+	in := batchDir(t)
+	out := filepath.Join(t.TempDir(), "o")
+	runCmd(t, "run", in, "--out", out, "-q")
+	b, err := os.ReadFile(filepath.Join(out, "manifest.json"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	var m struct {
+		Version  string         `json:"version"`
+		Settings map[string]any `json:"settings"`
+		Inputs   []struct {
+			Path   string `json:"path"`
+			SHA256 string `json:"sha256"`
+		} `json:"inputs"`
+		Outputs []struct {
+			Path   string `json:"path"`
+			SHA256 string `json:"sha256"`
+		} `json:"outputs"`
+	}
+	if err := json.Unmarshal(b, &m); err != nil {
+		t.Fatal(err)
+	}
+	if len(m.Inputs) != 4 || m.Version != version || m.Settings["cumulant_method"] != "nonlinear" {
+		t.Fatalf("manifest %+v", m)
+	}
+	sum := func(p string) string {
+		b, err := os.ReadFile(p)
+		if err != nil {
+			t.Fatal(err)
+		}
+		h := sha256.Sum256(b)
+		return fmt.Sprintf("%x", h[:])
+	}
+	for _, f := range m.Inputs {
+		if f.SHA256 != sum(f.Path) {
+			t.Errorf("input %s: hash differs", f.Path)
+		}
+	}
+	seen := map[string]bool{}
+	for _, f := range m.Outputs {
+		seen[f.Path] = true
+		if f.SHA256 != sum(filepath.Join(out, f.Path)) {
+			t.Errorf("output %s: hash differs", f.Path)
+		}
+	}
+	for _, want := range []string{"results.csv", "samples.csv", "results.json", "report/index.html"} {
+		if !seen[want] {
+			t.Errorf("manifest lacks %s", want)
+		}
 	}
 }

@@ -1,0 +1,62 @@
+package report
+
+import (
+	"crypto/sha256"
+	"encoding/hex"
+	"encoding/json"
+	"fmt"
+	"io"
+	"os"
+)
+
+// FileHash identifies one file of a run by its SHA-256.
+type FileHash struct {
+	Path   string `json:"path"`
+	Bytes  int64  `json:"bytes"`
+	SHA256 string `json:"sha256"`
+}
+
+// Manifest records what a run read and wrote, so that a reprocessing can be
+// shown to have used the same inputs and settings and produced the same
+// bytes. It holds no clock time and no absolute path that was not given.
+type Manifest struct {
+	Tool     string         `json:"tool"`
+	Version  string         `json:"version"`
+	Settings map[string]any `json:"settings"`
+	// Inputs are the correlogram files in analysis order; Tables the sample
+	// sheet, specification and solvent file when given.
+	Inputs  []FileHash `json:"inputs"`
+	Tables  []FileHash `json:"tables"`
+	Outputs []FileHash `json:"outputs"`
+}
+
+// HashFile returns the size and SHA-256 of the file at path.
+func HashFile(path string) (FileHash, error) {
+	f, err := os.Open(path)
+	if err != nil {
+		return FileHash{}, fmt.Errorf("manifest: %w", err)
+	}
+	defer f.Close()
+	h := sha256.New()
+	n, err := io.Copy(h, f)
+	if err != nil {
+		return FileHash{}, fmt.Errorf("manifest: %s: %w", path, err)
+	}
+	return FileHash{Path: path, Bytes: n, SHA256: hex.EncodeToString(h.Sum(nil))}, nil
+}
+
+// HashBytes returns the FileHash of data written under the name path.
+func HashBytes(path string, data []byte) FileHash {
+	s := sha256.Sum256(data)
+	return FileHash{Path: path, Bytes: int64(len(data)), SHA256: hex.EncodeToString(s[:])}
+}
+
+// WriteManifest writes m as indented JSON.
+func WriteManifest(w io.Writer, m *Manifest) error {
+	enc := json.NewEncoder(w)
+	enc.SetIndent("", " ")
+	if err := enc.Encode(m); err != nil {
+		return fmt.Errorf("manifest: %w", err)
+	}
+	return nil
+}
