@@ -48,17 +48,18 @@ func DefaultDistributionSettings() DistributionSettings {
 // using the coherence factor β of the cumulant fit and the baseline B: the
 // far-channel mean when the correlation has reached it (measured, and free
 // of the cumulant model, which a broad or multimodal sample biases), else
-// the cumulant fit's. For g2
-// and g2m1 data u = (y − B)/β estimates g1², and
+// the cumulant fit's. For g2 and g2m1 data u = (y − B)/β estimates g1², and
 //
-//	g1 = sign(u)·√|u|,   σ_g1 = σ_u / (2·√max(|u|, σ_u)),   σ_u = σ/β
+//	g1 = sign(u)·√|u|,   σ_g1 = σ_u / (2·√max(|ũ|, σ_u)),   σ_u = σ/β
 //
-// The signed root keeps noise about a zero baseline symmetric about zero,
-// so values at or below the baseline are neither clipped nor rectified into
-// a spurious slow component; the propagated σ gives those channels little
-// weight, and the floor at |u| = σ_u keeps it finite where u crosses zero.
-// For g1 data g1 = (y − B)/β and σ_g1 = σ/β.
-func fieldCorrelation(m *dls.Measurement, fit *cumulants.Result, first int, sigmaY []float64) (g1, sigma []float64) {
+// where ũ is u itself, or, when model (a g1 over the same lags) is given,
+// the model's g1·|g1|, so that the weights do not follow the noise of the
+// data. The signed root keeps noise about a zero baseline symmetric about
+// zero, so values at or below the baseline are neither clipped nor
+// rectified into a spurious slow component; the propagated σ gives those
+// channels little weight, and the floor at |ũ| = σ_u keeps it finite where
+// u crosses zero. For g1 data g1 = (y − B)/β and σ_g1 = σ/β.
+func fieldCorrelation(m *dls.Measurement, fit *cumulants.Result, first int, sigmaY, model []float64) (g1, sigma []float64) {
 	n := len(m.TauS) - first
 	g1 = make([]float64, n)
 	sigma = make([]float64, n)
@@ -72,7 +73,11 @@ func fieldCorrelation(m *dls.Measurement, fit *cumulants.Result, first int, sigm
 			continue
 		}
 		g1[i] = math.Copysign(math.Sqrt(math.Abs(u)), u)
-		sigma[i] = su / (2 * math.Sqrt(math.Max(math.Abs(u), su)))
+		uw := u
+		if model != nil {
+			uw = model[i] * math.Abs(model[i])
+		}
+		sigma[i] = su / (2 * math.Sqrt(math.Max(math.Abs(uw), su)))
 	}
 	return g1, sigma
 }
@@ -149,7 +154,7 @@ func distribution(m *dls.Measurement, fit *cumulants.Result, st state, meta dls.
 	if err != nil {
 		return fail(err)
 	}
-	g1, sg := fieldCorrelation(m, fit, first, fit.Sigma)
+	g1, sg := fieldCorrelation(m, fit, first, fit.Sigma, nil)
 	cs := s.Contin
 	// With the baseline reached, the measured far-channel baseline is
 	// subtracted exactly and a free constant column would only trade
@@ -160,17 +165,23 @@ func distribution(m *dls.Measurement, fit *cumulants.Result, st state, meta dls.
 	if err != nil {
 		return fail(err)
 	}
+	// Second pass. The first weighted each channel with the propagated σ
+	// of its own data value, so that channels whose noise happened to
+	// raise g1 got more weight: in the slow tail this biases slow
+	// populations to larger sizes (measured: +5.6 % mean, +11 % at most,
+	// for a 300 nm population beside a 30 nm one). The second pass takes
+	// the weights from the first pass's model instead, which removes that
+	// correlation (then +2.8 %, at most +7.8 %). When σ was estimated from
+	// the cumulant fit's residuals, which hold that model's misfit on broad
+	// or multimodal samples, σ is estimated again from the inversion's own
+	// residuals as well.
+	sigma := fit.Sigma
 	if fit.SigmaEstimated {
-		// The estimated σ came from the cumulant fit's residuals, which
-		// hold that model's misfit where the sample is broad or multimodal.
-		// The inversion's own model follows such samples: estimate σ again
-		// from its residuals (mapped back to the correlogram's units) and
-		// invert once more with those weights.
-		sigma := dls.LocalSigma(correlogramResiduals(m, fit, first, inv.Fitted), first, len(m.TauS)-1, 1e-6*fit.Intercept)
-		g1, sg = fieldCorrelation(m, fit, first, sigma)
-		if inv2, err := contin.Invert(grid, g1, sg, &cs); err == nil {
-			inv = inv2
-		}
+		sigma = dls.LocalSigma(correlogramResiduals(m, fit, first, inv.Fitted), first, len(m.TauS)-1, 1e-6*fit.Intercept)
+	}
+	g1, sg = fieldCorrelation(m, fit, first, sigma, inv.Fitted)
+	if inv2, err := contin.Invert(grid, g1, sg, &cs); err == nil {
+		inv = inv2
 	}
 	d, err := dls.NewDistribution(dls.DistributionInput{
 		GammaPerS: inv.GammaPerS, Amplitude: inv.Amplitude, TempK: tK, ViscosityPaS: st.etaPaS,

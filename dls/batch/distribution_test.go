@@ -14,6 +14,11 @@ import (
 // in water at 25 °C, 632.8 nm, 173°, 300 kcps, 100 s, β = 0.92, with Mie
 // intensity weights, and metadata giving the same conditions and index.
 func simulated(t *testing.T, population string, seed uint64) *dls.Measurement {
+	return simulatedFor(t, population, seed, 100)
+}
+
+// simulatedFor is simulated with a measurement duration of durS seconds.
+func simulatedFor(t *testing.T, population string, seed uint64, durS float64) *dls.Measurement {
 	t.Helper()
 	const (
 		tK, eta, n, lambda = 298.15, 0.890022e-3, 1.33162, 632.8e-9
@@ -38,7 +43,7 @@ func simulated(t *testing.T, population string, seed uint64) *dls.Measurement {
 	if err != nil {
 		t.Fatal(err)
 	}
-	out, err := sim.Simulate(model, &sim.Config{Grid: grid, Beta: 0.92, Baseline: 1, CountRateHz: 3e5, DurationS: 100, Runs: 1, Seed: seed})
+	out, err := sim.Simulate(model, &sim.Config{Grid: grid, Beta: 0.92, Baseline: 1, CountRateHz: 3e5, DurationS: durS, Runs: 1, Seed: seed})
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -81,52 +86,58 @@ func TestDistributionMonomodal(t *testing.T) {
 }
 
 func TestDistributionBimodal(t *testing.T) {
-	// Two populations with a diameter ratio of 10 (30 and 300 nm, 70/30 by
-	// intensity, each an intensity lognormal of width 0.1): two intensity
-	// peaks, intensity shares within 10 percentage points of 70 and 30,
-	// modes within 10 % of 30 and 300 nm.
+	// Two populations, each an intensity lognormal of width 0.1, at the
+	// default settings, 8 noise seeds each: two intensity peaks, modes
+	// within 10 % of the populations' medians (for an intensity lognormal
+	// the maximum per log bin sits at the median), intensity shares within
+	// 10 percentage points.
 	//
-	// Measured behaviour behind the tolerances: noise-free, the inversion
-	// puts the modes at 30 and 301 nm for any λ up to 1e-4. With noise, the
-	// default criterion (probability to reject 0.5, Provencher 1982) picks
-	// a strength that broadens the slow peak, whose g1 tail carries large
-	// propagated uncertainties, and moves its mode 3–10 % up over these
-	// seeds (the bias stays at 1000 s, so it is the regulariser's, not the
-	// noise's). At the default the slow mode is therefore held to 15 %; a
-	// less conservative target, 0.1, is held to the 10 %.
-	for _, c := range []struct {
-		target, tolSlow float64
-	}{{0, 0.15}, {0.1, 0.10}} {
-		s := DefaultSettings()
-		if c.target > 0 {
-			s.Distribution.Contin.TargetProbReject = c.target
-		}
-		for seed := uint64(1); seed <= 4; seed++ {
-			r := Analyze(simulated(t, "70%lognormal(30nm,0.1,intensity)+30%lognormal(300nm,0.1,intensity)@intensity", seed), &s)
-			if !r.HasDistribution {
-				t.Fatalf("no distribution: %s", r.Message)
-			}
-			ps := r.Intensity.Peaks
-			if len(ps) != 2 {
-				t.Errorf("target %g seed %d: %d peaks %+v, want 2", c.target, seed, len(ps), ps)
-				continue
-			}
-			small, large := ps[0], ps[1]
-			if small.ModeNm > large.ModeNm {
-				small, large = large, small
-			}
-			for _, w := range []struct {
-				p               dls.Peak
-				mode, area, tol float64
-			}{{small, 30, 70, 0.10}, {large, 300, 30, c.tolSlow}} {
-				if math.Abs(w.p.ModeNm/w.mode-1) > w.tol {
-					t.Errorf("target %g seed %d: mode %.1f nm, want %g ± %.0f %%", c.target, seed, w.p.ModeNm, w.mode, 100*w.tol)
+	//   - diameter ratio 10: 30 and 300 nm, 70/30, 100 s;
+	//   - diameter ratio 4: 50 and 200 nm, 50/50, 600 s (a longer
+	//     measurement, as a laboratory makes when it suspects two
+	//     populations; at 100 s a ratio-4 pair is split in only 5 of 8 runs,
+	//     consistent with the resolution limit of about 2–2.5 in size at
+	//     low noise, Bertero, Boccacci & Pike 1982).
+	//
+	// Measured: noise-free, the modes are exact; with noise the slow mode
+	// of the ratio-10 pair comes out +2.8 % on average and +7.8 % at most
+	// with the model-based weights of the second pass (+5.6 %, +11 % with
+	// weights from the data), and the ratio-4 pair within 5.5 %.
+	cases := []struct {
+		name, pop        string
+		durS             float64
+		modes, fractions [2]float64
+	}{
+		{"ratio 10", "70%lognormal(30nm,0.1,intensity)+30%lognormal(300nm,0.1,intensity)@intensity", 100, [2]float64{30, 300}, [2]float64{70, 30}},
+		{"ratio 4", "50%lognormal(50nm,0.1,intensity)+50%lognormal(200nm,0.1,intensity)@intensity", 600, [2]float64{50, 200}, [2]float64{50, 50}},
+	}
+	s := DefaultSettings()
+	for _, c := range cases {
+		t.Run(c.name, func(t *testing.T) {
+			for seed := uint64(1); seed <= 8; seed++ {
+				r := Analyze(simulatedFor(t, c.pop, seed, c.durS), &s)
+				if !r.HasDistribution {
+					t.Fatalf("no distribution: %s", r.Message)
 				}
-				if math.Abs(w.p.AreaPct-w.area) > 10 {
-					t.Errorf("target %g seed %d: peak at %.0f nm holds %.1f %%, want %g ± 10", c.target, seed, w.p.ModeNm, w.p.AreaPct, w.area)
+				ps := r.Intensity.Peaks
+				if len(ps) != 2 {
+					t.Errorf("seed %d: %d peaks %+v, want 2", seed, len(ps), ps)
+					continue
+				}
+				small, large := ps[0], ps[1]
+				if small.ModeNm > large.ModeNm {
+					small, large = large, small
+				}
+				for k, p := range []dls.Peak{small, large} {
+					if math.Abs(p.ModeNm/c.modes[k]-1) > 0.10 {
+						t.Errorf("seed %d: mode %.1f nm, want %g ± 10 %%", seed, p.ModeNm, c.modes[k])
+					}
+					if math.Abs(p.AreaPct-c.fractions[k]) > 10 {
+						t.Errorf("seed %d: peak at %.0f nm holds %.1f %%, want %g ± 10", seed, p.ModeNm, p.AreaPct, c.fractions[k])
+					}
 				}
 			}
-		}
+		})
 	}
 }
 
