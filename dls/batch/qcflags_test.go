@@ -62,6 +62,20 @@ func TestQCFlagsOnSimulatedCases(t *testing.T) {
 				}
 				c.Grid = g
 			}},
+		{name: "distribution against cumulants", pop: "lognormal(100nm,0.05,number)", want: qc.DistMismatch,
+			// The same cut window: the cumulant fit floats its baseline
+			// into the undecayed tail, the inversion does not.
+			after: func(m *dls.Measurement, _ *sim.Output) {
+				k := 0
+				for k < len(m.TauS) && m.TauS[k] < 3e-4 {
+					k++
+				}
+				m.TauS, m.Corr = m.TauS[:k], m.Corr[:k]
+			}},
+		{name: "no correlation at all", pop: "lognormal(100nm,0.05,number)", want: qc.Failed,
+			// Coherence factor 1e-4: the correlation drowns in the noise and
+			// the measurement cannot be analysed.
+			before: func(c *sim.Config) { c.Beta = 1e-4 }},
 		{name: "no baseline", pop: "lognormal(100nm,0.05,number)", want: qc.NoBaseline,
 			// The lag window cut at 0.3 ms, before the decay ends.
 			after: func(m *dls.Measurement, _ *sim.Output) {
