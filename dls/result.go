@@ -86,6 +86,10 @@ type Result struct {
 	ProbReject       float64 `json:"prob_reject"`
 	DistMeanRatePerS float64 `json:"dist_mean_rate_per_s"`
 	DistZAvgNm       float64 `json:"dist_z_avg_nm"`
+	// DistFitRMS is the rms residual of the inversion's model, mapped back
+	// to the correlogram's units, over the cumulant fit's range: comparable
+	// with FitRMS.
+	DistFitRMS float64 `json:"dist_fit_rms"`
 	// Intensity, Volume and Number summarise each weighting: peaks by
 	// decreasing area, percentiles and mean.
 	Intensity *WeightSummary `json:"intensity,omitempty"`
@@ -220,7 +224,7 @@ func (r *Result) Finite() (cumulantsOK, distributionOK bool) {
 	if r.Curves != nil {
 		cumulantsOK = cumulantsOK && ok(r.Curves.Fitted, r.Curves.Residuals)
 	}
-	distributionOK = ok([]float64{r.Alpha, r.Lambda, r.DegreesOfFreedom, r.ProbReject, r.DistMeanRatePerS, r.DistZAvgNm})
+	distributionOK = ok([]float64{r.Alpha, r.Lambda, r.DegreesOfFreedom, r.ProbReject, r.DistMeanRatePerS, r.DistZAvgNm, r.DistFitRMS})
 	for _, w := range []*WeightSummary{r.Intensity, r.Volume, r.Number} {
 		if w == nil {
 			continue

@@ -212,6 +212,12 @@ func distribution(m *dls.Measurement, fit *cumulants.Result, st state, meta dls.
 	// would otherwise add about x·Γ_max to the mean.
 	rp := contin.Peaks(inv.GammaPerS, inv.Amplitude, &s.Peaks)
 	r.DistMeanRatePerS = contin.PeaksMeanPerS(rp)
+	res := correlogramResiduals(m, fit, first, inv.Fitted)
+	var ss float64
+	for k := fit.FitFirst; k <= fit.FitLast; k++ {
+		ss += res[k] * res[k]
+	}
+	r.DistFitRMS = math.Sqrt(ss / float64(fit.FitLast-fit.FitFirst+1))
 	if r.DistMeanRatePerS > 0 {
 		r.DistZAvgNm = dls.DiameterFromDiffusion(tK, st.etaPaS, dls.DiffusionFromRate(r.DistMeanRatePerS, st.optics.Q())) * 1e9
 	}

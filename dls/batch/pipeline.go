@@ -341,7 +341,7 @@ func (givenIndex) Source(float64) string                      { return "user-sup
 func dropDistribution(r *dls.Result) {
 	r.HasDistribution = false
 	r.Intensity, r.Volume, r.Number, r.Distribution = nil, nil, nil, nil
-	r.Alpha, r.Lambda, r.DegreesOfFreedom, r.ProbReject, r.DistMeanRatePerS, r.DistZAvgNm = 0, 0, 0, 0, 0, 0
+	r.Alpha, r.Lambda, r.DegreesOfFreedom, r.ProbReject, r.DistMeanRatePerS, r.DistZAvgNm, r.DistFitRMS = 0, 0, 0, 0, 0, 0, 0
 	r.AlphaCriterion, r.ParticleRI = "", ""
 }
 

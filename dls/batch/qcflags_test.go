@@ -136,3 +136,30 @@ func TestQCFlagsOnSimulatedCases(t *testing.T) {
 }
 
 func formatKcps(hz float64) string { return strconv.FormatFloat(hz/1e3, 'g', -1, 64) }
+
+func TestQCFlagsDoNotDependOnCurves(t *testing.T) {
+	// Leaving the curves out of results.json (--no-curves) must not change
+	// which flags a measurement raises.
+	m := simulated(t, "70%lognormal(30nm,0.1,intensity)+30%lognormal(300nm,0.1,intensity)@intensity", 3)
+	s := DefaultSettings()
+	with := Analyze(m, &s)
+	s.KeepCurves = false
+	without := Analyze(m, &s)
+	if !hasCode(with.Flags, qc.PoorFit) || len(with.Flags) != len(without.Flags) {
+		t.Fatalf("flags with curves %v, without %v", with.Flags, without.Flags)
+	}
+	for i := range with.Flags {
+		if with.Flags[i].Code != without.Flags[i].Code {
+			t.Errorf("flag %d: %s with curves, %s without", i, with.Flags[i].Code, without.Flags[i].Code)
+		}
+	}
+}
+
+func hasCode(f []dls.Flag, code string) bool {
+	for _, x := range f {
+		if x.Code == code {
+			return true
+		}
+	}
+	return false
+}

@@ -168,7 +168,7 @@ func Measurement(r *dls.Result, tau []float64, t Thresholds) []dls.Flag {
 				add(DistMismatch, "distribution z-average %.1f nm vs cumulants %.1f nm (%+.0f %%)", r.DistZAvgNm, r.ZAvgNm, 100*d)
 			}
 		}
-		if rms := distributionRMS(r); rms > 0 && r.FitRMS > t.MaxRMSRatio*rms {
+		if rms := r.DistFitRMS; rms > 0 && r.FitRMS > t.MaxRMSRatio*rms {
 			add(PoorFit, "cumulant rms %.2g is %.1f × the distribution fit's", r.FitRMS, r.FitRMS/rms)
 		}
 	}
@@ -191,38 +191,6 @@ func Measurement(r *dls.Result, tau []float64, t Thresholds) []dls.Flag {
 		add(LowCountRate, "count rate %.1f kcps < %g", r.CountRateKcps, t.MinCountRateKcps)
 	}
 	return f
-}
-
-// distributionRMS is the rms residual of the inversion in the units of the
-// correlogram over the cumulant fit's range, or 0 when not available.
-func distributionRMS(r *dls.Result) float64 {
-	d := r.Distribution
-	if d == nil || r.Curves == nil || len(d.G1Fitted) != len(r.Curves.Data) {
-		return 0
-	}
-	var ss float64
-	n := 0
-	for i, tau := range r.Curves.TauS {
-		if tau < r.FitFirstTauS || tau > r.FitLastTauS {
-			continue
-		}
-		f := d.G1Fitted[i]
-		u := f
-		if r.Curves.Kind != "g1" {
-			u = f * math.Abs(f)
-		}
-		base := r.Baseline
-		if r.BaselineReached {
-			base = r.FarBaseline
-		}
-		res := r.Curves.Data[i] - (base + r.Intercept*u)
-		ss += res * res
-		n++
-	}
-	if n == 0 {
-		return 0
-	}
-	return math.Sqrt(ss / float64(n))
 }
 
 // Options control aggregation.

@@ -41,6 +41,7 @@ func TestFlagsFireAndStayQuiet(t *testing.T) {
 		{BaselineOffset, func(r *dls.Result) { r.FarBaseline = 1.006 }}, // 0.65 % of 0.92 > 0.5 %
 		{Dust, func(r *dls.Result) { r.Distribution.Intensity = []float64{0.1, 0.74, 0.1, 0.06} }},
 		{PoorFit, func(r *dls.Result) { r.SigmaEstimated = false; r.ReducedChi2 = 3.5 }},
+		{PoorFit, func(r *dls.Result) { r.DistFitRMS = 4.9e-4 }}, // cumulant rms 1e-3 > 2 × 4.9e-4
 		{HighPDI, func(r *dls.Result) { r.PDI = 0.31 }},
 		{OutsideWindow, func(r *dls.Result) { r.GammaMeanPerS = 1 / (4e-6) }}, // 4 µs < 5 first lags
 		{OutsideWindow, func(r *dls.Result) { r.GammaMeanPerS = 1 / (0.11) }}, // > 10 % of 1 s
