@@ -75,6 +75,7 @@ type Result struct {
 	DurationS         float64 `json:"duration_s"`
 	HasDuration       bool    `json:"-"`
 	CorrelationColumn string  `json:"correlation_column"`
+	CorrelationKind   string  `json:"correlation_kind"` // g2, g2m1 or g1
 
 	// Size distribution (valid when HasDistribution).
 	HasDistribution  bool    `json:"-"`

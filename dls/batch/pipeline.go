@@ -84,6 +84,7 @@ func Analyze(m *dls.Measurement, s *Settings) *dls.Result {
 		Role:              strings.ToLower(meta.String(dls.KeyRole)),
 		Group:             meta.String(dls.KeyGroup),
 		CorrelationColumn: m.CorrColumn,
+		CorrelationKind:   m.Kind.String(),
 		Params:            meta.Params(),
 	}
 	if r.Role == "" {
@@ -185,7 +186,7 @@ func Analyze(m *dls.Measurement, s *Settings) *dls.Result {
 	// result fails the measurement; a non-finite distribution is dropped.
 	if cOK, dOK := r.Finite(); !cOK {
 		*r = dls.Result{File: r.File, Run: r.Run, Sample: r.Sample, Lot: r.Lot, Product: r.Product, Role: r.Role,
-			Group: r.Group, CorrelationColumn: r.CorrelationColumn, Params: r.Params}
+			Group: r.Group, CorrelationColumn: r.CorrelationColumn, CorrelationKind: r.CorrelationKind, Params: r.Params}
 		return fail(fmt.Errorf("numerical failure: the cumulant fit gave a non-finite value"))
 	} else if !dOK {
 		dropDistribution(r)

@@ -163,3 +163,20 @@ func hasCode(f []dls.Flag, code string) bool {
 	}
 	return false
 }
+
+func TestBaselineOffsetKnowsTheKind(t *testing.T) {
+	// A g2m1 correlogram has its baseline at 0, not 1: no BASELINE-OFFSET,
+	// with or without curves in the output.
+	m := simulated(t, "lognormal(100nm,0.05,number)", 4)
+	m.Kind = dls.KindG2m1
+	for i := range m.Corr {
+		m.Corr[i]--
+	}
+	for _, keep := range []bool{true, false} {
+		s := DefaultSettings()
+		s.KeepCurves = keep
+		if r := Analyze(m, &s); hasCode(r.Flags, qc.BaselineOffset) {
+			t.Errorf("curves kept %v: %v", keep, r.Flags)
+		}
+	}
+}

@@ -141,7 +141,7 @@ func Measurement(r *dls.Result, tau []float64, t Thresholds) []dls.Flag {
 		add(NoBaseline, "the correlation had not decayed by the last lag")
 	}
 	nominal := 0.0
-	if r.Curves == nil || r.Curves.Kind == "g2" {
+	if r.CorrelationKind == "" || r.CorrelationKind == "g2" {
 		nominal = 1
 	}
 	if r.Intercept > 0 {
