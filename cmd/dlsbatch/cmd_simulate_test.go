@@ -3,7 +3,6 @@ package main
 import (
 	"bytes"
 	"encoding/json"
-	"errors"
 	"math"
 	"os"
 	"path/filepath"
@@ -11,7 +10,6 @@ import (
 	"strings"
 	"testing"
 
-	"dlsbatch/dls"
 	"dlsbatch/dls/mie"
 	"dlsbatch/io/csvdata"
 )
@@ -198,7 +196,7 @@ func TestSimulatePlanErrors(t *testing.T) {
 	}{
 		{"population", "file,population\na.csv,mono(100nm)\nb.csv,cube(3nm)\n", "plan.csv:3:7: population"},
 		{"number", "# c\nfile,temperature_c\na.csv,warm\n", "plan.csv:3:7: temperature_c"},
-		{"column", "file,colour\na.csv,red\n", "plan.csv:1:6: unknown plan column"},
+		{"column", "file,colour\na.csv,red\n", "plan.csv:1:6: unknown column"},
 		{"file name", "file\n../x.csv\n", "plan.csv:2:1: file"},
 		{"duplicate", "file\na.csv\nA.csv\n", "plan.csv:3:1: file"},
 		{"fields", "file,runs\na.csv,1,2\n", "plan.csv:2:1:"},
@@ -276,31 +274,4 @@ func TestDemoUpToDate(t *testing.T) {
 			t.Errorf("%s differs from a fresh run (regenerate with the command in testdata/demo-plan.csv)", filepath.Base(p))
 		}
 	}
-}
-
-// FuzzParsePlan: no panic, and every error names the plan (a positioned
-// error).
-func FuzzParsePlan(f *testing.F) {
-	f.Add([]byte(testPlan))
-	f.Add([]byte("file,population\na.csv,mono(100nm)\n"))
-	f.Add([]byte("file,runs\na.csv,\"1\n"))
-	if b, err := os.ReadFile(filepath.Join("..", "..", "testdata", "demo-plan.csv")); err == nil {
-		f.Add(b)
-	}
-	def := newSimOptions().job
-	f.Fuzz(func(t *testing.T, data []byte) {
-		jobs, err := parsePlan(data, "p.csv", def)
-		if err != nil {
-			var pe *dls.PosError
-			if !errors.As(err, &pe) || pe.File != "p.csv" {
-				t.Fatalf("error without position: %v", err)
-			}
-			return
-		}
-		for _, j := range jobs {
-			if j.job.file == "" || filepath.Base(j.job.file) != j.job.file {
-				t.Fatalf("bad file name accepted: %q", j.job.file)
-			}
-		}
-	})
 }

@@ -1,0 +1,238 @@
+// Package simplan reads simulation plans for `dlsbatch simulate --plan`
+// and writes what a simulated job produces: the correlogram file and the
+// ground-truth record set (truth.json).
+//
+// A plan is a CSV table read by io/csvtable (the project's one reader of
+// hand-edited tables): one row per output file, columns
+//
+//	file (required; a plain name ending in .csv), sample, runs, population,
+//	solvent, temperature_c, wavelength_nm, angle_deg, viscosity_mpas,
+//	refractive_index, material, particle_ri, count_rate_kcps, duration_s,
+//	beta, baseline, seed, dust_bursts, sigma (yes or no)
+//
+// Empty cells take the value of the defaults given to Parse. A row without
+// a seed takes the default seed plus its row number (0-based). Every error
+// is a *dls.PosError naming the plan, line and column.
+package simplan
+
+import (
+	"bytes"
+	"encoding/json"
+	"errors"
+	"fmt"
+	"io"
+	"math"
+	"os"
+	"path/filepath"
+	"strconv"
+	"strings"
+
+	"dlsbatch/dls"
+	"dlsbatch/dls/sim"
+	"dlsbatch/io/csvdata"
+	"dlsbatch/io/csvtable"
+)
+
+// row is one plan record as gocsv maps it; every cell is text so that
+// conversion errors can name their cell.
+type row struct {
+	File            string `csv:"file"`
+	Sample          string `csv:"sample"`
+	Runs            string `csv:"runs"`
+	Population      string `csv:"population"`
+	Solvent         string `csv:"solvent"`
+	TemperatureC    string `csv:"temperature_c"`
+	WavelengthNm    string `csv:"wavelength_nm"`
+	AngleDeg        string `csv:"angle_deg"`
+	ViscosityMPaS   string `csv:"viscosity_mpas"`
+	RefractiveIndex string `csv:"refractive_index"`
+	Material        string `csv:"material"`
+	ParticleRI      string `csv:"particle_ri"`
+	CountRateKcps   string `csv:"count_rate_kcps"`
+	DurationS       string `csv:"duration_s"`
+	Beta            string `csv:"beta"`
+	Baseline        string `csv:"baseline"`
+	Seed            string `csv:"seed"`
+	DustBursts      string `csv:"dust_bursts"`
+	Sigma           string `csv:"sigma"`
+}
+
+// Columns returns the plan columns, in the order documented.
+func Columns() []string {
+	return []string{"file", "sample", "runs", "population", "solvent", "temperature_c", "wavelength_nm",
+		"angle_deg", "viscosity_mpas", "refractive_index", "material", "particle_ri", "count_rate_kcps", "duration_s",
+		"beta", "baseline", "seed", "dust_bursts", "sigma"}
+}
+
+// Entry is a plan row turned into a job, with what is needed to point at
+// its cells.
+type Entry struct {
+	Job  sim.Job
+	Line int // line of the row in the plan
+	t    *csvtable.Table
+	row  int
+}
+
+// At positions an error about the entry's job: a *sim.FieldError is placed
+// at its column's cell (when the plan has that column), anything else at
+// the row.
+func (e Entry) At(err error) error {
+	field := ""
+	var fe *sim.FieldError
+	if errors.As(err, &fe) {
+		field, err = fe.Field, fe.Err
+	}
+	if c := e.t.Col(field); field != "" && c >= 0 {
+		return e.t.Err(e.row, c, err)
+	}
+	return &dls.PosError{File: e.t.File, Line: e.Line, Err: err}
+}
+
+// ReadFile reads the plan at path; see Parse.
+func ReadFile(path string, def sim.Job) ([]Entry, error) {
+	data, err := os.ReadFile(path)
+	if err != nil {
+		return nil, err
+	}
+	return Parse(bytes.NewReader(data), path, def)
+}
+
+// Parse reads a plan from r (name identifies it in errors) into one entry
+// per row, filling empty cells from def.
+func Parse(r io.Reader, name string, def sim.Job) ([]Entry, error) {
+	t, err := csvtable.Read(r, name)
+	if errors.Is(err, dls.ErrEmpty) {
+		return nil, &dls.PosError{File: name, Err: fmt.Errorf("no plan rows: %w", dls.ErrEmpty)}
+	}
+	if err != nil {
+		return nil, err
+	}
+	if err := t.CheckHeader(Columns(), []string{"file"}); err != nil {
+		return nil, err
+	}
+	if len(t.Rows) == 0 {
+		return nil, &dls.PosError{File: name, Err: fmt.Errorf("no plan rows: %w", dls.ErrEmpty)}
+	}
+	var rows []row
+	if err := t.Unmarshal(&rows); err != nil {
+		return nil, err
+	}
+	seen := map[string]int{}
+	out := make([]Entry, 0, len(rows))
+	for i, r := range rows {
+		e := Entry{Job: def, Line: t.Line(i), t: t, row: i}
+		e.Job.Seed = def.Seed + uint64(i)
+		if err := fill(&e.Job, r); err != nil {
+			return nil, e.At(err)
+		}
+		key := strings.ToLower(e.Job.File)
+		if prev, dup := seen[key]; dup {
+			return nil, e.At(&sim.FieldError{Field: "file", Err: fmt.Errorf("%q already planned on line %d", e.Job.File, prev)})
+		}
+		seen[key] = e.Line
+		out = append(out, e)
+	}
+	return out, nil
+}
+
+// fill copies the non-empty cells of a plan row into j. Errors are
+// *sim.FieldError.
+func fill(j *sim.Job, r row) error {
+	bad := func(field string, err error) error { return &sim.FieldError{Field: field, Err: err} }
+	f := r.File
+	switch {
+	case f == "":
+		return bad("file", errors.New("empty file name"))
+	case f != filepath.Base(f) || strings.ContainsAny(f, `/\:`) || strings.HasPrefix(f, "."):
+		return bad("file", fmt.Errorf("%q is not a plain file name", f))
+	case !strings.HasSuffix(strings.ToLower(f), ".csv"):
+		return bad("file", fmt.Errorf("%q does not end in .csv", f))
+	}
+	j.File = f
+	for _, s := range []struct {
+		v   string
+		dst *string
+	}{{r.Sample, &j.Sample}, {r.Population, &j.Population}, {r.Solvent, &j.Solvent},
+		{r.Material, &j.Material}, {r.ParticleRI, &j.ParticleRI}} {
+		if s.v != "" {
+			*s.dst = s.v
+		}
+	}
+	floats := []struct {
+		col string
+		v   string
+		dst *float64
+	}{
+		{"temperature_c", r.TemperatureC, &j.TemperatureC}, {"wavelength_nm", r.WavelengthNm, &j.WavelengthNm},
+		{"angle_deg", r.AngleDeg, &j.AngleDeg}, {"viscosity_mpas", r.ViscosityMPaS, &j.ViscosityMPaS},
+		{"refractive_index", r.RefractiveIndex, &j.RefractiveIndex}, {"count_rate_kcps", r.CountRateKcps, &j.CountRateKcps},
+		{"duration_s", r.DurationS, &j.DurationS}, {"beta", r.Beta, &j.Beta}, {"baseline", r.Baseline, &j.Baseline},
+	}
+	for _, x := range floats {
+		if x.v == "" {
+			continue
+		}
+		p, err := strconv.ParseFloat(x.v, 64)
+		if err != nil || math.IsNaN(p) || math.IsInf(p, 0) {
+			return bad(x.col, fmt.Errorf("%q: %w", x.v, dls.ErrNotANumber))
+		}
+		*x.dst = p
+	}
+	ints := []struct {
+		col string
+		v   string
+		dst *int
+	}{{"runs", r.Runs, &j.Runs}, {"dust_bursts", r.DustBursts, &j.DustBursts}}
+	for _, x := range ints {
+		if x.v == "" {
+			continue
+		}
+		p, err := strconv.Atoi(x.v)
+		if err != nil {
+			return bad(x.col, fmt.Errorf("%q is not a whole number: %w", x.v, err))
+		}
+		*x.dst = p
+	}
+	if v := r.Seed; v != "" {
+		p, err := strconv.ParseUint(v, 10, 64)
+		if err != nil {
+			return bad("seed", fmt.Errorf("%q is not a non-negative whole number: %w", v, err))
+		}
+		j.Seed = p
+	}
+	switch v := strings.ToLower(r.Sigma); v {
+	case "":
+	case "yes", "true", "1":
+		j.Sigma = true
+	case "no", "false", "0":
+		j.Sigma = false
+	default:
+		return bad("sigma", fmt.Errorf("%q: want yes or no", v))
+	}
+	return nil
+}
+
+// WriteCorrelogram writes a simulated job as a correlogram CSV (lags in s,
+// g2 columns, σ columns where the job asked for them).
+func WriteCorrelogram(w io.Writer, res *sim.JobResult) error {
+	cols := make([]csvdata.Column, len(res.Runs))
+	for i, r := range res.Runs {
+		cols[i] = csvdata.Column{Label: r.Label, Values: r.G2, Sigma: r.Sigma}
+	}
+	return csvdata.Write(w, res.Meta, res.TauS, "s", dls.KindG2, cols)
+}
+
+// TruthJSON renders the ground truth of simulated files as truth.json,
+// with generator naming the tool and its version.
+func TruthJSON(recs []sim.TruthRecord, generator string) ([]byte, error) {
+	doc := struct {
+		Generator    string            `json:"generator"`
+		Note         string            `json:"note"`
+		Measurements []sim.TruthRecord `json:"measurements"`
+	}{Generator: generator, Note: sim.TruthNote, Measurements: recs}
+	b, err := json.MarshalIndent(doc, "", "  ")
+	if err != nil {
+		return nil, fmt.Errorf("truth.json: %w", err)
+	}
+	return append(b, '\n'), nil
+}
