@@ -102,3 +102,17 @@ func (m *Measurement) G2Minus1() []float64 {
 	}
 	return out
 }
+
+// Input is one item read from an input file: a measurement, or the reason
+// none could be read. Readers return one Input per run of a file (at least
+// one per file); the batch runner analyses them.
+type Input struct {
+	File  string // the path the file was read from
+	Run   string // run label; "" for a single run or a failure before the header
+	Index int    // 0-based position of the run among the file's correlation columns
+	// M is the measurement; nil when Err != nil.
+	M *Measurement
+	// Err is a *PosError naming the file, the line (and the cell, when one
+	// applies) and the reason; it wraps a sentinel for errors.Is.
+	Err error
+}

@@ -243,3 +243,28 @@ func (r *Result) Finite() (cumulantsOK, distributionOK bool) {
 	}
 	return cumulantsOK, distributionOK
 }
+
+// Counts are the numbers of results by status.
+type Counts struct {
+	Total int `json:"total"`
+	OK    int `json:"ok"`
+	Warn  int `json:"warn"`
+	Error int `json:"error"`
+}
+
+// CountResults counts results by status.
+func CountResults(results []*Result) Counts {
+	c := Counts{Total: len(results)}
+	for _, r := range results {
+		switch r.Status {
+		case StatusOK:
+			c.OK++
+		case StatusWarn:
+			c.Warn++
+		default:
+			c.Error++
+		}
+	}
+	return c
+}
+

@@ -1,15 +1,12 @@
 package main
 
 import (
-	"bytes"
 	"context"
 	"fmt"
-	"io"
 	"math"
 	"os"
 	"path/filepath"
 	"runtime"
-	"strings"
 	"sync"
 
 	"github.com/schollz/progressbar/v3"
@@ -24,7 +21,6 @@ import (
 	"dlsbatch/dls/spec"
 	"dlsbatch/dls/uncert"
 	"dlsbatch/io/csvdata"
-	"dlsbatch/io/htmlreport"
 	"dlsbatch/io/report"
 	"dlsbatch/io/sheet"
 	"dlsbatch/io/solventfile"
@@ -143,71 +139,67 @@ func runRun(ctx context.Context, e env, args []string) int {
 	if code, done := parseFlags(fs, e, "run", runUsage, args); done {
 		return code
 	}
+	say := func(msg any) { fmt.Fprintln(e.stderr, "dlsbatch run:", msg) }
+	fail := func(code int, msg any) int { say(msg); return code }
 	paths := fs.Args()
-	if len(paths) == 0 {
-		fmt.Fprintln(e.stderr, "dlsbatch run: name at least one file or folder")
-		return exitUsage
-	}
-	if o.out == "" {
-		fmt.Fprintln(e.stderr, "dlsbatch run: --out DIR is required")
-		return exitUsage
+	switch {
+	case len(paths) == 0:
+		return fail(exitUsage, "name at least one file or folder")
+	case o.out == "":
+		return fail(exitUsage, "--out DIR is required")
 	}
 	settings, readOpts, err := o.settings()
 	if err != nil {
-		fmt.Fprintf(e.stderr, "dlsbatch run: %v\n", err)
-		return exitUsage
+		return fail(exitUsage, err)
 	}
-	if err := checkOutside(o.out, paths); err != nil {
-		fmt.Fprintf(e.stderr, "dlsbatch run: %v\n", err)
-		return exitUsage
+	if err := csvdata.CheckOutside(o.out, paths); err != nil {
+		return fail(exitUsage, err)
 	}
 	if !o.force {
-		for _, name := range []string{"results.csv", "samples.csv", "results.json", "manifest.json"} {
+		for _, name := range []string{report.ResultsCSV, report.SamplesCSV, report.ResultsJSON, report.ManifestJSON} {
 			if _, err := os.Stat(filepath.Join(o.out, name)); err == nil {
-				fmt.Fprintf(e.stderr, "dlsbatch run: %s already exists; use --force to replace it\n", filepath.Join(o.out, name))
-				return exitUsage
+				return fail(exitUsage, filepath.Join(o.out, name)+" already exists; use --force to replace it")
 			}
 		}
 	}
-
 	var sh *sheet.Sheet
 	if o.sheetFile != "" {
 		if sh, err = sheet.ReadFile(o.sheetFile); err != nil {
-			fmt.Fprintf(e.stderr, "dlsbatch run: sample sheet: %v\n", err)
-			return exitUsage
+			return fail(exitUsage, fmt.Errorf("sample sheet: %w", err))
 		}
 	}
 	var sp *spec.Spec
 	if o.specFile != "" {
 		if sp, err = specfile.ReadFile(o.specFile); err != nil {
-			fmt.Fprintf(e.stderr, "dlsbatch run: specification: %v\n", err)
-			return exitUsage
+			return fail(exitUsage, fmt.Errorf("specification: %w", err))
 		}
 	}
 
 	files, derrs := csvdata.Discover(paths)
 	for _, err := range derrs {
-		fmt.Fprintf(e.stderr, "dlsbatch run: %v\n", err)
+		say(err)
 	}
 	if len(files) == 0 {
-		fmt.Fprintln(e.stderr, "dlsbatch run: no correlogram files (*.csv) found")
-		return exitFatal
+		return fail(exitFatal, "no correlogram files (*.csv) found")
 	}
-
-	rels := relativePaths(files, paths)
-	var sheetReport *report.SheetReport
+	rels := csvdata.RelativePaths(files, paths)
+	var match *sheet.MatchReport
 	if sh != nil {
-		sheetReport = sheetCheck(e, sh, o.sheetFile, files, rels)
+		match = sh.Check(o.sheetFile, files, rels)
+		for _, f := range match.UnmatchedFiles {
+			say(f + ": no row of the sample sheet matches this file")
+		}
+		for _, msg := range match.UnusedRows {
+			say(msg)
+		}
 	}
 
 	rn := &batch.Runner{
 		Read: func(path string) []batch.Input {
-			in := readInputs(path, readOpts)
-			if sh != nil {
-				for _, x := range in {
-					if x.M != nil {
-						sh.Apply(x.M, rels[path])
-					}
+			in := csvdata.ReadFile(path, readOpts)
+			for _, x := range in {
+				if sh != nil && x.M != nil {
+					sh.Apply(x.M, rels[path])
 				}
 			}
 			return in
@@ -233,37 +225,23 @@ func runRun(ctx context.Context, e env, args []string) int {
 	groups := batch.Groups(results)
 	samples := qc.Aggregate(results, qc.Options{Thresholds: settings.QC, ExcludeOutliers: o.exclude})
 	outcome := spec.Evaluate(sp, samples, results)
-
 	doc := &report.Document{
-		Tool:     "dlsbatch",
-		Version:  version,
-		Caution:  report.Caution,
-		Settings: o.describe(settings),
-		Counts:   report.CountResults(results),
-		Batch:    outcome,
-		Sheet:    sheetReport,
-		Groups:   &groups,
-		Samples:  samples,
-		Results:  results,
+		Tool: "dlsbatch", Version: version, Caution: report.Caution, Settings: o.record(settings),
+		Counts: dls.CountResults(results), Batch: outcome, Sheet: match, Groups: &groups,
+		Samples: samples, Results: results,
 	}
-	written, err := writeOutputs(o.out, results, samples, doc)
-	if err != nil {
-		fmt.Fprintf(e.stderr, "dlsbatch run: %v\n", err)
-		return exitFatal
-	}
-	if !o.noReport {
-		if err := htmlreport.Write(filepath.Join(o.out, "report"), htmlReport(doc, samples, results)); err != nil {
-			fmt.Fprintf(e.stderr, "dlsbatch run: report: %v\n", err)
-			return exitFatal
+	set := &report.Set{Doc: doc, HTMLReport: !o.noReport, Inputs: files}
+	for _, t := range []string{o.sheetFile, o.specFile, o.solventFile} {
+		if t != "" {
+			set.Tables = append(set.Tables, t)
 		}
 	}
-	if err := writeManifest(o, doc.Settings, files, written); err != nil {
-		fmt.Fprintf(e.stderr, "dlsbatch run: %v\n", err)
-		return exitFatal
+	if err := report.WriteSet(o.out, set); err != nil {
+		return fail(exitFatal, err)
 	}
 	if !o.quiet {
 		if err := report.WriteSummary(e.stdout, results, samples, outcome, 10); err != nil {
-			fmt.Fprintf(e.stderr, "dlsbatch run: %v\n", err)
+			say(err)
 		}
 		what := "results.csv, samples.csv, results.json, manifest.json"
 		if !o.noReport {
@@ -272,57 +250,15 @@ func runRun(ctx context.Context, e env, args []string) int {
 		fmt.Fprintf(e.stdout, "results: %s (%s)\n%s\n", o.out, what, report.Caution)
 	}
 	if runErr != nil {
-		fmt.Fprintf(e.stderr, "dlsbatch run: interrupted; the %d results finished are written\n", len(results))
-		return exitInterrupted
+		return fail(exitInterrupted, fmt.Sprintf("interrupted; the %d results finished are written", len(results)))
 	}
 	return exitCode(doc.Counts, outcome)
-}
-
-// sheetCheck reports, on stderr and in results.json, the files that no
-// sample-sheet row matches and the rows that match no file.
-func sheetCheck(e env, sh *sheet.Sheet, name string, files []string, rels map[string]string) *report.SheetReport {
-	rep := &report.SheetReport{File: name, UnmatchedFiles: []string{}, UnusedRows: []string{}}
-	all := make([]string, len(files))
-	for i, f := range files {
-		all[i] = rels[f]
-		if !sh.Matches(rels[f]) {
-			rep.UnmatchedFiles = append(rep.UnmatchedFiles, f)
-			fmt.Fprintf(e.stderr, "dlsbatch run: %s: no row of the sample sheet matches this file\n", f)
-		}
-	}
-	unused := sh.Unmatched(all)
-	for _, row := range unused {
-		msg := fmt.Sprintf("%s:%d: row %q matches no file", name, row.Line, row.Pattern)
-		rep.UnusedRows = append(rep.UnusedRows, msg)
-		fmt.Fprintf(e.stderr, "dlsbatch run: %s\n", msg)
-	}
-	return rep
-}
-
-// htmlReport builds the report model from the run's document.
-func htmlReport(doc *report.Document, samples []*dls.Sample, results []*dls.Result) *htmlreport.Report {
-	b := htmlreport.BatchStatus{Suitability: htmlreport.SuitabilityNotAssessed}
-	if doc.Batch.Specified {
-		b.Suitability, b.Reason = htmlreport.SuitabilityValid, "every reference standard within its limits"
-		if !doc.Batch.Valid {
-			b.Suitability, b.Reason = htmlreport.SuitabilityInvalid, doc.Batch.Reason
-		}
-		for i, smp := range samples {
-			if smp.Role == "reference" && smp.Verdict != nil {
-				for _, c := range smp.Verdict.Checks {
-					b.Checks = append(b.Checks, htmlreport.SuitabilityCheck{Sample: i, Check: c})
-				}
-			}
-		}
-	}
-	return &htmlreport.Report{Tool: doc.Tool, Version: doc.Version, Caution: doc.Caution, Settings: doc.Settings,
-		Results: results, Samples: samples, Batch: b}
 }
 
 // exitCode maps the outcome of a finished run to the documented codes; the
 // verdicts outrank the analysis: an invalid batch, then failed samples, then
 // measurements that could not be analysed.
-func exitCode(c report.Counts, b spec.Batch) int {
+func exitCode(c dls.Counts, b spec.Batch) int {
 	switch {
 	case c.Total == 0 || c.Error == c.Total:
 		return exitFatal
@@ -334,27 +270,6 @@ func exitCode(c report.Counts, b spec.Batch) int {
 		return exitSomeFailed
 	}
 	return exitOK
-}
-
-// relativePaths maps each discovered file to its path relative to the
-// input argument it was found under (its base name for a file named
-// directly), for matching sample-sheet patterns.
-func relativePaths(files, inputs []string) map[string]string {
-	out := make(map[string]string, len(files))
-	for _, f := range files {
-		rel := filepath.Base(f)
-		for _, in := range inputs {
-			if st, err := os.Stat(in); err != nil || !st.IsDir() {
-				continue
-			}
-			if r, err := filepath.Rel(in, f); err == nil && !strings.HasPrefix(r, "..") {
-				rel = r
-				break
-			}
-		}
-		out[f] = filepath.ToSlash(rel)
-	}
-	return out
 }
 
 // settings turns the flags into analysis and reading settings.
@@ -427,8 +342,8 @@ func (o *runOptions) settings() (batch.Settings, *csvdata.Options, error) {
 	return s, ro, nil
 }
 
-// describe records the settings in results.json.
-func (o *runOptions) describe(s batch.Settings) map[string]any {
+// record is the settings record of results.json and the manifest.
+func (o *runOptions) record(s batch.Settings) *report.Settings {
 	kv := func(ps []dls.Param) []string {
 		out := make([]string, len(ps))
 		for i, p := range ps {
@@ -436,170 +351,17 @@ func (o *runOptions) describe(s batch.Settings) map[string]any {
 		}
 		return out
 	}
-	return map[string]any{
-		"cumulant_method":     s.Cumulants.Method.String(),
-		"cumulant_order":      s.Cumulants.Order,
-		"g1_cutoff":           s.Cumulants.Cutoff,
-		"min_lag_s":           s.Cumulants.MinTauS,
-		"min_points":          s.Cumulants.MinPoints,
-		"range_check":         s.Cumulants.RangeCheck,
-		"extrapolate":         s.Extrapolate,
-		"set":                 kv(s.Overrides),
-		"default":             kv(s.Defaults),
-		"lag_column":          o.tauCol,
-		"lag_unit":            o.tauUnit,
-		"corr_columns":        o.corrCols,
-		"corr_kind":           o.corrKind.value,
-		"sigma_column":        o.sigmaCol,
-		"boltzmann_j_per_k":   dls.BoltzmannJPerK,
-		"solvent_file":        o.solventFile,
-		"sheet":               o.sheetFile,
-		"spec":                o.specFile,
-		"exclude_outliers":    o.exclude,
-		"u_temperature_k":     s.Uncertainty.TemperatureK,
-		"u_viscosity_rel":     o.uViscRel,
-		"u_refractive_index":  s.Uncertainty.RefractiveIndex,
-		"u_angle_deg":         o.uAngleDeg,
-		"coverage_factor":     s.CoverageFactor,
-		"distribution":        s.Distribution.Enabled,
-		"alpha_criterion":     s.Distribution.Contin.Criterion.String(),
-		"alpha_lambda":        s.Distribution.Contin.Lambda,
-		"prob_reject_target":  s.Distribution.Contin.TargetProbReject,
-		"grid_points":         s.Distribution.Grid.NGamma,
-		"default_particle_ri": mie.FormatComplexIndex(s.Distribution.DefaultParticleRI),
-		"qc_thresholds":       s.QC,
+	return &report.Settings{
+		AlphaCriterion: s.Distribution.Contin.Criterion.String(), AlphaLambda: s.Distribution.Contin.Lambda,
+		BoltzmannJPerK: dls.BoltzmannJPerK, CorrColumns: o.corrCols, CorrKind: o.corrKind.value,
+		CoverageFactor: s.CoverageFactor, CumulantMethod: s.Cumulants.Method.String(), CumulantOrder: s.Cumulants.Order,
+		Default: kv(s.Defaults), DefaultParticleRI: mie.FormatComplexIndex(s.Distribution.DefaultParticleRI),
+		Distribution: s.Distribution.Enabled, ExcludeOutliers: o.exclude, Extrapolate: s.Extrapolate,
+		G1Cutoff: s.Cumulants.Cutoff, GridPoints: s.Distribution.Grid.NGamma, LagColumn: o.tauCol, LagUnit: o.tauUnit,
+		MinLagS: s.Cumulants.MinTauS, MinPoints: s.Cumulants.MinPoints,
+		ProbRejectTarget: s.Distribution.Contin.TargetProbReject, QCThresholds: s.QC, RangeCheck: s.Cumulants.RangeCheck,
+		Set: kv(s.Overrides), Sheet: o.sheetFile, SigmaColumn: o.sigmaCol, SolventFile: o.solventFile, Spec: o.specFile,
+		UAngleDeg: o.uAngleDeg, URefractiveIndex: s.Uncertainty.RefractiveIndex, UTemperatureK: s.Uncertainty.TemperatureK,
+		UViscosityRel: o.uViscRel,
 	}
-}
-
-func readInputs(path string, o *csvdata.Options) []batch.Input {
-	entries := csvdata.ReadFile(path, o)
-	out := make([]batch.Input, len(entries))
-	for i, en := range entries {
-		out[i] = batch.Input{File: en.File, Run: en.Run, Index: en.Index, M: en.M, Err: en.Err}
-	}
-	return out
-}
-
-// checkOutside refuses an output folder that is, or lies inside, one of the
-// input folders, so that no file under the input paths is ever written.
-func checkOutside(out string, inputs []string) error {
-	ao, err := filepath.Abs(out)
-	if err != nil {
-		return fmt.Errorf("--out %s: %w", out, err)
-	}
-	for _, in := range inputs {
-		ai, err := filepath.Abs(in)
-		if err != nil {
-			continue
-		}
-		st, err := os.Stat(in)
-		if err != nil {
-			continue
-		}
-		if !st.IsDir() {
-			if ao == ai {
-				return fmt.Errorf("--out %s is an input file", out)
-			}
-			continue
-		}
-		if rel, err := filepath.Rel(ai, ao); err == nil && (rel == "." || !strings.HasPrefix(rel, "..")) {
-			return fmt.Errorf("--out %s lies inside the input folder %s; choose a folder outside the inputs", out, in)
-		}
-	}
-	return nil
-}
-
-// writeOutputs writes results.csv and results.json, each through a
-// temporary file renamed into place, so that a failed write never leaves a
-// half file under the final name.
-func writeOutputs(dir string, results []*dls.Result, samples []*dls.Sample, doc *report.Document) ([]report.FileHash, error) {
-	if err := os.MkdirAll(dir, 0o755); err != nil {
-		return nil, fmt.Errorf("output folder: %w", err)
-	}
-	var csvBuf, smpBuf, jsonBuf bytes.Buffer
-	if err := report.WriteCSV(&csvBuf, results); err != nil {
-		return nil, err
-	}
-	if err := report.WriteSamplesCSV(&smpBuf, samples, results); err != nil {
-		return nil, err
-	}
-	if err := report.WriteJSON(&jsonBuf, doc); err != nil {
-		return nil, err
-	}
-	var hashes []report.FileHash
-	for _, f := range []struct {
-		name string
-		data *bytes.Buffer
-	}{{"results.csv", &csvBuf}, {"samples.csv", &smpBuf}, {"results.json", &jsonBuf}} {
-		hashes = append(hashes, report.HashBytes(f.name, f.data.Bytes()))
-		if err := writeAtomic(filepath.Join(dir, f.name), f.data); err != nil {
-			return nil, err
-		}
-	}
-	return hashes, nil
-}
-
-// writeManifest writes DIR/manifest.json: the tool version, the settings,
-// and the SHA-256 of every input read and every output written (report
-// pages included), with paths as given or relative to DIR.
-func writeManifest(o *runOptions, settings map[string]any, files []string, written []report.FileHash) error {
-	m := &report.Manifest{Tool: "dlsbatch", Version: version, Settings: settings, Tables: []report.FileHash{}, Outputs: written}
-	for _, f := range files {
-		h, err := report.HashFile(f)
-		if err != nil {
-			return err
-		}
-		m.Inputs = append(m.Inputs, h)
-	}
-	for _, t := range []string{o.sheetFile, o.specFile, o.solventFile} {
-		if t == "" {
-			continue
-		}
-		h, err := report.HashFile(t)
-		if err != nil {
-			return err
-		}
-		m.Tables = append(m.Tables, h)
-	}
-	if !o.noReport {
-		entries, err := os.ReadDir(filepath.Join(o.out, "report"))
-		if err != nil {
-			return fmt.Errorf("manifest: %w", err)
-		}
-		for _, en := range entries { // ReadDir sorts by name
-			if en.IsDir() {
-				continue
-			}
-			h, err := report.HashFile(filepath.Join(o.out, "report", en.Name()))
-			if err != nil {
-				return err
-			}
-			h.Path = "report/" + en.Name()
-			m.Outputs = append(m.Outputs, h)
-		}
-	}
-	var b bytes.Buffer
-	if err := report.WriteManifest(&b, m); err != nil {
-		return err
-	}
-	return writeAtomic(filepath.Join(o.out, "manifest.json"), &b)
-}
-
-func writeAtomic(path string, r io.Reader) error {
-	tmp, err := os.CreateTemp(filepath.Dir(path), "."+filepath.Base(path)+".tmp*")
-	if err != nil {
-		return fmt.Errorf("write %s: %w", path, err)
-	}
-	_, err = io.Copy(tmp, r)
-	if cerr := tmp.Close(); err == nil {
-		err = cerr
-	}
-	if err == nil {
-		err = os.Rename(tmp.Name(), path)
-	}
-	if err != nil {
-		os.Remove(tmp.Name())
-		return fmt.Errorf("write %s: %w", path, err)
-	}
-	return nil
 }

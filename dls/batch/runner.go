@@ -12,15 +12,8 @@ import (
 	"dlsbatch/dls/qc"
 )
 
-// Input is one item read from a file: a measurement, or the reason none
-// could be read.
-type Input struct {
-	File  string
-	Run   string
-	Index int
-	M     *dls.Measurement // nil when Err != nil
-	Err   error
-}
+// Input is one item read from a file; see dls.Input.
+type Input = dls.Input
 
 // ReadFunc reads one file into its measurements. It must always return at
 // least one Input, and must be safe for concurrent use.

@@ -22,20 +22,10 @@ const MinPoints = 8
 // file that is not text.
 const maxLineBytes = 4 << 20
 
-// Entry is one measurement read from a file, or one failure. A file always
-// yields at least one Entry: one per run when the header could be read, else
-// one for the whole file.
-type Entry struct {
-	File  string // the name given to Read, the path given to ReadFile
-	Run   string // run label; "" for a single run or a failure before the header
-	Index int    // 0-based position of the run among the file's correlation columns
-	// M is the measurement; nil when Err != nil.
-	M *dls.Measurement
-	// Err is a *dls.PosError naming the file, the line (and the cell, when
-	// one applies) and the reason; it wraps a sentinel of package dls (or
-	// ErrBadOptions) for errors.Is.
-	Err error
-}
+// Entry is one item read from a file: a measurement, or the reason none
+// could be read (the type the batch runner takes, so a reader's output
+// needs no copying).
+type Entry = dls.Input
 
 // ReadFile reads the correlogram export at path. It opens the file
 // read-only and never writes anything.

@@ -15,7 +15,7 @@ func BenchmarkWrite(b *testing.B) {
 		b.Run(fmt.Sprintf("measurements=%d", size.samples*size.runs), func(b *testing.B) {
 			dir := filepath.Join(b.TempDir(), "report")
 			for b.Loop() {
-				if err := Write(dir, r); err != nil {
+				if _, err := Write(dir, r); err != nil {
 					b.Fatal(err)
 				}
 			}

@@ -38,7 +38,7 @@ func TestChromiumRender(t *testing.T) {
 		t.Skip("starts a browser: slow")
 	}
 	dir := filepath.Join(t.TempDir(), "report")
-	if err := Write(dir, demoReport(t)); err != nil {
+	if _, err := Write(dir, demoReport(t)); err != nil {
 		t.Fatal(err)
 	}
 	out, err := runCheck(t, dir)

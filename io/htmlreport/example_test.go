@@ -3,7 +3,6 @@ package htmlreport_test
 import (
 	"fmt"
 	"os"
-	"path/filepath"
 
 	"dlsbatch/dls"
 	"dlsbatch/io/htmlreport"
@@ -29,7 +28,7 @@ func ExampleWrite() {
 		return
 	}
 	defer os.RemoveAll(dir)
-	err = htmlreport.Write(dir, &htmlreport.Report{
+	names, err := htmlreport.Write(dir, &htmlreport.Report{
 		Tool: "dlsbatch", Version: "example",
 		Results: results, Samples: []*dls.Sample{sample},
 		Batch: htmlreport.BatchStatus{Suitability: htmlreport.SuitabilityNotAssessed},
@@ -38,9 +37,8 @@ func ExampleWrite() {
 		fmt.Println(err)
 		return
 	}
-	names, _ := filepath.Glob(filepath.Join(dir, "*.html"))
 	for _, n := range names {
-		fmt.Println(filepath.Base(n))
+		fmt.Println(n)
 	}
 	c := htmlreport.Count([]*dls.Sample{sample}, results)
 	fmt.Printf("%d pass, %d ok\n", c.Pass, c.OK)

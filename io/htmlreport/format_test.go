@@ -34,15 +34,45 @@ func TestFormats(t *testing.T) {
 		{"no run: dash", meanSD(0, 0, 0, 1), "—"},
 		{"RSD needs two runs", spread(0.4, 1, 1), "—"},
 		{"temperatures", temperatures([]float64{25, 37.04}), "25.0, 37.0"},
-		{"setting nil", settingValue(nil), "—"},
-		{"setting string", settingValue("nonlinear"), "nonlinear"},
-		{"setting list as JSON", settingValue([]string{"solvent=water"}), `["solvent=water"]`},
-		{"setting map as JSON, keys sorted", settingValue(map[string]int{"b": 2, "a": 1}), `{"a":1,"b":2}`},
-		{"setting float as JSON", settingValue(1.380649e-23), "1.380649e-23"},
-		{"setting bool", settingValue(true), "true"},
 	} {
 		if tc.got != tc.want {
 			t.Errorf("%s: got %q, want %q", tc.name, tc.got, tc.want)
 		}
+	}
+}
+
+// TestSettingsRows: settings are listed sorted by key, strings as they
+// are, everything else as compact JSON, whether they come as a map or a
+// struct with json tags (expected strings worked by hand from the rule).
+func TestSettingsRows(t *testing.T) {
+	type inner struct {
+		B int `json:"b"`
+		A int `json:"a"`
+	}
+	type settings struct {
+		Str   string   `json:"str"`
+		List  []string `json:"list"`
+		None  []string `json:"none"`
+		Float float64  `json:"float"`
+		Flag  bool     `json:"flag"`
+		In    inner    `json:"in"`
+	}
+	v := settings{Str: "nonlinear", List: []string{"solvent=water"}, Float: 1.380649e-23, Flag: true, In: inner{2, 1}}
+	want := []keyValue{{"flag", "true"}, {"float", "1.380649e-23"}, {"in", `{"b":2,"a":1}`},
+		{"list", `["solvent=water"]`}, {"none", "null"}, {"str", "nonlinear"}}
+	for _, in := range []any{v, map[string]any{"str": "nonlinear", "list": []string{"solvent=water"}, "none": []string(nil),
+		"float": 1.380649e-23, "flag": true, "in": inner{2, 1}}} {
+		got := settingsRows(in)
+		if len(got) != len(want) {
+			t.Fatalf("%d rows, want %d: %v", len(got), len(want), got)
+		}
+		for i := range want {
+			if got[i] != want[i] {
+				t.Errorf("row %d: %v, want %v", i, got[i], want[i])
+			}
+		}
+	}
+	if settingsRows(nil) != nil {
+		t.Error("nil settings gave rows")
 	}
 }

@@ -161,8 +161,20 @@ func buildIndex(r *Report) indexPage {
 }
 
 // settingsRows lists settings sorted by key: strings as they are, other
-// values as JSON (maps with sorted keys, so the output is stable).
-func settingsRows(m map[string]any) []keyValue {
+// values as JSON (maps with sorted keys, so the output is stable). v is
+// anything encoding/json writes as an object; nil gives no rows.
+func settingsRows(v any) []keyValue {
+	if v == nil {
+		return nil
+	}
+	b, err := json.Marshal(v)
+	if err != nil {
+		return []keyValue{{"settings", err.Error()}}
+	}
+	var m map[string]json.RawMessage
+	if err := json.Unmarshal(b, &m); err != nil {
+		return []keyValue{{"settings", string(b)}}
+	}
 	keys := make([]string, 0, len(m))
 	for k := range m {
 		keys = append(keys, k)
@@ -170,25 +182,14 @@ func settingsRows(m map[string]any) []keyValue {
 	sort.Strings(keys)
 	out := make([]keyValue, 0, len(keys))
 	for _, k := range keys {
-		out = append(out, keyValue{k, settingValue(m[k])})
+		var str string
+		if len(m[k]) > 0 && m[k][0] == '"' && json.Unmarshal(m[k], &str) == nil {
+			out = append(out, keyValue{k, str})
+			continue
+		}
+		out = append(out, keyValue{k, string(m[k])})
 	}
 	return out
-}
-
-func settingValue(v any) string {
-	switch x := v.(type) {
-	case nil:
-		return "—"
-	case string:
-		return x
-	case fmt.Stringer:
-		return x.String()
-	}
-	b, err := json.Marshal(v)
-	if err != nil {
-		return fmt.Sprint(v)
-	}
-	return string(b)
 }
 
 type samplePage struct {

@@ -2,15 +2,16 @@ package htmlreport
 
 import (
 	"bytes"
+	"dlsbatch/io/atomicfile"
 	"fmt"
 	"os"
 	"path/filepath"
 	"runtime"
+	"sort"
 	"sync"
 	"unicode/utf8"
 
 	"dlsbatch/dls"
-	"dlsbatch/io/report"
 )
 
 // DefaultCaution is shown when Report.Caution is empty: the report
@@ -29,9 +30,10 @@ type Report struct {
 	Version string // its version
 	// Caution is shown on every page; "" means DefaultCaution.
 	Caution string
-	// Settings are the analysis settings, shown on the index sorted by key.
-	// Strings are shown as they are, other values as JSON.
-	Settings map[string]any
+	// Settings are the analysis settings: a map or a struct with json tags
+	// (anything encoding/json writes as an object), shown on the index
+	// sorted by key; strings as they are, other values as JSON.
+	Settings any
 	// Results are the measurements in results.csv order.
 	Results []*dls.Result
 	// Samples are the per-sample aggregates; Sample.Runs, Used and Outliers
@@ -105,7 +107,7 @@ func Count(samples []*dls.Sample, results []*dls.Result) Counts {
 			c.None++
 		}
 	}
-	rc := report.CountResults(results)
+	rc := dls.CountResults(results)
 	c.OK, c.Warn, c.Error = rc.OK, rc.Warn, rc.Error
 	return c
 }
@@ -133,24 +135,25 @@ func SamplePageName(i int) string { return fmt.Sprintf("sample-%04d.html", i+1) 
 // one SamplePageName(i) page per sample. Each file is written to a
 // temporary name and renamed into place. Other files in dir are left
 // alone. The output depends only on r: the same report gives the same
-// bytes. It returns an error when a sample indexes a result that does not
-// exist, or when a file cannot be written.
-func Write(dir string, r *Report) error {
+// bytes. It returns the names of the files written, sorted, or an error
+// when a sample indexes a result that does not exist, or when a file
+// cannot be written.
+func Write(dir string, r *Report) ([]string, error) {
 	if r == nil {
-		return fmt.Errorf("htmlreport: nil report")
+		return nil, fmt.Errorf("htmlreport: nil report")
 	}
 	if err := validate(r); err != nil {
-		return fmt.Errorf("htmlreport: %w", err)
+		return nil, fmt.Errorf("htmlreport: %w", err)
 	}
 	if err := os.MkdirAll(dir, 0o755); err != nil {
-		return fmt.Errorf("htmlreport: %w", err)
+		return nil, fmt.Errorf("htmlreport: %w", err)
 	}
 	var buf bytes.Buffer
 	if err := renderIndex(&buf, r); err != nil {
-		return err
+		return nil, err
 	}
 	if err := writeFile(dir, "index.html", buf.Bytes()); err != nil {
-		return err
+		return nil, err
 	}
 
 	// Sample pages are independent: render them on all cores. Each page's
@@ -181,10 +184,15 @@ func Write(dir string, r *Report) error {
 	wg.Wait()
 	for _, err := range errs {
 		if err != nil {
-			return err
+			return nil, err
 		}
 	}
-	return nil
+	names := []string{"index.html"}
+	for i := range n {
+		names = append(names, SamplePageName(i))
+	}
+	sort.Strings(names)
+	return names, nil
 }
 
 // renderIndex writes the index page of a validated report.
@@ -269,28 +277,11 @@ func validate(r *Report) error {
 	return nil
 }
 
-// writeFile writes data to dir/name through a temporary file renamed into
-// place, so that a reader never sees a half-written page.
+// writeFile writes data to dir/name atomically, so that a reader never
+// sees a half-written page.
 func writeFile(dir, name string, data []byte) error {
-	f, err := os.CreateTemp(dir, ".htmlreport-*.tmp")
-	if err != nil {
+	if err := atomicfile.Write(filepath.Join(dir, name), data); err != nil {
 		return fmt.Errorf("htmlreport: %w", err)
-	}
-	tmp := f.Name()
-	_, werr := f.Write(data)
-	cerr := f.Close()
-	if werr == nil {
-		werr = cerr
-	}
-	if werr == nil {
-		werr = os.Chmod(tmp, 0o644)
-	}
-	if werr == nil {
-		werr = os.Rename(tmp, filepath.Join(dir, name))
-	}
-	if werr != nil {
-		os.Remove(tmp)
-		return fmt.Errorf("htmlreport: write %s: %w", name, werr)
 	}
 	return nil
 }

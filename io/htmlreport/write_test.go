@@ -18,7 +18,7 @@ import (
 func writeDemo(t *testing.T, r *Report) string {
 	t.Helper()
 	dir := filepath.Join(t.TempDir(), "report")
-	if err := Write(dir, r); err != nil {
+	if _, err := Write(dir, r); err != nil {
 		t.Fatal(err)
 	}
 	return dir
@@ -111,8 +111,8 @@ func TestIndexRows(t *testing.T) {
 	}
 
 	settings := doc.one(t, "settings", elemClass("table", "kv"))
-	if got := len(bodyRows(t, settings)); got != len(r.Settings) {
-		t.Errorf("%d settings rows, want %d", got, len(r.Settings))
+	if got := len(bodyRows(t, settings)); got != len(settingsRows(r.Settings)) || got == 0 {
+		t.Errorf("%d settings rows, want %d", got, len(settingsRows(r.Settings)))
 	}
 }
 
@@ -212,7 +212,7 @@ func TestHostileStrings(t *testing.T) {
 	r := demoReport(t)
 	root := t.TempDir()
 	dir := filepath.Join(root, "a", "b", "report")
-	if err := Write(dir, r); err != nil {
+	if _, err := Write(dir, r); err != nil {
 		t.Fatal(err)
 	}
 	hostile := len(r.Samples) - 1
@@ -408,7 +408,7 @@ func TestWriteErrors(t *testing.T) {
 			r := demoReport(t)
 			tc.modify(r)
 			dir := filepath.Join(t.TempDir(), "out")
-			err := Write(dir, r)
+			_, err := Write(dir, r)
 			if err == nil || !strings.Contains(err.Error(), tc.want) {
 				t.Fatalf("error %v, want one containing %q", err, tc.want)
 			}
@@ -417,7 +417,7 @@ func TestWriteErrors(t *testing.T) {
 			}
 		})
 	}
-	if err := Write(t.TempDir(), nil); err == nil {
+	if _, err := Write(t.TempDir(), nil); err == nil {
 		t.Error("nil report: no error")
 	}
 }

@@ -20,9 +20,9 @@ type FileHash struct {
 // shown to have used the same inputs and settings and produced the same
 // bytes. It holds no clock time and no absolute path that was not given.
 type Manifest struct {
-	Tool     string         `json:"tool"`
-	Version  string         `json:"version"`
-	Settings map[string]any `json:"settings"`
+	Tool     string    `json:"tool"`
+	Version  string    `json:"version"`
+	Settings *Settings `json:"settings"`
 	// Inputs are the correlogram files in analysis order; Tables the sample
 	// sheet, specification and solvent file when given.
 	Inputs  []FileHash `json:"inputs"`

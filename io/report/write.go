@@ -12,6 +12,7 @@ import (
 
 	"dlsbatch/dls"
 	"dlsbatch/dls/spec"
+	"dlsbatch/io/sheet"
 )
 
 // Caution is carried by every report: the results support, not replace,
@@ -43,47 +44,16 @@ func WriteCSV(w io.Writer, results []*dls.Result) error {
 
 // Document is the top level of results.json.
 type Document struct {
-	Tool     string         `json:"tool"`
-	Version  string         `json:"version"`
-	Caution  string         `json:"caution"`
-	Settings map[string]any `json:"settings"`
-	Counts   Counts         `json:"counts"`
-	Batch    spec.Batch     `json:"batch"`
-	Sheet    *SheetReport   `json:"sheet,omitempty"`
-	Groups   any            `json:"groups,omitempty"`
-	Samples  []*dls.Sample  `json:"samples"`
-	Results  []*dls.Result  `json:"results"`
-}
-
-// SheetReport records how a sample sheet matched the files of a run.
-type SheetReport struct {
-	File           string   `json:"file"`
-	UnmatchedFiles []string `json:"unmatched_files"`
-	UnusedRows     []string `json:"unused_rows"`
-}
-
-// Counts are the numbers of results by status.
-type Counts struct {
-	Total int `json:"total"`
-	OK    int `json:"ok"`
-	Warn  int `json:"warn"`
-	Error int `json:"error"`
-}
-
-// CountResults counts results by status.
-func CountResults(results []*dls.Result) Counts {
-	c := Counts{Total: len(results)}
-	for _, r := range results {
-		switch r.Status {
-		case dls.StatusOK:
-			c.OK++
-		case dls.StatusWarn:
-			c.Warn++
-		default:
-			c.Error++
-		}
-	}
-	return c
+	Tool     string             `json:"tool"`
+	Version  string             `json:"version"`
+	Caution  string             `json:"caution"`
+	Settings *Settings          `json:"settings"`
+	Counts   dls.Counts         `json:"counts"`
+	Batch    spec.Batch         `json:"batch"`
+	Sheet    *sheet.MatchReport `json:"sheet,omitempty"`
+	Groups   any                `json:"groups,omitempty"`
+	Samples  []*dls.Sample      `json:"samples"`
+	Results  []*dls.Result      `json:"results"`
 }
 
 // WriteJSON writes results.json: the document's fields indented, and each
@@ -187,7 +157,7 @@ func WriteSummary(w io.Writer, results []*dls.Result, samples []*dls.Sample, b s
 	if err := tw.Flush(); err != nil {
 		return err
 	}
-	c := CountResults(results)
+	c := dls.CountResults(results)
 	fmt.Fprintf(w, "\n%d measurements: %d ok, %d warn, %d error\n", c.Total, c.OK, c.Warn, c.Error)
 	if b.Specified {
 		if b.Valid {

@@ -67,7 +67,7 @@ func TestWriteCSV(t *testing.T) {
 }
 
 func TestWriteJSONDeterministicAndFinite(t *testing.T) {
-	doc := &Document{Tool: "dlsbatch", Version: "test", Caution: Caution, Settings: map[string]any{"b": 1, "a": 2}, Results: sampleResults()}
+	doc := &Document{Tool: "dlsbatch", Version: "test", Caution: Caution, Settings: &Settings{CumulantMethod: "nonlinear"}, Results: sampleResults()}
 	var b1, b2 bytes.Buffer
 	if err := WriteJSON(&b1, doc); err != nil {
 		t.Fatal(err)
@@ -77,9 +77,6 @@ func TestWriteJSONDeterministicAndFinite(t *testing.T) {
 	}
 	if !bytes.Equal(b1.Bytes(), b2.Bytes()) {
 		t.Error("two writes differ")
-	}
-	if strings.Index(b1.String(), `"a"`) > strings.Index(b1.String(), `"b"`) {
-		t.Error("settings keys not sorted")
 	}
 	var back Document
 	if err := json.Unmarshal(b1.Bytes(), &back); err != nil {

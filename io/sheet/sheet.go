@@ -191,3 +191,28 @@ func (s *Sheet) Matches(rel string) bool {
 	}
 	return false
 }
+
+// MatchReport records how a sample sheet matched the files of a run.
+type MatchReport struct {
+	File           string   `json:"file"`
+	UnmatchedFiles []string `json:"unmatched_files"` // files no row matches, as found
+	UnusedRows     []string `json:"unused_rows"`     // "sheet:line: row "pattern" matches no file"
+}
+
+// Check matches the sheet (read from the file named name) against the
+// files of a run; rel maps each file to its path relative to the input
+// folder it was found in, as patterns see it.
+func (s *Sheet) Check(name string, files []string, rel map[string]string) *MatchReport {
+	rep := &MatchReport{File: name, UnmatchedFiles: []string{}, UnusedRows: []string{}}
+	all := make([]string, len(files))
+	for i, f := range files {
+		all[i] = rel[f]
+		if !s.Matches(rel[f]) {
+			rep.UnmatchedFiles = append(rep.UnmatchedFiles, f)
+		}
+	}
+	for _, row := range s.Unmatched(all) {
+		rep.UnusedRows = append(rep.UnusedRows, fmt.Sprintf("%s:%d: row %q matches no file", name, row.Line, row.Pattern))
+	}
+	return rep
+}

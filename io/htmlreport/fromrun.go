@@ -1,0 +1,38 @@
+package htmlreport
+
+import (
+	"dlsbatch/dls"
+	"dlsbatch/dls/spec"
+)
+
+// Run is what a finished run hands to the report: its results, samples,
+// batch outcome and settings.
+type Run struct {
+	Tool, Version, Caution string
+	Settings               any // see Report.Settings
+	Results                []*dls.Result
+	Samples                []*dls.Sample
+	Batch                  spec.Batch
+}
+
+// FromRun builds the report model of a run: the batch banner says whether
+// system suitability was assessed and passed, and lists the checks of every
+// reference sample that has a verdict.
+func FromRun(run Run) *Report {
+	b := BatchStatus{Suitability: SuitabilityNotAssessed}
+	if run.Batch.Specified {
+		b.Suitability, b.Reason = SuitabilityValid, "every reference standard within its limits"
+		if !run.Batch.Valid {
+			b.Suitability, b.Reason = SuitabilityInvalid, run.Batch.Reason
+		}
+		for i, smp := range run.Samples {
+			if smp.Role == "reference" && smp.Verdict != nil {
+				for _, c := range smp.Verdict.Checks {
+					b.Checks = append(b.Checks, SuitabilityCheck{Sample: i, Check: c})
+				}
+			}
+		}
+	}
+	return &Report{Tool: run.Tool, Version: run.Version, Caution: run.Caution, Settings: run.Settings,
+		Results: run.Results, Samples: run.Samples, Batch: b}
+}
