@@ -19,6 +19,7 @@ import (
 	"github.com/spf13/pflag"
 
 	"dlsbatch/dls"
+	"dlsbatch/dls/medium"
 	"dlsbatch/dls/mie"
 	"dlsbatch/dls/sim"
 	"dlsbatch/io/csvdata"
@@ -351,7 +352,7 @@ func (o *simOptions) simulate(j *simJob, grid *sim.Grid, at func(col string, err
 	if err != nil {
 		return nil, at("population", err)
 	}
-	sv, err := dls.LookupSolvent(j.solvent)
+	sv, err := medium.Lookup(j.solvent)
 	if err != nil {
 		return nil, at("solvent", err)
 	}

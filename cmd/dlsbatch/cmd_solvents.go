@@ -11,6 +11,7 @@ import (
 	"github.com/spf13/pflag"
 
 	"dlsbatch/dls"
+	"dlsbatch/dls/medium"
 	"dlsbatch/io/solventfile"
 )
 
@@ -60,7 +61,7 @@ func runSolvents(ctx context.Context, e env, args []string) int {
 	}
 	atState := fs.Changed("temperature-c") || fs.Changed("wavelength-nm")
 
-	table := dls.NewDefaultSolventTable()
+	table := medium.NewDefaultTable()
 	if o.file != "" {
 		if err := solventfile.Load(o.file, table); err != nil {
 			fmt.Fprintf(e.stderr, "dlsbatch solvents: %v\n", err)
@@ -102,7 +103,7 @@ func runSolvents(ctx context.Context, e env, args []string) int {
 const absoluteSuffix = "; absolute index, vacuum wavelength"
 
 // printSolventTable lists entries with their ranges and sources.
-func printSolventTable(w io.Writer, list []*dls.Solvent) error {
+func printSolventTable(w io.Writer, list []*medium.Solvent) error {
 	tw := tabwriter.NewWriter(w, 0, 0, 2, ' ', 0)
 	fmt.Fprintln(tw, "name\taliases\tt_range_c\tlambda_range_nm\tviscosity\tindex\tdefined")
 	for _, s := range list {
@@ -120,12 +121,12 @@ func printSolventTable(w io.Writer, list []*dls.Solvent) error {
 		return err
 	}
 	_, err := fmt.Fprintf(w, "\n%d entries. Mixtures: %s:W (W = glycerol mass fraction, Cheng 2008 viscosity).\n"+
-		"Ranges are at 0.1 MPa; indices are absolute, at the vacuum wavelength.\n", len(list), dls.MixtureGlycerolWater)
+		"Ranges are at 0.1 MPa; indices are absolute, at the vacuum wavelength.\n", len(list), medium.MixtureGlycerolWater)
 	return err
 }
 
 // printSolventValues prints viscosity and index of each entry at one state.
-func printSolventValues(w io.Writer, list []*dls.Solvent, tK, lambdaM float64, extrapolate bool) error {
+func printSolventValues(w io.Writer, list []*medium.Solvent, tK, lambdaM float64, extrapolate bool) error {
 	fmt.Fprintf(w, "at %.2f °C, 0.1 MPa, vacuum wavelength %.1f nm\n\n", tK-dls.ZeroCelsiusK, lambdaM*1e9)
 	tw := tabwriter.NewWriter(w, 0, 0, 2, ' ', 0)
 	fmt.Fprintln(tw, "name\tviscosity_mpas\trefractive_index\tstatus")
@@ -157,7 +158,7 @@ func printSolventValues(w io.Writer, list []*dls.Solvent, tK, lambdaM float64, e
 	return err
 }
 
-func aliasText(s *dls.Solvent) string {
+func aliasText(s *medium.Solvent) string {
 	a := append([]string(nil), s.Aliases...)
 	if s.CAS != "" {
 		a = append(a, s.CAS)
