@@ -18,7 +18,10 @@
 // k_B is the exact SI value 1.380649e-23 J/K (BIPM, The International System
 // of Units, 9th edition, 2019). The viscosity η is that of the continuous
 // phase the particles diffuse through, never the viscosity of the suspension
-// of the particles themselves (see the concentration notes in DEVELOPERS.md).
+// of the particles themselves (see the concentration notes in DEVELOPERS.md);
+// package dls/medium gives it, and the medium's refractive index, for water,
+// glycerol–water and the solvents of its table. Package dls/sizedist applies
+// Stokes–Einstein bin by bin to a rate spectrum and weights it by Mie theory.
 //
 // References:
 //   - B. J. Berne and R. Pecora, Dynamic Light Scattering, Wiley, 1976.

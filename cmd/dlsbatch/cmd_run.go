@@ -16,6 +16,7 @@ import (
 	"dlsbatch/cumulants"
 	"dlsbatch/dls"
 	"dlsbatch/dls/batch"
+	"dlsbatch/dls/medium"
 	"dlsbatch/dls/mie"
 	"dlsbatch/dls/qc"
 	"dlsbatch/dls/spec"
@@ -326,7 +327,7 @@ func (o *runOptions) settings() (batch.Settings, *csvdata.Options, error) {
 	}
 	s.Distribution.DefaultParticleRI = ri
 	if o.solventFile != "" {
-		s.Solvents = dls.NewDefaultSolventTable()
+		s.Solvents = medium.NewDefaultTable()
 		if err := solventfile.Load(o.solventFile, s.Solvents); err != nil {
 			return s, nil, err
 		}

@@ -8,6 +8,7 @@ import (
 	"github.com/spf13/pflag"
 
 	"dlsbatch/dls"
+	"dlsbatch/dls/medium"
 	"dlsbatch/io/report"
 	"dlsbatch/io/solventfile"
 )
@@ -58,7 +59,7 @@ func runSolvents(ctx context.Context, e env, args []string) int {
 	}
 	atState := fs.Changed("temperature-c") || fs.Changed("wavelength-nm")
 
-	table := dls.NewDefaultSolventTable()
+	table := medium.NewDefaultTable()
 	if o.file != "" {
 		if err := solventfile.Load(o.file, table); err != nil {
 			fmt.Fprintf(e.stderr, "dlsbatch solvents: %v\n", err)

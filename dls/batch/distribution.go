@@ -11,6 +11,7 @@ import (
 	"dlsbatch/cumulants"
 	"dlsbatch/dls"
 	"dlsbatch/dls/mie"
+	"dlsbatch/dls/sizedist"
 )
 
 // DistributionSettings control the size-distribution step.
@@ -183,7 +184,7 @@ func distribution(m *dls.Measurement, fit *cumulants.Result, st state, meta dls.
 	if inv2, err := contin.Invert(grid, g1, sg, &cs); err == nil {
 		inv = inv2
 	}
-	d, err := dls.NewDistribution(dls.DistributionInput{
+	d, err := sizedist.New(sizedist.Input{
 		GammaPerS: inv.GammaPerS, Amplitude: inv.Amplitude, TempK: tK, ViscosityPaS: st.etaPaS,
 		Optics: st.optics, ParticleIndex: mPart, Polarization: s.Polarization,
 	})
@@ -265,7 +266,7 @@ func sizeBoundedGrid(gs contin.GridSettings, tau []float64, tK, etaPaS, q float6
 // the peak rule's minimum share), and the factors 1/d³ and 1/d⁶ of the
 // conversion would turn a ripple of 0.1 % at the small end of the grid into
 // most of the number distribution (Finsy 1994; Patty & Frisken 2006).
-func keepPeaks(d *dls.Distribution, in *dls.WeightSummary) {
+func keepPeaks(d *sizedist.Distribution, in *dls.WeightSummary) {
 	if len(in.Peaks) == 0 {
 		return
 	}
@@ -305,7 +306,7 @@ func padFront(v []float64, first int) []float64 {
 // summarise finds the peaks of one weighting (largest area first), its
 // mean and its percentiles. The peak rule is contin.Peaks, which applies to
 // any ascending log-spaced grid: here the diameters.
-func summarise(d *dls.Distribution, w []float64, ps *contin.PeakSettings) *dls.WeightSummary {
+func summarise(d *sizedist.Distribution, w []float64, ps *contin.PeakSettings) *dls.WeightSummary {
 	ws := &dls.WeightSummary{
 		D10Nm: d.Percentile(w, 0.1),
 		D50Nm: d.Percentile(w, 0.5),

@@ -9,6 +9,7 @@ import (
 
 	"dlsbatch/cumulants"
 	"dlsbatch/dls"
+	"dlsbatch/dls/medium"
 	"dlsbatch/dls/qc"
 	"dlsbatch/dls/uncert"
 )
@@ -28,8 +29,8 @@ type Settings struct {
 	// KeepCurves stores data, fit and residuals in each result.
 	KeepCurves bool
 	// Solvents is the table solvent names are looked up in; nil means the
-	// built-in table (dls.LookupSolvent).
-	Solvents *dls.SolventTable
+	// built-in table (medium.Lookup).
+	Solvents *medium.Table
 	// Distribution controls the regularised inversion into size
 	// distributions.
 	Distribution DistributionSettings
@@ -223,7 +224,7 @@ type state struct {
 	// etaLaw is η(T) of the continuous phase, for the uncertainty budget's
 	// ∂d/∂T: the solvent's correlation (times the medium factor), or a
 	// constant for a user-supplied viscosity.
-	etaLaw dls.ViscosityLaw
+	etaLaw medium.ViscosityLaw
 	medium *dls.MediumNote
 }
 
@@ -269,11 +270,11 @@ func conditions(m *dls.Measurement, meta dls.Metadata, s *Settings) (state, []st
 		return st, nil, err
 	}
 	if !etaGiven || !nGiven {
-		var sol *dls.Solvent
+		var sol *medium.Solvent
 		if s.Solvents != nil {
 			sol, err = s.Solvents.Lookup(st.solvent)
 		} else {
-			sol, err = dls.LookupSolvent(st.solvent)
+			sol, err = medium.Lookup(st.solvent)
 		}
 		if err != nil {
 			return st, nil, err
@@ -283,7 +284,7 @@ func conditions(m *dls.Measurement, meta dls.Metadata, s *Settings) (state, []st
 		// given value with that value before asking the table.
 		use := *sol
 		if etaGiven {
-			use.Viscosity = dls.ConstantViscosity{PaS: eta * 1e-3, TMinK: 0, TMaxK: math.Inf(1), Ref: "user-supplied"}
+			use.Viscosity = medium.ConstantViscosity{PaS: eta * 1e-3, TMinK: 0, TMaxK: math.Inf(1), Ref: "user-supplied"}
 		}
 		if nGiven {
 			use.Index = givenIndex(n)
@@ -314,7 +315,7 @@ func conditions(m *dls.Measurement, meta dls.Metadata, s *Settings) (state, []st
 	}
 	st.etaPaS = eta * 1e-3
 	if st.etaLaw == nil {
-		st.etaLaw = dls.ConstantViscosity{PaS: st.etaPaS, TMinK: 0, TMaxK: math.Inf(1), Ref: "user-supplied"}
+		st.etaLaw = medium.ConstantViscosity{PaS: st.etaPaS, TMinK: 0, TMaxK: math.Inf(1), Ref: "user-supplied"}
 	}
 	if !etaGiven {
 		mw, err := applyMedium(&st, meta)

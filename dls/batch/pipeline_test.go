@@ -9,6 +9,7 @@ import (
 	"testing"
 
 	"dlsbatch/dls"
+	"dlsbatch/dls/medium"
 )
 
 // monoMeasurement is a noise-free single exponential for a 100 nm sphere of
@@ -203,8 +204,8 @@ func TestNaturalLess(t *testing.T) {
 func TestAnalyzeUserSolventTable(t *testing.T) {
 	// A user entry replaces nothing built in and is found by name; its
 	// constant viscosity and index are used as given.
-	tab := dls.NewDefaultSolventTable()
-	if err := tab.Add(&dls.Solvent{Name: "buffer-x", Viscosity: dls.ConstantViscosity{PaS: 0.890022e-3, TMinK: 273, TMaxK: 333, Ref: "lab"},
+	tab := medium.NewDefaultTable()
+	if err := tab.Add(&medium.Solvent{Name: "buffer-x", Viscosity: medium.ConstantViscosity{PaS: 0.890022e-3, TMinK: 273, TMaxK: 333, Ref: "lab"},
 		Index: givenIndex(1.33162), Origin: "test"}); err != nil {
 		t.Fatal(err)
 	}

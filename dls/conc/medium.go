@@ -7,6 +7,7 @@ import (
 	"strings"
 
 	"dlsbatch/dls"
+	"dlsbatch/dls/medium"
 )
 
 // Model is a relation for the relative viscosity η_r(φ) of a suspension of
@@ -337,7 +338,7 @@ func CheckMedium(statedPhi, etaR, uEtaR float64, s *MediumSettings) (*MediumChec
 // (true for rigid particles whose volume fraction does not change with T).
 // Its range is base's; its Source names both. It panics if base or m is
 // nil.
-func MediumLaw(base dls.ViscosityLaw, m *Medium) dls.ViscosityLaw {
+func MediumLaw(base medium.ViscosityLaw, m *Medium) medium.ViscosityLaw {
 	if base == nil || m == nil {
 		panic("conc: MediumLaw needs a base law and a medium")
 	}
@@ -346,7 +347,7 @@ func MediumLaw(base dls.ViscosityLaw, m *Medium) dls.ViscosityLaw {
 }
 
 type mediumLaw struct {
-	base dls.ViscosityLaw
+	base medium.ViscosityLaw
 	etaR float64
 	src  string
 }

@@ -9,6 +9,7 @@ import (
 	"gonum.org/v1/gonum/floats/scalar"
 
 	"dlsbatch/dls"
+	"dlsbatch/dls/medium"
 )
 
 // TestPublishedCoefficients reads the coefficients back out of the
@@ -298,7 +299,7 @@ func TestFractionFromMetadata(t *testing.T) {
 // TestMediumLaw: the medium's law is the solvent's times η_r at every
 // temperature (definition), with the solvent's range.
 func TestMediumLaw(t *testing.T) {
-	w, err := dls.LookupSolvent("water")
+	w, err := medium.Lookup("water")
 	if err != nil {
 		t.Fatal(err)
 	}

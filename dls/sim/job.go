@@ -7,6 +7,7 @@ import (
 	"strconv"
 
 	"dlsbatch/dls"
+	"dlsbatch/dls/medium"
 	"dlsbatch/dls/mie"
 )
 
@@ -122,7 +123,7 @@ func (j *Job) Run(grid *Grid, o JobOptions) (*JobResult, error) {
 	if err != nil {
 		return nil, fieldErr("population", err)
 	}
-	sv, err := dls.LookupSolvent(j.Solvent)
+	sv, err := medium.Lookup(j.Solvent)
 	if err != nil {
 		return nil, fieldErr("solvent", err)
 	}

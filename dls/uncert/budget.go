@@ -8,6 +8,7 @@ import (
 	"gonum.org/v1/gonum/stat/distuv"
 
 	"dlsbatch/dls"
+	"dlsbatch/dls/medium"
 )
 
 // Default standard uncertainties of the Type B inputs (see the package
@@ -55,11 +56,11 @@ func DefaultUncertainties() Uncertainties {
 // law (IAPWS 2008), 3 % for a DIPPR-101 fit. ok is false for any other law
 // (a mixture formula, an Andrade law or a measured constant): the caller
 // must state the uncertainty.
-func ViscosityRelUncertainty(law dls.ViscosityLaw) (rel float64, basis string, ok bool) {
-	if w, err := dls.LookupSolvent("water"); err == nil && law == w.Viscosity {
+func ViscosityRelUncertainty(law medium.ViscosityLaw) (rel float64, basis string, ok bool) {
+	if w, err := medium.Lookup("water"); err == nil && law == w.Viscosity {
 		return DefaultViscosityRelUncertainty, DefaultUncertainties().ViscosityBasis, true
 	}
-	if _, isDIPPR := law.(dls.DIPPR101); isDIPPR {
+	if _, isDIPPR := law.(medium.DIPPR101); isDIPPR {
 		return DIPPRViscosityRelUncertainty, "DIPPR-101 correlation, Perry's Handbook: a few percent, taken as 3 %", true
 	}
 	return 0, "", false

@@ -9,7 +9,7 @@ import (
 
 	"gonum.org/v1/gonum/floats/scalar"
 
-	"dlsbatch/dls"
+	"dlsbatch/dls/medium"
 )
 
 // andrade is η(T) = η25·exp(B·(1/T − 1/T25)) with B = 2000 K, a water-like
@@ -207,14 +207,14 @@ func patekDensityAndSlope(tK, pPa float64) (rho, dRhoDT float64) {
 // truncation is about 1e-8 there). The magnitude at 25 °C, η'/η ≈
 // −0.0223 /K, is the familiar ≈ 2 %/K of water (from memory).
 func TestTemperatureSensitivityWater(t *testing.T) {
-	w, err := dls.LookupSolvent("water")
+	w, err := medium.Lookup("water")
 	if err != nil {
 		t.Fatal(err)
 	}
 	for _, tc := range []float64{5, 20, 25, 37, 60, 85} {
 		tK := tc + 273.15
-		rho, dRho := patekDensityAndSlope(tK, dls.StandardAtmospherePa)
-		if got := dls.WaterDensityKgM3(tK); !scalar.EqualWithinRel(got, rho, 1e-12) {
+		rho, dRho := patekDensityAndSlope(tK, medium.StandardAtmospherePa)
+		if got := medium.WaterDensityKgM3(tK); !scalar.EqualWithinRel(got, rho, 1e-12) {
 			t.Fatalf("%g °C: density %.12g, independent analytic form %.12g", tc, got, rho)
 		}
 		lnMu, dT, dR := iapwsLnViscosityAndSlopes(tK, rho)
@@ -296,7 +296,7 @@ func TestViscosityRelUncertaintyncertainty(t *testing.T) {
 		want    float64
 		ok      bool
 	}{{"water", 0.01, true}, {"ethanol", 0.03, true}, {"glycerol-water:0.4", 0, false}} {
-		s, err := dls.LookupSolvent(c.solvent)
+		s, err := medium.Lookup(c.solvent)
 		if err != nil {
 			t.Fatal(err)
 		}
@@ -305,7 +305,7 @@ func TestViscosityRelUncertaintyncertainty(t *testing.T) {
 			t.Errorf("%s: %g %q %v", c.solvent, got, basis, ok)
 		}
 	}
-	if _, _, ok := ViscosityRelUncertainty(dls.ConstantViscosity{PaS: 1e-3}); ok {
+	if _, _, ok := ViscosityRelUncertainty(medium.ConstantViscosity{PaS: 1e-3}); ok {
 		t.Error("a measured constant got a default uncertainty")
 	}
 }

@@ -7,6 +7,7 @@ import (
 
 	"dlsbatch/cumulants"
 	"dlsbatch/dls"
+	"dlsbatch/dls/medium"
 	"dlsbatch/dls/sim"
 	"dlsbatch/dls/uncert"
 )
@@ -38,7 +39,7 @@ func TestCoverage(t *testing.T) {
 	if testing.Short() {
 		t.Skip("simulates and fits 1000 correlograms (about 2 s)")
 	}
-	water, err := dls.LookupSolvent("water")
+	water, err := medium.Lookup("water")
 	if err != nil {
 		t.Fatal(err)
 	}

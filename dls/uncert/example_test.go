@@ -4,7 +4,7 @@ import (
 	"fmt"
 	"math"
 
-	"dlsbatch/dls"
+	"dlsbatch/dls/medium"
 	"dlsbatch/dls/uncert"
 )
 
@@ -12,7 +12,7 @@ import (
 // the documented default uncertainties and the decay rate's standard error
 // from the cumulant fit.
 func ExampleZAverage() {
-	water, err := dls.LookupSolvent("water")
+	water, err := medium.Lookup("water")
 	if err != nil {
 		fmt.Println(err)
 		return

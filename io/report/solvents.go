@@ -8,12 +8,13 @@ import (
 	"text/tabwriter"
 
 	"dlsbatch/dls"
+	"dlsbatch/dls/medium"
 )
 
 const absoluteSuffix = "; absolute index, vacuum wavelength"
 
 // WriteSolventTable lists entries with their ranges and sources.
-func WriteSolventTable(w io.Writer, list []*dls.Solvent) error {
+func WriteSolventTable(w io.Writer, list []*medium.Solvent) error {
 	tw := tabwriter.NewWriter(w, 0, 0, 2, ' ', 0)
 	fmt.Fprintln(tw, "name\taliases\tt_range_c\tlambda_range_nm\tviscosity\tindex\tdefined")
 	for _, s := range list {
@@ -31,12 +32,12 @@ func WriteSolventTable(w io.Writer, list []*dls.Solvent) error {
 		return err
 	}
 	_, err := fmt.Fprintf(w, "\n%d entries. Mixtures: %s:W (W = glycerol mass fraction, Cheng 2008 viscosity).\n"+
-		"Ranges are at 0.1 MPa; indices are absolute, at the vacuum wavelength.\n", len(list), dls.MixtureGlycerolWater)
+		"Ranges are at 0.1 MPa; indices are absolute, at the vacuum wavelength.\n", len(list), medium.MixtureGlycerolWater)
 	return err
 }
 
 // WriteSolventValues prints viscosity and index of each entry at one state.
-func WriteSolventValues(w io.Writer, list []*dls.Solvent, tK, lambdaM float64, extrapolate bool) error {
+func WriteSolventValues(w io.Writer, list []*medium.Solvent, tK, lambdaM float64, extrapolate bool) error {
 	fmt.Fprintf(w, "at %.2f °C, 0.1 MPa, vacuum wavelength %.1f nm\n\n", tK-dls.ZeroCelsiusK, lambdaM*1e9)
 	tw := tabwriter.NewWriter(w, 0, 0, 2, ' ', 0)
 	fmt.Fprintln(tw, "name\tviscosity_mpas\trefractive_index\tstatus")
@@ -68,7 +69,7 @@ func WriteSolventValues(w io.Writer, list []*dls.Solvent, tK, lambdaM float64, e
 	return err
 }
 
-func aliasText(s *dls.Solvent) string {
+func aliasText(s *medium.Solvent) string {
 	a := append([]string(nil), s.Aliases...)
 	if s.CAS != "" {
 		a = append(a, s.CAS)

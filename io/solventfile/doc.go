@@ -33,5 +33,5 @@
 //	buffer-a,pbs,15,40,andrade,-6.94 1990,constant,1.3345,25,-1.0e-4,,,lab notebook 12 p. 4
 //
 // Errors name the file, line and column (dls.PosError). Add each entry to a
-// dls.SolventTable with Load or with Parse and Entry.Solvent.
+// medium.Table with Load or with Parse and Entry.Solvent.
 package solventfile

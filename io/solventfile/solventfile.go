@@ -11,6 +11,7 @@ import (
 	"unicode"
 
 	"dlsbatch/dls"
+	"dlsbatch/dls/medium"
 	"dlsbatch/io/csvtable"
 )
 
@@ -248,17 +249,17 @@ func parseRow(rw row, at func(string, error) error) (Entry, error) {
 }
 
 // Solvent builds the table entry of e (SI inside).
-func (e Entry) Solvent() *dls.Solvent {
+func (e Entry) Solvent() *medium.Solvent {
 	tMin, tMax := dls.KelvinFromCelsius(e.TMinC), dls.KelvinFromCelsius(e.TMaxC)
 	p := e.ViscosityParams
-	var v dls.ViscosityLaw
+	var v medium.ViscosityLaw
 	switch e.ViscosityModel {
 	case ViscosityConstant:
-		v = dls.ConstantViscosity{PaS: p[0] * 1e-3, TMinK: tMin, TMaxK: tMax, Ref: e.Source}
+		v = medium.ConstantViscosity{PaS: p[0] * 1e-3, TMinK: tMin, TMaxK: tMax, Ref: e.Source}
 	case ViscosityAndrade:
-		v = dls.Andrade{A: p[0] + math.Log(1e-3), B: p[1], TMinK: tMin, TMaxK: tMax, Ref: e.Source}
+		v = medium.Andrade{A: p[0] + math.Log(1e-3), B: p[1], TMinK: tMin, TMaxK: tMax, Ref: e.Source}
 	case ViscosityDIPPR101:
-		v = dls.DIPPR101{C: [5]float64{p[0], p[1], p[2], p[3], p[4]}, TMinK: tMin, TMaxK: tMax, Ref: e.Source}
+		v = medium.DIPPR101{C: [5]float64{p[0], p[1], p[2], p[3], p[4]}, TMinK: tMin, TMaxK: tMax, Ref: e.Source}
 	default:
 		panic("solventfile: Entry with unknown viscosity model " + e.ViscosityModel)
 	}
@@ -266,8 +267,8 @@ func (e Entry) Solvent() *dls.Solvent {
 	for i, c := range e.IndexParams[1:] {
 		coef = append(coef, c, float64(-2*(i+1)))
 	}
-	d := dls.Dispersion{
-		Formula: dls.FormulaCauchy, Coef: coef,
+	d := medium.Dispersion{
+		Formula: medium.FormulaCauchy, Coef: coef,
 		LambdaMinM: e.LambdaMinNm * 1e-9, LambdaMaxM: e.LambdaMaxNm * 1e-9,
 		DnDTPerK: e.DnDTPerK, DnDTSource: "from the solvent file",
 		TMinK: tMin, TMaxK: tMax, Ref: e.Source,
@@ -275,7 +276,7 @@ func (e Entry) Solvent() *dls.Solvent {
 	if e.HasIndexT {
 		d.TRefK = dls.KelvinFromCelsius(e.IndexTC)
 	}
-	return &dls.Solvent{
+	return &medium.Solvent{
 		Name: e.Name, Aliases: e.Aliases, Viscosity: v, Index: d,
 		Origin: fmt.Sprintf("%s:%d", e.File, e.Line),
 	}
@@ -293,7 +294,7 @@ func ReadFile(path string) ([]Entry, error) {
 
 // Load reads the solvent file at path and adds its entries to t, each
 // replacing the entries that share a name or alias with it.
-func Load(path string, t *dls.SolventTable) error {
+func Load(path string, t *medium.Table) error {
 	entries, err := ReadFile(path)
 	if err != nil {
 		return err

@@ -11,6 +11,7 @@ import (
 	"testing"
 
 	"dlsbatch/dls"
+	"dlsbatch/dls/medium"
 )
 
 func near(t *testing.T, what string, got, want, tol float64) {
@@ -37,7 +38,7 @@ func TestReadFixture(t *testing.T) {
 		}
 	}
 
-	tab := dls.NewDefaultSolventTable()
+	tab := medium.NewDefaultTable()
 	if err := Load(path, tab); err != nil {
 		t.Fatal(err)
 	}
@@ -97,7 +98,7 @@ func TestReadFixture(t *testing.T) {
 	if !strings.HasPrefix(s.Origin, path) {
 		t.Errorf("ethylene glycol not overridden: origin %q", s.Origin)
 	}
-	builtin, _ := dls.LookupSolvent("ethylene glycol")
+	builtin, _ := medium.Lookup("ethylene glycol")
 	p1, _ := s.Props(298.15, 632.8e-9, false)
 	p2, _ := builtin.Props(298.15, 632.8e-9, false)
 	near(t, "overridden EG η", p1.ViscosityPaS, p2.ViscosityPaS, 1e-15)
@@ -180,7 +181,7 @@ func TestWriteRoundTrip(t *testing.T) {
 }
 
 func TestLoadErrors(t *testing.T) {
-	tab := dls.NewDefaultSolventTable()
+	tab := medium.NewDefaultTable()
 	err := Load(filepath.Join(t.TempDir(), "missing.csv"), tab)
 	var pe *dls.PosError
 	if !errors.As(err, &pe) || !errors.Is(err, os.ErrNotExist) {
@@ -208,7 +209,7 @@ func FuzzParse(f *testing.F) {
 			}
 			return
 		}
-		tab := &dls.SolventTable{}
+		tab := &medium.Table{}
 		for _, e := range entries {
 			if err := tab.Add(e.Solvent()); err != nil {
 				t.Fatalf("parsed entry %+v not accepted by the table: %v", e, err)

@@ -1,6 +1,7 @@
-package dls
+package medium
 
 import (
+	"dlsbatch/dls"
 	"embed"
 	"encoding/csv"
 	"fmt"
@@ -14,10 +15,10 @@ import (
 //go:embed data/viscosity_dippr101.tsv data/refractive_index.tsv data/solvents.tsv
 var solventData embed.FS
 
-// SolventDataFile returns the content of one of the embedded data files
+// DataFile returns the content of one of the embedded data files
 // ("viscosity_dippr101.tsv", "refractive_index.tsv", "solvents.tsv"), for
 // listing sources.
-func SolventDataFile(name string) ([]byte, error) { return solventData.ReadFile("data/" + name) }
+func DataFile(name string) ([]byte, error) { return solventData.ReadFile("data/" + name) }
 
 // tsvRecords reads an embedded tab-separated file with "#" comments and a
 // header row into maps keyed by column name.
@@ -36,7 +37,7 @@ func tsvRecords(name string) ([]map[string]string, error) {
 		return nil, fmt.Errorf("%s: %w", name, err)
 	}
 	if len(rows) < 2 {
-		return nil, fmt.Errorf("%s: %w", name, ErrEmpty)
+		return nil, fmt.Errorf("%s: %w", name, dls.ErrEmpty)
 	}
 	head := rows[0]
 	out := make([]map[string]string, 0, len(rows)-1)
@@ -64,7 +65,7 @@ func floats(rec map[string]string, cols ...string) ([]float64, error) {
 }
 
 // Short citations used in source strings; the full ones are in the data
-// files and in doc_medium.go.
+// files and in doc.go.
 const refPerry = "Perry's Handbook 8th ed. (2008) Table 2-313"
 
 // shortRef turns a full citation "A, B, Journal 1, 2-3 (2024), doi:…" into
@@ -128,7 +129,7 @@ func builtinEntry(rec, vr, ir map[string]string) (*Solvent, error) {
 		return nil, err
 	}
 	tMin := c[5]
-	tMax := min(c[6], KelvinFromCelsius(tb[0]))
+	tMax := min(c[6], dls.KelvinFromCelsius(tb[0]))
 	d := DIPPR101{C: [5]float64{c[0], c[1], c[2], c[3], c[4]}, TMinK: tMin, TMaxK: tMax, Ref: refPerry}
 
 	formula, err := strconv.Atoi(ir["formula"])
@@ -158,13 +159,13 @@ func builtinEntry(rec, vr, ir map[string]string) (*Solvent, error) {
 		if err != nil {
 			return nil, err
 		}
-		disp.TRefK = KelvinFromCelsius(v[0])
+		disp.TRefK = dls.KelvinFromCelsius(v[0])
 	} else {
 		v, err := floats(rec, "index_t_assumed_c")
 		if err != nil {
 			return nil, fmt.Errorf("index temperature not stated and none assumed: %w", err)
 		}
-		disp.TRefK, disp.TRefAssumed = KelvinFromCelsius(v[0]), true
+		disp.TRefK, disp.TRefAssumed = dls.KelvinFromCelsius(v[0]), true
 	}
 	if ir["dn_dT_per_K"] != "" {
 		v, err := floats(ir, "dn_dT_per_K")
@@ -193,7 +194,7 @@ func builtinEntry(rec, vr, ir map[string]string) (*Solvent, error) {
 			aliases = append(aliases, a)
 		}
 	}
-	note := fmt.Sprintf("liquid %.1f–%.1f °C at 0.1 MPa", tMin-ZeroCelsiusK, tMax-ZeroCelsiusK)
+	note := fmt.Sprintf("liquid %.1f–%.1f °C at 0.1 MPa", tMin-dls.ZeroCelsiusK, tMax-dls.ZeroCelsiusK)
 	return &Solvent{
 		Name: rec["name"], Aliases: aliases, CAS: rec["CAS"],
 		Viscosity: d, Index: disp, Origin: "built-in", Note: note,

@@ -1,6 +1,7 @@
-package dls
+package medium
 
 import (
+	"dlsbatch/dls"
 	"fmt"
 	"math"
 	"strings"
@@ -197,7 +198,7 @@ func (d Dispersion) Source(tK float64) string {
 	if d.Ref != "" {
 		b.WriteString(", " + d.Ref)
 	}
-	at := fmt.Sprintf("%.2f °C", d.TRefK-ZeroCelsiusK)
+	at := fmt.Sprintf("%.2f °C", d.TRefK-dls.ZeroCelsiusK)
 	if d.TRefAssumed {
 		at += " (source says room temperature; assumed)"
 	}
@@ -214,7 +215,7 @@ func (d Dispersion) Source(tK float64) string {
 	case math.Abs(tK-d.TRefK) < 0.005:
 		fmt.Fprintf(&b, ", at %s", at)
 	default:
-		fmt.Fprintf(&b, ", at %s, corrected to %.2f °C with dn/dT %.2e /K", at, tK-ZeroCelsiusK, d.DnDTPerK)
+		fmt.Fprintf(&b, ", at %s, corrected to %.2f °C with dn/dT %.2e /K", at, tK-dls.ZeroCelsiusK, d.DnDTPerK)
 		if d.DnDTSource != "" {
 			b.WriteString(", " + d.DnDTSource)
 		}

@@ -1,6 +1,7 @@
-package dls
+package medium
 
 import (
+	"dlsbatch/dls"
 	"errors"
 	"testing"
 )
@@ -24,7 +25,7 @@ func TestGlycerolWaterCheng(t *testing.T) {
 			if err != nil {
 				t.Fatal(err)
 			}
-			p, err := s.Props(KelvinFromCelsius(row.tC), 632.8e-9, w == 0)
+			p, err := s.Props(dls.KelvinFromCelsius(row.tC), 632.8e-9, w == 0)
 			if err != nil {
 				t.Fatalf("w=%g: %v", w, err)
 			}
@@ -40,21 +41,21 @@ func TestGlycerolWaterCheng(t *testing.T) {
 // memory; three digits, so 0.1 %).
 func TestGlycerolWaterLimits(t *testing.T) {
 	for tC := 0.0; tC <= 90; tC += 10 {
-		tK := KelvinFromCelsius(tC)
+		tK := dls.KelvinFromCelsius(tC)
 		iapws, _ := WaterViscosityPaS(tK)
 		mediumRel(t, "Cheng water limit vs IAPWS", GlycerolWaterViscosityPaS(0, tK), iapws, 1e-2)
 	}
-	mediumRel(t, "50 wt % at 20 °C", GlycerolWaterViscosityPaS(0.5, KelvinFromCelsius(20))*1e3, 6.00, 1e-3)
+	mediumRel(t, "50 wt % at 20 °C", GlycerolWaterViscosityPaS(0.5, dls.KelvinFromCelsius(20))*1e3, 6.00, 1e-3)
 	// Pure glycerol, CRC Handbook (from memory): 1412 mPa·s at
 	// 20 °C, where Cheng's eq. 22 agrees (1414, 0.5 % tolerance), and 934 at
 	// 25 °C, where eq. 22 gives 906, 3 % lower (5 % tolerance; a known
 	// disagreement, glycerol being hygroscopic and steeply T-dependent).
-	mediumRel(t, "glycerol 20 °C vs CRC", GlycerolWaterViscosityPaS(1, KelvinFromCelsius(20))*1e3, 1412, 5e-3)
-	mediumRel(t, "glycerol 25 °C vs CRC", GlycerolWaterViscosityPaS(1, KelvinFromCelsius(25))*1e3, 934, 0.05)
+	mediumRel(t, "glycerol 20 °C vs CRC", GlycerolWaterViscosityPaS(1, dls.KelvinFromCelsius(20))*1e3, 1412, 5e-3)
+	mediumRel(t, "glycerol 25 °C vs CRC", GlycerolWaterViscosityPaS(1, dls.KelvinFromCelsius(25))*1e3, 934, 0.05)
 
 	// Index limits: w = 0 is IAPWS R9-97 water, w = 1 the glycerol
 	// dispersion; the mixture lies between them.
-	tK, l := KelvinFromCelsius(25), 632.8e-9
+	tK, l := dls.KelvinFromCelsius(25), 632.8e-9
 	nw, _ := WaterRefractiveIndex(tK, l)
 	g0, _ := GlycerolWater(0)
 	g1, _ := GlycerolWater(1)
@@ -75,8 +76,8 @@ func TestGlycerolWaterLimits(t *testing.T) {
 	}
 
 	for _, bad := range []float64{-0.01, 1.01} {
-		if _, err := GlycerolWater(bad); !errors.Is(err, ErrOutOfRange) {
-			t.Errorf("GlycerolWater(%g): err = %v, want ErrOutOfRange", bad, err)
+		if _, err := GlycerolWater(bad); !errors.Is(err, dls.ErrOutOfRange) {
+			t.Errorf("GlycerolWater(%g): err = %v, want dls.ErrOutOfRange", bad, err)
 		}
 	}
 }
@@ -93,7 +94,7 @@ func TestGlycerolWaterIndexAgainstHandbook(t *testing.T) {
 	}
 	for _, c := range crc {
 		s, _ := GlycerolWater(c.w)
-		p, err := s.Props(KelvinFromCelsius(20), 589.3e-9, false)
+		p, err := s.Props(dls.KelvinFromCelsius(20), 589.3e-9, false)
 		if err != nil {
 			t.Fatal(err)
 		}

@@ -1,6 +1,7 @@
-package dls
+package medium
 
 import (
+	"dlsbatch/dls"
 	"fmt"
 	"math"
 	"strconv"
@@ -10,7 +11,7 @@ import (
 
 // Glycerol–water mixtures: viscosity after Cheng 2008, refractive index by
 // Lorentz–Lorenz mixing of the pure liquids. Formulas and references are in
-// doc_medium.go.
+// doc.go.
 
 // Range of Cheng's correlation: 0–100 °C, any mass fraction.
 const (
@@ -23,7 +24,7 @@ const (
 // Ind. Eng. Chem. Res. 47, 3285 (2008), eqs. 6, 21 and 22, without range
 // checks (Cheng: 0–100 °C, 0 ≤ w ≤ 1).
 func GlycerolWaterViscosityPaS(w, tK float64) float64 {
-	t := tK - ZeroCelsiusK
+	t := tK - dls.ZeroCelsiusK
 	muW := 1.790 * math.Exp((-1230-t)*t/(36100+360*t))          // mPa·s, eq. 21
 	muG := 12100 * math.Exp((-1233+t)*t/(9900+70*t))            // mPa·s, eq. 22
 	a := 0.705 - 0.0017*t                                       //
@@ -34,7 +35,7 @@ func GlycerolWaterViscosityPaS(w, tK float64) float64 {
 
 // GlycerolDensityChengKgM3 is the density of glycerol used by Cheng 2008,
 // eq. 24: ρ = 1277 − 0.654·t kg/m³ (t in °C).
-func GlycerolDensityChengKgM3(tK float64) float64 { return 1277 - 0.654*(tK-ZeroCelsiusK) }
+func GlycerolDensityChengKgM3(tK float64) float64 { return 1277 - 0.654*(tK-dls.ZeroCelsiusK) }
 
 // glycerolDnDTPerK is the temperature coefficient of the index of glycerol
 // (from memory; hydrogen-bonded liquids change less than ordinary organics).
@@ -45,7 +46,7 @@ const glycerolDnDTPerK = -2.5e-4
 var glycerolIndex = sync.OnceValue(func() Dispersion {
 	recs, err := tsvRecords("refractive_index.tsv")
 	if err != nil {
-		panic("dls: embedded solvent data: " + err.Error())
+		panic("medium: embedded solvent data: " + err.Error())
 	}
 	for _, r := range recs {
 		if r["CAS"] != "56-81-5" {
@@ -57,23 +58,23 @@ var glycerolIndex = sync.OnceValue(func() Dispersion {
 		for _, s := range strings.Fields(r["coefficients"]) {
 			c, err := strconv.ParseFloat(s, 64)
 			if err != nil {
-				panic("dls: embedded glycerol index: " + err.Error())
+				panic("medium: embedded glycerol index: " + err.Error())
 			}
 			coef = append(coef, c)
 		}
 		if err1 != nil || err2 != nil {
-			panic("dls: embedded glycerol index: bad row")
+			panic("medium: embedded glycerol index: bad row")
 		}
 		return Dispersion{
 			Formula: f, Coef: coef,
 			LambdaMinM: v[0] * 1e-6, LambdaMaxM: v[1] * 1e-6,
-			TRefK:    KelvinFromCelsius(v[2]),
+			TRefK:    dls.KelvinFromCelsius(v[2]),
 			DnDTPerK: glycerolDnDTPerK, DnDTSource: "from memory (glycols)",
 			TMinK: GlycerolWaterTMinK, TMaxK: GlycerolWaterTMaxK,
 			Ref: shortRef(r["source"]),
 		}
 	}
-	panic("dls: embedded solvent data: no glycerol index")
+	panic("medium: embedded solvent data: no glycerol index")
 })
 
 type chengViscosity struct{ w float64 }
@@ -144,11 +145,11 @@ func (g glycerolWaterIndex) Source(tK float64) string {
 // Cheng's correlation (whose pure-water limit is Cheng's own fit, 0.3 %
 // above IAPWS 2008 at 20 °C); its index mixes IAPWS R9-97 water and the
 // glycerol dispersion of Rheims et al. 1997 by Lorentz–Lorenz. A fraction
-// outside [0, 1] gives an error wrapping ErrOutOfRange.
+// outside [0, 1] gives an error wrapping dls.ErrOutOfRange.
 func GlycerolWater(massFraction float64) (*Solvent, error) {
 	w := massFraction
 	if !(w >= 0 && w <= 1) {
-		return nil, fmt.Errorf("glycerol mass fraction %g is outside 0–1: %w", w, ErrOutOfRange)
+		return nil, fmt.Errorf("glycerol mass fraction %g is outside 0–1: %w", w, dls.ErrOutOfRange)
 	}
 	s := &Solvent{
 		Name:      MixtureGlycerolWater + ":" + strconv.FormatFloat(w, 'f', -1, 64),

@@ -1,6 +1,7 @@
-package dls
+package medium
 
 import (
+	"dlsbatch/dls"
 	"errors"
 	"math"
 	"strings"
@@ -9,9 +10,9 @@ import (
 
 func mustSolvent(t *testing.T, name string) *Solvent {
 	t.Helper()
-	s, err := LookupSolvent(name)
+	s, err := Lookup(name)
 	if err != nil {
-		t.Fatalf("LookupSolvent(%q): %v", name, err)
+		t.Fatalf("Lookup(%q): %v", name, err)
 	}
 	return s
 }
@@ -55,36 +56,87 @@ func TestLookupSolvent(t *testing.T) {
 		{"Glycerol-Water:40%", "glycerol-water:0.4"},
 	}
 	for _, tc := range tests {
-		s, err := LookupSolvent(tc.in)
+		s, err := Lookup(tc.in)
 		if err != nil {
-			t.Errorf("LookupSolvent(%q): %v", tc.in, err)
+			t.Errorf("Lookup(%q): %v", tc.in, err)
 			continue
 		}
 		if s.Name != tc.want {
-			t.Errorf("LookupSolvent(%q) = %q, want %q", tc.in, s.Name, tc.want)
+			t.Errorf("Lookup(%q) = %q, want %q", tc.in, s.Name, tc.want)
 		}
 	}
 
-	_, err := LookupSolvent("heavy water")
-	if !errors.Is(err, ErrUnknownSolvent) {
-		t.Fatalf("unknown: err = %v, want ErrUnknownSolvent", err)
+	_, err := Lookup("heavy water")
+	if !errors.Is(err, dls.ErrUnknownSolvent) {
+		t.Fatalf("unknown: err = %v, want dls.ErrUnknownSolvent", err)
 	}
 	for _, name := range []string{"water", "toluene", "glycerol-water:W"} {
 		if !strings.Contains(err.Error(), name) {
 			t.Errorf("error %q does not list %q", err, name)
 		}
 	}
-	if _, err := LookupSolvent("ethanol-water:0.5"); !errors.Is(err, ErrUnknownSolvent) {
-		t.Errorf("unknown mixture: err = %v, want ErrUnknownSolvent", err)
+	if _, err := Lookup("ethanol-water:0.5"); !errors.Is(err, dls.ErrUnknownSolvent) {
+		t.Errorf("unknown mixture: err = %v, want dls.ErrUnknownSolvent", err)
 	}
-	if _, err := LookupSolvent("glycerol-water:1.2"); !errors.Is(err, ErrOutOfRange) {
-		t.Errorf("fraction 1.2: err = %v, want ErrOutOfRange", err)
+	if _, err := Lookup("glycerol-water:1.2"); !errors.Is(err, dls.ErrOutOfRange) {
+		t.Errorf("fraction 1.2: err = %v, want dls.ErrOutOfRange", err)
 	}
-	if _, err := LookupSolvent("glycerol-water:half"); !errors.Is(err, ErrNotANumber) {
-		t.Errorf("fraction 'half': err = %v, want ErrNotANumber", err)
+	if _, err := Lookup("glycerol-water:half"); !errors.Is(err, dls.ErrNotANumber) {
+		t.Errorf("fraction 'half': err = %v, want dls.ErrNotANumber", err)
 	}
-	if _, err := LookupSolvent(""); !errors.Is(err, ErrUnknownSolvent) {
-		t.Errorf("empty name: err = %v, want ErrUnknownSolvent", err)
+	if _, err := Lookup(""); !errors.Is(err, dls.ErrUnknownSolvent) {
+		t.Errorf("empty name: err = %v, want dls.ErrUnknownSolvent", err)
+	}
+}
+
+// TestBuiltinEntriesAreCopies changes what Lookup, Solvents and
+// NewDefaultTable hand out (aliases, dispersion coefficients, the laws) and
+// looks again: the built-in table must be as before. The expected index is
+// the one of an untouched lookup, taken first; the same data and the same
+// arithmetic give the same bits, so the comparison is exact.
+func TestBuiltinEntriesAreCopies(t *testing.T) {
+	const name, tK, lambdaM = "toluene", 298.15, 632.8e-9
+	before, err := Lookup(name)
+	if err != nil {
+		t.Fatal(err)
+	}
+	want, err := before.Props(tK, lambdaM, false)
+	if err != nil {
+		t.Fatal(err)
+	}
+	spoil := func(s *Solvent) {
+		for i := range s.Aliases {
+			s.Aliases[i] = "spoilt"
+		}
+		if d, ok := s.Index.(Dispersion); ok {
+			for i := range d.Coef {
+				d.Coef[i] = 0
+			}
+		}
+		s.Viscosity = ConstantViscosity{PaS: 1, TMinK: 0, TMaxK: 1000}
+	}
+	spoil(before)
+	for _, s := range Solvents() {
+		spoil(s)
+	}
+	tab := NewDefaultTable()
+	if s, err := tab.Lookup(name); err == nil {
+		spoil(s)
+	}
+	after, err := Lookup(name)
+	if err != nil {
+		t.Fatal(err)
+	}
+	got, err := after.Props(tK, lambdaM, false)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if got.RefractiveIndex != want.RefractiveIndex || got.ViscosityPaS != want.ViscosityPaS {
+		t.Errorf("after changing handed-out entries: n = %v, η = %v Pa·s; want %v, %v",
+			got.RefractiveIndex, got.ViscosityPaS, want.RefractiveIndex, want.ViscosityPaS)
+	}
+	if _, err := Lookup(after.Aliases[0]); err != nil {
+		t.Errorf("alias %q no longer found: %v", after.Aliases[0], err)
 	}
 }
 
@@ -125,7 +177,7 @@ func TestSolventViscosity25C(t *testing.T) {
 		"ethylene glycol": 16.1,
 	}
 	for name, want := range crc {
-		p, err := mustSolvent(t, name).Props(KelvinFromCelsius(25), 589.3e-9, false)
+		p, err := mustSolvent(t, name).Props(dls.KelvinFromCelsius(25), 589.3e-9, false)
 		if err != nil {
 			t.Errorf("%s: %v", name, err)
 			continue
@@ -143,7 +195,7 @@ func TestSolventViscosityDisagreements(t *testing.T) {
 	// 0.34–0.35 mPa·s at 25 °C (from memory, low confidence), close to the
 	// correlation, so the table keeps it. Tolerances: 10 % against CRC, 3 %
 	// against the middle of the commonly quoted span.
-	p, err := mustSolvent(t, "acetonitrile").Props(KelvinFromCelsius(25), 589.3e-9, false)
+	p, err := mustSolvent(t, "acetonitrile").Props(dls.KelvinFromCelsius(25), 589.3e-9, false)
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -171,7 +223,7 @@ func TestSolventViscosity50C(t *testing.T) {
 		"ethylene glycol": 6.554,
 	}
 	for name, want := range crc {
-		p, err := mustSolvent(t, name).Props(KelvinFromCelsius(50), 589.3e-9, false)
+		p, err := mustSolvent(t, name).Props(dls.KelvinFromCelsius(50), 589.3e-9, false)
 		if err != nil {
 			t.Errorf("%s: %v", name, err)
 			continue
@@ -202,8 +254,8 @@ func TestDIPPR101WaterRowAgainstIAPWS(t *testing.T) {
 		}
 		d := DIPPR101{C: [5]float64{c[0], c[1], c[2], c[3], c[4]}}
 		for tC := 0.0; tC <= 90; tC += 10 {
-			want, _ := WaterViscosityPaS(KelvinFromCelsius(tC))
-			mediumRel(t, "DIPPR water", d.ViscosityPaS(KelvinFromCelsius(tC)), want, 0.06)
+			want, _ := WaterViscosityPaS(dls.KelvinFromCelsius(tC))
+			mediumRel(t, "DIPPR water", d.ViscosityPaS(dls.KelvinFromCelsius(tC)), want, 0.06)
 		}
 		return
 	}
@@ -287,7 +339,7 @@ func TestSolventIndexAgainstHandbook(t *testing.T) {
 		{"glycerol", 1.4746, 2.5e-3},
 	}
 	for _, tc := range tests {
-		p, err := mustSolvent(t, tc.name).Props(KelvinFromCelsius(20), 589.3e-9, false)
+		p, err := mustSolvent(t, tc.name).Props(dls.KelvinFromCelsius(20), 589.3e-9, false)
 		if err != nil {
 			t.Errorf("%s: %v", tc.name, err)
 			continue
@@ -301,11 +353,11 @@ func TestSolventIndexAgainstHandbook(t *testing.T) {
 // by exactly that slope and say so.
 func TestSolventIndexTemperatureCorrection(t *testing.T) {
 	s := mustSolvent(t, "cyclohexane")
-	p1, err := s.Props(KelvinFromCelsius(20), 633e-9, false)
+	p1, err := s.Props(dls.KelvinFromCelsius(20), 633e-9, false)
 	if err != nil {
 		t.Fatal(err)
 	}
-	p2, err := s.Props(KelvinFromCelsius(40), 633e-9, false)
+	p2, err := s.Props(dls.KelvinFromCelsius(40), 633e-9, false)
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -314,7 +366,7 @@ func TestSolventIndexTemperatureCorrection(t *testing.T) {
 		t.Errorf("index source %q does not say how the index was made", p2.IndexSource)
 	}
 	// An entry without data for dn/dT says it used the common-practice value.
-	p3, err := mustSolvent(t, "toluene").Props(KelvinFromCelsius(25), 633e-9, false)
+	p3, err := mustSolvent(t, "toluene").Props(dls.KelvinFromCelsius(25), 633e-9, false)
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -322,7 +374,7 @@ func TestSolventIndexTemperatureCorrection(t *testing.T) {
 		t.Errorf("toluene index source %q does not say common practice", p3.IndexSource)
 	}
 	// A source stating only room temperature is marked as an assumption.
-	p4, _ := mustSolvent(t, "dmso").Props(KelvinFromCelsius(25), 633e-9, false)
+	p4, _ := mustSolvent(t, "dmso").Props(dls.KelvinFromCelsius(25), 633e-9, false)
 	if !strings.Contains(p4.IndexSource, "assumed") {
 		t.Errorf("DMSO index source %q does not state the assumed temperature", p4.IndexSource)
 	}
@@ -351,10 +403,10 @@ func TestSolventPropsRanges(t *testing.T) {
 	}
 	for _, tc := range tests {
 		s := mustSolvent(t, tc.solvent)
-		tK, l := KelvinFromCelsius(tc.tC), tc.lNm*1e-9
+		tK, l := dls.KelvinFromCelsius(tc.tC), tc.lNm*1e-9
 		_, err := s.Props(tK, l, false)
-		if !errors.Is(err, ErrOutOfRange) {
-			t.Errorf("%s: err = %v, want ErrOutOfRange", tc.name, err)
+		if !errors.Is(err, dls.ErrOutOfRange) {
+			t.Errorf("%s: err = %v, want dls.ErrOutOfRange", tc.name, err)
 			continue
 		}
 		p, err2 := s.Props(tK, l, true)
@@ -376,8 +428,8 @@ func TestSolventPropsRanges(t *testing.T) {
 	}
 	// The extrapolated water value is the IAPWS value (the stable liquid
 	// exists to 99.97 °C at 0.101325 MPa).
-	p, _ := mustSolvent(t, "water").Props(KelvinFromCelsius(95), 633e-9, true)
-	if mu := waterViscosity(KelvinFromCelsius(95)); p.ViscosityPaS != mu {
+	p, _ := mustSolvent(t, "water").Props(dls.KelvinFromCelsius(95), 633e-9, true)
+	if mu := waterViscosity(dls.KelvinFromCelsius(95)); p.ViscosityPaS != mu {
 		t.Errorf("extrapolated water viscosity %g, want %g", p.ViscosityPaS, mu)
 	}
 
@@ -391,7 +443,7 @@ func TestSolventPropsRanges(t *testing.T) {
 }
 
 func TestSolventTableAddOverrides(t *testing.T) {
-	tab := NewDefaultSolventTable()
+	tab := NewDefaultTable()
 	n := len(tab.Solvents())
 	user := &Solvent{
 		Name: "my toluene", Aliases: []string{"toluene"},
@@ -412,7 +464,7 @@ func TestSolventTableAddOverrides(t *testing.T) {
 		}
 	}
 	// The old entry's CAS alias went with it; the default table is unchanged.
-	if _, err := tab.Lookup("108-88-3"); !errors.Is(err, ErrUnknownSolvent) {
+	if _, err := tab.Lookup("108-88-3"); !errors.Is(err, dls.ErrUnknownSolvent) {
 		t.Errorf("old alias still found: %v", err)
 	}
 	if s := mustSolvent(t, "toluene"); s == user {
@@ -446,7 +498,7 @@ func TestSolventTableAddOverrides(t *testing.T) {
 // Andrade through two points: ln η = A + B/T fitted to the CRC water values
 // 1.002 mPa·s at 20 °C and 0.547 at 50 °C (closed form) must return both.
 func TestAndrade(t *testing.T) {
-	t1, t2 := KelvinFromCelsius(20), KelvinFromCelsius(50)
+	t1, t2 := dls.KelvinFromCelsius(20), dls.KelvinFromCelsius(50)
 	b := (math.Log(1.002e-3) - math.Log(0.547e-3)) / (1/t1 - 1/t2)
 	a := math.Log(1.002e-3) - b/t1
 	l := Andrade{A: a, B: b, TMinK: t1, TMaxK: t2}
@@ -455,7 +507,7 @@ func TestAndrade(t *testing.T) {
 }
 
 func BenchmarkSolventProps(b *testing.B) {
-	s, err := LookupSolvent("toluene")
+	s, err := Lookup("toluene")
 	if err != nil {
 		b.Fatal(err)
 	}
@@ -481,7 +533,7 @@ func TestSolventIndexAgainstHandbook25C(t *testing.T) {
 		{"n-hexane", 1.3723}, {"chloroform", 1.4422}, {"acetonitrile", 1.3416},
 	}
 	for _, tc := range cases {
-		p, err := mustSolvent(t, tc.name).Props(KelvinFromCelsius(25), 589.3e-9, false)
+		p, err := mustSolvent(t, tc.name).Props(dls.KelvinFromCelsius(25), 589.3e-9, false)
 		if err != nil {
 			t.Errorf("%s: %v", tc.name, err)
 			continue

@@ -1,6 +1,10 @@
-package dls
-
-// Medium physics: viscosity and refractive index of the continuous phase.
+// Package medium holds the physics of the continuous phase that particles
+// diffuse through: the viscosity and refractive index of water (IAPWS), of
+// glycerol–water mixtures and of the solvents of the built-in table (data/),
+// the viscosity and index laws an entry is made of, and the table that finds
+// an entry by name (Lookup, Table). Temperatures are in kelvin, wavelengths
+// in metres (vacuum), viscosities in Pa·s; errors wrap the sentinels of
+// package dls (dls.ErrOutOfRange, dls.ErrUnknownSolvent) for errors.Is.
 //
 // Conventions. dlsbatch uses the absolute refractive index (relative to
 // vacuum) at the vacuum wavelength of the laser, at 0.101325 MPa. The
@@ -57,7 +61,7 @@ package dls
 // Kerl & Varchmin), otherwise a stated value: −5.0e-4 /K for organic
 // liquids (common practice), −4.0e-4 /K for the lower alcohols and
 // −2.6e-4 /K (ethylene glycol), −2.5e-4 /K (glycerol) for the glycols (from
-// memory). Every MediumProps.IndexSource says which.
+// memory). Every Props.IndexSource says which.
 //
 // Glycerol–water, Cheng 2008 (0–100 °C, glycerol mass fraction C_m, t in °C,
 // viscosities in mPa·s):
@@ -107,3 +111,4 @@ package dls
 //     Meas. Sci. Technol. 8, 601 (1997); coefficients as carried by
 //     M. N. Polyanskiy, Refractiveindex.info database of optical constants,
 //     Sci. Data 11, 94 (2024). Full citations are in data/refractive_index.tsv.
+package medium

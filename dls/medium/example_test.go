@@ -1,15 +1,16 @@
-package dls_test
+package medium_test
 
 import (
 	"fmt"
 
 	"dlsbatch/dls"
+	"dlsbatch/dls/medium"
 )
 
 // Water at 25 °C and a 632.8 nm laser: IAPWS 2008 viscosity and IAPWS R9-97
 // index, both at 0.101325 MPa.
-func ExampleLookupSolvent() {
-	s, err := dls.LookupSolvent("water")
+func ExampleLookup() {
+	s, err := medium.Lookup("water")
 	if err != nil {
 		fmt.Println(err)
 		return
@@ -26,7 +27,7 @@ func ExampleLookupSolvent() {
 // Outside its valid range a correlation is an error unless extrapolation is
 // asked for; then the value comes with a warning.
 func ExampleSolvent_Props_extrapolate() {
-	s, _ := dls.LookupSolvent("DMSO")
+	s, _ := medium.Lookup("DMSO")
 	_, err := s.Props(dls.KelvinFromCelsius(15), 633e-9, false)
 	fmt.Println(err != nil)
 	p, _ := s.Props(dls.KelvinFromCelsius(15), 633e-9, true)
@@ -38,7 +39,7 @@ func ExampleSolvent_Props_extrapolate() {
 
 // A glycerol–water mixture by glycerol mass fraction.
 func ExampleGlycerolWater() {
-	s, _ := dls.LookupSolvent("glycerol-water:0.5")
+	s, _ := medium.Lookup("glycerol-water:0.5")
 	p, _ := s.Props(dls.KelvinFromCelsius(20), 632.8e-9, false)
 	fmt.Printf("%s: %.2f mPa·s\n", s.Name, p.ViscosityPaS*1e3)
 	// Output: glycerol-water:0.5: 6.00 mPa·s
@@ -46,7 +47,7 @@ func ExampleGlycerolWater() {
 
 // The viscosity of water from the IAPWS functions directly.
 func ExampleWaterViscosityPaS() {
-	mu, err := dls.WaterViscosityPaS(293.15)
+	mu, err := medium.WaterViscosityPaS(293.15)
 	fmt.Printf("%.4f mPa·s %v\n", mu*1e3, err)
 	// Output: 1.0016 mPa·s <nil>
 }

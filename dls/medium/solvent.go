@@ -1,16 +1,18 @@
-package dls
+package medium
 
 import (
+	"dlsbatch/dls"
 	"fmt"
 	"math"
+	"slices"
 	"sort"
 	"strconv"
 	"strings"
 	"sync"
 )
 
-// MediumProps are the properties of the continuous phase at one state.
-type MediumProps struct {
+// Props are the properties of the continuous phase at one state.
+type Props struct {
 	ViscosityPaS    float64
 	RefractiveIndex float64 // absolute index at the vacuum wavelength asked for
 	// ViscositySource and IndexSource cite the correlation used and say
@@ -23,7 +25,9 @@ type MediumProps struct {
 
 // Solvent is one entry of a solvent table: a liquid with a viscosity law and
 // a refractive-index law, each with its valid range and source. Entries
-// returned by the tables are shared; treat them as read-only.
+// returned by a Table are shared with it; treat them as read-only. Lookup,
+// Solvents and NewDefaultTable hand out copies, so the built-in table
+// cannot be changed through them.
 type Solvent struct {
 	Name    string
 	Aliases []string // other names it is found by (case-insensitive)
@@ -41,26 +45,26 @@ type Solvent struct {
 
 // Props returns viscosity and refractive index at temperature tK (kelvin) and
 // vacuum wavelength lambdaM (metres). Outside a correlation's valid range it
-// returns an error wrapping ErrOutOfRange that names the range, unless
+// returns an error wrapping dls.ErrOutOfRange that names the range, unless
 // extrapolate is set; then it returns the extrapolated value with a warning.
 // A temperature or wavelength that is not a positive finite number is always
 // an error.
-func (s *Solvent) Props(tK, lambdaM float64, extrapolate bool) (MediumProps, error) {
-	var p MediumProps
+func (s *Solvent) Props(tK, lambdaM float64, extrapolate bool) (Props, error) {
+	var p Props
 	if s == nil || s.Viscosity == nil || s.Index == nil {
 		return p, fmt.Errorf("solvent entry without viscosity or index law")
 	}
 	if math.IsNaN(tK) || math.IsInf(tK, 0) {
-		return p, fmt.Errorf("%s: temperature %g K: %w", s.Name, tK, ErrNonFinite)
+		return p, fmt.Errorf("%s: temperature %g K: %w", s.Name, tK, dls.ErrNonFinite)
 	}
 	if math.IsNaN(lambdaM) || math.IsInf(lambdaM, 0) {
-		return p, fmt.Errorf("%s: wavelength %g m: %w", s.Name, lambdaM, ErrNonFinite)
+		return p, fmt.Errorf("%s: wavelength %g m: %w", s.Name, lambdaM, dls.ErrNonFinite)
 	}
 	if !(tK > 0) {
-		return p, fmt.Errorf("%s: temperature %g K is not above absolute zero: %w", s.Name, tK, ErrOutOfRange)
+		return p, fmt.Errorf("%s: temperature %g K is not above absolute zero: %w", s.Name, tK, dls.ErrOutOfRange)
 	}
 	if !(lambdaM > 0) {
-		return p, fmt.Errorf("%s: wavelength %g m is not positive: %w", s.Name, lambdaM, ErrOutOfRange)
+		return p, fmt.Errorf("%s: wavelength %g m is not positive: %w", s.Name, lambdaM, dls.ErrOutOfRange)
 	}
 
 	var rangeErrs []error
@@ -85,7 +89,7 @@ func (s *Solvent) Props(tK, lambdaM float64, extrapolate bool) (MediumProps, err
 		return p, fmt.Errorf("%s: %w", s.Name, rangeErrs[0])
 	}
 	for _, err := range rangeErrs {
-		p.Warnings = append(p.Warnings, s.Name+": extrapolated: "+strings.TrimSuffix(err.Error(), ": "+ErrOutOfRange.Error()))
+		p.Warnings = append(p.Warnings, s.Name+": extrapolated: "+strings.TrimSuffix(err.Error(), ": "+dls.ErrOutOfRange.Error()))
 	}
 
 	p.ViscosityPaS = s.Viscosity.ViscosityPaS(tK)
@@ -93,10 +97,10 @@ func (s *Solvent) Props(tK, lambdaM float64, extrapolate bool) (MediumProps, err
 	p.ViscositySource = vsrc
 	p.IndexSource = isrc
 	if !(p.ViscosityPaS > 0) || math.IsInf(p.ViscosityPaS, 0) {
-		return p, fmt.Errorf("%s: viscosity law gives %g Pa·s at %.2f °C: %w", s.Name, p.ViscosityPaS, tK-ZeroCelsiusK, ErrOutOfRange)
+		return p, fmt.Errorf("%s: viscosity law gives %g Pa·s at %.2f °C: %w", s.Name, p.ViscosityPaS, tK-dls.ZeroCelsiusK, dls.ErrOutOfRange)
 	}
 	if !(p.RefractiveIndex >= 1) || math.IsInf(p.RefractiveIndex, 0) {
-		return p, fmt.Errorf("%s: index law gives %g at %.1f nm: %w", s.Name, p.RefractiveIndex, lambdaM*1e9, ErrOutOfRange)
+		return p, fmt.Errorf("%s: index law gives %g at %.1f nm: %w", s.Name, p.RefractiveIndex, lambdaM*1e9, dls.ErrOutOfRange)
 	}
 	return p, nil
 }
@@ -121,22 +125,23 @@ func shortIndexSource(l IndexLaw) string {
 // ("glycerol-water:0.40") or a mass percentage with "%" ("glycerol-water:40%").
 const MixtureGlycerolWater = "glycerol-water"
 
-// SolventTable is a set of solvents found by name, alias or CAS number
+// Table is a set of solvents found by name, alias or CAS number
 // (case-insensitive; spaces and underscores are the same). The zero value
 // is an empty table. Mixtures in the "glycerol-water:W" syntax are always
-// found and need no entry. A SolventTable is not safe for concurrent Add;
+// found and need no entry. A Table is not safe for concurrent Add;
 // concurrent Lookup is safe.
-type SolventTable struct {
+type Table struct {
 	byKey map[string]*Solvent
 }
 
-// NewDefaultSolventTable returns a new table holding the built-in entries,
-// to which user entries may be added without changing the default table.
-func NewDefaultSolventTable() *SolventTable {
-	t := &SolventTable{}
+// NewDefaultTable returns a new table holding copies of the built-in
+// entries, to which user entries may be added without changing the default
+// table.
+func NewDefaultTable() *Table {
+	t := &Table{}
 	for _, s := range defaultTable().Solvents() {
-		if err := t.Add(s); err != nil {
-			panic("dls: built-in solvent table: " + err.Error())
+		if err := t.Add(s.clone()); err != nil {
+			panic("medium: built-in solvent table: " + err.Error())
 		}
 	}
 	return t
@@ -152,7 +157,7 @@ func solventKey(name string) string {
 // or one of its aliases with s (so a user file can override a built-in
 // entry). It fails on an entry without a name or laws, or whose name uses
 // the mixture syntax.
-func (t *SolventTable) Add(s *Solvent) error {
+func (t *Table) Add(s *Solvent) error {
 	if s == nil {
 		return fmt.Errorf("nil solvent")
 	}
@@ -191,6 +196,18 @@ func (t *SolventTable) Add(s *Solvent) error {
 	return nil
 }
 
+// clone returns a copy of s that shares no slice with it (the aliases and
+// the coefficients of a dispersion formula); the laws are values.
+func (s *Solvent) clone() *Solvent {
+	c := *s
+	c.Aliases = slices.Clone(s.Aliases)
+	if d, ok := s.Index.(Dispersion); ok {
+		d.Coef = slices.Clone(d.Coef)
+		c.Index = d
+	}
+	return &c
+}
+
 func (s *Solvent) keys() []string {
 	keys := []string{solventKey(s.Name)}
 	for _, a := range s.Aliases {
@@ -206,13 +223,13 @@ func (s *Solvent) keys() []string {
 
 // Lookup finds a solvent by name, alias or CAS number, or builds the
 // mixture named "glycerol-water:W". An unknown name gives an error wrapping
-// ErrUnknownSolvent that lists the known names.
-func (t *SolventTable) Lookup(name string) (*Solvent, error) {
+// dls.ErrUnknownSolvent that lists the known names.
+func (t *Table) Lookup(name string) (*Solvent, error) {
 	key := solventKey(name)
 	if stem, arg, ok := strings.Cut(key, ":"); ok {
 		if strings.TrimSpace(stem) != MixtureGlycerolWater {
 			return nil, fmt.Errorf("solvent %q: %w: the only mixture is %s:W (W = glycerol mass fraction)",
-				name, ErrUnknownSolvent, MixtureGlycerolWater)
+				name, dls.ErrUnknownSolvent, MixtureGlycerolWater)
 		}
 		w, err := parseMassFraction(arg)
 		if err != nil {
@@ -228,7 +245,7 @@ func (t *SolventTable) Lookup(name string) (*Solvent, error) {
 		names = append(names, s.Name)
 	}
 	names = append(names, MixtureGlycerolWater+":W")
-	return nil, fmt.Errorf("solvent %q: %w (known: %s)", name, ErrUnknownSolvent, strings.Join(names, ", "))
+	return nil, fmt.Errorf("solvent %q: %w (known: %s)", name, dls.ErrUnknownSolvent, strings.Join(names, ", "))
 }
 
 // parseMassFraction reads W of "glycerol-water:W": a fraction or a
@@ -239,7 +256,7 @@ func parseMassFraction(s string) (float64, error) {
 	num := strings.TrimSpace(strings.TrimSuffix(s, "%"))
 	w, err := strconv.ParseFloat(num, 64)
 	if err != nil {
-		return 0, fmt.Errorf("glycerol mass fraction %q: %w", s, ErrNotANumber)
+		return 0, fmt.Errorf("glycerol mass fraction %q: %w", s, dls.ErrNotANumber)
 	}
 	if pct {
 		w /= 100
@@ -249,7 +266,7 @@ func parseMassFraction(s string) (float64, error) {
 
 // Solvents returns the entries of the table, each once, sorted by name
 // (case-insensitive).
-func (t *SolventTable) Solvents() []*Solvent {
+func (t *Table) Solvents() []*Solvent {
 	seen := make(map[*Solvent]bool, len(t.byKey))
 	out := make([]*Solvent, 0, len(t.byKey))
 	for _, s := range t.byKey {
@@ -269,25 +286,39 @@ func (t *SolventTable) Solvents() []*Solvent {
 }
 
 // defaultTable is the built-in table, built once from the embedded data.
-var defaultTable = sync.OnceValue(func() *SolventTable {
+var defaultTable = sync.OnceValue(func() *Table {
 	list, err := builtinSolvents()
 	if err != nil {
-		panic("dls: embedded solvent data: " + err.Error())
+		panic("medium: embedded solvent data: " + err.Error())
 	}
-	t := &SolventTable{}
+	t := &Table{}
 	for _, s := range list {
 		if err := t.Add(s); err != nil {
-			panic("dls: embedded solvent data: " + err.Error())
+			panic("medium: embedded solvent data: " + err.Error())
 		}
 	}
 	return t
 })
 
-// LookupSolvent finds a solvent of the built-in table by name, alias or CAS
+// Lookup finds a solvent of the built-in table by name, alias or CAS
 // number (case-insensitive), or builds the mixture "glycerol-water:W" (W =
 // glycerol mass fraction, "0.40" or "40%"). An unknown name gives an error
-// wrapping ErrUnknownSolvent that lists the known names.
-func LookupSolvent(name string) (*Solvent, error) { return defaultTable().Lookup(name) }
+// wrapping dls.ErrUnknownSolvent that lists the known names. The entry is
+// a copy: changing it does not change the table.
+func Lookup(name string) (*Solvent, error) {
+	s, err := defaultTable().Lookup(name)
+	if err != nil {
+		return nil, err
+	}
+	return s.clone(), nil
+}
 
-// Solvents returns the built-in table sorted by name, for listing.
-func Solvents() []*Solvent { return defaultTable().Solvents() }
+// Solvents returns copies of the built-in entries sorted by name, for
+// listing.
+func Solvents() []*Solvent {
+	list := defaultTable().Solvents()
+	for i, s := range list {
+		list[i] = s.clone()
+	}
+	return list
+}

@@ -1,13 +1,14 @@
-package dls
+package medium
 
 import (
+	"dlsbatch/dls"
 	"fmt"
 	"math"
 )
 
 // Water: density (Pátek et al. 2009), viscosity (IAPWS 2008) and refractive
 // index (IAPWS R9-97). The formulas and references are collected in
-// doc_medium.go.
+// doc.go.
 
 // StandardAtmospherePa is the pressure at which dlsbatch evaluates liquid
 // properties, 101 325 Pa (one standard atmosphere, exact by definition).
@@ -34,7 +35,7 @@ const (
 	WaterIndexLambdaMaxM = 1.1e-6
 )
 
-// Source strings written into MediumProps and listings.
+// Source strings written into Props and listings.
 const (
 	srcWaterViscosity = "IAPWS 2008 viscosity with Pátek 2009 density at 0.1 MPa"
 	srcWaterIndex     = "IAPWS R9-97 refractive index with Pátek 2009 density at 0.1 MPa"
@@ -150,7 +151,7 @@ func waterViscosity(tK float64) float64 {
 
 // WaterViscosityPaS returns the viscosity of liquid water in Pa·s at tK
 // kelvin and 0.101325 MPa: IAPWS 2008 with the density of Pátek et al. 2009.
-// Outside 0–90 °C it returns the value and an error wrapping ErrOutOfRange.
+// Outside 0–90 °C it returns the value and an error wrapping dls.ErrOutOfRange.
 func WaterViscosityPaS(tK float64) (float64, error) {
 	mu := waterViscosity(tK)
 	if err := checkTemperature(tK, WaterViscosityTMinK, WaterViscosityTMaxK, srcWaterViscosity); err != nil {
@@ -193,7 +194,7 @@ func waterIndex(tK, lambdaM float64) float64 {
 // WaterRefractiveIndex returns the absolute refractive index of liquid water
 // at tK kelvin and 0.101325 MPa for vacuum wavelength lambdaM metres (IAPWS
 // R9-97 with the density of Pátek et al. 2009). Outside −12 … 110 °C or
-// 0.2 … 1.1 µm it returns the value and an error wrapping ErrOutOfRange.
+// 0.2 … 1.1 µm it returns the value and an error wrapping dls.ErrOutOfRange.
 func WaterRefractiveIndex(tK, lambdaM float64) (float64, error) {
 	n := waterIndex(tK, lambdaM)
 	if err := checkTemperature(tK, WaterIndexTMinK, WaterIndexTMaxK, srcWaterIndex); err != nil {
@@ -205,7 +206,7 @@ func WaterRefractiveIndex(tK, lambdaM float64) (float64, error) {
 	return n, nil
 }
 
-// checkTemperature returns an error wrapping ErrOutOfRange naming the range
+// checkTemperature returns an error wrapping dls.ErrOutOfRange naming the range
 // [minK, maxK] of the correlation src when tK lies outside it.
 func checkTemperature(tK, minK, maxK float64, src string) error {
 	// 1e-9 K of slack: a bound given in °C and a temperature converted from
@@ -214,7 +215,7 @@ func checkTemperature(tK, minK, maxK float64, src string) error {
 		return nil
 	}
 	return fmt.Errorf("temperature %.1f °C is outside %.1f–%.1f °C of the %s: %w",
-		tK-ZeroCelsiusK, minK-ZeroCelsiusK, maxK-ZeroCelsiusK, src, ErrOutOfRange)
+		tK-dls.ZeroCelsiusK, minK-dls.ZeroCelsiusK, maxK-dls.ZeroCelsiusK, src, dls.ErrOutOfRange)
 }
 
 // checkWavelength is checkTemperature for a vacuum wavelength in metres.
@@ -224,5 +225,5 @@ func checkWavelength(lambdaM, minM, maxM float64, src string) error {
 		return nil
 	}
 	return fmt.Errorf("wavelength %.1f nm is outside %.0f–%.0f nm of the %s: %w",
-		lambdaM*1e9, minM*1e9, maxM*1e9, src, ErrOutOfRange)
+		lambdaM*1e9, minM*1e9, maxM*1e9, src, dls.ErrOutOfRange)
 }

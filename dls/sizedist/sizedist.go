@@ -1,16 +1,17 @@
-package dls
+package sizedist
 
 import (
 	"errors"
 	"fmt"
 	"math"
 
+	"dlsbatch/dls"
 	"dlsbatch/dls/mie"
 )
 
-// DistributionInput is a decay-rate spectrum and the physics needed to turn
-// it into size distributions.
-type DistributionInput struct {
+// Input is a decay-rate spectrum and the physics needed to turn it into
+// size distributions.
+type Input struct {
 	// GammaPerS is the log-spaced decay-rate grid, increasing; Amplitude the
 	// intensity amplitude of each log bin (non-negative).
 	GammaPerS []float64
@@ -18,7 +19,7 @@ type DistributionInput struct {
 
 	TempK        float64
 	ViscosityPaS float64
-	Optics       Optics
+	Optics       dls.Optics
 	// ParticleIndex is the particle's complex refractive index (Bohren &
 	// Huffman convention, imaginary part ≥ 0).
 	ParticleIndex complex128
@@ -51,10 +52,10 @@ type Distribution struct {
 // practice: about 1e-3).
 const MieMaskFraction = 1e-3
 
-// ErrNoDistribution reports a spectrum with no positive amplitude.
-var ErrNoDistribution = errors.New("empty size distribution")
+// ErrEmpty reports a spectrum with no positive amplitude.
+var ErrEmpty = errors.New("empty size distribution")
 
-// NewDistribution maps each rate Γ_j to the Stokes–Einstein diameter
+// New maps each rate Γ_j to the Stokes–Einstein diameter
 // d_j = k_B·T·q²/(3π·η·Γ_j), and converts the intensity amplitudes x_j to
 // number and volume weights with the Mie intensity C(d_j) of one particle:
 //
@@ -64,7 +65,7 @@ var ErrNoDistribution = errors.New("empty size distribution")
 // derived quantities, of lower confidence than the intensity weights they
 // come from: regularisation broadening and ripple carry through and are
 // amplified at small sizes.
-func NewDistribution(in DistributionInput) (*Distribution, error) {
+func New(in Input) (*Distribution, error) {
 	n := len(in.GammaPerS)
 	if n == 0 || len(in.Amplitude) != n {
 		return nil, fmt.Errorf("size distribution: %d rates and %d amplitudes", n, len(in.Amplitude))
@@ -96,13 +97,13 @@ func NewDistribution(in DistributionInput) (*Distribution, error) {
 		if a < 0 || math.IsNaN(a) || math.IsInf(a, 0) {
 			return nil, fmt.Errorf("size distribution: amplitude %g at Γ = %g 1/s", a, g)
 		}
-		diam[j] = DiameterFromDiffusion(in.TempK, in.ViscosityPaS, DiffusionFromRate(g, q))
+		diam[j] = dls.DiameterFromDiffusion(in.TempK, in.ViscosityPaS, dls.DiffusionFromRate(g, q))
 		d.DiameterNm[j] = diam[j] * 1e9
 		d.Intensity[j] = a
 		total += a
 	}
 	if !(total > 0) {
-		return nil, ErrNoDistribution
+		return nil, ErrEmpty
 	}
 	c, err := mie.IntensityGrid(diam, in.Optics.WavelengthM, in.Optics.RefractiveIndex, in.ParticleIndex, in.Optics.AngleRad, in.Polarization)
 	if err != nil {

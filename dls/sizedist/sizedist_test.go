@@ -1,4 +1,4 @@
-package dls
+package sizedist
 
 import (
 	"errors"
@@ -6,12 +6,14 @@ import (
 	"testing"
 
 	"gonum.org/v1/gonum/floats/scalar"
+
+	"dlsbatch/dls"
 )
 
 // workedOptics is the Stokes–Einstein worked example: water at 25 °C
 // (η = 0.890022 mPa·s, n = 1.33162), 632.8 nm, 173°; a 100 nm sphere has
 // Γ = 3418.78 1/s (computed check values, 6 digits).
-var workedOptics = Optics{WavelengthM: 632.8e-9, AngleRad: 173 * math.Pi / 180, RefractiveIndex: 1.33162}
+var workedOptics = dls.Optics{WavelengthM: 632.8e-9, AngleRad: 173 * math.Pi / 180, RefractiveIndex: 1.33162}
 
 func logGrid(lo, hi float64, n int) []float64 {
 	g := make([]float64, n)
@@ -23,7 +25,7 @@ func logGrid(lo, hi float64, n int) []float64 {
 
 func TestDistributionMapsRatesToSizes(t *testing.T) {
 	gam := []float64{1000, 3418.78, 10000}
-	d, err := NewDistribution(DistributionInput{GammaPerS: gam, Amplitude: []float64{0, 1, 0}, TempK: 298.15,
+	d, err := New(Input{GammaPerS: gam, Amplitude: []float64{0, 1, 0}, TempK: 298.15,
 		ViscosityPaS: 0.890022e-3, Optics: workedOptics, ParticleIndex: complex(1.5875, 0)})
 	if err != nil {
 		t.Fatal(err)
@@ -52,7 +54,7 @@ func TestDistributionRayleighWeighting(t *testing.T) {
 	for i := range amp {
 		amp[i] = 1
 	}
-	d, err := NewDistribution(DistributionInput{GammaPerS: gam, Amplitude: amp, TempK: 298.15, ViscosityPaS: 0.890022e-3,
+	d, err := New(Input{GammaPerS: gam, Amplitude: amp, TempK: 298.15, ViscosityPaS: 0.890022e-3,
 		Optics: workedOptics, ParticleIndex: complex(1.5875, 0)})
 	if err != nil {
 		t.Fatal(err)
@@ -107,29 +109,29 @@ func TestDistributionPercentiles(t *testing.T) {
 }
 
 func TestDistributionBadInput(t *testing.T) {
-	base := DistributionInput{GammaPerS: []float64{1, 2}, Amplitude: []float64{1, 1}, TempK: 298, ViscosityPaS: 1e-3,
+	base := Input{GammaPerS: []float64{1, 2}, Amplitude: []float64{1, 1}, TempK: 298, ViscosityPaS: 1e-3,
 		Optics: workedOptics, ParticleIndex: complex(1.59, 0)}
 	cases := []struct {
 		name string
-		edit func(*DistributionInput)
+		edit func(*Input)
 	}{
-		{"length mismatch", func(in *DistributionInput) { in.Amplitude = []float64{1} }},
-		{"negative amplitude", func(in *DistributionInput) { in.Amplitude = []float64{1, -1} }},
-		{"NaN amplitude", func(in *DistributionInput) { in.Amplitude = []float64{1, math.NaN()} }},
-		{"decreasing rates", func(in *DistributionInput) { in.GammaPerS = []float64{2, 1} }},
-		{"bad optics", func(in *DistributionInput) { in.Optics.AngleRad = 0 }},
-		{"no temperature", func(in *DistributionInput) { in.TempK = 0 }},
+		{"length mismatch", func(in *Input) { in.Amplitude = []float64{1} }},
+		{"negative amplitude", func(in *Input) { in.Amplitude = []float64{1, -1} }},
+		{"NaN amplitude", func(in *Input) { in.Amplitude = []float64{1, math.NaN()} }},
+		{"decreasing rates", func(in *Input) { in.GammaPerS = []float64{2, 1} }},
+		{"bad optics", func(in *Input) { in.Optics.AngleRad = 0 }},
+		{"no temperature", func(in *Input) { in.TempK = 0 }},
 	}
 	for _, c := range cases {
 		in := base
 		c.edit(&in)
-		if _, err := NewDistribution(in); err == nil {
+		if _, err := New(in); err == nil {
 			t.Errorf("%s: accepted", c.name)
 		}
 	}
 	in := base
 	in.Amplitude = []float64{0, 0}
-	if _, err := NewDistribution(in); !errors.Is(err, ErrNoDistribution) {
+	if _, err := New(in); !errors.Is(err, ErrEmpty) {
 		t.Errorf("all-zero amplitudes: %v", err)
 	}
 }

@@ -1,6 +1,7 @@
-package dls
+package medium
 
 import (
+	"dlsbatch/dls"
 	"errors"
 	"math"
 	"strings"
@@ -74,7 +75,7 @@ func TestWaterAtOneAtmosphere(t *testing.T) {
 		{90, 965.3096, 314.18},
 	}
 	for _, tc := range tests {
-		tK := KelvinFromCelsius(tc.tC)
+		tK := dls.KelvinFromCelsius(tc.tC)
 		mediumClose(t, "ρ kg/m³", WaterDensityKgM3(tK), tc.rho, 0.5e-4+1e-9)
 		mu, err := WaterViscosityPaS(tK)
 		if err != nil {
@@ -92,7 +93,7 @@ func TestWaterViscosityAgainstSimpleCorrelation(t *testing.T) {
 	a := []float64{280.68, 511.45, 61.131, 0.45903}
 	b := []float64{-1.9, -7.7, -19.6, -40.0}
 	for tC := 0.0; tC <= 90; tC++ {
-		tK := KelvinFromCelsius(tC)
+		tK := dls.KelvinFromCelsius(tC)
 		want := 0.0
 		for i := range a {
 			want += a[i] * math.Pow(tK/300, b[i])
@@ -121,7 +122,7 @@ func TestWaterViscosityHandbook(t *testing.T) {
 		{"CRC 25 °C", 25, 0.890, 0.0005},
 	}
 	for _, tc := range tests {
-		mu, err := WaterViscosityPaS(KelvinFromCelsius(tc.tC))
+		mu, err := WaterViscosityPaS(dls.KelvinFromCelsius(tc.tC))
 		if err != nil {
 			t.Fatal(err)
 		}
@@ -147,7 +148,7 @@ func TestWaterDensity(t *testing.T) {
 	for tC := 0.0; tC <= 40; tC += 2.5 {
 		const a1, a2, a3, a4, a5 = -3.983035, 301.797, 522528.9, 69.34881, 999.974950
 		want := a5 * (1 - (tC+a1)*(tC+a1)*(tC+a2)/(a3*(tC+a4)))
-		mediumRel(t, "ρ vs Tanaka 2001", WaterDensityKgM3(KelvinFromCelsius(tC)), want, 1.5e-6)
+		mediumRel(t, "ρ vs Tanaka 2001", WaterDensityKgM3(dls.KelvinFromCelsius(tC)), want, 1.5e-6)
 	}
 	// Kell, J. Chem. Eng. Data 20, 97 (1975), eq. 16 (1 atm, IPTS-68):
 	// agrees within about 0.01 kg/m³ over 0–90 °C; 0.02 kg/m³ allows for
@@ -156,7 +157,7 @@ func TestWaterDensity(t *testing.T) {
 		num := 999.83952 + 16.945176*tC - 7.9870401e-3*tC*tC - 46.170461e-6*math.Pow(tC, 3) +
 			105.56302e-9*math.Pow(tC, 4) - 280.54253e-12*math.Pow(tC, 5)
 		want := num / (1 + 16.879850e-3*tC)
-		mediumClose(t, "ρ vs Kell 1975", WaterDensityKgM3(KelvinFromCelsius(tC)), want, 0.02)
+		mediumClose(t, "ρ vs Kell 1975", WaterDensityKgM3(dls.KelvinFromCelsius(tC)), want, 0.02)
 	}
 }
 
@@ -207,7 +208,7 @@ func TestWaterRefractiveIndexLaserLines(t *testing.T) {
 	}
 	for _, row := range table {
 		for i, lNm := range lines {
-			got, err := WaterRefractiveIndex(KelvinFromCelsius(row.tC), lNm*1e-9)
+			got, err := WaterRefractiveIndex(dls.KelvinFromCelsius(row.tC), lNm*1e-9)
 			if err != nil {
 				t.Fatal(err)
 			}
@@ -239,7 +240,7 @@ func TestWaterRefractiveIndexDaimonMasumura(t *testing.T) {
 			for k := 0; k < 4; k++ {
 				n2 += s.bc[2*k] * l2 / (l2 - s.bc[2*k+1])
 			}
-			got, err := WaterRefractiveIndex(KelvinFromCelsius(s.tC), lUm*1e-6)
+			got, err := WaterRefractiveIndex(dls.KelvinFromCelsius(s.tC), lUm*1e-6)
 			if err != nil {
 				t.Fatal(err)
 			}
@@ -248,9 +249,9 @@ func TestWaterRefractiveIndexDaimonMasumura(t *testing.T) {
 	}
 	// Published agreement at 21.5 °C: both give 1.34295 at 405 nm and
 	// 1.33321 at 589.3 nm (printed to 5 decimals).
-	n405, _ := WaterRefractiveIndex(KelvinFromCelsius(21.5), 405e-9)
+	n405, _ := WaterRefractiveIndex(dls.KelvinFromCelsius(21.5), 405e-9)
 	mediumClose(t, "n(405 nm, 21.5 °C)", n405, 1.34295, 1e-5)
-	n589, _ := WaterRefractiveIndex(KelvinFromCelsius(21.5), 589.3e-9)
+	n589, _ := WaterRefractiveIndex(dls.KelvinFromCelsius(21.5), 589.3e-9)
 	mediumClose(t, "n(589.3 nm, 21.5 °C)", n589, 1.33321, 1e-5)
 }
 
@@ -258,7 +259,7 @@ func TestWaterRefractiveIndexDaimonMasumura(t *testing.T) {
 // solutions" gives 1.3330 at 20 °C; times n_air ≈ 1.00027 (from memory) it is
 // the absolute index. 1e-4: four printed decimals and the n_air estimate.
 func TestWaterRefractiveIndexHandbook(t *testing.T) {
-	got, err := WaterRefractiveIndex(KelvinFromCelsius(20), 589.3e-9)
+	got, err := WaterRefractiveIndex(dls.KelvinFromCelsius(20), 589.3e-9)
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -266,9 +267,9 @@ func TestWaterRefractiveIndexHandbook(t *testing.T) {
 }
 
 func TestWaterRanges(t *testing.T) {
-	mu, err := WaterViscosityPaS(KelvinFromCelsius(95))
-	if !errors.Is(err, ErrOutOfRange) {
-		t.Fatalf("95 °C: err = %v, want ErrOutOfRange", err)
+	mu, err := WaterViscosityPaS(dls.KelvinFromCelsius(95))
+	if !errors.Is(err, dls.ErrOutOfRange) {
+		t.Fatalf("95 °C: err = %v, want dls.ErrOutOfRange", err)
 	}
 	if want := "0.0–90.0 °C"; !strings.Contains(err.Error(), want) {
 		t.Errorf("error %q does not name the range %q", err, want)
@@ -280,18 +281,18 @@ func TestWaterRanges(t *testing.T) {
 		61.131*math.Pow(368.15/300, -19.6) + 0.45903*math.Pow(368.15/300, -40)
 	mediumRel(t, "μ(95 °C)", mu*1e6, simple, 3e-4)
 
-	if _, err := WaterViscosityPaS(KelvinFromCelsius(-1)); !errors.Is(err, ErrOutOfRange) {
-		t.Errorf("-1 °C: err = %v, want ErrOutOfRange", err)
+	if _, err := WaterViscosityPaS(dls.KelvinFromCelsius(-1)); !errors.Is(err, dls.ErrOutOfRange) {
+		t.Errorf("-1 °C: err = %v, want dls.ErrOutOfRange", err)
 	}
-	if _, err := WaterViscosityPaS(math.NaN()); !errors.Is(err, ErrOutOfRange) {
-		t.Errorf("NaN: err = %v, want ErrOutOfRange", err)
+	if _, err := WaterViscosityPaS(math.NaN()); !errors.Is(err, dls.ErrOutOfRange) {
+		t.Errorf("NaN: err = %v, want dls.ErrOutOfRange", err)
 	}
-	_, err = WaterRefractiveIndex(KelvinFromCelsius(25), 1200e-9)
-	if !errors.Is(err, ErrOutOfRange) || !strings.Contains(err.Error(), "200–1100 nm") {
-		t.Errorf("1200 nm: err = %v, want ErrOutOfRange naming 200–1100 nm", err)
+	_, err = WaterRefractiveIndex(dls.KelvinFromCelsius(25), 1200e-9)
+	if !errors.Is(err, dls.ErrOutOfRange) || !strings.Contains(err.Error(), "200–1100 nm") {
+		t.Errorf("1200 nm: err = %v, want dls.ErrOutOfRange naming 200–1100 nm", err)
 	}
-	if _, err := WaterRefractiveIndex(KelvinFromCelsius(120), 633e-9); !errors.Is(err, ErrOutOfRange) {
-		t.Errorf("120 °C: err = %v, want ErrOutOfRange", err)
+	if _, err := WaterRefractiveIndex(dls.KelvinFromCelsius(120), 633e-9); !errors.Is(err, dls.ErrOutOfRange) {
+		t.Errorf("120 °C: err = %v, want dls.ErrOutOfRange", err)
 	}
 }
 
