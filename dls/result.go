@@ -267,4 +267,3 @@ func CountResults(results []*Result) Counts {
 	}
 	return c
 }
-

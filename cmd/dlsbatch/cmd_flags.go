@@ -3,11 +3,11 @@ package main
 import (
 	"context"
 	"fmt"
-	"text/tabwriter"
 
 	"github.com/spf13/pflag"
 
 	"dlsbatch/dls/qc"
+	"dlsbatch/io/report"
 )
 
 const flagsUsage = `Usage: dlsbatch flags
@@ -27,12 +27,7 @@ func runFlags(ctx context.Context, e env, args []string) int {
 		fmt.Fprintf(e.stderr, "dlsbatch flags: takes no arguments\n")
 		return exitUsage
 	}
-	tw := tabwriter.NewWriter(e.stdout, 0, 0, 2, ' ', 0)
-	fmt.Fprintln(tw, "code\tlevel\tmeaning\tthreshold")
-	for _, d := range qc.Definitions(qc.DefaultThresholds()) {
-		fmt.Fprintf(tw, "%s\t%s\t%s\t%s\n", d.Code, d.Level, d.Meaning, d.Threshold)
-	}
-	if err := tw.Flush(); err != nil {
+	if err := report.WriteFlagTable(e.stdout, qc.Definitions(qc.DefaultThresholds())); err != nil {
 		return exitFatal
 	}
 	return exitOK

@@ -2,6 +2,7 @@ package main
 
 import (
 	"context"
+	"errors"
 	"fmt"
 	"math"
 	"os"
@@ -276,56 +277,33 @@ func exitCode(c dls.Counts, b spec.Batch) int {
 // settings turns the flags into analysis and reading settings.
 func (o *runOptions) settings() (batch.Settings, *csvdata.Options, error) {
 	s := batch.DefaultSettings()
-	m, err := cumulants.ParseMethod(o.method.value)
-	if err != nil {
+	m, err1 := cumulants.ParseMethod(o.method.value)
+	crit, err2 := contin.ParseCriterion(o.criterion.value)
+	ri, err3 := mie.ParseComplexIndex(o.particleRI)
+	if err3 != nil {
+		err3 = fmt.Errorf("--default-particle-ri: %w", err3)
+	}
+	if err := errors.Join(err1, err2, err3); err != nil {
 		return s, nil, err
 	}
-	s.Cumulants.Method = m
-	s.Cumulants.Order = o.order
-	s.Cumulants.Cutoff = o.cutoff
-	s.Cumulants.MinTauS = o.minLagS
-	if err := s.Cumulants.Validate(); err != nil {
-		return s, nil, err
-	}
-	s.Overrides = o.set.params
-	s.Defaults = append(o.defaults.params, s.Defaults...)
-	s.Extrapolate = o.extrapolate
-	s.KeepCurves = !o.noCurves
-	if o.uTempK < 0 || o.uViscRel < 0 || o.uIndex < 0 || o.uAngleDeg < 0 {
-		return s, nil, fmt.Errorf("uncertainties must not be negative")
-	}
-	s.Uncertainty.TemperatureK = o.uTempK
-	s.Uncertainty.ViscosityRel = o.uViscRel
+	c := &s.Cumulants
+	c.Method, c.Order, c.Cutoff, c.MinTauS = m, o.order, o.cutoff, o.minLagS
+	s.Overrides, s.Defaults = o.set.params, append(o.defaults.params, s.Defaults...)
+	s.Extrapolate, s.KeepCurves = o.extrapolate, !o.noCurves
+	u := &s.Uncertainty
+	u.TemperatureK, u.ViscosityRel, u.RefractiveIndex, u.AngleRad = o.uTempK, o.uViscRel, o.uIndex, o.uAngleDeg*math.Pi/180
 	if o.uViscRel > 0 {
-		s.Uncertainty.ViscosityBasis = "stated with --u-viscosity-rel"
+		u.ViscosityBasis = "stated with --u-viscosity-rel"
 	}
-	s.Uncertainty.RefractiveIndex = o.uIndex
-	s.Uncertainty.AngleRad = o.uAngleDeg * math.Pi / 180
-	s.Distribution.Enabled = !o.noDist
-	crit, err := contin.ParseCriterion(o.criterion.value)
-	if err != nil {
+	d := &s.Distribution
+	d.Enabled, d.Contin.Criterion, d.Contin.TargetProbReject = !o.noDist, crit, o.target
+	if crit == contin.Fixed {
+		d.Contin.Lambda = o.lambda
+	}
+	d.Grid.NGamma, d.DefaultParticleRI = o.gridPoints, ri
+	if err := s.Validate(); err != nil {
 		return s, nil, err
 	}
-	s.Distribution.Contin.Criterion = crit
-	if crit == contin.Fixed {
-		if !(o.lambda > 0) {
-			return s, nil, fmt.Errorf("--alpha-criterion fixed needs a positive --alpha-lambda")
-		}
-		s.Distribution.Contin.Lambda = o.lambda
-	}
-	if !(o.target > 0 && o.target < 1) {
-		return s, nil, fmt.Errorf("--prob-reject-target %g: want a value between 0 and 1", o.target)
-	}
-	s.Distribution.Contin.TargetProbReject = o.target
-	if o.gridPoints < 20 || o.gridPoints > 400 {
-		return s, nil, fmt.Errorf("--grid-points %d: want 20 to 400", o.gridPoints)
-	}
-	s.Distribution.Grid.NGamma = o.gridPoints
-	ri, err := mie.ParseComplexIndex(o.particleRI)
-	if err != nil {
-		return s, nil, fmt.Errorf("--default-particle-ri: %w", err)
-	}
-	s.Distribution.DefaultParticleRI = ri
 	if o.solventFile != "" {
 		s.Solvents = medium.NewDefaultTable()
 		if err := solventfile.Load(o.solventFile, s.Solvents); err != nil {
@@ -345,23 +323,16 @@ func (o *runOptions) settings() (batch.Settings, *csvdata.Options, error) {
 
 // record is the settings record of results.json and the manifest.
 func (o *runOptions) record(s batch.Settings) *report.Settings {
-	kv := func(ps []dls.Param) []string {
-		out := make([]string, len(ps))
-		for i, p := range ps {
-			out[i] = p.Key + "=" + p.Value
-		}
-		return out
-	}
 	return &report.Settings{
 		AlphaCriterion: s.Distribution.Contin.Criterion.String(), AlphaLambda: s.Distribution.Contin.Lambda,
 		BoltzmannJPerK: dls.BoltzmannJPerK, CorrColumns: o.corrCols, CorrKind: o.corrKind.value,
 		CoverageFactor: s.CoverageFactor, CumulantMethod: s.Cumulants.Method.String(), CumulantOrder: s.Cumulants.Order,
-		Default: kv(s.Defaults), DefaultParticleRI: mie.FormatComplexIndex(s.Distribution.DefaultParticleRI),
+		Default: dls.Assignments(s.Defaults), DefaultParticleRI: mie.FormatComplexIndex(s.Distribution.DefaultParticleRI),
 		Distribution: s.Distribution.Enabled, ExcludeOutliers: o.exclude, Extrapolate: s.Extrapolate,
 		G1Cutoff: s.Cumulants.Cutoff, GridPoints: s.Distribution.Grid.NGamma, LagColumn: o.tauCol, LagUnit: o.tauUnit,
 		MinLagS: s.Cumulants.MinTauS, MinPoints: s.Cumulants.MinPoints,
 		ProbRejectTarget: s.Distribution.Contin.TargetProbReject, QCThresholds: s.QC, RangeCheck: s.Cumulants.RangeCheck,
-		Set: kv(s.Overrides), Sheet: o.sheetFile, SigmaColumn: o.sigmaCol, SolventFile: o.solventFile, Spec: o.specFile,
+		Set: dls.Assignments(s.Overrides), Sheet: o.sheetFile, SigmaColumn: o.sigmaCol, SolventFile: o.solventFile, Spec: o.specFile,
 		UAngleDeg: o.uAngleDeg, URefractiveIndex: s.Uncertainty.RefractiveIndex, UTemperatureK: s.Uncertainty.TemperatureK,
 		UViscosityRel: o.uViscRel,
 	}

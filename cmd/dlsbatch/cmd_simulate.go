@@ -3,7 +3,6 @@ package main
 import (
 	"bytes"
 	"context"
-	"errors"
 	"fmt"
 	"math"
 	"os"
@@ -203,7 +202,7 @@ func (o *simOptions) runPlan(ctx context.Context, e env, grid *sim.Grid, fail fu
 	if err != nil {
 		return fail(exitUsage, err)
 	}
-	if err := checkOutDir(o.out, o.plan, o.force); err != nil {
+	if err := simplan.CheckOutDir(o.out, o.plan, o.force); err != nil {
 		return fail(exitUsage, err)
 	}
 	files := make([][]byte, len(entries))
@@ -243,30 +242,4 @@ func (o *simOptions) runPlan(ctx context.Context, e env, grid *sim.Grid, fail fu
 	}
 	fmt.Fprintf(e.stderr, "dlsbatch simulate: wrote %d files and truth.json to %s\n", len(entries), o.out)
 	return exitOK
-}
-
-// checkOutDir refuses an output folder that exists and holds anything,
-// unless force, and one that holds the plan itself.
-func checkOutDir(dir, plan string, force bool) error {
-	absDir, err := filepath.Abs(dir)
-	if err != nil {
-		return err
-	}
-	absPlan, err := filepath.Abs(plan)
-	if err != nil {
-		return err
-	}
-	if filepath.Dir(absPlan) == absDir {
-		return fmt.Errorf("--out %s holds the plan %s; choose another folder", dir, plan)
-	}
-	entries, err := os.ReadDir(dir)
-	switch {
-	case errors.Is(err, os.ErrNotExist):
-		return nil
-	case err != nil:
-		return fmt.Errorf("--out %s: %w", dir, err)
-	case len(entries) > 0 && !force:
-		return fmt.Errorf("--out %s exists and is not empty; use --force to write into it", dir)
-	}
-	return nil
 }

@@ -57,13 +57,16 @@ func runSolvents(ctx context.Context, e env, args []string) int {
 	if code, done := parseFlags(fs, e, "solvents", solventsUsage, args); done {
 		return code
 	}
+	fail := func(code int, msg any) int {
+		fmt.Fprintln(e.stderr, "dlsbatch solvents:", msg)
+		return code
+	}
 	atState := fs.Changed("temperature-c") || fs.Changed("wavelength-nm")
 
 	table := medium.NewDefaultTable()
 	if o.file != "" {
 		if err := solventfile.Load(o.file, table); err != nil {
-			fmt.Fprintf(e.stderr, "dlsbatch solvents: %v\n", err)
-			return exitUsage
+			return fail(exitUsage, err)
 		}
 	}
 	list := table.Solvents()
@@ -72,8 +75,7 @@ func runSolvents(ctx context.Context, e env, args []string) int {
 		for _, name := range names {
 			s, err := table.Lookup(name)
 			if err != nil {
-				fmt.Fprintf(e.stderr, "dlsbatch solvents: %v\n", err)
-				return exitUsage
+				return fail(exitUsage, err)
 			}
 			list = append(list, s)
 		}
@@ -84,16 +86,14 @@ func runSolvents(ctx context.Context, e env, args []string) int {
 		tK := dls.KelvinFromCelsius(o.temperatureC)
 		lambdaM := o.wavelengthNm * 1e-9
 		if math.IsNaN(tK) || math.IsInf(tK, 0) || tK <= 0 || !(lambdaM > 0) || math.IsInf(lambdaM, 0) {
-			fmt.Fprintln(e.stderr, "dlsbatch solvents: --temperature-c must be above −273.15 and --wavelength-nm positive")
-			return exitUsage
+			return fail(exitUsage, "--temperature-c must be above −273.15 and --wavelength-nm positive")
 		}
 		err = report.WriteSolventValues(e.stdout, list, tK, lambdaM, o.extrapolate)
 	} else {
 		err = report.WriteSolventTable(e.stdout, list)
 	}
 	if err != nil {
-		fmt.Fprintf(e.stderr, "dlsbatch solvents: %v\n", err)
-		return exitFatal
+		return fail(exitFatal, err)
 	}
 	return exitOK
 }

@@ -37,25 +37,14 @@ type paramsFlag struct {
 	params []dls.Param
 }
 
-func (f *paramsFlag) String() string {
-	s := make([]string, len(f.params))
-	for i, p := range f.params {
-		s[i] = p.Key + "=" + p.Value
-	}
-	return strings.Join(s, ",")
-}
+func (f *paramsFlag) String() string { return strings.Join(dls.Assignments(f.params), ",") }
 
 func (f *paramsFlag) Type() string { return "key=value" }
 
 func (f *paramsFlag) Set(s string) error {
-	k, v, ok := strings.Cut(s, "=")
-	k = strings.TrimSpace(k)
-	if !ok || k == "" {
-		return fmt.Errorf("%q: want key=value, e.g. temperature_c=25", s)
+	p, err := dls.ParseAssignment(s, f.origin, "--"+f.flag+" "+s)
+	if err == nil {
+		f.params = append(f.params, p)
 	}
-	if !dls.IsMetadataKey(k) {
-		return fmt.Errorf("%q: unknown key %q; known keys: %s", s, k, strings.Join(dls.MetadataKeys, ", "))
-	}
-	f.params = append(f.params, dls.Param{Key: k, Value: strings.TrimSpace(v), Origin: f.origin, Where: "--" + f.flag + " " + s})
-	return nil
+	return err
 }

@@ -12,6 +12,7 @@ import (
 	"syscall"
 
 	"github.com/spf13/pflag"
+	"golang.org/x/term"
 )
 
 // Exit codes. Keep this list and usageText in step.
@@ -54,7 +55,7 @@ func subcommands() []subcommand {
 func main() {
 	ctx, stop := signal.NotifyContext(context.Background(), os.Interrupt, syscall.SIGTERM)
 	defer stop()
-	e := env{stdin: os.Stdin, stdout: os.Stdout, stderr: os.Stderr, stderrIsTerminal: isTerminal(os.Stderr)}
+	e := env{stdin: os.Stdin, stdout: os.Stdout, stderr: os.Stderr, stderrIsTerminal: term.IsTerminal(int(os.Stderr.Fd()))}
 	os.Exit(run(ctx, os.Args[1:], e))
 }
 

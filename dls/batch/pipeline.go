@@ -7,6 +7,7 @@ import (
 	"path/filepath"
 	"strings"
 
+	"dlsbatch/contin"
 	"dlsbatch/cumulants"
 	"dlsbatch/dls"
 	"dlsbatch/dls/medium"
@@ -353,4 +354,35 @@ func defaultUncertainties() uncert.Uncertainties {
 	u := uncert.DefaultUncertainties()
 	u.ViscosityRel, u.ViscosityBasis = 0, ""
 	return u
+}
+
+// Validate reports the first setting outside its allowed range: the
+// cumulant settings, negative or non-finite Type B uncertainties, a
+// coverage factor that is not positive, a fixed regularisation strength
+// that is not positive, a probability-to-reject target outside (0, 1), or
+// a decay-rate grid outside 20–400 points (0 means the default).
+func (s *Settings) Validate() error {
+	if err := s.Cumulants.Validate(); err != nil {
+		return err
+	}
+	u := s.Uncertainty
+	for _, v := range []float64{u.TemperatureK, u.ViscosityRel, u.RefractiveIndex, u.AngleRad} {
+		if !(v >= 0) || math.IsInf(v, 0) {
+			return fmt.Errorf("uncertainties must not be negative")
+		}
+	}
+	if !(s.CoverageFactor > 0) {
+		return fmt.Errorf("coverage factor %g: want a positive value", s.CoverageFactor)
+	}
+	d := s.Distribution
+	if d.Contin.Criterion == contin.Fixed && !(d.Contin.Lambda > 0) {
+		return fmt.Errorf("the fixed regularisation criterion needs a positive strength λ")
+	}
+	if t := d.Contin.TargetProbReject; !(t > 0 && t < 1) {
+		return fmt.Errorf("probability-to-reject target %g: want a value between 0 and 1", t)
+	}
+	if n := d.Grid.NGamma; n != 0 && (n < 20 || n > 400) { // 0: contin.DefaultNGamma
+		return fmt.Errorf("decay-rate grid of %d points: want 20 to 400", n)
+	}
+	return nil
 }

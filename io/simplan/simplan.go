@@ -236,3 +236,29 @@ func TruthJSON(recs []sim.TruthRecord, generator string) ([]byte, error) {
 	}
 	return append(b, '\n'), nil
 }
+
+// CheckOutDir refuses an output folder that exists and holds anything,
+// unless force, and one that holds the plan itself.
+func CheckOutDir(dir, plan string, force bool) error {
+	absDir, err := filepath.Abs(dir)
+	if err != nil {
+		return err
+	}
+	absPlan, err := filepath.Abs(plan)
+	if err != nil {
+		return err
+	}
+	if filepath.Dir(absPlan) == absDir {
+		return fmt.Errorf("--out %s holds the plan %s; choose another folder", dir, plan)
+	}
+	entries, err := os.ReadDir(dir)
+	switch {
+	case errors.Is(err, os.ErrNotExist):
+		return nil
+	case err != nil:
+		return fmt.Errorf("--out %s: %w", dir, err)
+	case len(entries) > 0 && !force:
+		return fmt.Errorf("--out %s exists and is not empty; use --force to write into it", dir)
+	}
+	return nil
+}
