@@ -135,6 +135,23 @@
 // the points (at least 3) must exceed that of the last tenth by more than
 // three standard errors (from σ, or without σ from 1.4826·median|Δy|/√2).
 //
+// # Errors
+//
+// The package imports no other package of this module. Errors wrap one of
+// the sentinels in errors.go (errors.Is) and name the offending index, lag
+// or setting in their message; programmer misuse (a nil grid) panics;
+// numerical doubt is a warning in Result.Warnings or Grid.Warnings wrapping
+// ErrIterationLimit, ErrScanEdge, ErrNoCorner, ErrGridEdge, ErrNoSignal or
+// ErrIllConditioned. Package cumulants has sentinels of some of the same
+// names. The two libraries do not import each other, so the values are
+// distinct, and two of them mean different conditions: here ErrNoDecay is
+// the test above (no fall beyond the noise, which includes data at the
+// baseline) and ErrNoSignal warns of a zero solution, while there
+// ErrNoDecay means a correlation that has not fallen to half its amplitude
+// by the far channels and ErrNoSignal first channels within noise of the
+// baseline. ErrNonFinite, ErrBadLag and ErrTooFewPoints are the same checks
+// as there, each library on its own input.
+//
 // # Defaults and why
 //
 //   - Rates: 100 points over [0.2/τmax, 1/τmin]. Slower decays cannot be

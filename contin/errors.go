@@ -3,7 +3,11 @@ package contin
 import "errors"
 
 // Sentinel errors for errors.Is. Errors returned by this package wrap one of
-// these and add the detail (which value, which index, which limit).
+// these and add the detail (which value, which index, which limit). They
+// are this package's own: package cumulants, which this package does not
+// import, has sentinels of some of the same names with distinct values, and
+// its ErrNoDecay and ErrNoSignal mean other conditions (see the package
+// documentation, "Errors").
 var (
 	// ErrLength: a data slice does not have one value per lag of the grid.
 	ErrLength = errors.New("length does not match the lag grid")
@@ -19,7 +23,8 @@ var (
 	// ErrTooFewPoints: fewer usable points than the inversion needs.
 	ErrTooFewPoints = errors.New("too few points")
 	// ErrNoDecay: the data do not fall from the first lags to the last by
-	// more than their noise.
+	// more than their noise (data at their baseline included; not the same
+	// condition as cumulants.ErrNoDecay).
 	ErrNoDecay = errors.New("data show no decay")
 	// ErrBadSettings: a setting is out of its valid range.
 	ErrBadSettings = errors.New("bad settings")
@@ -39,7 +44,8 @@ var (
 	// ErrGridEdge: a notable part of the amplitude sits in the outermost
 	// bins of the rate grid, so the grid may cut off a population.
 	ErrGridEdge = errors.New("amplitude at the edge of the rate grid")
-	// ErrNoSignal: the solution is zero (only the baseline, if any, is left).
+	// ErrNoSignal: the solution is zero (only the baseline, if any, is left);
+	// a warning, unlike cumulants.ErrNoSignal.
 	ErrNoSignal = errors.New("solution is zero")
 	// ErrIllConditioned: the grid or the problem is numerically doubtful
 	// (rates far outside the lag window, a degenerate reference solution).

@@ -1,7 +1,25 @@
 // Package cumulants fits the cumulant expansion to one DLS correlogram and
 // returns the intensity-weighted mean decay rate, its variance (the
-// polydispersity index) and the fit's diagnostics. It knows nothing of files
-// or particles: sizes come from package dls.
+// polydispersity index) and the fit's diagnostics. It is a numerical
+// library: it imports no other package of this module and knows nothing of
+// files or particles; sizes come from package dls.
+//
+// # Input and errors
+//
+// Fit takes plain slices: lag times in s, the correlation values and,
+// optionally, their standard uncertainties, with the Kind of correlation
+// (G2, G2Minus1 or G1). A nil *Settings means DefaultSettings.
+//
+// Errors follow three tiers. Misuse panics (slices of different lengths, a
+// kind that is none of the three). Bad data return an error wrapping one of
+// the sentinels ErrNonFinite, ErrBadLag, ErrBadSigma, ErrTooFewPoints,
+// ErrNoDecay or ErrNoSignal (errors.Is); when the error concerns one point it
+// is a *PointError whose Index is that point's position in the slices, so
+// that the caller that knows where the data came from can name the file
+// line (package dls/batch does). Package dls names the same sentinel values
+// (dls.ErrNoDecay is ErrNoDecay). Numerical doubt (a fit stopped at the
+// iteration bound, a range-sensitive mean rate, the baseline not reached, a
+// negative second cumulant) is a Result.Warnings entry, not an error.
 //
 // # Model
 //
@@ -69,12 +87,12 @@
 //
 // # Uncertainty weights
 //
-// When the measurement carries σ per point it is used. Otherwise the noise
+// When σ is given per point it is used. Otherwise the noise
 // is estimated: the noise of a multi-tau correlator changes by orders of
 // magnitude along the lag axis (shot noise at short sample times, averaged
 // away at long ones), so a first fit with equal weights is followed by a
 // second whose σ at each channel is the rms residual of the first within
-// ±10 channels (dls.LocalSigma). Weights estimated from the data are noisy
+// ±10 channels (LocalSigma). Weights estimated from the data are noisy
 // and would make (JᵀWJ)⁻¹ overstate the information, so the standard
 // errors then come from the heteroscedasticity-consistent sandwich
 // covariance with the HC3 leverage correction (White 1980; MacKinnon &

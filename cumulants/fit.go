@@ -1,17 +1,40 @@
 package cumulants
 
 import (
-	"errors"
 	"fmt"
 	"math"
 	"sort"
-
-	"dlsbatch/dls"
 )
 
-// ErrNoSignal reports a correlogram whose first channels are within noise of
-// its baseline: there is nothing to fit.
-var ErrNoSignal = errors.New("no correlation above the baseline noise")
+// Kind says which correlation function the data hold.
+type Kind int
+
+// Correlation kinds. The zero value is not a kind.
+const (
+	G2       Kind = iota + 1 // normalised intensity autocorrelation g2 = B + β·g1², baseline ≈ 1
+	G2Minus1                 // g2 − 1, baseline ≈ 0
+	G1                       // field autocorrelation g1 (times an amplitude, plus an offset), baseline ≈ 0
+)
+
+func (k Kind) String() string {
+	switch k {
+	case G2:
+		return "g2"
+	case G2Minus1:
+		return "g2-1"
+	case G1:
+		return "g1"
+	}
+	return fmt.Sprintf("Kind(%d)", int(k))
+}
+
+// nominalBaseline is the baseline of an ideal correlogram of kind k.
+func (k Kind) nominalBaseline() float64 {
+	if k == G2 {
+		return 1
+	}
+	return 0
+}
 
 // LinearEstimate holds the values of the classic linear fit of ln(g2 − B)
 // with the far-channel baseline fixed. It is always computed (it starts the
@@ -26,7 +49,7 @@ type LinearEstimate struct {
 
 // Result is the outcome of one cumulant fit. Rates are field decay rates in
 // 1/s. Correlation-valued fields (Baseline, Fitted, Residuals, ResidualRMS)
-// are in the units of the measurement's correlation column.
+// are in the units of the data y.
 type Result struct {
 	Method Method
 	Order  int
@@ -47,7 +70,7 @@ type Result struct {
 
 	ResidualRMS    float64 // rms of data − model over the fit range
 	ReducedChi2    float64 // Σ(r/σ)²/(points − parameters) over the fit range
-	SigmaEstimated bool    // σ was estimated from the far channels, not given
+	SigmaEstimated bool    // σ was estimated from the data, not given
 
 	FitFirst, FitLast int // indices of the first and last channel fitted
 	PointsUsed        int
@@ -64,7 +87,7 @@ type Result struct {
 	Fitted    []float64 // model at every lag
 	Residuals []float64 // data − model at every lag
 	// Sigma is the standard uncertainty of each data point used as weight:
-	// the measurement's own, or the local estimate (SigmaEstimated).
+	// the σ given, or the local estimate (SigmaEstimated).
 	Sigma    []float64
 	Warnings []error
 }
@@ -73,10 +96,24 @@ type Result struct {
 // which a warning is given (common practice: about 2 %).
 const rangeShiftLimit = 0.02
 
-// Fit runs a cumulant analysis of m. A nil s means DefaultSettings. Errors
-// about the data are *dls.PosError values naming the file and, where one
-// applies, the line.
-func Fit(m *dls.Measurement, s *Settings) (*Result, error) {
+// Fit runs a cumulant analysis of one correlogram: lag times tau in s,
+// strictly increasing and positive; correlation values y of the given kind,
+// one per lag; and optionally their standard uncertainties sigma (nil when
+// not known: σ is then estimated from the data). A nil s means
+// DefaultSettings.
+//
+// Errors about the data wrap one of the sentinels of this package; when
+// they concern one point (a bad value, the start of a fit range that cannot
+// be fitted) they are a *PointError carrying its index. Invalid settings
+// give the error of Settings.Validate. Fit panics when the slices' lengths
+// differ or kind is not G2, G2Minus1 or G1.
+func Fit(tau, y, sigma []float64, kind Kind, s *Settings) (*Result, error) {
+	if len(y) != len(tau) || (sigma != nil && len(sigma) != len(tau)) {
+		panic("cumulants: lag, correlation and sigma lengths differ")
+	}
+	if kind != G2 && kind != G2Minus1 && kind != G1 {
+		panic(fmt.Sprintf("cumulants: unknown correlation kind %d", int(kind)))
+	}
 	if s == nil {
 		d := DefaultSettings()
 		s = &d
@@ -84,13 +121,13 @@ func Fit(m *dls.Measurement, s *Settings) (*Result, error) {
 	if err := s.Validate(); err != nil {
 		return nil, err
 	}
-	p, err := prepare(m, s)
+	p, err := prepare(tau, y, sigma, kind, s)
 	if err != nil {
 		return nil, err
 	}
 	res, err := p.fit(s, p.last)
 	if err != nil {
-		return nil, p.posErr(p.first, err)
+		return nil, p.pointErr(p.first, err)
 	}
 	if p.sigmaEstimated {
 		// Without σ the first fit weighted every channel alike. The noise of
@@ -98,7 +135,7 @@ func Fit(m *dls.Measurement, s *Settings) (*Result, error) {
 		// axis (short sample times carry shot noise, long ones average it
 		// away), so estimate σ locally from the first fit's residuals and fit
 		// again with those weights, starting from the first fit.
-		p.sigma = dls.LocalSigma(res.Residuals, p.first, res.FitLast, 1e-6*p.amp)
+		p.sigma = LocalSigma(res.Residuals, p.first, res.FitLast, 1e-6*p.amp)
 		p.start = res
 		res2, err := p.fit(s, p.last)
 		p.start = nil
@@ -124,10 +161,9 @@ func Fit(m *dls.Measurement, s *Settings) (*Result, error) {
 	return res, nil
 }
 
-// prepared holds the data of one fit in the measurement's units together with
-// the estimates that set up the fit.
+// prepared holds the data of one fit in the units of y together with the
+// estimates that set up the fit.
 type prepared struct {
-	m     *dls.Measurement
 	tau   []float64
 	y     []float64
 	sigma []float64
@@ -144,51 +180,46 @@ type prepared struct {
 	fixBase        bool    // hold the baseline at start.Baseline
 }
 
-func (p *prepared) posErr(i int, err error) error {
-	return &dls.PosError{File: p.m.File, Line: p.m.LineOf(i), Err: err}
+// pointErr ties err to point i; an index past the data (no channel at or
+// above the minimum lag) ties it to none.
+func (p *prepared) pointErr(i int, err error) error {
+	if i < 0 || i >= len(p.tau) {
+		return err
+	}
+	return &PointError{Index: i, Err: err}
 }
 
-func nominalBaseline(k dls.CorrKind) float64 {
-	if k == dls.KindG2 {
-		return 1
-	}
-	return 0
-}
-
-func prepare(m *dls.Measurement, s *Settings) (*prepared, error) {
-	n := len(m.TauS)
-	if len(m.Corr) != n || (m.Sigma != nil && len(m.Sigma) != n) {
-		panic("cumulants: lag, correlation and sigma lengths differ")
-	}
-	p := &prepared{m: m, tau: m.TauS, y: m.Corr, e: 2}
-	if m.Kind == dls.KindG1 {
+func prepare(tau, y, sigma []float64, kind Kind, s *Settings) (*prepared, error) {
+	n := len(tau)
+	p := &prepared{tau: tau, y: y, e: 2}
+	if kind == G1 {
 		p.e = 1
 	}
 	for i := 0; i < n; i++ {
-		if !isFinite(m.TauS[i]) || !isFinite(m.Corr[i]) || (m.Sigma != nil && !isFinite(m.Sigma[i])) {
-			return nil, p.posErr(i, fmt.Errorf("value is %w", dls.ErrNonFinite))
+		if !isFinite(tau[i]) || !isFinite(y[i]) || (sigma != nil && !isFinite(sigma[i])) {
+			return nil, p.pointErr(i, fmt.Errorf("value is %w", ErrNonFinite))
 		}
-		if m.TauS[i] <= 0 || (i > 0 && m.TauS[i] <= m.TauS[i-1]) {
-			return nil, p.posErr(i, fmt.Errorf("%w: lag times must be positive and increasing", dls.ErrBadLag))
+		if tau[i] <= 0 || (i > 0 && tau[i] <= tau[i-1]) {
+			return nil, p.pointErr(i, fmt.Errorf("%w: lag times must be positive and increasing", ErrBadLag))
 		}
-		if m.Sigma != nil && m.Sigma[i] <= 0 {
-			return nil, p.posErr(i, fmt.Errorf("%w: sigma %g must be positive", dls.ErrBadMetadata, m.Sigma[i]))
+		if sigma != nil && sigma[i] <= 0 {
+			return nil, p.pointErr(i, fmt.Errorf("sigma %g: %w", sigma[i], ErrBadSigma))
 		}
 	}
-	first := sort.SearchFloat64s(m.TauS, s.MinTauS)
+	first := sort.SearchFloat64s(tau, s.MinTauS)
 	if n-first < s.MinPoints {
-		return nil, p.posErr(first, fmt.Errorf("%w: %d channels at or above the minimum lag, need %d", dls.ErrTooFewPoints, n-first, s.MinPoints))
+		return nil, p.pointErr(first, fmt.Errorf("%w: %d channels at or above the minimum lag, need %d", ErrTooFewPoints, n-first, s.MinPoints))
 	}
 	p.first = first
 
 	// Far channels: the last tenth, at least five.
 	nt := max(5, (n-first)/10)
 	p.tailN = nt
-	tail := m.Corr[n-nt:]
+	tail := y[n-nt:]
 	p.farBase = mean(tail)
 	var tailSigma float64
-	if m.Sigma != nil {
-		tailSigma = median(m.Sigma[n-nt:])
+	if sigma != nil {
+		tailSigma = median(sigma[n-nt:])
 	} else {
 		tailSigma = diffNoise(tail)
 	}
@@ -198,31 +229,31 @@ func prepare(m *dls.Measurement, s *Settings) (*prepared, error) {
 	// channels (the decay changes little over them unless it is faster
 	// than the lag window resolves, which the range test below catches).
 	hn := min(16, n-first)
-	headSigma := diffNoise(m.Corr[first : first+hn])
-	if m.Sigma != nil {
-		headSigma = median(m.Sigma[first : first+hn])
+	headSigma := diffNoise(y[first : first+hn])
+	if sigma != nil {
+		headSigma = median(sigma[first : first+hn])
 	}
 	// The intercept estimate averages the first 3 channels, or more (up to
 	// 16) while their noise exceeds 5 % of the amplitude: at low count
 	// rates the first channels are mostly shot noise.
 	headN := min(3, n-first)
-	head := mean(m.Corr[first : first+headN])
+	head := mean(y[first : first+headN])
 	for headN < hn && headSigma/math.Sqrt(float64(headN)) > 0.05*math.Abs(head-p.farBase) {
 		headN++
-		head = mean(m.Corr[first : first+headN])
+		head = mean(y[first : first+headN])
 	}
-	nom := nominalBaseline(m.Kind)
+	nom := kind.nominalBaseline()
 	headAmp, tailAmp := head-nom, p.farBase-nom
 	if headAmp > 0 && tailAmp > 0.5*headAmp && headAmp > 5*tailSigma {
-		return nil, p.posErr(n-1, fmt.Errorf("%w within the lag window: the last channels are still at %.0f %% of the first (lags to %.3g s)", dls.ErrNoDecay, 100*tailAmp/headAmp, m.TauS[n-1]))
+		return nil, p.pointErr(n-1, fmt.Errorf("%w within the lag window: the last channels are still at %.0f %% of the first (lags to %.3g s)", ErrNoDecay, 100*tailAmp/headAmp, tau[n-1]))
 	}
 	p.amp = head - p.farBase
 	if !(p.amp > 5*tailSigma) || !(p.amp > 5*headSigma/math.Sqrt(float64(headN))) {
-		return nil, p.posErr(first, fmt.Errorf("%w: first channels %.4g ± %.2g, far channels %.4g ± %.2g", ErrNoSignal, head, headSigma/math.Sqrt(float64(headN)), p.farBase, tailSigma))
+		return nil, p.pointErr(first, fmt.Errorf("%w: first channels %.4g ± %.2g, far channels %.4g ± %.2g", ErrNoSignal, head, headSigma/math.Sqrt(float64(headN)), p.farBase, tailSigma))
 	}
 
-	if m.Sigma != nil {
-		p.sigma = m.Sigma
+	if sigma != nil {
+		p.sigma = sigma
 	} else {
 		// Noise-free input would give σ = 0; floor it at 1e-6 of the
 		// amplitude so that weights stay finite.
@@ -237,7 +268,7 @@ func prepare(m *dls.Measurement, s *Settings) (*prepared, error) {
 	// End of the fit range: the channel before g1 first stays below the
 	// cutoff for two channels in a row.
 	g1 := func(i int) float64 {
-		v := (m.Corr[i] - p.farBase) / p.amp
+		v := (y[i] - p.farBase) / p.amp
 		if v <= 0 {
 			return 0
 		}
@@ -254,7 +285,7 @@ func prepare(m *dls.Measurement, s *Settings) (*prepared, error) {
 		}
 	}
 	if last-first+1 < s.MinPoints {
-		return nil, p.posErr(first, fmt.Errorf("%w: only %d channels before g1 falls below %.2g, need %d; the decay is too fast for the lag window (first lag %.3g s)", dls.ErrTooFewPoints, last-first+1, s.Cutoff, s.MinPoints, m.TauS[first]))
+		return nil, p.pointErr(first, fmt.Errorf("%w: only %d channels before g1 falls below %.2g, need %d; the decay is too fast for the lag window (first lag %.3g s)", ErrTooFewPoints, last-first+1, s.Cutoff, s.MinPoints, tau[first]))
 	}
 	p.last = last
 	// The baseline is reached when g1 had fallen below 0.05 before the far

@@ -2,6 +2,7 @@ package cumulants_test
 
 import (
 	"errors"
+	"fmt"
 	"math"
 	"math/rand/v2"
 	"testing"
@@ -9,7 +10,6 @@ import (
 	"gonum.org/v1/gonum/floats/scalar"
 
 	"dlsbatch/cumulants"
-	"dlsbatch/dls"
 )
 
 // multiTau returns the lag grid of a multi-tau correlator (Schätzel 1988):
@@ -64,14 +64,14 @@ func logNormalG1(tau []float64, gMed, sg float64) (g1 []float64, mean, pdi float
 	return g1, gMed * math.Exp(sg*sg/2), math.Expm1(sg * sg)
 }
 
-// measurement builds a correlogram of the given kind from g1 with the
-// Siegert relation g2 = B + β·g1², adding white noise of standard deviation
-// noise when rng is not nil.
-func measurement(tau, g1 []float64, kind dls.CorrKind, beta, base, noise float64, rng *rand.Rand) *dls.Measurement {
-	y := make([]float64, len(tau))
-	for i := range tau {
+// correlogram builds correlation values of the given kind from g1 with the
+// Siegert relation g2 = B + β·g1² (g1 data: B + √β·g1), adding white noise
+// of standard deviation noise when rng is not nil.
+func correlogram(g1 []float64, kind cumulants.Kind, beta, base, noise float64, rng *rand.Rand) []float64 {
+	y := make([]float64, len(g1))
+	for i := range g1 {
 		switch kind {
-		case dls.KindG1:
+		case cumulants.G1:
 			y[i] = base + math.Sqrt(beta)*g1[i]
 		default:
 			y[i] = base + beta*g1[i]*g1[i]
@@ -80,11 +80,16 @@ func measurement(tau, g1 []float64, kind dls.CorrKind, beta, base, noise float64
 			y[i] += noise * rng.NormFloat64()
 		}
 	}
-	lines := make([]int, len(tau))
-	for i := range lines {
-		lines[i] = 10 + i
+	return y
+}
+
+// constant returns n copies of v.
+func constant(n int, v float64) []float64 {
+	out := make([]float64, n)
+	for i := range out {
+		out[i] = v
 	}
-	return &dls.Measurement{File: "synthetic.csv", Kind: kind, TauS: tau, Corr: y, Lines: lines, HeaderLine: 9}
+	return out
 }
 
 func TestFitNoiseFreeMonodisperse(t *testing.T) {
@@ -95,25 +100,25 @@ func TestFitNoiseFreeMonodisperse(t *testing.T) {
 	tau := multiTau(0.5e-6, 8, 200)
 	cases := []struct {
 		name       string
-		kind       dls.CorrKind
+		kind       cumulants.Kind
 		method     cumulants.Method
 		gamma      float64 // 1/s
 		beta, base float64
 	}{
-		{"g2 nonlinear", dls.KindG2, cumulants.Nonlinear, 3418.78, 0.92, 1},
-		{"g2 linear", dls.KindG2, cumulants.Linear, 3418.78, 0.92, 1},
-		{"g2m1 nonlinear", dls.KindG2m1, cumulants.Nonlinear, 1715.78, 0.6, 0},
-		{"g1 nonlinear", dls.KindG1, cumulants.Nonlinear, 58.46, 1, 0},
-		{"g2 fast decay", dls.KindG2, cumulants.Nonlinear, 2.0e5, 0.8, 1},
-		{"g2 slow decay", dls.KindG2, cumulants.Nonlinear, 30, 0.8, 1},
+		{"g2 nonlinear", cumulants.G2, cumulants.Nonlinear, 3418.78, 0.92, 1},
+		{"g2 linear", cumulants.G2, cumulants.Linear, 3418.78, 0.92, 1},
+		{"g2m1 nonlinear", cumulants.G2Minus1, cumulants.Nonlinear, 1715.78, 0.6, 0},
+		{"g1 nonlinear", cumulants.G1, cumulants.Nonlinear, 58.46, 1, 0},
+		{"g2 fast decay", cumulants.G2, cumulants.Nonlinear, 2.0e5, 0.8, 1},
+		{"g2 slow decay", cumulants.G2, cumulants.Nonlinear, 30, 0.8, 1},
 	}
 	for _, c := range cases {
 		t.Run(c.name, func(t *testing.T) {
 			g1, _, _ := logNormalG1(tau, c.gamma, 0)
-			m := measurement(tau, g1, c.kind, c.beta, c.base, 0, nil)
+			y := correlogram(g1, c.kind, c.beta, c.base, 0, nil)
 			s := cumulants.DefaultSettings()
 			s.Method = c.method
-			r, err := cumulants.Fit(m, &s)
+			r, err := cumulants.Fit(tau, y, nil, c.kind, &s)
 			if err != nil {
 				t.Fatal(err)
 			}
@@ -124,7 +129,7 @@ func TestFitNoiseFreeMonodisperse(t *testing.T) {
 				t.Errorf("PDI = %.3g, want 0", r.PDI)
 			}
 			wantB := c.beta
-			if c.kind == dls.KindG1 {
+			if c.kind == cumulants.G1 {
 				wantB = math.Sqrt(c.beta)
 			}
 			if !scalar.EqualWithinRel(r.Intercept, wantB, 1e-6) {
@@ -162,10 +167,10 @@ func TestFitNoiseFreeLogNormal(t *testing.T) {
 	for _, c := range cases {
 		t.Run(c.name, func(t *testing.T) {
 			g1, mean, pdi := logNormalG1(tau, 2000, c.sg)
-			m := measurement(tau, g1, dls.KindG2, 0.9, 1, 0, nil)
+			y := correlogram(g1, cumulants.G2, 0.9, 1, 0, nil)
 			s := cumulants.DefaultSettings()
 			s.Order = c.order
-			r, err := cumulants.Fit(m, &s)
+			r, err := cumulants.Fit(tau, y, nil, cumulants.G2, &s)
 			if err != nil {
 				t.Fatal(err)
 			}
@@ -193,8 +198,8 @@ func TestFitStandardErrorsMatchScatter(t *testing.T) {
 	rng := rand.New(rand.NewPCG(7, 11))
 	var gs, ses []float64
 	for k := 0; k < 200; k++ {
-		m := measurement(tau, g1, dls.KindG2, 0.85, 1, 2e-3, rng)
-		r, err := cumulants.Fit(m, nil)
+		y := correlogram(g1, cumulants.G2, 0.85, 1, 2e-3, rng)
+		r, err := cumulants.Fit(tau, y, nil, cumulants.G2, nil)
 		if err != nil {
 			t.Fatal(err)
 		}
@@ -215,12 +220,8 @@ func TestFitGivenSigma(t *testing.T) {
 	tau := multiTau(0.5e-6, 8, 200)
 	g1, _, _ := logNormalG1(tau, 1500, 0.1)
 	rng := rand.New(rand.NewPCG(3, 5))
-	m := measurement(tau, g1, dls.KindG2, 0.9, 1, 1e-3, rng)
-	m.Sigma = make([]float64, len(tau))
-	for i := range m.Sigma {
-		m.Sigma[i] = 1e-3
-	}
-	r, err := cumulants.Fit(m, nil)
+	y := correlogram(g1, cumulants.G2, 0.9, 1, 1e-3, rng)
+	r, err := cumulants.Fit(tau, y, constant(len(tau), 1e-3), cumulants.G2, nil)
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -249,21 +250,15 @@ func TestFitRangeCheckWarnsOnBimodal(t *testing.T) {
 	}
 	// σ is given (constant), so that the weights are not re-estimated from
 	// residuals, which on noise-free data would be pure model error.
-	withSigma := func(m *dls.Measurement) *dls.Measurement {
-		m.Sigma = make([]float64, len(m.TauS))
-		for i := range m.Sigma {
-			m.Sigma[i] = 1e-4
-		}
-		return m
-	}
-	r, err := cumulants.Fit(withSigma(measurement(tau, g1, dls.KindG2, 0.9, 1, 0, nil)), nil)
+	sigma := constant(len(tau), 1e-4)
+	r, err := cumulants.Fit(tau, correlogram(g1, cumulants.G2, 0.9, 1, 0, nil), sigma, cumulants.G2, nil)
 	if err != nil {
 		t.Fatal(err)
 	}
 	if !r.RangeChecked || r.RangeShift <= 0.02 || len(r.Warnings) == 0 {
 		t.Errorf("bimodal: range shift %.3g (checked %v, warnings %v), want > 0.02 and a warning", r.RangeShift, r.RangeChecked, r.Warnings)
 	}
-	r, err = cumulants.Fit(withSigma(measurement(tau, a, dls.KindG2, 0.9, 1, 0, nil)), nil)
+	r, err = cumulants.Fit(tau, correlogram(a, cumulants.G2, 0.9, 1, 0, nil), sigma, cumulants.G2, nil)
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -273,72 +268,85 @@ func TestFitRangeCheckWarnsOnBimodal(t *testing.T) {
 }
 
 func TestFitBadData(t *testing.T) {
+	// Each case breaks the synthetic data in one known way; the error must
+	// wrap the sentinel of that condition and, when it concerns a point,
+	// be a *PointError at the index of the point that was broken (or at
+	// the start of the fit range, or at the last channel for data that
+	// have not decayed by it).
 	tau := multiTau(0.5e-6, 8, 200)
+	n := len(tau)
 	g1, _, _ := logNormalG1(tau, 2000, 0)
 	rng := rand.New(rand.NewPCG(1, 2))
+	clean := func() []float64 { return correlogram(g1, cumulants.G2, 0.9, 1, 0, nil) }
+	minTau := cumulants.DefaultSettings()
+	minTau.MinTauS = 100 // beyond the last lag (≈ 67 s)
 	cases := []struct {
-		name string
-		m    func() *dls.Measurement
-		want error
+		name     string
+		tau      []float64
+		y, sigma []float64
+		s        *cumulants.Settings
+		want     []error // the error must wrap one of these
+		index    int     // index of the PointError; -1: no PointError
 	}{
-		{"never decays", func() *dls.Measurement {
-			// Γ so slow that g1 is still 0.98 at the last lag (≈ 1.7 s).
+		{"never decays", tau, func() []float64 {
+			// Γ = 0.01 1/s: g1 has only fallen to 0.51 by the last lag
+			// (≈ 67 s), so the far channels keep more than half of the
+			// amplitude.
 			slow, _, _ := logNormalG1(tau, 0.01, 0)
-			return measurement(tau, slow, dls.KindG2, 0.9, 1, 1e-3, rng)
-		}, dls.ErrNoDecay},
-		{"all at baseline", func() *dls.Measurement {
-			zero := make([]float64, len(tau))
-			return measurement(tau, zero, dls.KindG2, 0.9, 1, 1e-3, rng)
-		}, cumulants.ErrNoSignal},
-		{"too few points", func() *dls.Measurement {
-			m := measurement(tau[:6], g1[:6], dls.KindG2, 0.9, 1, 0, nil)
-			return m
-		}, dls.ErrTooFewPoints},
-		{"decay faster than first lag", func() *dls.Measurement {
+			return correlogram(slow, cumulants.G2, 0.9, 1, 1e-3, rng)
+		}(), nil, nil, []error{cumulants.ErrNoDecay}, n - 1},
+		{"all at baseline", tau, correlogram(make([]float64, n), cumulants.G2, 0.9, 1, 1e-3, rng), nil, nil,
+			[]error{cumulants.ErrNoSignal}, 0},
+		{"too few points", tau[:6], clean()[:6], nil, nil, []error{cumulants.ErrTooFewPoints}, 0},
+		{"decay faster than first lag", tau, func() []float64 {
 			fast, _, _ := logNormalG1(tau, 2e6, 0)
-			return measurement(tau, fast, dls.KindG2, 0.9, 1, 1e-3, rng)
-		}, nil}, // either no signal or too few points; checked below
-		{"NaN", func() *dls.Measurement {
-			m := measurement(tau, g1, dls.KindG2, 0.9, 1, 0, nil)
-			m.Corr[17] = math.NaN()
-			return m
-		}, dls.ErrNonFinite},
-		{"non-increasing lag", func() *dls.Measurement {
-			m := measurement(append([]float64(nil), tau...), g1, dls.KindG2, 0.9, 1, 0, nil)
-			m.TauS[30] = m.TauS[29]
-			return m
-		}, dls.ErrBadLag},
+			return correlogram(fast, cumulants.G2, 0.9, 1, 1e-3, rng)
+		}(), nil, nil, []error{cumulants.ErrNoSignal, cumulants.ErrTooFewPoints}, 0},
+		{"NaN", tau, func() []float64 { y := clean(); y[17] = math.NaN(); return y }(), nil, nil,
+			[]error{cumulants.ErrNonFinite}, 17},
+		{"infinite sigma", tau, clean(), func() []float64 { s := constant(n, 1e-3); s[5] = math.Inf(1); return s }(), nil,
+			[]error{cumulants.ErrNonFinite}, 5},
+		{"non-increasing lag", func() []float64 { v := append([]float64(nil), tau...); v[30] = v[29]; return v }(), clean(), nil, nil,
+			[]error{cumulants.ErrBadLag}, 30},
+		{"zero sigma", tau, clean(), func() []float64 { s := constant(n, 1e-3); s[40] = 0; return s }(), nil,
+			[]error{cumulants.ErrBadSigma}, 40},
+		{"no lag above the minimum", tau, clean(), nil, &minTau,
+			[]error{cumulants.ErrTooFewPoints}, -1},
+		{"bad settings", tau, clean(), nil, &cumulants.Settings{Order: 4}, nil, -1},
 	}
 	for _, c := range cases {
 		t.Run(c.name, func(t *testing.T) {
-			r, err := cumulants.Fit(c.m(), nil)
+			r, err := cumulants.Fit(c.tau, c.y, c.sigma, cumulants.G2, c.s)
 			if err == nil {
 				t.Fatalf("no error; Γ̄ = %g", r.GammaPerS)
 			}
-			var pe *dls.PosError
-			if !errors.As(err, &pe) || pe.File != "synthetic.csv" {
-				t.Errorf("error %q is not positioned in the file", err)
+			var pe *cumulants.PointError
+			switch isPoint := errors.As(err, &pe); {
+			case c.index >= 0 && (!isPoint || pe.Index != c.index):
+				t.Errorf("error %q: want a *PointError at index %d", err, c.index)
+			case c.index < 0 && isPoint:
+				t.Errorf("error %q: want no *PointError (index %d is not a point of the data)", err, pe.Index)
 			}
-			if c.want != nil && !errors.Is(err, c.want) {
-				t.Errorf("error %q does not wrap %q", err, c.want)
+			found := c.want == nil
+			for _, w := range c.want {
+				found = found || errors.Is(err, w)
 			}
-			if c.want == nil && !errors.Is(err, cumulants.ErrNoSignal) && !errors.Is(err, dls.ErrTooFewPoints) {
-				t.Errorf("error %q: want no-signal or too-few-points", err)
+			if !found {
+				t.Errorf("error %q wraps none of %q", err, c.want)
 			}
 		})
 	}
 }
 
-func TestFitNaNPositionedAtLine(t *testing.T) {
-	// The line of a bad point is the file line recorded for it.
-	tau := multiTau(0.5e-6, 8, 200)
-	g1, _, _ := logNormalG1(tau, 2000, 0)
-	m := measurement(tau, g1, dls.KindG2, 0.9, 1, 0, nil)
-	m.Corr[17] = math.Inf(1)
-	_, err := cumulants.Fit(m, nil)
-	var pe *dls.PosError
-	if !errors.As(err, &pe) || pe.Line != m.Lines[17] {
-		t.Fatalf("error %v: want line %d", err, m.Lines[17])
+func TestPointErrorMessage(t *testing.T) {
+	// The message names the index and keeps the wrapped reason; errors.Is
+	// sees through it (the errors package's Unwrap contract).
+	e := &cumulants.PointError{Index: 17, Err: fmt.Errorf("value is %w", cumulants.ErrNonFinite)}
+	if got, want := e.Error(), "point 17: value is not finite"; got != want {
+		t.Errorf("message %q, want %q", got, want)
+	}
+	if !errors.Is(e, cumulants.ErrNonFinite) {
+		t.Error("errors.Is does not see the sentinel through the PointError")
 	}
 }
 

@@ -5,8 +5,6 @@ import (
 	"math"
 
 	"gonum.org/v1/gonum/mat"
-
-	"dlsbatch/dls"
 )
 
 // linCov carries the linear fit's standard errors and third cumulant.
@@ -49,7 +47,7 @@ func (p *prepared) linear(order, last int) (LinearEstimate, linCov, error) {
 		pts++
 	}
 	if pts < nc+2 {
-		return LinearEstimate{}, linCov{}, fmt.Errorf("%w: %d channels above 3σ of the baseline in the fit range, need %d", dls.ErrTooFewPoints, pts, nc+2)
+		return LinearEstimate{}, linCov{}, fmt.Errorf("%w: %d channels above 3σ of the baseline in the fit range, need %d", ErrTooFewPoints, pts, nc+2)
 	}
 	var ch mat.Cholesky
 	if !ch.Factorize(a) {
@@ -71,7 +69,7 @@ func (p *prepared) linear(order, last int) (LinearEstimate, linCov, error) {
 		Points:    pts,
 	}
 	if !(est.GammaPerS > 0) {
-		return est, linCov{}, fmt.Errorf("%w: the linear cumulant fit gives a non-positive decay rate", dls.ErrNoDecay)
+		return est, linCov{}, fmt.Errorf("%w: the linear cumulant fit gives a non-positive decay rate", ErrNoDecay)
 	}
 	est.PDI = est.Mu2PerS2 / (est.GammaPerS * est.GammaPerS)
 	var cv linCov

@@ -9,8 +9,6 @@ import (
 	"gonum.org/v1/gonum/blas/blas64"
 	"gonum.org/v1/gonum/lapack/lapack64"
 	"gonum.org/v1/gonum/mat"
-
-	"dlsbatch/dls"
 )
 
 // nonlinear fits y = B + β·[exp(−Γτ)·(1 + μ2τ²/2 − μ3τ³/6)]^e over channels
@@ -167,7 +165,7 @@ func (p *prepared) nonlinear(s *Settings, lin LinearEstimate, last int, r *Resul
 		iter = s.MaxIter
 	}
 	if !(par[2] > 0) {
-		return fmt.Errorf("%w: the nonlinear cumulant fit gives a non-positive decay rate", dls.ErrNoDecay)
+		return fmt.Errorf("%w: the nonlinear cumulant fit gives a non-positive decay rate", ErrNoDecay)
 	}
 	r.Iterations = iter
 	r.Converged = converged

@@ -72,8 +72,7 @@ func TestRecoveryRealisticNoise(t *testing.T) {
 					if err != nil {
 						t.Fatal(err)
 					}
-					m := &dls.Measurement{File: name, Kind: dls.KindG2, TauS: out.TauS, Corr: out.Runs[0].G2}
-					r, err := cumulants.Fit(m, nil)
+					r, err := cumulants.Fit(out.TauS, out.Runs[0].G2, nil, cumulants.G2, nil)
 					if err != nil {
 						t.Fatal(err)
 					}
@@ -121,11 +120,11 @@ func TestStandardErrorHonestOnMultiTauNoise(t *testing.T) {
 			if err != nil {
 				t.Fatal(err)
 			}
-			m := &dls.Measurement{File: "x", Kind: dls.KindG2, TauS: out.TauS, Corr: out.Runs[0].G2}
+			var sigma []float64
 			if given {
-				m.Sigma = out.Runs[0].Sigma
+				sigma = out.Runs[0].Sigma
 			}
-			r, err := cumulants.Fit(m, nil)
+			r, err := cumulants.Fit(out.TauS, out.Runs[0].G2, sigma, cumulants.G2, nil)
 			if err != nil {
 				t.Fatal(err)
 			}

@@ -3,6 +3,8 @@ package dls
 import (
 	"errors"
 	"fmt"
+
+	"dlsbatch/cumulants"
 )
 
 // PosError is an error tied to a place in an input file. Line and Column are
@@ -28,15 +30,25 @@ func (e *PosError) Error() string {
 func (e *PosError) Unwrap() error { return e.Err }
 
 // Sentinel errors for errors.Is; messages built on them add the detail.
+//
+// Each condition has one sentinel. Those of the data conditions that the
+// cumulant fit detects are the numerical library's own values under the
+// domain's names: ErrNoDecay is cumulants.ErrNoDecay, and errors.Is against
+// either matches both, whether the reader or the fit found the condition.
+// Package contin's sentinels of the same names are contin's own (it is
+// independent of cumulants); in the pipeline its errors only become
+// warnings of a result, after cumulants.Fit has accepted the data.
 var (
-	ErrNoDecay         = errors.New("correlation does not decay")
-	ErrTooFewPoints    = errors.New("too few points")
+	ErrNoDecay      = cumulants.ErrNoDecay      // "correlation does not decay"
+	ErrTooFewPoints = cumulants.ErrTooFewPoints // "too few points"
+	ErrNonFinite    = cumulants.ErrNonFinite    // "not finite"
+	ErrBadLag       = cumulants.ErrBadLag       // "bad lag time"
+	ErrNoSignal     = cumulants.ErrNoSignal     // "no correlation above the baseline noise"
+
 	ErrMissingValue    = errors.New("missing value")
 	ErrUnknownSolvent  = errors.New("unknown solvent")
 	ErrOutOfRange      = errors.New("outside the valid range")
 	ErrNotANumber      = errors.New("not a number")
-	ErrNonFinite       = errors.New("not finite")
-	ErrBadLag          = errors.New("bad lag time")
 	ErrBadHeader       = errors.New("bad header")
 	ErrEmpty           = errors.New("empty file")
 	ErrNotText         = errors.New("not a text file")

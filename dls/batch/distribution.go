@@ -178,7 +178,7 @@ func distribution(m *dls.Measurement, fit *cumulants.Result, st state, meta dls.
 	// residuals as well.
 	sigma := fit.Sigma
 	if fit.SigmaEstimated {
-		sigma = dls.LocalSigma(correlogramResiduals(m, fit, first, inv.Fitted), first, len(m.TauS)-1, 1e-6*fit.Intercept)
+		sigma = cumulants.LocalSigma(correlogramResiduals(m, fit, first, inv.Fitted), first, len(m.TauS)-1, 1e-6*fit.Intercept)
 	}
 	g1, sg = fieldCorrelation(m, fit, first, sigma, inv.Fitted)
 	if inv2, err := contin.Invert(grid, g1, sg, &cs); err == nil {

@@ -133,7 +133,7 @@ func Analyze(m *dls.Measurement, s *Settings) *dls.Result {
 		r.DurationS, r.HasDuration = v, true
 	}
 
-	fit, err := cumulants.Fit(m, &s.Cumulants)
+	fit, err := fitCumulants(m, &s.Cumulants)
 	if err != nil {
 		return fail(err)
 	}

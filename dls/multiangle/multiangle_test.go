@@ -71,8 +71,7 @@ func measure(t *testing.T, pop string, th float64, useMie bool, seed uint64) (An
 	if err != nil {
 		t.Fatal(err)
 	}
-	meas := &dls.Measurement{File: pop, Kind: dls.KindG2, TauS: out.TauS, Corr: out.Runs[0].G2, Sigma: out.Runs[0].Sigma}
-	r, err := cumulants.Fit(meas, nil)
+	r, err := cumulants.Fit(out.TauS, out.Runs[0].G2, out.Runs[0].Sigma, cumulants.G2, nil)
 	if err != nil {
 		t.Fatal(err)
 	}

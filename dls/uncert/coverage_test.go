@@ -93,11 +93,11 @@ func TestCoverage(t *testing.T) {
 				if err != nil {
 					t.Fatal(err)
 				}
-				m := &dls.Measurement{File: "coverage", Kind: dls.KindG2, TauS: out.TauS, Corr: out.Runs[0].G2, Sigma: out.Runs[0].Sigma}
+				sigma := out.Runs[0].Sigma
 				if c.noSigma {
-					m.Sigma = nil
+					sigma = nil
 				}
-				fit, err := cumulants.Fit(m, nil)
+				fit, err := cumulants.Fit(out.TauS, out.Runs[0].G2, sigma, cumulants.G2, nil)
 				if err != nil {
 					t.Fatal(err)
 				}

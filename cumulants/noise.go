@@ -1,4 +1,4 @@
-package dls
+package cumulants
 
 import "math"
 
@@ -10,7 +10,7 @@ import "math"
 // of Γ̄ within 1 % of that with the true σ) and narrow enough to follow
 // the noise's change along the lag axis. Channels outside the range take
 // the value of the nearest end. floor keeps weights finite on noise-free
-// data.
+// data. Fit weights its second pass with it when no σ is given.
 func LocalSigma(r []float64, first, last int, floor float64) []float64 {
 	const half = 10
 	out := make([]float64, len(r))
