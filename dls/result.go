@@ -1,6 +1,9 @@
 package dls
 
-import "math"
+import (
+	"math"
+	"reflect"
+)
 
 // Status is the outcome class of one measurement.
 type Status string
@@ -12,10 +15,33 @@ const (
 	StatusError Status = "error" // could not be analysed; Message says why
 )
 
-// Result is everything dlsbatch reports for one measurement. Fields that
-// could not be computed (for an error, say) are zero and are written as
-// empty cells; Has* flags say which groups are valid.
+// Result is everything dlsbatch reports for one measurement, built from
+// parts that each hold one stage of the analysis and say whether they are
+// valid. A part that could not be computed (for an error, say) is zero and
+// is written as empty cells. encoding/json flattens the embedded parts, so
+// results.json keeps one flat object per measurement, in this field order.
 type Result struct {
+	Identity
+	Conditions
+	Cumulants
+	DistSummary
+	// Assumptions name defaults that a result leans on without changing
+	// its status (e.g. an assumed particle refractive index, which only
+	// the volume and number weightings depend on).
+	Assumptions []string `json:"assumptions"`
+	Corrections
+	Uncertainty
+
+	// Params lists every input value used, with its origin.
+	Params []Param `json:"params"`
+	// Warnings lists each remark behind a warn status.
+	Warnings []string `json:"warnings"`
+	// Curves holds the data and the fit for plotting and audit.
+	Curves *Curves `json:"curves,omitempty"`
+}
+
+// Identity names a measurement and its outcome.
+type Identity struct {
 	File    string `json:"file"`
 	Sample  string `json:"sample"`
 	Run     string `json:"run"`
@@ -30,8 +56,12 @@ type Result struct {
 	// Flags are the QC findings on this measurement (codes listed by
 	// `dlsbatch flags`).
 	Flags []Flag `json:"flags"`
+}
 
-	// Conditions (valid when HasConditions).
+// Conditions are the measurement conditions used (valid when
+// HasConditions): temperature, medium, optics and the sources of the
+// medium's properties.
+type Conditions struct {
 	HasConditions   bool    `json:"-"`
 	TemperatureC    float64 `json:"temperature_c"`
 	Solvent         string  `json:"solvent"`
@@ -42,8 +72,12 @@ type Result struct {
 	QPerM           float64 `json:"q_per_m"`
 	ViscositySource string  `json:"viscosity_source"`
 	IndexSource     string  `json:"refractive_index_source"`
+}
 
-	// Cumulant results (valid when HasCumulants).
+// Cumulants are the cumulant fit and what it gives through Stokes–Einstein
+// (valid when HasCumulants), with the count rate and duration when the file
+// states them.
+type Cumulants struct {
 	HasCumulants      bool    `json:"-"`
 	Method            string  `json:"cumulant_method"`
 	Order             int     `json:"cumulant_order"`
@@ -76,8 +110,12 @@ type Result struct {
 	HasDuration       bool    `json:"-"`
 	CorrelationColumn string  `json:"correlation_column"`
 	CorrelationKind   string  `json:"correlation_kind"` // g2, g2m1 or g1
+}
 
-	// Size distribution (valid when HasDistribution).
+// DistSummary is the size distribution of a measurement (valid when
+// HasDistribution): the regularisation chosen, the summary of each
+// weighting and the full distributions.
+type DistSummary struct {
 	HasDistribution  bool    `json:"-"`
 	ParticleRI       string  `json:"particle_ri"`
 	AlphaCriterion   string  `json:"alpha_criterion"`
@@ -98,18 +136,16 @@ type Result struct {
 	Number    *WeightSummary `json:"number,omitempty"`
 	// Distribution holds the full distributions and the inversion's audit.
 	Distribution *SizeDistribution `json:"distribution,omitempty"`
+}
 
-	// Assumptions name defaults that a result leans on without changing
-	// its status (e.g. an assumed particle refractive index, which only
-	// the volume and number weightings depend on).
-	Assumptions []string `json:"assumptions"`
-
-	// Correction names the concentration corrections applied, joined by
-	// "+": "none", "medium" (the continuous phase's viscosity raised by a
-	// small colloid or excipient), "kd" (collective diffusion of the sized
-	// particles corrected to infinite dilution with a stated k_D),
-	// "dilution-series" (the measurement's group was extrapolated to
-	// infinite dilution; see groups in results.json).
+// Corrections are the concentration corrections applied.
+type Corrections struct {
+	// Correction is joined by "+": "none", "medium" (the continuous
+	// phase's viscosity raised by a small colloid or excipient), "kd"
+	// (collective diffusion of the sized particles corrected to infinite
+	// dilution with a stated k_D), "dilution-series" (the measurement's
+	// group was extrapolated to infinite dilution; see groups in
+	// results.json).
 	Correction string      `json:"correction"`
 	Medium     *MediumNote `json:"medium,omitempty"`
 	// ZAvgD0Nm is the size at infinite dilution when a k_D correction
@@ -117,19 +153,14 @@ type Result struct {
 	ZAvgD0Nm float64 `json:"z_avg_d0_nm"`
 	KD       float64 `json:"kd"`
 	KDPhi    float64 `json:"kd_volume_fraction"`
+}
 
-	// Uncertainty of the z-average (GUM): combined standard and expanded
-	// (k = 2), with the budget.
+// Uncertainty is the GUM uncertainty of the z-average: combined standard
+// and expanded (k = 2), with the budget.
+type Uncertainty struct {
 	ZAvgUcNm       float64 `json:"z_avg_uc_nm"`
 	ZAvgExpandedNm float64 `json:"z_avg_expanded_nm"`
-	Budget         any     `json:"uncertainty_budget,omitempty"`
-
-	// Params lists every input value used, with its origin.
-	Params []Param `json:"params"`
-	// Warnings lists each remark behind a warn status.
-	Warnings []string `json:"warnings"`
-	// Curves holds the data and the fit for plotting and audit.
-	Curves *Curves `json:"curves,omitempty"`
+	Budget         *Budget `json:"uncertainty_budget,omitempty"`
 }
 
 // MediumNote records a medium correction: the relation used, φ, the
@@ -203,45 +234,57 @@ type AlphaRow struct {
 	Chosen           bool    `json:"chosen"`
 }
 
-// Finite reports whether every number of the result's cumulant part
-// (conditions, fit, curves) and of its distribution part is finite; JSON
-// cannot carry NaN or Inf, and no output may hold one.
+// Finite reports whether every number of the result is finite, split into
+// the size-distribution part (DistSummary) and everything else; JSON
+// cannot carry NaN or Inf, and no output may hold one. It walks every
+// float64 field, slice and pointer by reflection, so a field added later
+// cannot escape it.
 func (r *Result) Finite() (cumulantsOK, distributionOK bool) {
-	ok := func(vs ...[]float64) bool {
-		for _, v := range vs {
-			for _, x := range v {
+	distributionOK = finiteValue(reflect.ValueOf(r.DistSummary))
+	rest := *r
+	rest.DistSummary = DistSummary{}
+	return finiteValue(reflect.ValueOf(rest)), distributionOK
+}
+
+// finiteValue reports whether every float reachable from v is finite.
+func finiteValue(v reflect.Value) bool {
+	switch v.Kind() {
+	case reflect.Float32, reflect.Float64:
+		f := v.Float()
+		return !math.IsNaN(f) && !math.IsInf(f, 0)
+	case reflect.Complex64, reflect.Complex128:
+		c := v.Complex()
+		return !math.IsNaN(real(c)) && !math.IsInf(real(c), 0) && !math.IsNaN(imag(c)) && !math.IsInf(imag(c), 0)
+	case reflect.Pointer, reflect.Interface:
+		return v.IsNil() || finiteValue(v.Elem())
+	case reflect.Struct:
+		for i := range v.NumField() {
+			if !finiteValue(v.Field(i)) {
+				return false
+			}
+		}
+	case reflect.Slice, reflect.Array:
+		if v.Kind() == reflect.Slice && v.Type().Elem().Kind() == reflect.Float64 {
+			for _, x := range v.Interface().([]float64) {
 				if math.IsNaN(x) || math.IsInf(x, 0) {
 					return false
 				}
 			}
+			return true
 		}
-		return true
-	}
-	scalars := []float64{r.TemperatureC, r.ViscosityMPaS, r.RefractiveIndex, r.WavelengthNm, r.AngleDeg, r.QPerM,
-		r.GammaMeanPerS, r.GammaSEPerS, r.Mu2PerS2, r.Mu3PerS3, r.DiffusionM2PerS, r.ZAvgNm, r.ZAvgSENm, r.PDI, r.PDISE,
-		r.Intercept, r.Baseline, r.FarBaseline, r.FitRMS, r.ReducedChi2, r.FitFirstTauS, r.FitLastTauS, r.RangeShiftPct,
-		r.LinearZAvgNm, r.LinearPDI, r.CountRateKcps, r.DurationS, r.ZAvgD0Nm, r.KD, r.KDPhi, r.ZAvgUcNm, r.ZAvgExpandedNm}
-	cumulantsOK = ok(scalars)
-	if r.Curves != nil {
-		cumulantsOK = cumulantsOK && ok(r.Curves.Fitted, r.Curves.Residuals)
-	}
-	distributionOK = ok([]float64{r.Alpha, r.Lambda, r.DegreesOfFreedom, r.ProbReject, r.DistMeanRatePerS, r.DistZAvgNm, r.DistFitRMS})
-	for _, w := range []*WeightSummary{r.Intensity, r.Volume, r.Number} {
-		if w == nil {
-			continue
+		for i := range v.Len() {
+			if !finiteValue(v.Index(i)) {
+				return false
+			}
 		}
-		distributionOK = distributionOK && ok([]float64{w.MeanNm, w.D10Nm, w.D50Nm, w.D90Nm})
-		for _, p := range w.Peaks {
-			distributionOK = distributionOK && ok([]float64{p.ModeNm, p.MeanNm, p.SDNm, p.AreaPct, p.LowNm, p.HighNm})
+	case reflect.Map:
+		for it := v.MapRange(); it.Next(); {
+			if !finiteValue(it.Value()) {
+				return false
+			}
 		}
 	}
-	if d := r.Distribution; d != nil {
-		distributionOK = distributionOK && ok(d.DiameterNm, d.Intensity, d.Volume, d.Number, d.G1, d.G1Sigma, d.G1Fitted, d.G1Residuals)
-		for _, s := range d.Scan {
-			distributionOK = distributionOK && ok([]float64{s.Lambda, s.Alpha, s.ChiSquare, s.DegreesOfFreedom, s.NormLx, s.ProbReject, s.GCV})
-		}
-	}
-	return cumulantsOK, distributionOK
+	return true
 }
 
 // Counts are the numbers of results by status.

@@ -62,10 +62,7 @@ func TestGroupsDilutionAndBadGroups(t *testing.T) {
 	// first-order range): D0 and k_D back to 1e-9.
 	mk := func(group string, c, angle float64) *dls.Result {
 		d := 4.9e-12 * (1 + 0.01*c)
-		return &dls.Result{File: fmt.Sprintf("%s-%g-%g.csv", group, c, angle), Sample: "protein", Group: group, Status: dls.StatusOK, Correction: "none",
-			HasConditions: true, HasCumulants: true, TemperatureC: 25, ViscosityMPaS: 0.890022, AngleDeg: angle, WavelengthNm: 632.8,
-			RefractiveIndex: 1.33162, DiffusionM2PerS: d, GammaMeanPerS: 1000, GammaSEPerS: 1, PDI: 0.05, PDISE: 0.01, Intercept: 0.9,
-			Params: []dls.Param{{Key: dls.KeyConcentration, Value: fmt.Sprint(c)}}}
+		return &dls.Result{Identity: dls.Identity{File: fmt.Sprintf("%s-%g-%g.csv", group, c, angle), Sample: "protein", Group: group, Status: dls.StatusOK}, Conditions: dls.Conditions{HasConditions: true, TemperatureC: 25, ViscosityMPaS: 0.890022, AngleDeg: angle, WavelengthNm: 632.8, RefractiveIndex: 1.33162}, Cumulants: dls.Cumulants{HasCumulants: true, DiffusionM2PerS: d, GammaMeanPerS: 1000, GammaSEPerS: 1, PDI: 0.05, PDISE: 0.01, Intercept: 0.9}, Corrections: dls.Corrections{Correction: "none"}, Params: []dls.Param{{Key: dls.KeyConcentration, Value: fmt.Sprint(c)}}}
 	}
 	var rs []*dls.Result
 	for _, c := range []float64{1, 2, 4, 8} {

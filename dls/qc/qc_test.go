@@ -13,14 +13,7 @@ import (
 // agreeing with the cumulants.
 func clean() *dls.Result {
 	tau := []float64{1e-6, 1e-5, 1e-4, 1e-3, 1e-2, 1e-1, 1}
-	return &dls.Result{
-		File: "a.csv", Sample: "latex", Status: dls.StatusOK, HasConditions: true, HasCumulants: true, HasDistribution: true,
-		TemperatureC: 25, ZAvgNm: 100, PDI: 0.02, Intercept: 0.92, Baseline: 1, FarBaseline: 1.0001, BaselineReached: true,
-		GammaMeanPerS: 3400, FitRMS: 1e-3, ReducedChi2: 1.1, SigmaEstimated: true, DistZAvgNm: 101, HasCountRate: true, CountRateKcps: 250,
-		Intensity:    &dls.WeightSummary{Peaks: []dls.Peak{{MeanNm: 100, AreaPct: 100}}},
-		Distribution: &dls.SizeDistribution{DiameterNm: []float64{50, 100, 200, 2000}, Intensity: []float64{0.1, 0.8, 0.1, 0}},
-		Curves:       &dls.Curves{TauS: tau, Kind: "g2"},
-	}
+	return &dls.Result{Identity: dls.Identity{File: "a.csv", Sample: "latex", Status: dls.StatusOK}, Conditions: dls.Conditions{HasConditions: true, TemperatureC: 25}, Cumulants: dls.Cumulants{HasCumulants: true, ZAvgNm: 100, PDI: 0.02, Intercept: 0.92, Baseline: 1, FarBaseline: 1.0001, BaselineReached: true, GammaMeanPerS: 3400, FitRMS: 1e-3, ReducedChi2: 1.1, SigmaEstimated: true, HasCountRate: true, CountRateKcps: 250}, DistSummary: dls.DistSummary{HasDistribution: true, DistZAvgNm: 101, Intensity: &dls.WeightSummary{Peaks: []dls.Peak{{MeanNm: 100, AreaPct: 100}}}, Distribution: &dls.SizeDistribution{DiameterNm: []float64{50, 100, 200, 2000}, Intensity: []float64{0.1, 0.8, 0.1, 0}}}, Curves: &dls.Curves{TauS: tau, Kind: "g2"}}
 }
 
 func TestFlagsFireAndStayQuiet(t *testing.T) {
@@ -154,7 +147,7 @@ func TestOutlierRule(t *testing.T) {
 func TestAggregateSplitsTemperatures(t *testing.T) {
 	a, b := clean(), clean()
 	b.TemperatureC = 37
-	bad := &dls.Result{File: "x.csv", Sample: "latex", Status: dls.StatusError, Message: "x.csv:1: empty", Flags: []dls.Flag{{Code: Failed, Message: "empty"}}}
+	bad := &dls.Result{Identity: dls.Identity{File: "x.csv", Sample: "latex", Status: dls.StatusError, Message: "x.csv:1: empty", Flags: []dls.Flag{{Code: Failed, Message: "empty"}}}}
 	s := Aggregate([]*dls.Result{a, b, bad}, Options{Thresholds: DefaultThresholds()})
 	if len(s) != 2 || s[0].NRuns != 2 || s[1].NRuns != 1 {
 		t.Fatalf("groups %+v", s)

@@ -58,8 +58,8 @@ func TestVerdictBoundaries(t *testing.T) {
 func TestIntensityAbove(t *testing.T) {
 	// Mean over the used runs of the intensity % above at_nm: run 0 has
 	// 1 % above 100 nm, run 1 has 3 % → mean 2 %, at the limit 2: pass.
-	r0 := &dls.Result{Distribution: &dls.SizeDistribution{DiameterNm: []float64{50, 150}, Intensity: []float64{0.99, 0.01}}}
-	r1 := &dls.Result{Distribution: &dls.SizeDistribution{DiameterNm: []float64{50, 150}, Intensity: []float64{0.97, 0.03}}}
+	r0 := &dls.Result{DistSummary: dls.DistSummary{Distribution: &dls.SizeDistribution{DiameterNm: []float64{50, 150}, Intensity: []float64{0.99, 0.01}}}}
+	r1 := &dls.Result{DistSummary: dls.DistSummary{Distribution: &dls.SizeDistribution{DiameterNm: []float64{50, 150}, Intensity: []float64{0.97, 0.03}}}}
 	smp := &dls.Sample{Product: "p", Role: "sample", NUsed: 2, Used: []int{0, 1}}
 	ref := &dls.Sample{Product: "ref", Role: "reference", ZAvgMeanNm: 100, NUsed: 3}
 	l := lim("p", "intensity_pct_above", 0, 2, false, true)

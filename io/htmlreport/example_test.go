@@ -12,8 +12,8 @@ import (
 // one page per sample, named by position.
 func ExampleWrite() {
 	results := []*dls.Result{
-		{File: "a.csv", Sample: "lot 7", Status: dls.StatusOK, HasCumulants: true, ZAvgNm: 101.2, PDI: 0.04},
-		{File: "b.csv", Sample: "lot 7", Status: dls.StatusOK, HasCumulants: true, ZAvgNm: 100.6, PDI: 0.05},
+		{Identity: dls.Identity{File: "a.csv", Sample: "lot 7", Status: dls.StatusOK}, Cumulants: dls.Cumulants{HasCumulants: true, ZAvgNm: 101.2, PDI: 0.04}},
+		{Identity: dls.Identity{File: "b.csv", Sample: "lot 7", Status: dls.StatusOK}, Cumulants: dls.Cumulants{HasCumulants: true, ZAvgNm: 100.6, PDI: 0.05}},
 	}
 	sample := &dls.Sample{
 		Name: "lot 7", Role: "sample", Runs: []int{0, 1}, Used: []int{0, 1}, NRuns: 2, NUsed: 2,

@@ -28,7 +28,7 @@ func FuzzSampleStrings(f *testing.F) {
 	f.Add("\x00\x01", "\xff", "a\rb", "\x7f\ufffe")
 	f.Fuzz(func(t *testing.T, name, lot, file, msg string) {
 		r := &Report{
-			Results: []*dls.Result{{File: file, Sample: name, Run: lot, Status: dls.StatusWarn, Message: msg,
+			Results: []*dls.Result{{Identity: dls.Identity{File: file, Sample: name, Run: lot, Status: dls.StatusWarn, Message: msg},
 				Params: []dls.Param{{Key: name, Value: msg, Origin: dls.OriginFile, Where: file}}}},
 			Samples: []*dls.Sample{{Name: name, Lot: lot, Product: msg, Role: file, Runs: []int{0}, Used: []int{0},
 				Flags:   []dls.Flag{{Code: lot, Message: msg}},

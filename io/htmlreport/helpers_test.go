@@ -209,22 +209,13 @@ func synthResult(rng *rand.Rand, tau, diam []float64, dNm float64) *dls.Result {
 	sd.Number = lognormal(diam, dNm*0.9, 0.15)
 	pk := dls.Peak{ModeNm: dNm, MeanNm: dNm, SDNm: 0.15 * dNm, AreaPct: 100, LowNm: dNm / 1.5, HighNm: dNm * 1.5}
 	sum := &dls.WeightSummary{Peaks: []dls.Peak{pk}, MeanNm: dNm, D10Nm: dNm * 0.8, D50Nm: dNm, D90Nm: dNm * 1.2}
-	return &dls.Result{
-		Status: dls.StatusOK, HasConditions: true, TemperatureC: 25, Solvent: "water",
-		ViscosityMPaS: 0.89, RefractiveIndex: 1.332, WavelengthNm: 633, AngleDeg: 173, QPerM: q,
-		HasCumulants: true, Method: "nonlinear", Order: 2, GammaMeanPerS: gamma, DiffusionM2PerS: D,
-		ZAvgNm: dNm, ZAvgSENm: 0.3, PDI: 0.05, Intercept: beta, Baseline: 1, BaselineReached: true,
-		FitRMS: 0.003, ReducedChi2: 1, FitPoints: len(tau), FitFirstTauS: tau[0], FitLastTauS: tau[len(tau)/2],
-		HasDistribution: true, AlphaCriterion: "prob-reject", Alpha: 0.5,
-		Intensity: sum, Volume: sum, Number: sum, Distribution: sd, Curves: c,
-		Params: []dls.Param{
-			{Key: "angle_deg", Value: "173", Origin: dls.OriginFile, Where: "x.csv:4"},
-			{Key: "sample", Value: "S", Origin: dls.OriginFile, Where: "x.csv:1"},
-			{Key: "solvent", Value: "water", Origin: dls.OriginDefault, Where: "--default solvent=water"},
-			{Key: "temperature_c", Value: "25", Origin: dls.OriginFile, Where: "x.csv:2"},
-			{Key: "wavelength_nm", Value: "633", Origin: dls.OriginFile, Where: "x.csv:3"},
-		},
-	}
+	return &dls.Result{Identity: dls.Identity{Status: dls.StatusOK}, Conditions: dls.Conditions{HasConditions: true, TemperatureC: 25, Solvent: "water", ViscosityMPaS: 0.89, RefractiveIndex: 1.332, WavelengthNm: 633, AngleDeg: 173, QPerM: q}, Cumulants: dls.Cumulants{HasCumulants: true, Method: "nonlinear", Order: 2, GammaMeanPerS: gamma, DiffusionM2PerS: D, ZAvgNm: dNm, ZAvgSENm: 0.3, PDI: 0.05, Intercept: beta, Baseline: 1, BaselineReached: true, FitRMS: 0.003, ReducedChi2: 1, FitPoints: len(tau), FitFirstTauS: tau[0], FitLastTauS: tau[len(tau)/2]}, DistSummary: dls.DistSummary{HasDistribution: true, AlphaCriterion: "prob-reject", Alpha: 0.5, Intensity: sum, Volume: sum, Number: sum, Distribution: sd}, Curves: c, Params: []dls.Param{
+		{Key: "angle_deg", Value: "173", Origin: dls.OriginFile, Where: "x.csv:4"},
+		{Key: "sample", Value: "S", Origin: dls.OriginFile, Where: "x.csv:1"},
+		{Key: "solvent", Value: "water", Origin: dls.OriginDefault, Where: "--default solvent=water"},
+		{Key: "temperature_c", Value: "25", Origin: dls.OriginFile, Where: "x.csv:2"},
+		{Key: "wavelength_nm", Value: "633", Origin: dls.OriginFile, Where: "x.csv:3"},
+	}}
 }
 
 // lognormal returns weights of a log-normal in d (width s in ln d) that

@@ -53,7 +53,7 @@ func TestPlotDegenerate(t *testing.T) {
 		corr, dst bool // plots expected
 	}{
 		{"nothing", &dls.Result{}, false, false},
-		{"empty curves", &dls.Result{Curves: &dls.Curves{}, Distribution: &dls.SizeDistribution{}}, false, false},
+		{"empty curves", &dls.Result{DistSummary: dls.DistSummary{Distribution: &dls.SizeDistribution{}}, Curves: &dls.Curves{}}, false, false},
 		{"one point", &dls.Result{Curves: &dls.Curves{TauS: []float64{1e-6}, Data: []float64{1.5}, Fitted: []float64{1.5}, Residuals: []float64{0}}}, false, false},
 		{"bad lags and values", &dls.Result{Curves: &dls.Curves{
 			TauS:      []float64{-1, 0, nan, 1e-6, 2e-6, 4e-6, inf},
@@ -67,15 +67,15 @@ func TestPlotDegenerate(t *testing.T) {
 		{"short fitted and residual arrays", &dls.Result{Curves: &dls.Curves{
 			TauS: []float64{1e-6, 1e-5, 1e-4}, Data: []float64{1.9, 1.5, 1}, Fitted: []float64{1.9}, Residuals: nil,
 		}}, true, false},
-		{"zero distribution", &dls.Result{Distribution: &dls.SizeDistribution{
+		{"zero distribution", &dls.Result{DistSummary: dls.DistSummary{Distribution: &dls.SizeDistribution{
 			DiameterNm: []float64{1, 10, 100}, Intensity: []float64{0, 0, 0},
-		}}, false, false},
-		{"one-bin distribution", &dls.Result{Distribution: &dls.SizeDistribution{
+		}}}, false, false},
+		{"one-bin distribution", &dls.Result{DistSummary: dls.DistSummary{Distribution: &dls.SizeDistribution{
 			DiameterNm: []float64{1, 10, 100, 1000}, Intensity: []float64{0, 1, 0, 0}, Volume: []float64{0, 1, 0, 0}, Number: []float64{0, 1, 0, 0},
-		}}, false, true},
-		{"distribution with bad bins", &dls.Result{Distribution: &dls.SizeDistribution{
+		}}}, false, true},
+		{"distribution with bad bins", &dls.Result{DistSummary: dls.DistSummary{Distribution: &dls.SizeDistribution{
 			DiameterNm: []float64{-1, 0, 10, 100, nan}, Intensity: []float64{5, 5, 0.5, 0.5, 5}, Volume: []float64{nan, 0, 1},
-		}}, false, true},
+		}}}, false, true},
 	} {
 		t.Run(tc.name, func(t *testing.T) {
 			p := plotRun(tc.r)

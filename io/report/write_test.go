@@ -13,10 +13,8 @@ import (
 )
 
 func sampleResults() []*dls.Result {
-	ok := &dls.Result{File: "a.csv", Sample: "lot, 7", Status: dls.StatusOK, HasConditions: true, HasCumulants: true,
-		TemperatureC: 25, Solvent: "water", ViscosityMPaS: 0.890022, RefractiveIndex: 1.33162, WavelengthNm: 632.8,
-		AngleDeg: 173, QPerM: 2.639445e7, GammaMeanPerS: 3418.78, ZAvgNm: 100.0004, PDI: 0.01234, Method: "nonlinear", Order: 2}
-	bad := &dls.Result{File: "b.csv", Run: "r1", Status: dls.StatusError, Message: `b.csv:4:2: "abc" is not a number`}
+	ok := &dls.Result{Identity: dls.Identity{File: "a.csv", Sample: "lot, 7", Status: dls.StatusOK}, Conditions: dls.Conditions{HasConditions: true, TemperatureC: 25, Solvent: "water", ViscosityMPaS: 0.890022, RefractiveIndex: 1.33162, WavelengthNm: 632.8, AngleDeg: 173, QPerM: 2.639445e7}, Cumulants: dls.Cumulants{HasCumulants: true, GammaMeanPerS: 3418.78, ZAvgNm: 100.0004, PDI: 0.01234, Method: "nonlinear", Order: 2}}
+	bad := &dls.Result{Identity: dls.Identity{File: "b.csv", Run: "r1", Status: dls.StatusError, Message: `b.csv:4:2: "abc" is not a number`}}
 	return []*dls.Result{ok, bad}
 }
 
