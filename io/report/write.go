@@ -11,6 +11,7 @@ import (
 	"text/tabwriter"
 
 	"dlsbatch/dls"
+	"dlsbatch/dls/batch"
 	"dlsbatch/dls/spec"
 	"dlsbatch/io/sheet"
 )
@@ -51,7 +52,7 @@ type Document struct {
 	Counts   dls.Counts         `json:"counts"`
 	Batch    spec.Batch         `json:"batch"`
 	Sheet    *sheet.MatchReport `json:"sheet,omitempty"`
-	Groups   any                `json:"groups,omitempty"`
+	Groups   *batch.GroupReport `json:"groups,omitempty"`
 	Samples  []*dls.Sample      `json:"samples"`
 	Results  []*dls.Result      `json:"results"`
 }
@@ -60,7 +61,7 @@ type Document struct {
 // result compact on a line of its own, so that the file stays readable and
 // greppable one measurement per line, and fast to write for thousands of
 // measurements with their curves. Keys come in a fixed order (struct order;
-// settings map keys sorted by encoding/json). JSON cannot carry NaN or Inf:
+// settings in sorted key order). JSON cannot carry NaN or Inf:
 // a result holding one is refused, as a last guard behind the pipeline.
 func WriteJSON(w io.Writer, doc *Document) error {
 	for _, r := range doc.Results {
