@@ -62,11 +62,7 @@ type Sheet struct {
 
 // Columns lists the columns a sheet may have.
 func Columns() []string {
-	c := []string{"file"}
-	for _, k := range dls.MetadataKeys {
-		c = append(c, k)
-	}
-	return c
+	return append([]string{"file"}, dls.MetadataKeys...)
 }
 
 // ReadFile parses the sample sheet at path.
