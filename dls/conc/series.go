@@ -3,13 +3,14 @@ package conc
 import (
 	"fmt"
 	"math"
-	"sort"
 
+	"gonum.org/v1/gonum/floats"
 	"gonum.org/v1/gonum/stat"
 	"gonum.org/v1/gonum/stat/distuv"
 
 	"dlsbatch/dls"
 	"dlsbatch/dls/linefit"
+	"dlsbatch/dls/stats"
 )
 
 // Point is one measurement of a dilution series.
@@ -223,13 +224,14 @@ func FitDilutionSeries(pts []Point, s *SeriesSettings) (*Series, error) {
 		}
 		x[i], y[i] = p.Concentration, p.DiffusionM2PerS
 	}
-	distinct := countDistinct(x)
+	distinct := stats.CountDistinct(x, 1e-9*floats.Norm(x, math.Inf(1)), 0)
 	if distinct < 3 {
 		return nil, fmt.Errorf("%d distinct concentrations: %w", distinct, ErrTooFewConcentrations)
 	}
 	// Weights 1/u² of order 1e26 /(m²/s)² would scale the covariance sums;
-	// work in units of the median D to keep every sum near 1.
-	ref := median(y)
+	// work in units of a middle D (the upper middle for an even count) to
+	// keep every sum near 1.
+	ref := stats.MedianHigh(y)
 	ys := make([]float64, n)
 	ws := make([]float64, n)
 	for i := range y {
@@ -441,25 +443,4 @@ func all(pts []Point, f func(Point) bool) bool {
 		}
 	}
 	return len(pts) > 0
-}
-
-// countDistinct counts values that differ by more than 1e-9 of the largest
-// magnitude.
-func countDistinct(x []float64) int {
-	s := append([]float64(nil), x...)
-	sort.Float64s(s)
-	tol := 1e-9 * math.Max(math.Abs(s[0]), math.Abs(s[len(s)-1]))
-	k := 0
-	for i := range s {
-		if i == 0 || s[i]-s[i-1] > tol {
-			k++
-		}
-	}
-	return k
-}
-
-func median(x []float64) float64 {
-	s := append([]float64(nil), x...)
-	sort.Float64s(s)
-	return s[len(s)/2]
 }

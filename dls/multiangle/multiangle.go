@@ -3,12 +3,12 @@ package multiangle
 import (
 	"fmt"
 	"math"
-	"sort"
 
 	"gonum.org/v1/gonum/stat/distuv"
 
 	"dlsbatch/dls"
 	"dlsbatch/dls/linefit"
+	"dlsbatch/dls/stats"
 )
 
 // Angle is the cumulant result of one measurement of the sample at one
@@ -174,7 +174,7 @@ func Analyze(angles []Angle, tK, etaPaS float64, s *Settings) (*Result, error) {
 		y[i] = a.GammaPerS
 		w[i] = 1 / (a.GammaSEPerS * a.GammaSEPerS)
 	}
-	distinct := countDistinct(x)
+	distinct := stats.CountDistinct(x, 0, 1e-6)
 	if distinct < 3 {
 		return nil, fmt.Errorf("%d distinct angles: %w", distinct, ErrTooFewAngles)
 	}
@@ -280,19 +280,6 @@ func Analyze(angles []Angle, tK, etaPaS float64, s *Settings) (*Result, error) {
 		warn("decay rates scatter about the line beyond their standard errors (χ²/ν = %.3g): uncertainties widened by √(χ²/ν)", r.ReducedChi2)
 	}
 	return r, nil
-}
-
-// countDistinct counts values that differ by more than 1e-6 relative.
-func countDistinct(x []float64) int {
-	s := append([]float64(nil), x...)
-	sort.Float64s(s)
-	k := 0
-	for i := range s {
-		if i == 0 || s[i]-s[i-1] > 1e-6*math.Abs(s[i]) {
-			k++
-		}
-	}
-	return k
 }
 
 func minMax(x []float64) (lo, hi float64) {

@@ -27,6 +27,7 @@ import (
 	"sort"
 
 	"dlsbatch/dls"
+	"dlsbatch/dls/stats"
 )
 
 // Flag codes. Stable: add new ones, never rename or reuse.
@@ -259,12 +260,12 @@ func aggregate(s *dls.Sample, results []*dls.Result, o Options) {
 		for k, i := range ok {
 			z[k] = results[i].ZAvgNm
 		}
-		med := median(z)
+		med := stats.Median(z)
 		dev := make([]float64, len(z))
 		for k, v := range z {
 			dev[k] = math.Abs(v - med)
 		}
-		sd := math.Max(1.4826*median(dev), 0.005*med)
+		sd := math.Max(1.4826*stats.Median(dev), 0.005*med)
 		for k, i := range ok {
 			if dev[k] > t.OutlierK*sd {
 				s.Outliers = append(s.Outliers, i)
@@ -293,8 +294,8 @@ func aggregate(s *dls.Sample, results []*dls.Result, o Options) {
 			d90 = append(d90, r.Intensity.D90Nm)
 		}
 	}
-	s.ZAvgMeanNm, s.ZAvgSDNm = meanSD(z)
-	s.PDIMean, s.PDISD = meanSD(p)
+	s.ZAvgMeanNm, s.ZAvgSDNm = stats.MeanSD(z)
+	s.PDIMean, s.PDISD = stats.MeanSD(p)
 	if s.ZAvgMeanNm != 0 {
 		s.ZAvgRSDPct = 100 * s.ZAvgSDNm / s.ZAvgMeanNm
 	}
@@ -302,8 +303,8 @@ func aggregate(s *dls.Sample, results []*dls.Result, o Options) {
 		s.PDIRSDPct = 100 * s.PDISD / math.Abs(s.PDIMean)
 	}
 	if len(pk) > 0 {
-		s.Peak1MeanNm, _ = meanSD(pk)
-		s.D90MeanNm, _ = meanSD(d90)
+		s.Peak1MeanNm, _ = stats.MeanSD(pk)
+		s.D90MeanNm, _ = stats.MeanSD(d90)
 	}
 	if s.NUsed < t.MinRuns {
 		s.Flags = append(s.Flags, dls.Flag{Code: FewRuns, Message: fmt.Sprintf("%d run(s) used, %d wanted", s.NUsed, t.MinRuns)})
@@ -327,30 +328,4 @@ func contains(v []int, x int) bool {
 		}
 	}
 	return false
-}
-
-func median(v []float64) float64 {
-	c := append([]float64(nil), v...)
-	sort.Float64s(c)
-	n := len(c)
-	if n%2 == 1 {
-		return c[n/2]
-	}
-	return (c[n/2-1] + c[n/2]) / 2
-}
-
-// meanSD returns the mean and the sample standard deviation (n − 1); the SD
-// of a single value is 0.
-func meanSD(v []float64) (m, sd float64) {
-	for _, x := range v {
-		m += x
-	}
-	m /= float64(len(v))
-	if len(v) < 2 {
-		return m, 0
-	}
-	for _, x := range v {
-		sd += (x - m) * (x - m)
-	}
-	return m, math.Sqrt(sd / float64(len(v)-1))
 }

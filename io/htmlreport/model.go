@@ -11,6 +11,7 @@ import (
 	"strings"
 
 	"dlsbatch/dls"
+	"dlsbatch/dls/stats"
 )
 
 //go:embed templates/*.html templates/style.css
@@ -434,7 +435,7 @@ func set(idx []int) map[int]bool {
 const dash = "—"
 
 func fixed(v float64, prec int) string {
-	if !isFinite(v) {
+	if !stats.IsFinite(v) {
 		return dash
 	}
 	s := strconv.FormatFloat(v, 'f', prec, 64)
@@ -447,7 +448,7 @@ func fixed(v float64, prec int) string {
 // sig formats v with n significant digits, in fixed notation between
 // 1e-3 and 1e6 and in exponent notation outside.
 func sig(v float64, n int) string {
-	if !isFinite(v) {
+	if !stats.IsFinite(v) {
 		return dash
 	}
 	a := math.Abs(v)
