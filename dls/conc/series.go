@@ -242,7 +242,7 @@ func FitDilutionSeries(pts []Point, s *SeriesSettings) (*Series, error) {
 			return nil, fmt.Errorf("point %d: standard uncertainty %g m²/s of D is out of proportion to D: %w", i+1, pts[i].DiffusionSEM2PerS, ErrRange)
 		}
 	}
-	l := linefit.Fit(x, ys, ws, true, set.Scaling == ScaleBirge)
+	l := linefit.Fit(x, ys, ws, linefit.Options{KnownUncertainty: true, Birge: set.Scaling == ScaleBirge})
 	a, b := l.A*ref, l.B*ref
 	if !(a > 0) {
 		return nil, fmt.Errorf("dilution series extrapolates to D0 = %.4g m²/s at c = 0, not positive: %w", a, ErrRange)
@@ -408,8 +408,8 @@ func trendCheck(name string, x, v, u []float64, set SeriesSettings) *Trend {
 			}
 		}
 	}
-	l := linefit.Fit(x, v, w, known, set.Scaling == ScaleBirge)
-	st, p := linefit.SlopeTest(l, known)
+	l := linefit.Fit(x, v, w, linefit.Options{KnownUncertainty: known, Birge: set.Scaling == ScaleBirge})
+	st, p := linefit.SlopeTest(l)
 	t := &Trend{Quantity: name, Slope: l.B, SlopeSE: math.Sqrt(l.VarB), Statistic: st, PValue: p, Test: "t"}
 	if known {
 		t.Test = "z"

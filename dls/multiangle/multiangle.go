@@ -180,7 +180,7 @@ func Analyze(angles []Angle, tK, etaPaS float64, s *Settings) (*Result, error) {
 	}
 
 	// Γ̄ against q².
-	l := linefit.Fit(x, y, w, true, true)
+	l := linefit.Fit(x, y, w, linefit.Options{KnownUncertainty: true, Birge: true})
 	d := l.B * um2 // m²/s
 	if !(d > 0) {
 		return nil, fmt.Errorf("decay rate does not grow with q² (slope %.4g m²/s): not a diffusive sample, or angles mislabelled", d)
@@ -219,7 +219,7 @@ func Analyze(angles []Angle, tK, etaPaS float64, s *Settings) (*Result, error) {
 		dapp[i] = da * 1e12
 		wD[i] = 1 / ((dapp[i] * rel) * (dapp[i] * rel))
 	}
-	lt := linefit.Fit(x, sizes, wSize, true, false)
+	lt := linefit.Fit(x, sizes, wSize, linefit.Options{KnownUncertainty: true})
 	r.TrendSlopeNmUm2 = lt.B
 	r.TrendSlopeSENmUm2 = math.Sqrt(lt.VarB)
 	r.TrendZ = lt.B / r.TrendSlopeSENmUm2
@@ -242,7 +242,7 @@ func Analyze(angles []Angle, tK, etaPaS float64, s *Settings) (*Result, error) {
 	r.SpreadDOF = n - 1
 	r.SpreadP = (distuv.ChiSquared{K: float64(r.SpreadDOF)}).Survival(r.SpreadChi2)
 	r.SpreadFlagged = r.SpreadP < 2*distuv.UnitNormal.Survival(set.TrendLimit)
-	lz := linefit.Fit(x, dapp, wD, true, true)
+	lz := linefit.Fit(x, dapp, wD, linefit.Options{KnownUncertainty: true, Birge: true})
 	r.ZeroQDiffusionM2PerS = lz.A * 1e-12
 	r.ZeroQDiffusionSEM2PerS = math.Sqrt(lz.VarA) * 1e-12
 	if r.ZeroQDiffusionM2PerS > 0 {
