@@ -30,24 +30,29 @@ import (
 	"dlsbatch/dls/stats"
 )
 
+// Code is a flag code. It is dls.FlagCode (an alias, not a new type), the
+// type of dls.Flag.Code, so that the constants below go into a flag as
+// they are.
+type Code = dls.FlagCode
+
 // Flag codes. Stable: add new ones, never rename or reuse.
 const (
-	LowIntercept   = "LOW-INTERCEPT"
-	HighIntercept  = "HIGH-INTERCEPT"
-	NoBaseline     = "NO-BASELINE"
-	BaselineOffset = "BASELINE-OFFSET"
-	Dust           = "DUST"
-	PoorFit        = "POOR-FIT"
-	HighPDI        = "HIGH-PDI"
-	OutsideWindow  = "OUTSIDE-WINDOW"
-	Multimodal     = "MULTIMODAL"
-	DistMismatch   = "DIST-MISMATCH"
-	LowCountRate   = "LOW-COUNT-RATE"
-	Failed         = "FAILED"
-	Outlier        = "OUTLIER"
-	FewRuns        = "FEW-RUNS"
-	HighRSD        = "HIGH-RSD"
-	NoValidRuns    = "NO-VALID-RUNS"
+	LowIntercept   Code = "LOW-INTERCEPT"
+	HighIntercept  Code = "HIGH-INTERCEPT"
+	NoBaseline     Code = "NO-BASELINE"
+	BaselineOffset Code = "BASELINE-OFFSET"
+	Dust           Code = "DUST"
+	PoorFit        Code = "POOR-FIT"
+	HighPDI        Code = "HIGH-PDI"
+	OutsideWindow  Code = "OUTSIDE-WINDOW"
+	Multimodal     Code = "MULTIMODAL"
+	DistMismatch   Code = "DIST-MISMATCH"
+	LowCountRate   Code = "LOW-COUNT-RATE"
+	Failed         Code = "FAILED"
+	Outlier        Code = "OUTLIER"
+	FewRuns        Code = "FEW-RUNS"
+	HighRSD        Code = "HIGH-RSD"
+	NoValidRuns    Code = "NO-VALID-RUNS"
 )
 
 // Thresholds are the settings behind the flags. Defaults: DefaultThresholds.
@@ -94,7 +99,8 @@ func DefaultThresholds() Thresholds {
 
 // Definition describes one flag for listings.
 type Definition struct {
-	Code, Level, Meaning, Threshold string
+	Code                      Code
+	Level, Meaning, Threshold string
 }
 
 // Definitions lists every flag with the threshold of t, in a fixed order.
@@ -122,7 +128,7 @@ func Definitions(t Thresholds) []Definition {
 // Measurement returns the flags of one result.
 func Measurement(r *dls.Result, tau []float64, t Thresholds) []dls.Flag {
 	var f []dls.Flag
-	add := func(code, format string, a ...any) {
+	add := func(code Code, format string, a ...any) {
 		f = append(f, dls.Flag{Code: code, Message: fmt.Sprintf(format, a...)})
 	}
 	if r.Status == dls.StatusError {

@@ -107,7 +107,7 @@ func Evaluate(s *Spec, samples []*dls.Sample, results []*dls.Result) Batch {
 	for _, smp := range samples {
 		limits := byProduct[strings.ToLower(smp.Product)]
 		if len(limits) == 0 {
-			if smp.Role == "reference" {
+			if smp.Role == dls.RoleReference {
 				refs++
 				refFail = append(refFail, fmt.Sprintf("reference %q has no limits for its product %q", smp.Name, smp.Product))
 			}
@@ -115,7 +115,7 @@ func Evaluate(s *Spec, samples []*dls.Sample, results []*dls.Result) Batch {
 		}
 		v := verdict(smp, limits, results)
 		smp.Verdict = v
-		if smp.Role == "reference" {
+		if smp.Role == dls.RoleReference {
 			refs++
 			if v.Outcome != dls.VerdictPass {
 				refFail = append(refFail, fmt.Sprintf("reference %q failed: %s", smp.Name, v.Reason))
@@ -133,7 +133,7 @@ func Evaluate(s *Spec, samples []*dls.Sample, results []*dls.Result) Batch {
 			b.NoSpec++
 			continue
 		}
-		if !b.Valid && smp.Role != "reference" {
+		if !b.Valid && smp.Role != dls.RoleReference {
 			smp.Verdict.Outcome = dls.VerdictInvalid
 			smp.Verdict.Reason = b.Reason
 		}

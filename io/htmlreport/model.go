@@ -61,7 +61,7 @@ func verdictMark(s *dls.Sample) mark {
 	case "":
 		return mark{"none", "none"}
 	default:
-		return mark{v, v}
+		return mark{string(v), string(v)}
 	}
 }
 
@@ -149,7 +149,7 @@ func buildIndex(r *Report) indexPage {
 			Name:    s.Name,
 			Lot:     s.Lot,
 			Product: s.Product,
-			Role:    s.Role,
+			Role:    string(s.Role),
 			Used:    len(s.Used),
 			Total:   len(s.Runs),
 			ZAvg:    meanSD(s.ZAvgMeanNm, s.ZAvgSDNm, len(s.Used), 1),
@@ -248,7 +248,7 @@ func buildSample(r *Report, i int) samplePage {
 		Name:    s.Name,
 		Lot:     s.Lot,
 		Product: s.Product,
-		Role:    s.Role,
+		Role:    string(s.Role),
 		Group:   s.Group,
 		Verdict: verdictMark(s),
 		Flags:   s.Flags,
@@ -539,7 +539,7 @@ func temperatures(ts []float64) string {
 // joined, so that a code raised on several runs shows once on the index.
 func mergeFlags(f []dls.Flag) []dls.Flag {
 	var out []dls.Flag
-	at := map[string]int{}
+	at := map[dls.FlagCode]int{}
 	for _, x := range f {
 		if i, ok := at[x.Code]; ok {
 			out[i].Message += "; " + x.Message
