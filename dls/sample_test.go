@@ -63,3 +63,16 @@ func TestTypedFieldsKeepJSON(t *testing.T) {
 		}
 	}
 }
+
+// TestMetadataKeysIsACopy: changing the returned slice changes neither a
+// later result nor IsMetadataKey.
+func TestMetadataKeysIsACopy(t *testing.T) {
+	k := MetadataKeys()
+	if len(k) == 0 || k[0] != KeySample {
+		t.Fatalf("MetadataKeys() = %v", k)
+	}
+	k[0] = "changed"
+	if MetadataKeys()[0] != KeySample || IsMetadataKey("changed") || !IsMetadataKey(KeySample) {
+		t.Errorf("MetadataKeys() shares its backing array")
+	}
+}

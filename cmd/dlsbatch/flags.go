@@ -54,7 +54,7 @@ func (f *paramsFlag) Set(s string) error {
 		return fmt.Errorf("%q: want key=value, e.g. temperature_c=25", s)
 	}
 	if !dls.IsMetadataKey(k) {
-		return fmt.Errorf("%q: unknown key %q; known keys: %s", s, k, strings.Join(dls.MetadataKeys, ", "))
+		return fmt.Errorf("%q: unknown key %q; known keys: %s", s, k, strings.Join(dls.MetadataKeys(), ", "))
 	}
 	f.params = append(f.params, dls.Param{Key: k, Value: strings.TrimSpace(v), Origin: f.origin, Where: "--" + f.flag + " " + s})
 	return nil

@@ -60,7 +60,7 @@ type Sheet struct {
 
 // Columns lists the columns a sheet may have.
 func Columns() []string {
-	return append([]string{"file"}, dls.MetadataKeys...)
+	return append([]string{"file"}, dls.MetadataKeys()...)
 }
 
 // ReadFile parses the sample sheet at path.
