@@ -5,7 +5,11 @@
 // meaning listed by `dlsbatch flags`, and a threshold that is a documented
 // setting. The default thresholds are common practice in DLS laboratories
 // (marked so below; recalled, not taken from a cited standard) and are
-// meant to be tuned by each site to its instruments and products.
+// meant to be tuned by each site to its instruments and products: a site
+// lists its own values in a thresholds file (package io/qcfile, read by
+// `dlsbatch run --qc-thresholds`). Thresholds.Set takes a threshold by its
+// key, the JSON name that results.json writes under qc_thresholds, and
+// rejects a value outside the key's range (ThresholdKeys).
 //
 // Aggregation groups results by sample name, lot and temperature (to
 // 0.1 °C; a sample measured at two temperatures is two samples). Results
