@@ -25,6 +25,7 @@ import (
 	"dlsbatch/dls/uncert"
 	"dlsbatch/io/csvdata"
 	"dlsbatch/io/htmlreport"
+	"dlsbatch/io/qcfile"
 	"dlsbatch/io/report"
 	"dlsbatch/io/sheet"
 	"dlsbatch/io/solventfile"
@@ -53,6 +54,7 @@ type runOptions struct {
 	solventFile string
 	sheetFile   string
 	specFile    string
+	qcFile      string
 	exclude     bool
 	noReport    bool
 	uTempK      float64
@@ -103,6 +105,7 @@ func (o *runOptions) addFlags(fs *pflag.FlagSet) {
 	fs.StringVar(&o.solventFile, "solvent-file", "", "CSV of extra or replacement solvents (see 'dlsbatch solvents --help')")
 	fs.StringVar(&o.sheetFile, "sheet", "", "sample sheet (CSV): per-file sample, lot, product, role and conditions")
 	fs.StringVar(&o.specFile, "spec", "", "specification (CSV): limits per product; verdicts and system suitability")
+	fs.StringVar(&o.qcFile, "qc-thresholds", "", "site QC thresholds (CSV key,value): replace the defaults of the keys listed (format: 'dlsbatch flags --help')")
 	fs.BoolVar(&o.exclude, "exclude-outliers", false, "leave outlier runs out of each sample's statistics (they are flagged either way)")
 	fs.BoolVar(&o.noReport, "no-report", false, "do not write the HTML report (DIR/report/)")
 	fs.BoolVar(&o.noDist, "no-distribution", false, "cumulants only: skip the size distributions")
@@ -181,6 +184,12 @@ func runRun(ctx context.Context, e env, args []string) int {
 	if o.specFile != "" {
 		if sp, err = specfile.ReadFile(o.specFile); err != nil {
 			fmt.Fprintf(e.stderr, "dlsbatch run: specification: %v\n", err)
+			return exitUsage
+		}
+	}
+	if o.qcFile != "" {
+		if settings.QC, err = qcfile.ReadFile(o.qcFile, settings.QC); err != nil {
+			fmt.Fprintf(e.stderr, "dlsbatch run: %v\n", err)
 			return exitUsage
 		}
 	}
@@ -436,7 +445,7 @@ func (o *runOptions) describe(s batch.Settings) map[string]any {
 		}
 		return out
 	}
-	return map[string]any{
+	m := map[string]any{
 		"cumulant_method":     s.Cumulants.Method.String(),
 		"cumulant_order":      s.Cumulants.Order,
 		"g1_cutoff":           s.Cumulants.Cutoff,
@@ -469,6 +478,10 @@ func (o *runOptions) describe(s batch.Settings) map[string]any {
 		"default_particle_ri": mie.FormatComplexIndex(s.Distribution.DefaultParticleRI),
 		"qc_thresholds":       s.QC,
 	}
+	if o.qcFile != "" {
+		m["qc_thresholds_file"] = o.qcFile
+	}
+	return m
 }
 
 func readInputs(path string, o *csvdata.Options) []batch.Input {
@@ -551,7 +564,7 @@ func writeManifest(o *runOptions, settings map[string]any, files []string, writt
 		}
 		m.Inputs = append(m.Inputs, h)
 	}
-	for _, t := range []string{o.sheetFile, o.specFile, o.solventFile} {
+	for _, t := range []string{o.sheetFile, o.specFile, o.solventFile, o.qcFile} {
 		if t == "" {
 			continue
 		}

@@ -21,14 +21,19 @@ var ErrDuplicate = errors.New("threshold given twice")
 func Columns() []string { return []string{"key", "value", "note"} }
 
 // ReadFile parses the thresholds file at path over base (usually
-// qc.DefaultThresholds()).
+// qc.DefaultThresholds()). Errors say "QC thresholds" and wrap those of
+// os.Open and Parse.
 func ReadFile(path string, base qc.Thresholds) (qc.Thresholds, error) {
 	f, err := os.Open(path)
 	if err != nil {
 		return base, fmt.Errorf("QC thresholds: %w", err)
 	}
 	defer f.Close()
-	return Parse(f, path, base)
+	th, err := Parse(f, path, base)
+	if err != nil {
+		return base, fmt.Errorf("QC thresholds: %w", err)
+	}
+	return th, nil
 }
 
 // Parse reads a thresholds file from r and returns base with the values it
