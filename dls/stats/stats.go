@@ -71,8 +71,7 @@ func MeanSD(v []float64) (mean, sd float64) {
 // one before it by more than atol + rtol·|value|, the closeness test of
 // NumPy's isclose (absolute and relative tolerance). With both tolerances 0
 // it counts exactly distinct values; NaN values are not expected. v is not
-// modified. gonum has no such count (floats.Same and stat.Mode compare with
-// ==).
+// modified. gonum has no such count.
 func CountDistinct(v []float64, atol, rtol float64) int {
 	if len(v) == 0 {
 		return 0
