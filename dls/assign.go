@@ -15,7 +15,7 @@ func ParseAssignment(s string, origin Origin, where string) (Param, error) {
 		return Param{}, fmt.Errorf("%q: want key=value, e.g. temperature_c=25", s)
 	}
 	if !IsMetadataKey(k) {
-		return Param{}, fmt.Errorf("%q: unknown key %q; known keys: %s", s, k, strings.Join(MetadataKeys, ", "))
+		return Param{}, fmt.Errorf("%q: unknown key %q; known keys: %s", s, k, strings.Join(MetadataKeys(), ", "))
 	}
 	return Param{Key: k, Value: strings.TrimSpace(v), Origin: origin, Where: where}, nil
 }

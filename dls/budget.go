@@ -30,8 +30,8 @@ type Budget struct {
 	ExpandedUNm    float64 `json:"expanded_uncertainty_nm"`
 	// EffectiveDOF is ν_eff by Welch–Satterthwaite (0 means infinite) and
 	// CoverageFactorT95 the Student t_0.975(ν_eff) (1.96 for infinite).
-	EffectiveDOF      float64     `json:"effective_dof"`
-	CoverageFactorT95 float64     `json:"coverage_factor_t95"`
+	EffectiveDOF      float64           `json:"effective_dof"`
+	CoverageFactorT95 float64           `json:"coverage_factor_t95"`
 	Components        []BudgetComponent `json:"components"`
 	// Notes name the assumptions the budget rests on.
 	Notes []string `json:"notes"`

@@ -3,6 +3,7 @@ package dls
 import (
 	"fmt"
 	"math"
+	"slices"
 	"sort"
 	"strconv"
 	"strings"
@@ -64,9 +65,11 @@ const (
 	KeyKD = "kd"
 )
 
-// MetadataKeys lists every key of the input contract, in the order used for
-// output.
-var MetadataKeys = []string{
+// MetadataKeys returns every key of the input contract, in the order used
+// for output (a new slice each call).
+func MetadataKeys() []string { return slices.Clone(metadataKeys) }
+
+var metadataKeys = []string{
 	KeySample, KeyRun, KeyTemperatureC, KeyWavelengthNm, KeyAngleDeg, KeySolvent,
 	KeyViscosityMPaS, KeyRefractiveIndex, KeyParticleRI, KeyConcentration,
 	KeyParticleDensity, KeyVolumeFraction, KeyCountRateKcps, KeyDurationS,
@@ -87,12 +90,7 @@ func IsNumericKey(key string) bool {
 
 // IsMetadataKey reports whether key belongs to the input contract.
 func IsMetadataKey(key string) bool {
-	for _, k := range MetadataKeys {
-		if k == key {
-			return true
-		}
-	}
-	return false
+	return slices.Contains(metadataKeys, key)
 }
 
 // Param is one metadata value with its provenance.

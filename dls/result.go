@@ -48,10 +48,10 @@ type Identity struct {
 	Status  Status `json:"status"`
 	Message string `json:"message"`
 	// Lot, Product, Role and Group come from the metadata (sample sheet
-	// or file); Role is "sample" unless given.
+	// or file); Role is RoleSample unless given.
 	Lot     string `json:"lot"`
 	Product string `json:"product"`
-	Role    string `json:"role"`
+	Role    Role   `json:"role"`
 	Group   string `json:"group"`
 	// Flags are the QC findings on this measurement (codes listed by
 	// `dlsbatch flags`).

@@ -1,10 +1,50 @@
 package dls
 
+import (
+	"fmt"
+	"strings"
+)
+
+// FlagCode is the stable code of a quality-control flag, e.g.
+// "HIGH-PDI". The codes are the constants of package dls/qc (qc.Code is
+// this type) and are listed by `dlsbatch flags`.
+type FlagCode string
+
 // Flag is a quality-control finding on a measurement or a sample: a stable
 // code (listed by `dlsbatch flags`) and a sentence saying what was seen.
 type Flag struct {
-	Code    string `json:"code"`
-	Message string `json:"message"`
+	Code    FlagCode `json:"code"`
+	Message string   `json:"message"`
+}
+
+// Role is what a sample is measured as in a batch.
+type Role string
+
+// Roles. A result whose metadata gives none is a sample.
+const (
+	RoleSample Role = "sample"
+	// RoleReference is a reference standard: the system suitability test
+	// of package dls/spec evaluates it against its own product's limits.
+	RoleReference Role = "reference"
+	RoleBlank     Role = "blank"
+)
+
+// Roles returns every role, in a fixed order (a new slice each call).
+func Roles() []Role { return []Role{RoleSample, RoleReference, RoleBlank} }
+
+// ParseRole returns the role named by s, in any letter case ("Reference"
+// is RoleReference). Any other text is an error that lists the roles and
+// wraps ErrBadMetadata.
+func ParseRole(s string) (Role, error) {
+	l := Role(strings.ToLower(s))
+	names := make([]string, 0, 3)
+	for _, r := range Roles() {
+		if l == r {
+			return r, nil
+		}
+		names = append(names, string(r))
+	}
+	return "", fmt.Errorf("role %q: want one of %s: %w", s, strings.Join(names, ", "), ErrBadMetadata)
 }
 
 // Sample aggregates the measurements of one sample (same sample name, and
@@ -13,9 +53,8 @@ type Sample struct {
 	Name    string `json:"sample"`
 	Lot     string `json:"lot"`
 	Product string `json:"product"`
-	// Role is "sample", "reference" or "blank".
-	Role  string `json:"role"`
-	Group string `json:"group"`
+	Role    Role   `json:"role"`
+	Group   string `json:"group"`
 
 	// Runs indexes the sample's measurements in the batch's result list
 	// (results.csv order); Used those that enter the statistics.
@@ -50,16 +89,21 @@ type Sample struct {
 	Verdict *Verdict `json:"verdict,omitempty"`
 }
 
+// Outcome is the result of a verdict.
+type Outcome string
+
 // Verdict outcomes.
 const (
-	VerdictPass    = "pass"
-	VerdictFail    = "fail"
-	VerdictInvalid = "invalid"
+	VerdictPass Outcome = "pass" // every limit met
+	VerdictFail Outcome = "fail" // a limit not met, or no analysed run
+	// VerdictInvalid: the batch failed its system suitability test, so no
+	// verdict of it stands.
+	VerdictInvalid Outcome = "invalid"
 )
 
 // Verdict is a sample's outcome against its specification.
 type Verdict struct {
-	Outcome string `json:"outcome"`
+	Outcome Outcome `json:"outcome"`
 	// Reason says why in words: the failed limits, or why the batch is
 	// invalid (a failed system suitability test).
 	Reason string  `json:"reason"`

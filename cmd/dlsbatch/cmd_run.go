@@ -23,6 +23,7 @@ import (
 	"dlsbatch/dls/spec"
 	"dlsbatch/dls/uncert"
 	"dlsbatch/io/csvdata"
+	"dlsbatch/io/qcfile"
 	"dlsbatch/io/report"
 	"dlsbatch/io/sheet"
 	"dlsbatch/io/solventfile"
@@ -51,6 +52,7 @@ type runOptions struct {
 	solventFile string
 	sheetFile   string
 	specFile    string
+	qcFile      string
 	exclude     bool
 	noReport    bool
 	uTempK      float64
@@ -101,6 +103,7 @@ func (o *runOptions) addFlags(fs *pflag.FlagSet) {
 	fs.StringVar(&o.solventFile, "solvent-file", "", "CSV of extra or replacement solvents (see 'dlsbatch solvents --help')")
 	fs.StringVar(&o.sheetFile, "sheet", "", "sample sheet (CSV): per-file sample, lot, product, role and conditions")
 	fs.StringVar(&o.specFile, "spec", "", "specification (CSV): limits per product; verdicts and system suitability")
+	fs.StringVar(&o.qcFile, "qc-thresholds", "", "site QC thresholds (CSV key,value): replace the defaults of the keys listed (format: 'dlsbatch flags --help')")
 	fs.BoolVar(&o.exclude, "exclude-outliers", false, "leave outlier runs out of each sample's statistics (they are flagged either way)")
 	fs.BoolVar(&o.noReport, "no-report", false, "do not write the HTML report (DIR/report/)")
 	fs.BoolVar(&o.noDist, "no-distribution", false, "cumulants only: skip the size distributions")
@@ -176,6 +179,11 @@ func runRun(ctx context.Context, e env, args []string) int {
 			return fail(exitUsage, fmt.Errorf("specification: %w", err))
 		}
 	}
+	if o.qcFile != "" {
+		if settings.QC, err = qcfile.ReadFile(o.qcFile, settings.QC); err != nil {
+			return fail(exitUsage, err)
+		}
+	}
 
 	files, derrs := csvdata.Discover(paths)
 	for _, err := range derrs {
@@ -233,7 +241,7 @@ func runRun(ctx context.Context, e env, args []string) int {
 		Samples: samples, Results: results,
 	}
 	set := &report.Set{Doc: doc, HTMLReport: !o.noReport, Inputs: files}
-	for _, t := range []string{o.sheetFile, o.specFile, o.solventFile} {
+	for _, t := range []string{o.sheetFile, o.specFile, o.solventFile, o.qcFile} {
 		if t != "" {
 			set.Tables = append(set.Tables, t)
 		}
@@ -331,7 +339,7 @@ func (o *runOptions) record(s batch.Settings) *report.Settings {
 		Distribution: s.Distribution.Enabled, ExcludeOutliers: o.exclude, Extrapolate: s.Extrapolate,
 		G1Cutoff: s.Cumulants.Cutoff, GridPoints: s.Distribution.Grid.NGamma, LagColumn: o.tauCol, LagUnit: o.tauUnit,
 		MinLagS: s.Cumulants.MinTauS, MinPoints: s.Cumulants.MinPoints,
-		ProbRejectTarget: s.Distribution.Contin.TargetProbReject, QCThresholds: s.QC, RangeCheck: s.Cumulants.RangeCheck,
+		ProbRejectTarget: s.Distribution.Contin.TargetProbReject, QCThresholds: s.QC, QCThresholdsFile: o.qcFile, RangeCheck: s.Cumulants.RangeCheck,
 		Set: dls.Assignments(s.Overrides), Sheet: o.sheetFile, SigmaColumn: o.sigmaCol, SolventFile: o.solventFile, Spec: o.specFile,
 		UAngleDeg: o.uAngleDeg, URefractiveIndex: s.Uncertainty.RefractiveIndex, UTemperatureK: s.Uncertainty.TemperatureK,
 		UViscosityRel: o.uViscRel,

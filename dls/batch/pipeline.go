@@ -88,14 +88,14 @@ func Analyze(m *dls.Measurement, s *Settings) *dls.Result {
 			Sample:  meta.String(dls.KeySample),
 			Lot:     meta.String(dls.KeyLot),
 			Product: meta.String(dls.KeyProduct),
-			Role:    strings.ToLower(meta.String(dls.KeyRole)),
+			Role:    dls.Role(strings.ToLower(meta.String(dls.KeyRole))),
 			Group:   meta.String(dls.KeyGroup),
 		},
 		Cumulants: dls.Cumulants{CorrelationColumn: m.CorrColumn, CorrelationKind: m.Kind.String()},
 		Params:    meta.Params(),
 	}
 	if r.Role == "" {
-		r.Role = "sample"
+		r.Role = dls.RoleSample
 	}
 	warn := append([]string(nil), m.Warnings...)
 	if p, ok := meta.Get(dls.KeySolvent); ok && p.Origin == dls.OriginDefault {
@@ -212,7 +212,7 @@ func Analyze(m *dls.Measurement, s *Settings) *dls.Result {
 	r.Status = dls.StatusOK
 	msg := append([]string(nil), warn...)
 	for _, f := range r.Flags {
-		msg = append(msg, f.Code+": "+f.Message)
+		msg = append(msg, string(f.Code)+": "+f.Message)
 	}
 	if len(msg) > 0 {
 		r.Status = dls.StatusWarn

@@ -30,7 +30,7 @@ func monoMeasurement(meta map[string]string) *dls.Measurement {
 		m.Corr[i] = 1 + 0.9*math.Exp(-2*3418.78*t)
 	}
 	line := 1
-	for _, k := range dls.MetadataKeys {
+	for _, k := range dls.MetadataKeys() {
 		if v, ok := meta[k]; ok {
 			m.Meta.Set(dls.Param{Key: k, Value: v, Origin: dls.OriginFile, Where: fmt.Sprintf("mono.csv:%d", line)})
 			line++

@@ -23,9 +23,10 @@ func TestQCFlagsOnSimulatedCases(t *testing.T) {
 		return v
 	}
 	cases := []struct {
-		name, pop, want string
-		before          func(c *sim.Config)
-		after           func(m *dls.Measurement, out *sim.Output)
+		name, pop string
+		want      qc.Code
+		before    func(c *sim.Config)
+		after     func(m *dls.Measurement, out *sim.Output)
 	}{
 		{name: "clean", pop: "lognormal(100nm,0.05,number)"},
 		{name: "dust", pop: "lognormal(100nm,0.05,number)", want: qc.Dust,
@@ -118,7 +119,7 @@ func TestQCFlagsOnSimulatedCases(t *testing.T) {
 				m.Meta.Set(dls.Param{Key: k, Value: v, Origin: dls.OriginFile, Where: m.File})
 			}
 			r := Analyze(m, &s)
-			codes := map[string]bool{}
+			codes := map[qc.Code]bool{}
 			for _, f := range r.Flags {
 				codes[f.Code] = true
 			}
@@ -155,7 +156,7 @@ func TestQCFlagsDoNotDependOnCurves(t *testing.T) {
 	}
 }
 
-func hasCode(f []dls.Flag, code string) bool {
+func hasCode(f []dls.Flag, code qc.Code) bool {
 	for _, x := range f {
 		if x.Code == code {
 			return true

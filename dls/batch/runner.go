@@ -87,7 +87,7 @@ func (rn *Runner) analyzeFile(path string) []*dls.Result {
 			if err == nil {
 				err = errors.New("reader returned no measurement")
 			}
-			r := &dls.Result{Identity: dls.Identity{File: in.File, Run: in.Run, Role: "sample", Status: dls.StatusError, Message: err.Error()}}
+			r := &dls.Result{Identity: dls.Identity{File: in.File, Run: in.Run, Role: dls.RoleSample, Status: dls.StatusError, Message: err.Error()}}
 			r.Flags = qc.Measurement(r, nil, rn.Settings.QC)
 			res = append(res, r)
 			continue

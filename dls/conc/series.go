@@ -3,13 +3,14 @@ package conc
 import (
 	"fmt"
 	"math"
-	"sort"
 
+	"gonum.org/v1/gonum/floats"
 	"gonum.org/v1/gonum/stat"
 	"gonum.org/v1/gonum/stat/distuv"
 
 	"dlsbatch/dls"
 	"dlsbatch/dls/linefit"
+	"dlsbatch/dls/stats"
 )
 
 // Point is one measurement of a dilution series.
@@ -223,13 +224,14 @@ func FitDilutionSeries(pts []Point, s *SeriesSettings) (*Series, error) {
 		}
 		x[i], y[i] = p.Concentration, p.DiffusionM2PerS
 	}
-	distinct := countDistinct(x)
+	distinct := stats.CountDistinct(x, 1e-9*floats.Norm(x, math.Inf(1)), 0)
 	if distinct < 3 {
 		return nil, fmt.Errorf("%d distinct concentrations: %w", distinct, ErrTooFewConcentrations)
 	}
 	// Weights 1/u² of order 1e26 /(m²/s)² would scale the covariance sums;
-	// work in units of the median D to keep every sum near 1.
-	ref := median(y)
+	// work in units of a middle D (the upper middle for an even count) to
+	// keep every sum near 1.
+	ref := stats.MedianHigh(y)
 	ys := make([]float64, n)
 	ws := make([]float64, n)
 	for i := range y {
@@ -240,7 +242,7 @@ func FitDilutionSeries(pts []Point, s *SeriesSettings) (*Series, error) {
 			return nil, fmt.Errorf("point %d: standard uncertainty %g m²/s of D is out of proportion to D: %w", i+1, pts[i].DiffusionSEM2PerS, ErrRange)
 		}
 	}
-	l := linefit.Fit(x, ys, ws, true, set.Scaling == ScaleBirge)
+	l := linefit.Fit(x, ys, ws, linefit.Options{KnownUncertainty: true, Birge: set.Scaling == ScaleBirge})
 	a, b := l.A*ref, l.B*ref
 	if !(a > 0) {
 		return nil, fmt.Errorf("dilution series extrapolates to D0 = %.4g m²/s at c = 0, not positive: %w", a, ErrRange)
@@ -406,8 +408,8 @@ func trendCheck(name string, x, v, u []float64, set SeriesSettings) *Trend {
 			}
 		}
 	}
-	l := linefit.Fit(x, v, w, known, set.Scaling == ScaleBirge)
-	st, p := linefit.SlopeTest(l, known)
+	l := linefit.Fit(x, v, w, linefit.Options{KnownUncertainty: known, Birge: set.Scaling == ScaleBirge})
+	st, p := linefit.SlopeTest(l)
 	t := &Trend{Quantity: name, Slope: l.B, SlopeSE: math.Sqrt(l.VarB), Statistic: st, PValue: p, Test: "t"}
 	if known {
 		t.Test = "z"
@@ -441,25 +443,4 @@ func all(pts []Point, f func(Point) bool) bool {
 		}
 	}
 	return len(pts) > 0
-}
-
-// countDistinct counts values that differ by more than 1e-9 of the largest
-// magnitude.
-func countDistinct(x []float64) int {
-	s := append([]float64(nil), x...)
-	sort.Float64s(s)
-	tol := 1e-9 * math.Max(math.Abs(s[0]), math.Abs(s[len(s)-1]))
-	k := 0
-	for i := range s {
-		if i == 0 || s[i]-s[i-1] > tol {
-			k++
-		}
-	}
-	return k
-}
-
-func median(x []float64) float64 {
-	s := append([]float64(nil), x...)
-	sort.Float64s(s)
-	return s[len(s)/2]
 }

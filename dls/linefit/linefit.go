@@ -13,6 +13,22 @@ import (
 	"gonum.org/v1/gonum/stat/distuv"
 )
 
+// Options say how Fit treats the weights. The zero value takes them as
+// relative only.
+type Options struct {
+	// KnownUncertainty says the weights are w = 1/u² with u known: the
+	// covariance is then that of the stated u. When false the weights are
+	// relative only and the covariance is multiplied by χ²/ν (the classical
+	// regression estimate).
+	KnownUncertainty bool
+	// Birge, with KnownUncertainty, multiplies the covariance by
+	// max(1, χ²/ν), so that scatter beyond the stated u widens it but
+	// never narrows it (R. T. Birge, "The calculation of errors by the
+	// method of least squares", Phys. Rev. 40, 207, 1932). Without
+	// KnownUncertainty it has no effect.
+	Birge bool
+}
+
 // Line is a weighted straight-line fit y = A + B·x with its covariance.
 type Line struct {
 	A, B              float64
@@ -21,6 +37,8 @@ type Line struct {
 	DOF               int
 	Scale             float64 // factor applied to the covariance
 	Residuals, Fitted []float64
+	// Known is the fit's Options.KnownUncertainty; SlopeTest reads it.
+	Known bool
 }
 
 // Fit fits y = a + b·x by least squares with weights w (nil: all 1).
@@ -30,12 +48,9 @@ type Line struct {
 //	S = Σw, x̄ = Σw·x/S, Sxx = Σw·(x − x̄)²
 //	var(b) = 1/Sxx, var(a) = 1/S + x̄²/Sxx, cov(a, b) = −x̄/Sxx
 //
-// which is the covariance for weights w = 1/u² with u known. With known
-// false the weights are relative only and the covariance is multiplied by
-// χ²/ν (the classical regression estimate); with known true it is
-// multiplied by max(1, χ²/ν) when birge is set, else left as is. Needs at
-// least two distinct x.
-func Fit(x, y, w []float64, known, birge bool) Line {
+// which is the covariance for weights w = 1/u² with u known; o says how it
+// is scaled (Options). Needs at least two distinct x.
+func Fit(x, y, w []float64, o Options) Line {
 	a, b := stat.LinearRegression(x, y, w, false)
 	var s, sx float64
 	for i := range x {
@@ -55,7 +70,7 @@ func Fit(x, y, w []float64, known, birge bool) Line {
 		}
 		sxx += wi * (x[i] - xm) * (x[i] - xm)
 	}
-	l := Line{A: a, B: b, VarB: 1 / sxx, VarA: 1/s + xm*xm/sxx, Cov: -xm / sxx, DOF: len(x) - 2, Scale: 1}
+	l := Line{A: a, B: b, VarB: 1 / sxx, VarA: 1/s + xm*xm/sxx, Cov: -xm / sxx, DOF: len(x) - 2, Scale: 1, Known: o.KnownUncertainty}
 	l.Residuals = make([]float64, len(x))
 	l.Fitted = make([]float64, len(x))
 	for i := range x {
@@ -70,12 +85,12 @@ func Fit(x, y, w []float64, known, birge bool) Line {
 	if l.DOF > 0 {
 		red := l.Chi2 / float64(l.DOF)
 		switch {
-		case !known:
+		case !o.KnownUncertainty:
 			l.Scale = red
-		case birge:
+		case o.Birge:
 			l.Scale = math.Max(1, red)
 		}
-	} else if !known {
+	} else if !o.KnownUncertainty {
 		l.Scale = math.NaN()
 	}
 	l.VarA *= l.Scale
@@ -84,16 +99,17 @@ func Fit(x, y, w []float64, known, birge bool) Line {
 	return l
 }
 
-// SlopeTest tests B = 0: with known uncertainties a normal z-test, else a
-// Student t-test on dof degrees of freedom. It returns the statistic and
-// its two-sided p-value (NaN when it cannot be computed).
-func SlopeTest(l Line, known bool) (stat, p float64) {
+// SlopeTest tests B = 0: a normal z-test when the fit took its
+// uncertainties as known (l.Known), else a Student t-test on l.DOF degrees
+// of freedom. It returns the statistic and its two-sided p-value (NaN when
+// it cannot be computed).
+func SlopeTest(l Line) (stat, p float64) {
 	se := math.Sqrt(l.VarB)
 	if !(se > 0) || math.IsInf(se, 0) {
 		return math.NaN(), math.NaN()
 	}
 	stat = l.B / se
-	if known {
+	if l.Known {
 		return stat, 2 * distuv.UnitNormal.Survival(math.Abs(stat))
 	}
 	if l.DOF < 1 {

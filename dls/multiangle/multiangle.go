@@ -3,12 +3,12 @@ package multiangle
 import (
 	"fmt"
 	"math"
-	"sort"
 
 	"gonum.org/v1/gonum/stat/distuv"
 
 	"dlsbatch/dls"
 	"dlsbatch/dls/linefit"
+	"dlsbatch/dls/stats"
 )
 
 // Angle is the cumulant result of one measurement of the sample at one
@@ -174,13 +174,13 @@ func Analyze(angles []Angle, tK, etaPaS float64, s *Settings) (*Result, error) {
 		y[i] = a.GammaPerS
 		w[i] = 1 / (a.GammaSEPerS * a.GammaSEPerS)
 	}
-	distinct := countDistinct(x)
+	distinct := stats.CountDistinct(x, 0, 1e-6)
 	if distinct < 3 {
 		return nil, fmt.Errorf("%d distinct angles: %w", distinct, ErrTooFewAngles)
 	}
 
 	// Γ̄ against q².
-	l := linefit.Fit(x, y, w, true, true)
+	l := linefit.Fit(x, y, w, linefit.Options{KnownUncertainty: true, Birge: true})
 	d := l.B * um2 // m²/s
 	if !(d > 0) {
 		return nil, fmt.Errorf("decay rate does not grow with q² (slope %.4g m²/s): not a diffusive sample, or angles mislabelled", d)
@@ -219,7 +219,7 @@ func Analyze(angles []Angle, tK, etaPaS float64, s *Settings) (*Result, error) {
 		dapp[i] = da * 1e12
 		wD[i] = 1 / ((dapp[i] * rel) * (dapp[i] * rel))
 	}
-	lt := linefit.Fit(x, sizes, wSize, true, false)
+	lt := linefit.Fit(x, sizes, wSize, linefit.Options{KnownUncertainty: true})
 	r.TrendSlopeNmUm2 = lt.B
 	r.TrendSlopeSENmUm2 = math.Sqrt(lt.VarB)
 	r.TrendZ = lt.B / r.TrendSlopeSENmUm2
@@ -242,7 +242,7 @@ func Analyze(angles []Angle, tK, etaPaS float64, s *Settings) (*Result, error) {
 	r.SpreadDOF = n - 1
 	r.SpreadP = (distuv.ChiSquared{K: float64(r.SpreadDOF)}).Survival(r.SpreadChi2)
 	r.SpreadFlagged = r.SpreadP < 2*distuv.UnitNormal.Survival(set.TrendLimit)
-	lz := linefit.Fit(x, dapp, wD, true, true)
+	lz := linefit.Fit(x, dapp, wD, linefit.Options{KnownUncertainty: true, Birge: true})
 	r.ZeroQDiffusionM2PerS = lz.A * 1e-12
 	r.ZeroQDiffusionSEM2PerS = math.Sqrt(lz.VarA) * 1e-12
 	if r.ZeroQDiffusionM2PerS > 0 {
@@ -280,19 +280,6 @@ func Analyze(angles []Angle, tK, etaPaS float64, s *Settings) (*Result, error) {
 		warn("decay rates scatter about the line beyond their standard errors (χ²/ν = %.3g): uncertainties widened by √(χ²/ν)", r.ReducedChi2)
 	}
 	return r, nil
-}
-
-// countDistinct counts values that differ by more than 1e-6 relative.
-func countDistinct(x []float64) int {
-	s := append([]float64(nil), x...)
-	sort.Float64s(s)
-	k := 0
-	for i := range s {
-		if i == 0 || s[i]-s[i-1] > 1e-6*math.Abs(s[i]) {
-			k++
-		}
-	}
-	return k
 }
 
 func minMax(x []float64) (lo, hi float64) {

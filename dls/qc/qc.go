@@ -5,7 +5,11 @@
 // meaning listed by `dlsbatch flags`, and a threshold that is a documented
 // setting. The default thresholds are common practice in DLS laboratories
 // (marked so below; recalled, not taken from a cited standard) and are
-// meant to be tuned by each site to its instruments and products.
+// meant to be tuned by each site to its instruments and products: a site
+// lists its own values in a thresholds file (package io/qcfile, read by
+// `dlsbatch run --qc-thresholds`). Thresholds.Set takes a threshold by its
+// key, the JSON name that results.json writes under qc_thresholds, and
+// rejects a value outside the key's range (ThresholdKeys).
 //
 // Aggregation groups results by sample name, lot and temperature (to
 // 0.1 °C; a sample measured at two temperatures is two samples). Results
@@ -27,26 +31,32 @@ import (
 	"sort"
 
 	"dlsbatch/dls"
+	"dlsbatch/dls/stats"
 )
+
+// Code is a flag code. It is dls.FlagCode (an alias, not a new type), the
+// type of dls.Flag.Code, so that the constants below go into a flag as
+// they are.
+type Code = dls.FlagCode
 
 // Flag codes. Stable: add new ones, never rename or reuse.
 const (
-	LowIntercept   = "LOW-INTERCEPT"
-	HighIntercept  = "HIGH-INTERCEPT"
-	NoBaseline     = "NO-BASELINE"
-	BaselineOffset = "BASELINE-OFFSET"
-	Dust           = "DUST"
-	PoorFit        = "POOR-FIT"
-	HighPDI        = "HIGH-PDI"
-	OutsideWindow  = "OUTSIDE-WINDOW"
-	Multimodal     = "MULTIMODAL"
-	DistMismatch   = "DIST-MISMATCH"
-	LowCountRate   = "LOW-COUNT-RATE"
-	Failed         = "FAILED"
-	Outlier        = "OUTLIER"
-	FewRuns        = "FEW-RUNS"
-	HighRSD        = "HIGH-RSD"
-	NoValidRuns    = "NO-VALID-RUNS"
+	LowIntercept   Code = "LOW-INTERCEPT"
+	HighIntercept  Code = "HIGH-INTERCEPT"
+	NoBaseline     Code = "NO-BASELINE"
+	BaselineOffset Code = "BASELINE-OFFSET"
+	Dust           Code = "DUST"
+	PoorFit        Code = "POOR-FIT"
+	HighPDI        Code = "HIGH-PDI"
+	OutsideWindow  Code = "OUTSIDE-WINDOW"
+	Multimodal     Code = "MULTIMODAL"
+	DistMismatch   Code = "DIST-MISMATCH"
+	LowCountRate   Code = "LOW-COUNT-RATE"
+	Failed         Code = "FAILED"
+	Outlier        Code = "OUTLIER"
+	FewRuns        Code = "FEW-RUNS"
+	HighRSD        Code = "HIGH-RSD"
+	NoValidRuns    Code = "NO-VALID-RUNS"
 )
 
 // Thresholds are the settings behind the flags. Defaults: DefaultThresholds.
@@ -93,7 +103,8 @@ func DefaultThresholds() Thresholds {
 
 // Definition describes one flag for listings.
 type Definition struct {
-	Code, Level, Meaning, Threshold string
+	Code                      Code
+	Level, Meaning, Threshold string
 }
 
 // Definitions lists every flag with the threshold of t, in a fixed order.
@@ -121,7 +132,7 @@ func Definitions(t Thresholds) []Definition {
 // Measurement returns the flags of one result.
 func Measurement(r *dls.Result, tau []float64, t Thresholds) []dls.Flag {
 	var f []dls.Flag
-	add := func(code, format string, a ...any) {
+	add := func(code Code, format string, a ...any) {
 		f = append(f, dls.Flag{Code: code, Message: fmt.Sprintf(format, a...)})
 	}
 	if r.Status == dls.StatusError {
@@ -259,12 +270,12 @@ func aggregate(s *dls.Sample, results []*dls.Result, o Options) {
 		for k, i := range ok {
 			z[k] = results[i].ZAvgNm
 		}
-		med := median(z)
+		med := stats.Median(z)
 		dev := make([]float64, len(z))
 		for k, v := range z {
 			dev[k] = math.Abs(v - med)
 		}
-		sd := math.Max(1.4826*median(dev), 0.005*med)
+		sd := math.Max(1.4826*stats.Median(dev), 0.005*med)
 		for k, i := range ok {
 			if dev[k] > t.OutlierK*sd {
 				s.Outliers = append(s.Outliers, i)
@@ -293,8 +304,8 @@ func aggregate(s *dls.Sample, results []*dls.Result, o Options) {
 			d90 = append(d90, r.Intensity.D90Nm)
 		}
 	}
-	s.ZAvgMeanNm, s.ZAvgSDNm = meanSD(z)
-	s.PDIMean, s.PDISD = meanSD(p)
+	s.ZAvgMeanNm, s.ZAvgSDNm = stats.MeanSD(z)
+	s.PDIMean, s.PDISD = stats.MeanSD(p)
 	if s.ZAvgMeanNm != 0 {
 		s.ZAvgRSDPct = 100 * s.ZAvgSDNm / s.ZAvgMeanNm
 	}
@@ -302,8 +313,8 @@ func aggregate(s *dls.Sample, results []*dls.Result, o Options) {
 		s.PDIRSDPct = 100 * s.PDISD / math.Abs(s.PDIMean)
 	}
 	if len(pk) > 0 {
-		s.Peak1MeanNm, _ = meanSD(pk)
-		s.D90MeanNm, _ = meanSD(d90)
+		s.Peak1MeanNm, _ = stats.MeanSD(pk)
+		s.D90MeanNm, _ = stats.MeanSD(d90)
 	}
 	if s.NUsed < t.MinRuns {
 		s.Flags = append(s.Flags, dls.Flag{Code: FewRuns, Message: fmt.Sprintf("%d run(s) used, %d wanted", s.NUsed, t.MinRuns)})
@@ -327,30 +338,4 @@ func contains(v []int, x int) bool {
 		}
 	}
 	return false
-}
-
-func median(v []float64) float64 {
-	c := append([]float64(nil), v...)
-	sort.Float64s(c)
-	n := len(c)
-	if n%2 == 1 {
-		return c[n/2]
-	}
-	return (c[n/2-1] + c[n/2]) / 2
-}
-
-// meanSD returns the mean and the sample standard deviation (n − 1); the SD
-// of a single value is 0.
-func meanSD(v []float64) (m, sd float64) {
-	for _, x := range v {
-		m += x
-	}
-	m /= float64(len(v))
-	if len(v) < 2 {
-		return m, 0
-	}
-	for _, x := range v {
-		sd += (x - m) * (x - m)
-	}
-	return m, math.Sqrt(sd / float64(len(v)-1))
 }

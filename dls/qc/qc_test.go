@@ -25,7 +25,7 @@ func TestFlagsFireAndStayQuiet(t *testing.T) {
 	// Each case changes the clean result just past one threshold (the
 	// defaults of DefaultThresholds) and must raise that flag.
 	cases := []struct {
-		code string
+		code Code
 		edit func(r *dls.Result)
 	}{
 		{LowIntercept, func(r *dls.Result) { r.Intercept = 0.09 }},
@@ -67,14 +67,14 @@ func TestFlagsFireAndStayQuiet(t *testing.T) {
 }
 
 func TestDefinitionsCoverCodes(t *testing.T) {
-	seen := map[string]bool{}
+	seen := map[Code]bool{}
 	for _, d := range Definitions(DefaultThresholds()) {
 		if seen[d.Code] || d.Meaning == "" || d.Threshold == "" {
 			t.Errorf("definition %+v duplicated or incomplete", d)
 		}
 		seen[d.Code] = true
 	}
-	for _, c := range []string{LowIntercept, HighIntercept, NoBaseline, BaselineOffset, Dust, PoorFit, HighPDI, OutsideWindow,
+	for _, c := range []Code{LowIntercept, HighIntercept, NoBaseline, BaselineOffset, Dust, PoorFit, HighPDI, OutsideWindow,
 		Multimodal, DistMismatch, LowCountRate, Failed, Outlier, FewRuns, HighRSD, NoValidRuns} {
 		if !seen[c] {
 			t.Errorf("%s has no definition", c)
@@ -157,7 +157,7 @@ func TestAggregateSplitsTemperatures(t *testing.T) {
 	}
 }
 
-func hasFlag(f []dls.Flag, code string) bool {
+func hasFlag(f []dls.Flag, code Code) bool {
 	for _, x := range f {
 		if x.Code == code {
 			return true

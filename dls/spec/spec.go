@@ -17,14 +17,25 @@ package spec
 
 import (
 	"fmt"
+	"maps"
+	"slices"
 	"sort"
 	"strings"
 
 	"dlsbatch/dls"
 )
 
-// Quantities that a limit may bound, with their meaning.
-var Quantities = map[string]string{
+// Quantities returns the quantities that a limit may bound, with their
+// meaning (a new map each call).
+func Quantities() map[string]string { return maps.Clone(quantities) }
+
+// IsQuantity reports whether a limit may bound the quantity name.
+func IsQuantity(name string) bool {
+	_, ok := quantities[name]
+	return ok
+}
+
+var quantities = map[string]string{
 	"z_avg_nm":            "mean z-average of the sample's runs, nm",
 	"pdi":                 "mean polydispersity index",
 	"z_avg_rsd_pct":       "repeatability RSD of the z-average, %",
@@ -36,12 +47,7 @@ var Quantities = map[string]string{
 
 // QuantityNames returns the quantities in sorted order.
 func QuantityNames() []string {
-	var q []string
-	for k := range Quantities {
-		q = append(q, k)
-	}
-	sort.Strings(q)
-	return q
+	return slices.Sorted(maps.Keys(quantities))
 }
 
 // Limit bounds one quantity for a product. HasMin/HasMax say which bounds
@@ -107,7 +113,7 @@ func Evaluate(s *Spec, samples []*dls.Sample, results []*dls.Result) Batch {
 	for _, smp := range samples {
 		limits := byProduct[strings.ToLower(smp.Product)]
 		if len(limits) == 0 {
-			if smp.Role == "reference" {
+			if smp.Role == dls.RoleReference {
 				refs++
 				refFail = append(refFail, fmt.Sprintf("reference %q has no limits for its product %q", smp.Name, smp.Product))
 			}
@@ -115,7 +121,7 @@ func Evaluate(s *Spec, samples []*dls.Sample, results []*dls.Result) Batch {
 		}
 		v := verdict(smp, limits, results)
 		smp.Verdict = v
-		if smp.Role == "reference" {
+		if smp.Role == dls.RoleReference {
 			refs++
 			if v.Outcome != dls.VerdictPass {
 				refFail = append(refFail, fmt.Sprintf("reference %q failed: %s", smp.Name, v.Reason))
@@ -133,7 +139,7 @@ func Evaluate(s *Spec, samples []*dls.Sample, results []*dls.Result) Batch {
 			b.NoSpec++
 			continue
 		}
-		if !b.Valid && smp.Role != "reference" {
+		if !b.Valid && smp.Role != dls.RoleReference {
 			smp.Verdict.Outcome = dls.VerdictInvalid
 			smp.Verdict.Reason = b.Reason
 		}

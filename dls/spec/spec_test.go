@@ -100,3 +100,17 @@ func TestSystemSuitability(t *testing.T) {
 		t.Errorf("no spec: %+v", b)
 	}
 }
+
+// TestQuantitiesIsACopy: a caller changing the returned map changes
+// neither a later result nor IsQuantity.
+func TestQuantitiesIsACopy(t *testing.T) {
+	q := Quantities()
+	if len(q) != len(QuantityNames()) || q["pdi"] == "" {
+		t.Fatalf("Quantities() = %v, names %v", q, QuantityNames())
+	}
+	q["made_up"] = "x"
+	delete(q, "pdi")
+	if _, ok := Quantities()["made_up"]; ok || IsQuantity("made_up") || !IsQuantity("pdi") {
+		t.Errorf("Quantities() shares its map")
+	}
+}

@@ -26,7 +26,7 @@ func FromRun(run Run) *Report {
 			b.Suitability, b.Reason = SuitabilityInvalid, run.Batch.Reason
 		}
 		for i, smp := range run.Samples {
-			if smp.Role == "reference" && smp.Verdict != nil {
+			if smp.Role == dls.RoleReference && smp.Verdict != nil {
 				for _, c := range smp.Verdict.Checks {
 					b.Checks = append(b.Checks, SuitabilityCheck{Sample: i, Check: c})
 				}

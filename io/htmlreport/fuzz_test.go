@@ -30,8 +30,8 @@ func FuzzSampleStrings(f *testing.F) {
 		r := &Report{
 			Results: []*dls.Result{{Identity: dls.Identity{File: file, Sample: name, Run: lot, Status: dls.StatusWarn, Message: msg},
 				Params: []dls.Param{{Key: name, Value: msg, Origin: dls.OriginFile, Where: file}}}},
-			Samples: []*dls.Sample{{Name: name, Lot: lot, Product: msg, Role: file, Runs: []int{0}, Used: []int{0},
-				Flags:   []dls.Flag{{Code: lot, Message: msg}},
+			Samples: []*dls.Sample{{Name: name, Lot: lot, Product: msg, Role: dls.Role(file), Runs: []int{0}, Used: []int{0},
+				Flags:   []dls.Flag{{Code: dls.FlagCode(lot), Message: msg}},
 				Verdict: &dls.Verdict{Outcome: dls.VerdictFail, Reason: msg, Checks: []dls.Check{{Quantity: name, Limit: lot, Value: 1}}}}},
 		}
 		if err := validate(r); err != nil {

@@ -171,7 +171,7 @@ func synthReport(nSamples, runsPer int) *Report {
 		}
 		mean /= float64(len(zs))
 		sm.NRuns, sm.NUsed, sm.ZAvgMeanNm = runsPer, runsPer, mean
-		outcome := []string{dls.VerdictPass, dls.VerdictFail, dls.VerdictInvalid, ""}[s%4]
+		outcome := []dls.Outcome{dls.VerdictPass, dls.VerdictFail, dls.VerdictInvalid, ""}[s%4]
 		if outcome != "" {
 			sm.Verdict = &dls.Verdict{Outcome: outcome, Checks: []dls.Check{{Quantity: "z_avg_nm", Limit: "x ≤ 500", Value: mean, Pass: outcome == dls.VerdictPass}}}
 		}

@@ -11,6 +11,7 @@ import (
 	"strings"
 
 	"dlsbatch/dls"
+	"dlsbatch/dls/stats"
 )
 
 //go:embed templates/*.html templates/style.css
@@ -60,7 +61,7 @@ func verdictMark(s *dls.Sample) mark {
 	case "":
 		return mark{"none", "none"}
 	default:
-		return mark{v, v}
+		return mark{string(v), string(v)}
 	}
 }
 
@@ -148,7 +149,7 @@ func buildIndex(r *Report) indexPage {
 			Name:    s.Name,
 			Lot:     s.Lot,
 			Product: s.Product,
-			Role:    s.Role,
+			Role:    string(s.Role),
 			Used:    len(s.Used),
 			Total:   len(s.Runs),
 			ZAvg:    meanSD(s.ZAvgMeanNm, s.ZAvgSDNm, len(s.Used), 1),
@@ -248,7 +249,7 @@ func buildSample(r *Report, i int) samplePage {
 		Name:    s.Name,
 		Lot:     s.Lot,
 		Product: s.Product,
-		Role:    s.Role,
+		Role:    string(s.Role),
 		Group:   s.Group,
 		Verdict: verdictMark(s),
 		Flags:   s.Flags,
@@ -435,7 +436,7 @@ func set(idx []int) map[int]bool {
 const dash = "—"
 
 func fixed(v float64, prec int) string {
-	if !isFinite(v) {
+	if !stats.IsFinite(v) {
 		return dash
 	}
 	s := strconv.FormatFloat(v, 'f', prec, 64)
@@ -448,7 +449,7 @@ func fixed(v float64, prec int) string {
 // sig formats v with n significant digits, in fixed notation between
 // 1e-3 and 1e6 and in exponent notation outside.
 func sig(v float64, n int) string {
-	if !isFinite(v) {
+	if !stats.IsFinite(v) {
 		return dash
 	}
 	a := math.Abs(v)
@@ -539,7 +540,7 @@ func temperatures(ts []float64) string {
 // joined, so that a code raised on several runs shows once on the index.
 func mergeFlags(f []dls.Flag) []dls.Flag {
 	var out []dls.Flag
-	at := map[string]int{}
+	at := map[dls.FlagCode]int{}
 	for _, x := range f {
 		if i, ok := at[x.Code]; ok {
 			out[i].Message += "; " + x.Message

@@ -16,6 +16,7 @@ import (
 	"gonum.org/v1/plot/vg/vgsvg"
 
 	"dlsbatch/dls"
+	"dlsbatch/dls/stats"
 )
 
 // Plot size in points; the page scales the SVG to its column width.
@@ -95,14 +96,12 @@ func logXY(x, y []float64, lo, hi float64) plotter.XYs {
 	n := min(len(x), len(y))
 	xy := make(plotter.XYs, 0, n)
 	for i := range n {
-		if x[i] > 0 && x[i] >= lo && x[i] <= hi && isFinite(x[i]) && isFinite(y[i]) {
+		if x[i] > 0 && x[i] >= lo && x[i] <= hi && stats.IsFinite(x[i]) && stats.IsFinite(y[i]) {
 			xy = append(xy, plotter.XY{X: x[i], Y: y[i]})
 		}
 	}
 	return xy
 }
-
-func isFinite(v float64) bool { return !math.IsNaN(v) && !math.IsInf(v, 0) }
 
 // newPlot returns a plot with the report's compact style.
 func newPlot(xlabel, ylabel string) *plot.Plot {
@@ -287,7 +286,7 @@ func cropRange(x []float64, ws [][]float64) (lo, hi float64) {
 	for _, w := range ws {
 		peak := 0.0
 		for i, v := range w {
-			if i < len(x) && isFinite(v) {
+			if i < len(x) && stats.IsFinite(v) {
 				peak = math.Max(peak, v)
 			}
 		}
@@ -295,7 +294,7 @@ func cropRange(x []float64, ws [][]float64) (lo, hi float64) {
 			continue
 		}
 		for i, v := range w {
-			if i >= len(x) || !(x[i] > 0) || !isFinite(x[i]) || !(v > 2e-3*peak) {
+			if i >= len(x) || !(x[i] > 0) || !stats.IsFinite(x[i]) || !(v > 2e-3*peak) {
 				continue
 			}
 			if first < 0 || i < first {
@@ -316,7 +315,7 @@ func cropRange(x []float64, ws [][]float64) (lo, hi float64) {
 	// Stay on the grid where it is wide enough.
 	gmin, gmax := math.Inf(1), 0.0
 	for _, v := range x {
-		if v > 0 && isFinite(v) {
+		if v > 0 && stats.IsFinite(v) {
 			gmin, gmax = math.Min(gmin, v), math.Max(gmax, v)
 		}
 	}

@@ -115,7 +115,7 @@ func Count(samples []*dls.Sample, results []*dls.Result) Counts {
 // verdictOf returns the sample's outcome, or "" when it has none. An
 // outcome outside the known three is reported as invalid, so that an
 // unknown state is never shown as a pass.
-func verdictOf(s *dls.Sample) string {
+func verdictOf(s *dls.Sample) dls.Outcome {
 	if s == nil || s.Verdict == nil {
 		return ""
 	}

@@ -76,7 +76,7 @@ func TestIndexRows(t *testing.T) {
 			t.Errorf("row %d shows %d flags, want %d", i, len(flags), len(r.Samples[i].Flags))
 		}
 		for k, f := range flags {
-			if f.text() != r.Samples[i].Flags[k].Code || f.Attr["title"] != r.Samples[i].Flags[k].Message {
+			if f.text() != string(r.Samples[i].Flags[k].Code) || f.Attr["title"] != r.Samples[i].Flags[k].Message {
 				t.Errorf("row %d flag %d: %q/%q, want %q/%q", i, k, f.text(), f.Attr["title"], r.Samples[i].Flags[k].Code, r.Samples[i].Flags[k].Message)
 			}
 		}
@@ -425,7 +425,7 @@ func TestWriteErrors(t *testing.T) {
 // An unknown verdict outcome is never shown as a pass.
 func TestUnknownOutcome(t *testing.T) {
 	s := &dls.Sample{Verdict: &dls.Verdict{Outcome: "maybe"}}
-	if got := verdictMark(s); got.Word != dls.VerdictInvalid {
+	if got := verdictMark(s); got.Word != string(dls.VerdictInvalid) {
 		t.Errorf("unknown outcome shown as %q, want invalid", got.Word)
 	}
 }

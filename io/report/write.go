@@ -149,7 +149,7 @@ func WriteSummary(w io.Writer, results []*dls.Result, samples []*dls.Sample, b s
 		if b.Specified {
 			v := "–"
 			if smp.Verdict != nil {
-				v = strings.ToUpper(smp.Verdict.Outcome)
+				v = strings.ToUpper(string(smp.Verdict.Outcome))
 			}
 			row = v + "\t" + row
 		}
@@ -200,12 +200,12 @@ func WriteSummary(w io.Writer, results []*dls.Result, samples []*dls.Sample, b s
 
 // flagCodes lists the distinct codes of flags, in first-seen order.
 func flagCodes(f []dls.Flag) string {
-	seen := map[string]bool{}
+	seen := map[dls.FlagCode]bool{}
 	var out []string
 	for _, x := range f {
 		if !seen[x.Code] {
 			seen[x.Code] = true
-			out = append(out, x.Code)
+			out = append(out, string(x.Code))
 		}
 	}
 	return strings.Join(out, " ")
@@ -251,9 +251,9 @@ func WriteSamplesCSV(w io.Writer, samples []*dls.Sample, results []*dls.Result) 
 		}
 		verdict, reason := "", ""
 		if s.Verdict != nil {
-			verdict, reason = s.Verdict.Outcome, s.Verdict.Reason
+			verdict, reason = string(s.Verdict.Outcome), s.Verdict.Reason
 		}
-		cw.Write([]string{s.Name, s.Lot, s.Product, s.Role, s.Group, strings.Join(ts, " "), strconv.Itoa(s.NRuns), strconv.Itoa(s.NUsed),
+		cw.Write([]string{s.Name, s.Lot, s.Product, string(s.Role), s.Group, strings.Join(ts, " "), strconv.Itoa(s.NRuns), strconv.Itoa(s.NUsed),
 			stat(s.ZAvgMeanNm, 3), sd(s.ZAvgSDNm, 3), sd(s.ZAvgRSDPct, 2), stat(s.PDIMean, 4), sd(s.PDISD, 4), opt(s.Peak1MeanNm), opt(s.D90MeanNm),
 			strings.Join(out, " "), strconv.FormatBool(s.OutliersExcluded), flagCodes(s.Flags), verdict, reason})
 	}

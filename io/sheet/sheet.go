@@ -16,6 +16,7 @@
 //	                    group, medium_volume_fraction,
 //	                    medium_relative_viscosity, kd
 //
+// A role is sample, reference or blank, in any letter case (dls.ParseRole).
 // Empty cells set nothing. Unknown columns are an error (a misspelt column
 // would otherwise be silently ignored), and so is a value that breaks its
 // key's rule; every error names file, line and column. Lines starting with
@@ -43,9 +44,6 @@ import (
 	"dlsbatch/io/csvtable"
 )
 
-// Roles a sample-sheet row may give.
-var Roles = []string{"sample", "reference", "blank"}
-
 // Row is one row of a sample sheet.
 type Row struct {
 	Line    int
@@ -62,11 +60,7 @@ type Sheet struct {
 
 // Columns lists the columns a sheet may have.
 func Columns() []string {
-	c := []string{"file"}
-	for _, k := range dls.MetadataKeys {
-		c = append(c, k)
-	}
-	return c
+	return append([]string{"file"}, dls.MetadataKeys()...)
 }
 
 // ReadFile parses the sample sheet at path.
@@ -110,8 +104,12 @@ func Parse(r io.Reader, name string) (*Sheet, error) {
 			if err := csvdata.CheckMetaValue(key, v); err != nil {
 				return nil, t.Err(i, j, err)
 			}
-			if key == dls.KeyRole && !validRole(v) {
-				return nil, t.Err(i, j, fmt.Errorf("role %q: want one of %s: %w", v, strings.Join(Roles, ", "), dls.ErrBadMetadata))
+			if key == dls.KeyRole {
+				// Validated here; the value is kept as written (the
+				// analysis reads it in lower case).
+				if _, err := dls.ParseRole(v); err != nil {
+					return nil, t.Err(i, j, err)
+				}
 			}
 			p := t.Pos[i+1][j]
 			row.Params = append(row.Params, dls.Param{Key: key, Value: v, Origin: dls.OriginSheet,
@@ -120,15 +118,6 @@ func Parse(r io.Reader, name string) (*Sheet, error) {
 		s.Rows = append(s.Rows, row)
 	}
 	return s, nil
-}
-
-func validRole(v string) bool {
-	for _, r := range Roles {
-		if strings.EqualFold(v, r) {
-			return true
-		}
-	}
-	return false
 }
 
 // matches reports whether pattern names a file whose path relative to its

@@ -40,8 +40,11 @@ import (
 	"dlsbatch/io/csvtable"
 )
 
-// Columns of a specification file.
-var Columns = []string{"product", "quantity", "min", "max", "target", "tol", "at_nm", "note"}
+// Columns returns the columns of a specification file (a new slice each
+// call).
+func Columns() []string {
+	return []string{"product", "quantity", "min", "max", "target", "tol", "at_nm", "note"}
+}
 
 // ReadFile parses the specification at path.
 func ReadFile(path string) (*spec.Spec, error) {
@@ -59,7 +62,7 @@ func Parse(r io.Reader, name string) (*spec.Spec, error) {
 	if err != nil {
 		return nil, err
 	}
-	if err := t.CheckHeader(Columns, []string{"product", "quantity"}); err != nil {
+	if err := t.CheckHeader(Columns(), []string{"product", "quantity"}); err != nil {
 		return nil, err
 	}
 	col := func(n string) int { return t.Col(n) }
@@ -89,7 +92,7 @@ func Parse(r io.Reader, name string) (*spec.Spec, error) {
 		if product == "" {
 			return nil, t.Err(i, pc, fmt.Errorf("empty product"))
 		}
-		if _, ok := spec.Quantities[quantity]; !ok {
+		if !spec.IsQuantity(quantity) {
 			return nil, t.Err(i, qc, fmt.Errorf("unknown quantity %q (known: %s)", quantity, strings.Join(spec.QuantityNames(), ", ")))
 		}
 		l := spec.Limit{Product: product, Quantity: quantity, Where: fmt.Sprintf("%s:%d", name, t.Line(i))}

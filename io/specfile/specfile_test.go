@@ -92,3 +92,13 @@ func FuzzParse(f *testing.F) {
 		}
 	})
 }
+
+// TestColumnsIsACopy: changing the returned slice does not change what a
+// file may hold.
+func TestColumnsIsACopy(t *testing.T) {
+	c := Columns()
+	c[0] = "changed"
+	if Columns()[0] != "product" {
+		t.Errorf("Columns() shares its backing array: %v", Columns())
+	}
+}

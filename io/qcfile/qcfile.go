@@ -1,0 +1,93 @@
+package qcfile
+
+import (
+	"errors"
+	"fmt"
+	"io"
+	"os"
+	"strconv"
+	"strings"
+
+	"dlsbatch/dls"
+	"dlsbatch/dls/qc"
+	"dlsbatch/io/csvtable"
+)
+
+// ErrDuplicate is wrapped by the error for a key given twice.
+var ErrDuplicate = errors.New("threshold given twice")
+
+// Columns returns the columns of a thresholds file (a new slice each
+// call).
+func Columns() []string { return []string{"key", "value", "note"} }
+
+// ReadFile parses the thresholds file at path over base (usually
+// qc.DefaultThresholds()). Errors say "QC thresholds" and wrap those of
+// os.Open and Parse.
+func ReadFile(path string, base qc.Thresholds) (qc.Thresholds, error) {
+	f, err := os.Open(path)
+	if err != nil {
+		return base, fmt.Errorf("QC thresholds: %w", err)
+	}
+	defer f.Close()
+	th, err := Parse(f, path, base)
+	if err != nil {
+		return base, fmt.Errorf("QC thresholds: %w", err)
+	}
+	return th, nil
+}
+
+// Parse reads a thresholds file from r and returns base with the values it
+// lists; name identifies the file in errors. Every error is a
+// *dls.PosError; on error base is returned unchanged.
+func Parse(r io.Reader, name string, base qc.Thresholds) (qc.Thresholds, error) {
+	t, err := csvtable.Read(r, name)
+	if err != nil {
+		return base, err
+	}
+	if err := t.CheckHeader(Columns(), []string{"key", "value"}); err != nil {
+		return base, err
+	}
+	kc, vc := t.Col("key"), t.Col("value")
+	th := base
+	row := map[string]int{} // key → row index of the table
+	for i, rec := range t.Rows {
+		key, val := strings.ToLower(rec[kc]), rec[vc]
+		switch {
+		case key == "":
+			return base, t.Err(i, kc, fmt.Errorf("empty key: %w", dls.ErrMissingValue))
+		case val == "":
+			return base, t.Err(i, vc, fmt.Errorf("%s has no value: %w", key, dls.ErrMissingValue))
+		}
+		if prev, dup := row[key]; dup {
+			return base, t.Err(i, kc, fmt.Errorf("%s already set on line %d: %w", key, t.Line(prev), ErrDuplicate))
+		}
+		v, err := strconv.ParseFloat(val, 64)
+		if err != nil {
+			return base, t.Err(i, vc, fmt.Errorf("%s %q is not a number: %w: %w", key, val, dls.ErrNotANumber, err))
+		}
+		if err := th.Set(key, v); err != nil {
+			col := vc
+			if errors.Is(err, qc.ErrUnknownThreshold) {
+				col = kc
+			}
+			return base, t.Err(i, col, err)
+		}
+		row[key] = i
+	}
+	if len(t.Rows) == 0 {
+		return base, &dls.PosError{File: name, Err: dls.ErrEmpty}
+	}
+	if err := th.Validate(); err != nil {
+		// Blame the later of the two rows that made the window; the file
+		// gives at least one of them, as base is assumed valid.
+		i, ok := row["max_intercept"]
+		if j, okj := row["min_intercept"]; okj && (!ok || j > i) {
+			i, ok = j, true
+		}
+		if !ok {
+			return base, &dls.PosError{File: name, Err: err}
+		}
+		return base, t.Err(i, vc, err)
+	}
+	return th, nil
+}
