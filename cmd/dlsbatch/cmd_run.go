@@ -5,8 +5,6 @@ import (
 	"errors"
 	"fmt"
 	"math"
-	"os"
-	"path/filepath"
 	"runtime"
 	"sync"
 
@@ -25,6 +23,7 @@ import (
 	"dlsbatch/io/csvdata"
 	"dlsbatch/io/qcfile"
 	"dlsbatch/io/report"
+	"dlsbatch/io/resultset"
 	"dlsbatch/io/sheet"
 	"dlsbatch/io/solventfile"
 	"dlsbatch/io/specfile"
@@ -157,15 +156,9 @@ func runRun(ctx context.Context, e env, args []string) int {
 	if err != nil {
 		return fail(exitUsage, err)
 	}
-	if err := csvdata.CheckOutside(o.out, paths); err != nil {
+	root, err := csvdata.Root(paths)
+	if err != nil {
 		return fail(exitUsage, err)
-	}
-	if !o.force {
-		for _, name := range []string{report.ResultsCSV, report.SamplesCSV, report.ResultsJSON, report.ManifestJSON} {
-			if _, err := os.Stat(filepath.Join(o.out, name)); err == nil {
-				return fail(exitUsage, filepath.Join(o.out, name)+" already exists; use --force to replace it")
-			}
-		}
 	}
 	var sh *sheet.Sheet
 	if o.sheetFile != "" {
@@ -184,6 +177,13 @@ func runRun(ctx context.Context, e env, args []string) int {
 			return fail(exitUsage, err)
 		}
 	}
+	// Every --out problem is a usage error before any analysis; from here
+	// the folder is locked and the run writes into a staging folder.
+	out, err := resultset.Open(o.out, paths, o.force)
+	if err != nil {
+		return fail(exitUsage, err)
+	}
+	defer out.Abort()
 
 	files, derrs := csvdata.Discover(paths)
 	for _, err := range derrs {
@@ -195,9 +195,10 @@ func runRun(ctx context.Context, e env, args []string) int {
 	rels := csvdata.RelativePaths(files, paths)
 	var match *sheet.MatchReport
 	if sh != nil {
-		match = sh.Check(o.sheetFile, files, rels)
-		for _, f := range match.UnmatchedFiles {
-			say(f + ": no row of the sample sheet matches this file")
+		match = sh.Check(csvdata.Rel(root, o.sheetFile), files, rels)
+		for i, f := range match.UnmatchedFiles {
+			match.UnmatchedFiles[i] = csvdata.Rel(root, f)
+			say(match.UnmatchedFiles[i] + ": no row of the sample sheet matches this file")
 		}
 		for _, msg := range match.UnusedRows {
 			say(msg)
@@ -206,7 +207,7 @@ func runRun(ctx context.Context, e env, args []string) int {
 
 	rn := &batch.Runner{
 		Read: func(path string) []batch.Input {
-			in := csvdata.ReadFile(path, readOpts)
+			in := csvdata.ReadFileAs(path, csvdata.Rel(root, path), readOpts)
 			for _, x := range in {
 				if sh != nil && x.M != nil {
 					sh.Apply(x.M, rels[path])
@@ -232,22 +233,46 @@ func runRun(ctx context.Context, e env, args []string) int {
 		defer bar.Finish()
 	}
 	results, runErr := rn.Run(ctx, files)
+	complete := runErr == nil
 	groups := batch.Groups(results)
 	samples := qc.Aggregate(results, qc.Options{Thresholds: settings.QC, ExcludeOutliers: o.exclude})
-	outcome := spec.Evaluate(sp, samples, results)
-	doc := &report.Document{
-		Tool: "dlsbatch", Version: version, Caution: report.Caution, Settings: o.record(settings),
-		Counts: dls.CountResults(results), Batch: outcome, Sheet: match, Groups: &groups,
-		Samples: samples, Results: results,
+	outcome := spec.Batch{Specified: sp != nil, Reason: "not evaluated: the run was interrupted"}
+	analysed := files
+	if complete {
+		outcome = spec.Evaluate(sp, samples, results)
+	} else {
+		analysed = finishedFiles(files, results, root)
 	}
-	set := &report.Set{Doc: doc, HTMLReport: !o.noReport, Inputs: files}
+	doc := &report.Document{
+		Tool: "dlsbatch", Version: report.Version(), Caution: report.Caution, Complete: complete,
+		Settings: o.record(settings, root), Counts: dls.CountResults(results), Batch: outcome, Sheet: match,
+		Groups: &groups, Samples: samples, Results: results,
+	}
+	set := &report.Set{Doc: doc, HTMLReport: !o.noReport && complete, Root: root, Inputs: analysed, FilesFound: len(files)}
 	for _, t := range []string{o.sheetFile, o.specFile, o.solventFile, o.qcFile} {
 		if t != "" {
 			set.Tables = append(set.Tables, t)
 		}
 	}
-	if err := report.WriteSet(o.out, set); err != nil {
+	// An interrupted analysis still writes what it finished, marked
+	// incomplete and without the report, so that it is quick; a signal
+	// during the writing abandons it and the previous set stays.
+	writeCtx := ctx
+	if !complete {
+		writeCtx = context.Background()
+	}
+	if err := report.WriteSet(writeCtx, out.Staging, set); err != nil {
+		if ctx.Err() != nil {
+			return fail(exitInterrupted, "interrupted while writing; "+o.out+" is as it was")
+		}
 		return fail(exitFatal, err)
+	}
+	if err := out.Commit(); err != nil {
+		return fail(exitFatal, err)
+	}
+	if !complete {
+		return fail(exitInterrupted, fmt.Sprintf("interrupted: %d of %d files analysed; %s holds them, marked incomplete (no verdicts)",
+			len(analysed), len(files), o.out))
 	}
 	if !o.quiet {
 		if err := report.WriteSummary(e.stdout, results, samples, outcome, 10); err != nil {
@@ -259,10 +284,23 @@ func runRun(ctx context.Context, e env, args []string) int {
 		}
 		fmt.Fprintf(e.stdout, "results: %s (%s)\n%s\n", o.out, what, report.Caution)
 	}
-	if runErr != nil {
-		return fail(exitInterrupted, fmt.Sprintf("interrupted; the %d results finished are written", len(results)))
-	}
 	return exitCode(doc.Counts, outcome)
+}
+
+// finishedFiles lists, in input order, the files of which an interrupted
+// run has results.
+func finishedFiles(files []string, results []*dls.Result, root string) []string {
+	done := map[string]bool{}
+	for _, r := range results {
+		done[r.File] = true
+	}
+	var out []string
+	for _, f := range files {
+		if done[csvdata.Rel(root, f)] {
+			out = append(out, f)
+		}
+	}
+	return out
 }
 
 // exitCode maps the outcome of a finished run to the documented codes; the
@@ -330,7 +368,13 @@ func (o *runOptions) settings() (batch.Settings, *csvdata.Options, error) {
 }
 
 // record is the settings record of results.json and the manifest.
-func (o *runOptions) record(s batch.Settings) *report.Settings {
+func (o *runOptions) record(s batch.Settings, root string) *report.Settings {
+	rel := func(p string) string {
+		if p == "" {
+			return ""
+		}
+		return csvdata.Rel(root, p)
+	}
 	return &report.Settings{
 		AlphaCriterion: s.Distribution.Contin.Criterion.String(), AlphaLambda: s.Distribution.Contin.Lambda,
 		BoltzmannJPerK: dls.BoltzmannJPerK, CorrColumns: o.corrCols, CorrKind: o.corrKind.value,
@@ -339,8 +383,8 @@ func (o *runOptions) record(s batch.Settings) *report.Settings {
 		Distribution: s.Distribution.Enabled, ExcludeOutliers: o.exclude, Extrapolate: s.Extrapolate,
 		G1Cutoff: s.Cumulants.Cutoff, GridPoints: s.Distribution.Grid.NGamma, LagColumn: o.tauCol, LagUnit: o.tauUnit,
 		MinLagS: s.Cumulants.MinTauS, MinPoints: s.Cumulants.MinPoints,
-		ProbRejectTarget: s.Distribution.Contin.TargetProbReject, QCThresholds: s.QC, QCThresholdsFile: o.qcFile, RangeCheck: s.Cumulants.RangeCheck,
-		Set: dls.Assignments(s.Overrides), Sheet: o.sheetFile, SigmaColumn: o.sigmaCol, SolventFile: o.solventFile, Spec: o.specFile,
+		ProbRejectTarget: s.Distribution.Contin.TargetProbReject, QCThresholds: s.QC, QCThresholdsFile: rel(o.qcFile), RangeCheck: s.Cumulants.RangeCheck,
+		Set: dls.Assignments(s.Overrides), Sheet: rel(o.sheetFile), SigmaColumn: o.sigmaCol, SolventFile: rel(o.solventFile), Spec: rel(o.specFile),
 		UAngleDeg: o.uAngleDeg, URefractiveIndex: s.Uncertainty.RefractiveIndex, UTemperatureK: s.Uncertainty.TemperatureK,
 		UViscosityRel: o.uViscRel,
 	}

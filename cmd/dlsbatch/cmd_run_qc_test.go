@@ -2,6 +2,7 @@ package main
 
 import (
 	"crypto/sha256"
+	"dlsbatch/io/csvdata"
 	"encoding/json"
 	"fmt"
 	"os"
@@ -73,7 +74,7 @@ func TestRunQCThresholdsFile(t *testing.T) {
 		t.Error("min_runs 5 from the file did not raise FEW-RUNS on 3 runs")
 	}
 	q, _ := d.Settings["qc_thresholds"].(map[string]any)
-	if q["min_runs"] != 5.0 || q["max_pdi"] != 0.2 || q["max_rsd_pct"] != 5.0 || d.Settings["qc_thresholds_file"] != th {
+	if q["min_runs"] != 5.0 || q["max_pdi"] != 0.2 || q["max_rsd_pct"] != 5.0 || d.Settings["qc_thresholds_file"] != csvdata.Rel(in, th) {
 		t.Errorf("recorded %v, file %v", q, d.Settings["qc_thresholds_file"])
 	}
 
@@ -91,7 +92,7 @@ func TestRunQCThresholdsFile(t *testing.T) {
 		t.Fatal(err)
 	}
 	sum := sha256.Sum256([]byte(content))
-	if len(m.Tables) != 1 || m.Tables[0].Path != th || m.Tables[0].SHA256 != fmt.Sprintf("%x", sum[:]) {
+	if len(m.Tables) != 1 || m.Tables[0].Path != csvdata.Rel(in, th) || m.Tables[0].SHA256 != fmt.Sprintf("%x", sum[:]) {
 		t.Errorf("manifest tables %+v", m.Tables)
 	}
 }

@@ -16,6 +16,7 @@ import (
 
 	"dlsbatch/dls"
 	"dlsbatch/io/csvdata"
+	"dlsbatch/io/report"
 )
 
 // runCmd runs the command line with buffers and returns exit code, stdout
@@ -137,7 +138,7 @@ func TestRunBatch(t *testing.T) {
 	// Sorted by path then run label.
 	wantOrder := []string{"a_latex.csv", "b_multi.csv[r1]", "b_multi.csv[r2]", "b_multi.csv[r3]", "c_bad.csv", filepath.Join("sub", "d_notemp.csv")}
 	for i, r := range rows {
-		id, _ := filepath.Rel(in, r["file"])
+		id := filepath.FromSlash(r["file"]) // relative to the input root, the folder named
 		if r["run"] != "" {
 			id += "[" + r["run"] + "]"
 		}
@@ -468,6 +469,8 @@ func TestManifest(t *testing.T) {
 	}
 	var m struct {
 		Version  string         `json:"version"`
+		Complete bool           `json:"complete"`
+		Root     string         `json:"root"`
 		Settings map[string]any `json:"settings"`
 		Inputs   []struct {
 			Path   string `json:"path"`
@@ -481,7 +484,7 @@ func TestManifest(t *testing.T) {
 	if err := json.Unmarshal(b, &m); err != nil {
 		t.Fatal(err)
 	}
-	if len(m.Inputs) != 4 || m.Version != version || m.Settings["cumulant_method"] != "nonlinear" {
+	if len(m.Inputs) != 4 || m.Version != report.Version() || !m.Complete || m.Settings["cumulant_method"] != "nonlinear" {
 		t.Fatalf("manifest %+v", m)
 	}
 	sum := func(p string) string {
@@ -493,7 +496,7 @@ func TestManifest(t *testing.T) {
 		return fmt.Sprintf("%x", h[:])
 	}
 	for _, f := range m.Inputs {
-		if f.SHA256 != sum(f.Path) {
+		if f.SHA256 != sum(filepath.Join(m.Root, f.Path)) {
 			t.Errorf("input %s: hash differs", f.Path)
 		}
 	}

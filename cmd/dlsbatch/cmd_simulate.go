@@ -186,7 +186,7 @@ func (o *simOptions) runSingle(e env, grid *sim.Grid, fail func(int, any) int) i
 		return fail(exitFatal, err)
 	}
 	if o.truth != "" {
-		t, err := simplan.TruthJSON([]sim.TruthRecord{res.Truth}, "dlsbatch simulate "+version)
+		t, err := simplan.TruthJSON([]sim.TruthRecord{res.Truth}, "dlsbatch simulate")
 		if err == nil {
 			err = atomicfile.Write(o.truth, t)
 		}
@@ -233,7 +233,7 @@ func (o *simOptions) runPlan(ctx context.Context, e env, grid *sim.Grid, fail fu
 		}
 	}
 	sort.Slice(truths, func(a, b int) bool { return truths[a].File < truths[b].File })
-	t, err := simplan.TruthJSON(truths, "dlsbatch simulate "+version)
+	t, err := simplan.TruthJSON(truths, "dlsbatch simulate")
 	if err == nil {
 		err = atomicfile.Write(filepath.Join(o.out, "truth.json"), t)
 	}

@@ -13,6 +13,8 @@ import (
 
 	"github.com/spf13/pflag"
 	"golang.org/x/term"
+
+	"dlsbatch/io/report"
 )
 
 // Exit codes. Keep this list and usageText in step.
@@ -53,8 +55,18 @@ func subcommands() []subcommand {
 }
 
 func main() {
-	ctx, stop := signal.NotifyContext(context.Background(), os.Interrupt, syscall.SIGTERM)
-	defer stop()
+	// The first SIGINT or SIGTERM cancels the run, which stops within about
+	// a second and says what it leaves; a second one ends the process at
+	// once (an unfinished output folder is then left as it was).
+	ctx, cancel := context.WithCancel(context.Background())
+	sig := make(chan os.Signal, 2)
+	signal.Notify(sig, os.Interrupt, syscall.SIGTERM)
+	go func() {
+		<-sig
+		cancel()
+		<-sig
+		os.Exit(exitInterrupted)
+	}()
 	e := env{stdin: os.Stdin, stdout: os.Stdout, stderr: os.Stderr, stderrIsTerminal: term.IsTerminal(int(os.Stderr.Fd()))}
 	os.Exit(run(ctx, os.Args[1:], e))
 }
@@ -70,7 +82,7 @@ func run(ctx context.Context, args []string, e env) int {
 		fmt.Fprint(e.stdout, usageText())
 		return exitOK
 	case "--version", "version":
-		fmt.Fprintln(e.stdout, "dlsbatch", version)
+		fmt.Fprintln(e.stdout, "dlsbatch", report.Version())
 		return exitOK
 	}
 	for _, sc := range subcommands() {
@@ -81,9 +93,6 @@ func run(ctx context.Context, args []string, e env) int {
 	fmt.Fprintf(e.stderr, "dlsbatch: unknown command %q\n\n%s", args[0], usageText())
 	return exitUsage
 }
-
-// version is the tool version written into outputs.
-const version = "0.1.0"
 
 func usageText() string {
 	s := "dlsbatch: dynamic light scattering correlograms to hydrodynamic sizes\n\n" +

@@ -2,6 +2,7 @@ package htmlreport
 
 import (
 	"bytes"
+	"context"
 	"dlsbatch/io/atomicfile"
 	"fmt"
 	"os"
@@ -139,6 +140,12 @@ func SamplePageName(i int) string { return fmt.Sprintf("sample-%04d.html", i+1) 
 // when a sample indexes a result that does not exist, or when a file
 // cannot be written.
 func Write(dir string, r *Report) ([]string, error) {
+	return WriteContext(context.Background(), dir, r)
+}
+
+// WriteContext is Write that stops, with ctx's error, soon after ctx is
+// done (between pages).
+func WriteContext(ctx context.Context, dir string, r *Report) ([]string, error) {
 	if r == nil {
 		return nil, fmt.Errorf("htmlreport: nil report")
 	}
@@ -170,6 +177,9 @@ func Write(dir string, r *Report) ([]string, error) {
 			defer wg.Done()
 			var b bytes.Buffer
 			for i := range next {
+				if errs[i] = ctx.Err(); errs[i] != nil {
+					continue
+				}
 				b.Reset()
 				if errs[i] = renderSample(&b, r, i); errs[i] == nil {
 					errs[i] = writeFile(dir, SamplePageName(i), b.Bytes())

@@ -7,6 +7,7 @@ import (
 	"os"
 	"strconv"
 	"strings"
+	"text/tabwriter"
 
 	"dlsbatch/dls"
 	"dlsbatch/dls/qc"
@@ -90,4 +91,41 @@ func Parse(r io.Reader, name string, base qc.Thresholds) (qc.Thresholds, error) 
 		return base, t.Err(i, vc, err)
 	}
 	return th, nil
+}
+
+// Help documents the file of `dlsbatch run --qc-thresholds`
+// with every key, its default and its range (from dls/qc, so that the help
+// cannot drift from the reader).
+func Help() string {
+	var b strings.Builder
+	b.WriteString(`
+A site sets its own thresholds with 'dlsbatch run --qc-thresholds FILE'.
+FILE is a CSV table, one threshold per row, that replaces the defaults of
+the keys it lists; the keys are the names under qc_thresholds in
+results.json and manifest.json. Columns: key and value (required), note
+(optional, free text). Lines starting with '#' are comments. An unknown
+or repeated key, a value that is not a number or lies outside its key's
+range, or min_intercept above max_intercept stops the run before any
+analysis (exit 2) with file, line and column. The file's SHA-256 goes
+into manifest.json. Example:
+
+  # thresholds of the sizing lab, reviewed by QA
+  key,value,note
+  max_pdi,0.25,narrow products only
+  min_runs,5,SOP: five repeats
+
+`)
+	tw := tabwriter.NewWriter(&b, 0, 0, 2, ' ', 0)
+	fmt.Fprintln(tw, "key\tdefault\trange")
+	d := qc.DefaultThresholds()
+	for _, k := range qc.ThresholdKeys() {
+		v, _ := d.Value(k.Key)
+		r := fmt.Sprintf("%g … %g", k.Min, k.Max)
+		if k.Integer {
+			r += ", whole number"
+		}
+		fmt.Fprintf(tw, "%s\t%g\t%s\n", k.Key, v, r)
+	}
+	tw.Flush()
+	return b.String()
 }

@@ -18,16 +18,33 @@ type FileHash struct {
 
 // Manifest records what a run read and wrote, so that a reprocessing can be
 // shown to have used the same inputs and settings and produced the same
-// bytes. It holds no clock time and no absolute path that was not given.
+// bytes, and `dlsbatch verify` can check a result set later. It holds no
+// clock time; the one absolute path is Root, so that the inputs can be
+// found again from any working directory.
 type Manifest struct {
-	Tool     string    `json:"tool"`
-	Version  string    `json:"version"`
+	Tool    string `json:"tool"`
+	Version string `json:"version"`
+	// Complete is false for the set an interrupted run leaves: it holds
+	// only the measurements finished (Files says how many), and no
+	// verdicts.
+	Complete bool       `json:"complete"`
+	Files    FileCounts `json:"files"`
+	// Root is the input root (absolute): every input and table path is
+	// relative to it, with forward slashes.
+	Root     string    `json:"root"`
 	Settings *Settings `json:"settings"`
 	// Inputs are the correlogram files in analysis order; Tables the sample
-	// sheet, specification and solvent file when given.
+	// sheet, specification, solvent file and QC thresholds file when given.
 	Inputs  []FileHash `json:"inputs"`
 	Tables  []FileHash `json:"tables"`
 	Outputs []FileHash `json:"outputs"`
+}
+
+// FileCounts are the input files of a run: found, and analysed (all of
+// them unless the run was interrupted).
+type FileCounts struct {
+	Found    int `json:"found"`
+	Analysed int `json:"analysed"`
 }
 
 // HashFile returns the size and SHA-256 of the file at path.

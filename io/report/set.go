@@ -2,11 +2,13 @@ package report
 
 import (
 	"bytes"
+	"context"
 	"fmt"
 	"os"
 	"path/filepath"
 
 	"dlsbatch/io/atomicfile"
+	"dlsbatch/io/csvdata"
 	"dlsbatch/io/htmlreport"
 )
 
@@ -15,10 +17,15 @@ type Set struct {
 	Doc *Document // results.json's content; its results and samples fill the tables
 	// HTMLReport writes the offline report into DIR/report.
 	HTMLReport bool
-	// Inputs are the correlogram files read, in analysis order; Tables the
-	// sample sheet, specification and solvent file that were given. Both
-	// are hashed into the manifest under the paths given.
+	// Root is the input root (see csvdata.Root); Inputs are the
+	// correlogram files analysed, in analysis order, and Tables the sample
+	// sheet, specification, solvent and thresholds files given, as paths
+	// the process can open. The manifest records them relative to Root.
+	Root           string
 	Inputs, Tables []string
+	// FilesFound is the number of input files found (Inputs holds fewer
+	// when the run was interrupted).
+	FilesFound int
 }
 
 // Names of the files of a result set.
@@ -30,11 +37,12 @@ const (
 	ReportDir    = "report"
 )
 
-// WriteSet writes the whole result set into dir (created when missing):
-// results.csv, samples.csv, results.json, the HTML report when asked for,
-// and last manifest.json with the SHA-256 of every input, table and
-// output. Every file is written atomically (io/atomicfile).
-func WriteSet(dir string, s *Set) error {
+// WriteSet writes the whole result set into dir (created when missing;
+// normally a staging folder, see io/resultset): results.csv, samples.csv,
+// results.json, the HTML report when asked for, and last manifest.json
+// with the SHA-256 of every input, table and output. It stops with ctx's
+// error soon after ctx is done.
+func WriteSet(ctx context.Context, dir string, s *Set) error {
 	if err := os.MkdirAll(dir, 0o755); err != nil {
 		return fmt.Errorf("output folder: %w", err)
 	}
@@ -49,7 +57,8 @@ func WriteSet(dir string, s *Set) error {
 	if err := WriteJSON(&jsonBuf, d); err != nil {
 		return err
 	}
-	m := &Manifest{Tool: d.Tool, Version: d.Version, Settings: d.Settings, Tables: []FileHash{}}
+	m := &Manifest{Tool: d.Tool, Version: d.Version, Complete: d.Complete, Root: s.Root, Settings: d.Settings,
+		Files: FileCounts{Found: s.FilesFound, Analysed: len(s.Inputs)}, Inputs: []FileHash{}, Tables: []FileHash{}}
 	for _, f := range []struct {
 		name string
 		data []byte
@@ -59,10 +68,13 @@ func WriteSet(dir string, s *Set) error {
 			return err
 		}
 	}
+	if err := ctx.Err(); err != nil {
+		return err
+	}
 	if s.HTMLReport {
 		rep := htmlreport.FromRun(htmlreport.Run{Tool: d.Tool, Version: d.Version, Caution: d.Caution,
 			Settings: d.Settings, Results: d.Results, Samples: d.Samples, Batch: d.Batch})
-		names, err := htmlreport.Write(filepath.Join(dir, ReportDir), rep)
+		names, err := htmlreport.WriteContext(ctx, filepath.Join(dir, ReportDir), rep)
 		if err != nil {
 			return fmt.Errorf("report: %w", err)
 		}
@@ -75,19 +87,21 @@ func WriteSet(dir string, s *Set) error {
 			m.Outputs = append(m.Outputs, h)
 		}
 	}
-	for _, f := range s.Inputs {
-		h, err := HashFile(f)
-		if err != nil {
-			return err
+	for _, list := range []struct {
+		paths []string
+		dst   *[]FileHash
+	}{{s.Inputs, &m.Inputs}, {s.Tables, &m.Tables}} {
+		for _, f := range list.paths {
+			if err := ctx.Err(); err != nil {
+				return err
+			}
+			h, err := HashFile(f)
+			if err != nil {
+				return err
+			}
+			h.Path = csvdata.Rel(s.Root, f)
+			*list.dst = append(*list.dst, h)
 		}
-		m.Inputs = append(m.Inputs, h)
-	}
-	for _, t := range s.Tables {
-		h, err := HashFile(t)
-		if err != nil {
-			return err
-		}
-		m.Tables = append(m.Tables, h)
 	}
 	var b bytes.Buffer
 	if err := WriteManifest(&b, m); err != nil {

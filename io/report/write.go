@@ -48,6 +48,7 @@ type Document struct {
 	Tool     string             `json:"tool"`
 	Version  string             `json:"version"`
 	Caution  string             `json:"caution"`
+	Complete bool               `json:"complete"` // false: an interrupted run, no verdicts
 	Settings *Settings          `json:"settings"`
 	Counts   dls.Counts         `json:"counts"`
 	Batch    spec.Batch         `json:"batch"`
@@ -86,7 +87,7 @@ func WriteJSON(w io.Writer, doc *Document) error {
 	for _, f := range []struct {
 		name string
 		v    any
-	}{{"tool", doc.Tool}, {"version", doc.Version}, {"caution", doc.Caution}, {"settings", doc.Settings}, {"counts", doc.Counts},
+	}{{"tool", doc.Tool}, {"version", doc.Version}, {"caution", doc.Caution}, {"complete", doc.Complete}, {"settings", doc.Settings}, {"counts", doc.Counts},
 		{"batch", doc.Batch}, {"sheet", doc.Sheet}, {"groups", doc.Groups}, {"samples", doc.Samples}} {
 		if err := field(f.name, f.v, false); err != nil {
 			return fmt.Errorf("results json: %w", err)
