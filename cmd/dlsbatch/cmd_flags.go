@@ -11,17 +11,9 @@ import (
 	"dlsbatch/io/report"
 )
 
-const flagsUsage = `Usage: dlsbatch flags
-
-Lists every quality-control flag that results can carry: its code (stable
-across versions), whether it concerns one run or a whole sample, what it
-means, and the threshold that raises it. The thresholds are common-practice
-defaults; each site should review them against its instruments and products.
-`
-
 func runFlags(ctx context.Context, e env, args []string) int {
 	fs := pflag.NewFlagSet("flags", pflag.ContinueOnError)
-	if code, done := parseFlags(fs, e, "flags", flagsUsage+qcfile.Help(), args); done {
+	if code, done := parseFlags(fs, e, "flags", help("flags")+qcfile.Help(), help("flags.exits"), args); done {
 		return code
 	}
 	if fs.NArg() > 0 {

@@ -31,40 +31,18 @@ import (
 
 // runOptions are the flags of `dlsbatch run`.
 type runOptions struct {
-	out      string
-	jobs     int
-	quiet    bool
-	force    bool
-	set      paramsFlag
-	defaults paramsFlag
+	set, defaults paramsFlag
 
-	tauCol, tauUnit, sigmaCol string
-	corrCols                  []string
-	corrKind                  *enumFlag
-
-	method      *enumFlag
-	order       int
-	cutoff      float64
-	minLagS     float64
-	extrapolate bool
-	noCurves    bool
-	solventFile string
-	sheetFile   string
-	specFile    string
-	qcFile      string
-	exclude     bool
-	noReport    bool
-	uTempK      float64
-	uViscRel    float64
-	uIndex      float64
-	uAngleDeg   float64
-
-	noDist     bool
-	criterion  *enumFlag
-	lambda     float64
-	target     float64
-	gridPoints int
-	particleRI string
+	out, particleRI                          string // output folder; default particle index
+	solventFile, sheetFile, specFile, qcFile string // tables
+	tauCol, tauUnit, sigmaCol                string // foreign CSV columns
+	corrCols                                 []string
+	corrKind, method, criterion              *enumFlag
+	jobs, order, gridPoints                  int
+	cutoff, minLagS, lambda, target          float64
+	uTempK, uViscRel, uIndex, uAngleDeg      float64 // Type B uncertainties
+	quiet, force, extrapolate, noCurves      bool
+	exclude, noReport, noDist                bool
 }
 
 func newRunOptions() *runOptions {
@@ -117,30 +95,11 @@ func (o *runOptions) addFlags(fs *pflag.FlagSet) {
 	fs.Float64Var(&o.uAngleDeg, "u-angle-deg", uncert.DefaultAngleUncertaintyRad*180/math.Pi, "standard uncertainty of the scattering angle, degrees")
 }
 
-const runUsage = `Usage: dlsbatch run [flags] PATH... --out DIR
-
-Reads every correlogram CSV named, or found below a named folder (*.csv,
-recursively), and for each measurement fits cumulants (z-average, PDI),
-inverts it into intensity, volume and number size distributions, and
-states the z-average's uncertainty. Writes to DIR:
-  results.csv    one row per measurement
-  samples.csv    one row per sample: statistics, QC flags, verdict
-  results.json   the same with curves, distributions, budgets, provenance
-  report/        an offline HTML report (index.html)
-  manifest.json  SHA-256 of every input and output, and the settings
-Input files are only ever read.
-
-Metadata precedence, highest first: --set, sample sheet, the file's
-'# key: value' lines, --default, built-in default (solvent water).
-
-Flags:
-`
-
 func runRun(ctx context.Context, e env, args []string) int {
 	o := newRunOptions()
 	fs := pflag.NewFlagSet("run", pflag.ContinueOnError)
 	o.addFlags(fs)
-	if code, done := parseFlags(fs, e, "run", runUsage, args); done {
+	if code, done := parseFlags(fs, e, "run", help("run"), help("run.exits"), args); done {
 		return code
 	}
 	say := func(msg any) { fmt.Fprintln(e.stderr, "dlsbatch run:", msg) }
@@ -237,18 +196,15 @@ func runRun(ctx context.Context, e env, args []string) int {
 	groups := batch.Groups(results)
 	samples := qc.Aggregate(results, qc.Options{Thresholds: settings.QC, ExcludeOutliers: o.exclude})
 	outcome := spec.Batch{Specified: sp != nil, Reason: "not evaluated: the run was interrupted"}
-	analysed := files
 	if complete {
 		outcome = spec.Evaluate(sp, samples, results)
-	} else {
-		analysed = finishedFiles(files, results, root)
 	}
 	doc := &report.Document{
 		Tool: "dlsbatch", Version: report.Version(), Caution: report.Caution, Complete: complete,
 		Settings: o.record(settings, root), Counts: dls.CountResults(results), Batch: outcome, Sheet: match,
 		Groups: &groups, Samples: samples, Results: results,
 	}
-	set := &report.Set{Doc: doc, HTMLReport: !o.noReport && complete, Root: root, Inputs: analysed, FilesFound: len(files)}
+	set := &report.Set{Doc: doc, HTMLReport: !o.noReport && complete, Root: root, Inputs: files}
 	for _, t := range []string{o.sheetFile, o.specFile, o.solventFile, o.qcFile} {
 		if t != "" {
 			set.Tables = append(set.Tables, t)
@@ -271,8 +227,8 @@ func runRun(ctx context.Context, e env, args []string) int {
 		return fail(exitFatal, err)
 	}
 	if !complete {
-		return fail(exitInterrupted, fmt.Sprintf("interrupted: %d of %d files analysed; %s holds them, marked incomplete (no verdicts)",
-			len(analysed), len(files), o.out))
+		return fail(exitInterrupted, fmt.Sprintf("interrupted: %d measurements finished; %s holds them, marked incomplete (no verdicts)",
+			len(results), o.out))
 	}
 	if !o.quiet {
 		if err := report.WriteSummary(e.stdout, results, samples, outcome, 10); err != nil {
@@ -285,22 +241,6 @@ func runRun(ctx context.Context, e env, args []string) int {
 		fmt.Fprintf(e.stdout, "results: %s (%s)\n%s\n", o.out, what, report.Caution)
 	}
 	return exitCode(doc.Counts, outcome)
-}
-
-// finishedFiles lists, in input order, the files of which an interrupted
-// run has results.
-func finishedFiles(files []string, results []*dls.Result, root string) []string {
-	done := map[string]bool{}
-	for _, r := range results {
-		done[r.File] = true
-	}
-	var out []string
-	for _, f := range files {
-		if done[csvdata.Rel(root, f)] {
-			out = append(out, f)
-		}
-	}
-	return out
 }
 
 // exitCode maps the outcome of a finished run to the documented codes; the

@@ -326,14 +326,35 @@ func TestRunRefusesToReplace(t *testing.T) {
 	}
 }
 
+// TestHelpListsExitCodes: each command's --help lists its own exit codes
+// (run's five outcome codes and 130; verify's 0, 1, 2), and the top-level
+// help points to them.
 func TestHelpListsExitCodes(t *testing.T) {
-	for _, args := range [][]string{{"--help"}, {"run", "--help"}} {
-		_, stdout, _ := runCmd(t, args...)
-		for _, code := range []string{"0 ", "1 ", "2 ", "3 ", "130"} {
+	for _, tc := range []struct {
+		args  []string
+		codes []string
+	}{
+		{[]string{"run", "--help"}, []string{"0 ", "1 ", "2 ", "3 ", "4 ", "5 ", "130"}},
+		{[]string{"verify", "--help"}, []string{"0 ", "1 ", "2 "}},
+		{[]string{"simulate", "--help"}, []string{"0 ", "1 ", "2 ", "130"}},
+		{[]string{"solvents", "--help"}, []string{"0 ", "1 ", "2 "}},
+		{[]string{"flags", "--help"}, []string{"0 ", "2 "}},
+	} {
+		_, stdout, _ := runCmd(t, tc.args...)
+		if strings.Contains(stdout, "%%") {
+			t.Errorf("%v: help shows a doubled %%%%", tc.args)
+		}
+		if !strings.Contains(stdout, "\nExit codes:\n") {
+			t.Errorf("%v: no exit codes section", tc.args)
+		}
+		for _, code := range tc.codes {
 			if !strings.Contains(stdout, "\n  "+code) {
-				t.Errorf("%v: help does not list exit code %s", args, code)
+				t.Errorf("%v: help does not list exit code %s", tc.args, code)
 			}
 		}
+	}
+	if _, stdout, _ := runCmd(t, "--help"); !strings.Contains(stdout, "flags and exit codes of a command") || !strings.Contains(stdout, "verify") {
+		t.Errorf("top-level help: %s", stdout)
 	}
 }
 

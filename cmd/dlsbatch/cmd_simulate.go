@@ -84,32 +84,11 @@ func (o *simOptions) addFlags(fs *pflag.FlagSet) {
 	fs.Float64Var(&o.tauMaxS, "tau-max-s", 0, "lag grid: longest lag in s (0: use --channels)")
 }
 
-const simulateUsage = `Usage: dlsbatch simulate [flags] [-o FILE]
-       dlsbatch simulate --plan PLAN.csv --out DIR [flags]
-
-Writes synthetic correlograms (g2 on a multi-tau lag grid, photon-statistics
-noise from a Gaussian model) of a stated particle population, in the
-correlogram CSV format that 'dlsbatch run' reads, together with the exact
-z-average, PDI and mean decay rate of the population (the ground truth).
-
-With --plan, every row of the plan CSV is one output file in DIR, and
-DIR/truth.json lists the ground truth of every file. Plan columns (empty
-cells take the value of the corresponding flag):
-  file (required; a plain name ending in .csv), sample, runs, population,
-  solvent, temperature_c, wavelength_nm, angle_deg, viscosity_mpas,
-  refractive_index, material, particle_ri, count_rate_kcps, duration_s, beta,
-  baseline, seed, dust_bursts, sigma (yes or no).
-Lines starting with '#' are comments; quote a population that holds commas,
-e.g. "lognormal(120nm,0.31,intensity)". Input files are never overwritten.
-
-Flags:
-`
-
 func runSimulate(ctx context.Context, e env, args []string) int {
 	o := newSimOptions()
 	fs := pflag.NewFlagSet("simulate", pflag.ContinueOnError)
 	o.addFlags(fs)
-	if code, done := parseFlags(fs, e, "simulate", simulateUsage, args); done {
+	if code, done := parseFlags(fs, e, "simulate", help("simulate"), help("simulate.exits"), args); done {
 		return code
 	}
 	fail := func(code int, err any) int {

@@ -28,33 +28,11 @@ func (o *solventsOptions) addFlags(fs *pflag.FlagSet) {
 	fs.BoolVar(&o.extrapolate, "extrapolate", false, "print values outside a correlation's valid range (marked as extrapolated)")
 }
 
-const solventsUsage = `Usage: dlsbatch solvents [flags] [NAME...]
-
-Without --temperature-c or --wavelength-nm: lists the solvent table, each
-entry with its aliases, the temperature range (°C, at 0.1 MPa) and the
-wavelength range (nm) in which its correlations hold, and their sources.
-With either flag: prints viscosity and refractive index at that state (the
-other flag takes its default), then the source of each value.
-
-NAME restricts the output to the solvents named (name, alias or CAS
-number); glycerol-water:W is a glycerol–water mixture of glycerol mass
-fraction W (0.40 or 40%%).
-
-Indices are absolute (relative to vacuum) at the vacuum wavelength; the
-scattering vector needs only n/λ, so a relative-to-air index would go with
-the wavelength in air.
-
-Example:
-  dlsbatch solvents --temperature-c 37 --wavelength-nm 532 water ethanol glycerol-water:0.3
-
-Flags:
-`
-
 func runSolvents(ctx context.Context, e env, args []string) int {
 	var o solventsOptions
 	fs := pflag.NewFlagSet("solvents", pflag.ContinueOnError)
 	o.addFlags(fs)
-	if code, done := parseFlags(fs, e, "solvents", solventsUsage, args); done {
+	if code, done := parseFlags(fs, e, "solvents", help("solvents"), help("solvents.exits"), args); done {
 		return code
 	}
 	fail := func(code int, msg any) int {

@@ -4,6 +4,7 @@ package main
 
 import (
 	"context"
+	"embed"
 	"errors"
 	"fmt"
 	"io"
@@ -38,6 +39,19 @@ type env struct {
 	stderrIsTerminal bool
 }
 
+//go:embed help
+var helpFiles embed.FS
+
+// help returns the help text help/NAME.txt (usage texts and exit codes of
+// the subcommands, kept as plain text beside the code).
+func help(name string) string {
+	b, err := helpFiles.ReadFile("help/" + name + ".txt")
+	if err != nil {
+		panic("dlsbatch: missing help text " + name) // a build without its help files
+	}
+	return string(b)
+}
+
 // subcommand is one verb of the command line.
 type subcommand struct {
 	name    string
@@ -51,6 +65,7 @@ func subcommands() []subcommand {
 		{"simulate", "write synthetic correlograms of a stated population", runSimulate},
 		{"solvents", "list the solvent table with valid ranges and sources", runSolvents},
 		{"flags", "list the quality-control flags with their meaning and threshold", runFlags},
+		{"verify", "check a result folder against its manifest", runVerify},
 	}
 }
 
@@ -100,25 +115,16 @@ func usageText() string {
 	for _, sc := range subcommands() {
 		s += fmt.Sprintf("  %-10s %s\n", sc.name, sc.summary)
 	}
-	s += "\nRun 'dlsbatch <command> --help' for the flags of a command.\n\n" + exitCodesText
+	s += "\nRun 'dlsbatch <command> --help' for the flags and exit codes of a command.\n"
 	return s
 }
 
-const exitCodesText = `Exit codes:
-  0    every measurement analysed (status ok or warn)
-  1    fatal: nothing usable was produced
-  2    usage error (bad flag, unreadable settings)
-  3    some measurements could not be analysed (status error); the rest are written
-  4    some samples failed their specification (--spec)
-  5    batch invalid: the reference standard failed or was not measured (--spec)
-  130  interrupted
-`
-
 // parseFlags parses args into fs for the subcommand name. For --help it
-// prints usage (its text, the flags and the exit codes) to stdout and
+// prints usage (its text, the flags and the command's own exit codes) to
+// stdout and
 // returns exitOK with done set; on a bad flag it reports the error and a
 // hint on stderr and returns exitUsage with done set.
-func parseFlags(fs *pflag.FlagSet, e env, name, usage string, args []string) (code int, done bool) {
+func parseFlags(fs *pflag.FlagSet, e env, name, usage, exits string, args []string) (code int, done bool) {
 	fs.SetOutput(e.stderr)
 	fs.Usage = func() {} // pflag calls it on --help and on errors; printed here instead
 	err := fs.Parse(args)
@@ -130,7 +136,7 @@ func parseFlags(fs *pflag.FlagSet, e env, name, usage string, args []string) (co
 		fs.SetOutput(e.stdout)
 		fs.PrintDefaults()
 		fs.SetOutput(e.stderr)
-		fmt.Fprint(e.stdout, "\n"+exitCodesText)
+		fmt.Fprint(e.stdout, "\nExit codes:\n"+exits)
 		return exitOK, true
 	}
 	fmt.Fprintf(e.stderr, "dlsbatch %s: %v\nrun 'dlsbatch %s --help' for the flags\n", name, err, name)

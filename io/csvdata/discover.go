@@ -107,32 +107,3 @@ func RelativePaths(files, inputs []string) map[string]string {
 	}
 	return out
 }
-
-// CheckOutside refuses an output folder that is, or lies inside, one of the
-// input folders, so that no file under the input paths is ever written.
-func CheckOutside(out string, inputs []string) error {
-	ao, err := filepath.Abs(out)
-	if err != nil {
-		return fmt.Errorf("--out %s: %w", out, err)
-	}
-	for _, in := range inputs {
-		ai, err := filepath.Abs(in)
-		if err != nil {
-			continue
-		}
-		st, err := os.Stat(in)
-		if err != nil {
-			continue
-		}
-		if !st.IsDir() {
-			if ao == ai {
-				return fmt.Errorf("--out %s is an input file", out)
-			}
-			continue
-		}
-		if rel, err := filepath.Rel(ai, ao); err == nil && (rel == "." || !strings.HasPrefix(rel, "..")) {
-			return fmt.Errorf("--out %s lies inside the input folder %s; choose a folder outside the inputs", out, in)
-		}
-	}
-	return nil
-}

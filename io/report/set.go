@@ -7,6 +7,7 @@ import (
 	"os"
 	"path/filepath"
 
+	"dlsbatch/dls"
 	"dlsbatch/io/atomicfile"
 	"dlsbatch/io/csvdata"
 	"dlsbatch/io/htmlreport"
@@ -18,14 +19,12 @@ type Set struct {
 	// HTMLReport writes the offline report into DIR/report.
 	HTMLReport bool
 	// Root is the input root (see csvdata.Root); Inputs are the
-	// correlogram files analysed, in analysis order, and Tables the sample
+	// correlogram files found, in analysis order, and Tables the sample
 	// sheet, specification, solvent and thresholds files given, as paths
-	// the process can open. The manifest records them relative to Root.
+	// the process can open. The manifest records them relative to Root;
+	// for an incomplete document, only the inputs with results.
 	Root           string
 	Inputs, Tables []string
-	// FilesFound is the number of input files found (Inputs holds fewer
-	// when the run was interrupted).
-	FilesFound int
 }
 
 // Names of the files of a result set.
@@ -57,8 +56,12 @@ func WriteSet(ctx context.Context, dir string, s *Set) error {
 	if err := WriteJSON(&jsonBuf, d); err != nil {
 		return err
 	}
+	inputs := s.Inputs
+	if !d.Complete {
+		inputs = analysed(s.Root, s.Inputs, d.Results)
+	}
 	m := &Manifest{Tool: d.Tool, Version: d.Version, Complete: d.Complete, Root: s.Root, Settings: d.Settings,
-		Files: FileCounts{Found: s.FilesFound, Analysed: len(s.Inputs)}, Inputs: []FileHash{}, Tables: []FileHash{}}
+		Files: FileCounts{Found: len(s.Inputs), Analysed: len(inputs)}, Inputs: []FileHash{}, Tables: []FileHash{}}
 	for _, f := range []struct {
 		name string
 		data []byte
@@ -90,7 +93,7 @@ func WriteSet(ctx context.Context, dir string, s *Set) error {
 	for _, list := range []struct {
 		paths []string
 		dst   *[]FileHash
-	}{{s.Inputs, &m.Inputs}, {s.Tables, &m.Tables}} {
+	}{{inputs, &m.Inputs}, {s.Tables, &m.Tables}} {
 		for _, f := range list.paths {
 			if err := ctx.Err(); err != nil {
 				return err
@@ -108,4 +111,19 @@ func WriteSet(ctx context.Context, dir string, s *Set) error {
 		return err
 	}
 	return atomicfile.Write(filepath.Join(dir, ManifestJSON), b.Bytes())
+}
+
+// analysed lists, in input order, the inputs of which results exist.
+func analysed(root string, inputs []string, results []*dls.Result) []string {
+	done := map[string]bool{}
+	for _, r := range results {
+		done[r.File] = true
+	}
+	var out []string
+	for _, f := range inputs {
+		if done[csvdata.Rel(root, f)] {
+			out = append(out, f)
+		}
+	}
+	return out
 }

@@ -1,0 +1,184 @@
+package main
+
+import (
+	"context"
+	"errors"
+	"fmt"
+	"math/rand/v2"
+	"os"
+	"os/exec"
+	"path/filepath"
+	"strings"
+	"syscall"
+	"testing"
+	"time"
+
+	"dlsbatch/io/report"
+)
+
+// TestMain lets the fault tests run this test binary as the command
+// itself: with DLSBATCH_AS_MAIN set it runs main with the arguments after
+// "--".
+func TestMain(m *testing.M) {
+	if os.Getenv("DLSBATCH_AS_MAIN") == "1" {
+		for i, a := range os.Args {
+			if a == "--" {
+				os.Args = append([]string{"dlsbatch"}, os.Args[i+1:]...)
+				break
+			}
+		}
+		main()
+		return
+	}
+	os.Exit(m.Run())
+}
+
+// child starts the command as a separate process.
+func child(t *testing.T, args ...string) *exec.Cmd {
+	t.Helper()
+	cmd := exec.Command(os.Args[0], append([]string{"-test.run=^$", "--"}, args...)...)
+	cmd.Env = append(os.Environ(), "DLSBATCH_AS_MAIN=1")
+	return cmd
+}
+
+// faultBatch copies the demo night into four folders (96 files), enough
+// for a run to take a measurable time.
+func faultBatch(t *testing.T) string {
+	t.Helper()
+	src := filepath.Join("..", "..", "testdata", "demo")
+	files, err := filepath.Glob(filepath.Join(src, "*.csv"))
+	if err != nil || len(files) == 0 {
+		t.Fatal("no demo files")
+	}
+	dir := filepath.Join(t.TempDir(), "night")
+	for k := range 4 {
+		sub := filepath.Join(dir, fmt.Sprintf("block%d", k))
+		if err := os.MkdirAll(sub, 0o755); err != nil {
+			t.Fatal(err)
+		}
+		for _, f := range files {
+			b, err := os.ReadFile(f)
+			if err != nil {
+				t.Fatal(err)
+			}
+			if err := os.WriteFile(filepath.Join(sub, filepath.Base(f)), b, 0o644); err != nil {
+				t.Fatal(err)
+			}
+		}
+	}
+	return dir
+}
+
+// TestKillLeavesAVerifiableSet kills a run with SIGKILL at 12 random
+// moments spread over a whole run (analysis, report, hashing, swap) and
+// checks what is left each time: either no folder (the first run died
+// before its swap) or a set that verify accepts whole. It never finds a
+// mix of two runs or a half-written set.
+func TestKillLeavesAVerifiableSet(t *testing.T) {
+	if testing.Short() {
+		t.Skip("runs the command 14 times")
+	}
+	in := faultBatch(t)
+	out := filepath.Join(t.TempDir(), "out")
+	args := []string{"run", in, "--out", out, "--force", "-q", "-j", "2"}
+	// Time one whole run to spread the kills over it.
+	start := time.Now()
+	if b, err := child(t, args...).CombinedOutput(); err != nil && !isExit(err, exitSpecFailed, exitOK) {
+		t.Fatalf("reference run: %v\n%s", err, b)
+	}
+	whole := time.Since(start)
+	if v, err := report.Verify(out); err != nil || !v.OK() {
+		t.Fatalf("reference run does not verify: %v %+v", err, v)
+	}
+	os.RemoveAll(out)
+	rng := rand.New(rand.NewPCG(11, 12))
+	for i := range 12 {
+		delay := time.Duration(rng.Float64() * 1.2 * float64(whole))
+		cmd := child(t, args...)
+		if err := cmd.Start(); err != nil {
+			t.Fatal(err)
+		}
+		time.Sleep(delay)
+		cmd.Process.Signal(syscall.SIGKILL)
+		cmd.Wait()
+		v, err := report.Verify(out)
+		switch {
+		case errors.Is(err, report.ErrNoManifest) && noFolder(out):
+			t.Logf("kill %d after %v: no set yet", i, delay)
+		case err != nil:
+			t.Errorf("kill %d after %v: %v", i, delay, err)
+		case !v.OK():
+			t.Errorf("kill %d after %v: the set left does not verify: %+v", i, delay, v.Differences)
+		default:
+			t.Logf("kill %d after %v: a whole set (%d files checked)", i, delay, v.Checked)
+		}
+	}
+}
+
+// TestInterruptMarksIncomplete sends SIGINT early in the analysis: the run
+// exits 130, and what it leaves verifies as an incomplete set whose only
+// difference is that it is incomplete, with no verdicts.
+func TestInterruptMarksIncomplete(t *testing.T) {
+	if testing.Short() {
+		t.Skip("runs the command")
+	}
+	in := faultBatch(t)
+	out := filepath.Join(t.TempDir(), "out")
+	cmd := child(t, "run", in, "--out", out, "-q", "-j", "1", "--spec", filepath.Join("..", "..", "testdata", "demo-spec.csv"))
+	var stderr strings.Builder
+	cmd.Stderr = &stderr
+	if err := cmd.Start(); err != nil {
+		t.Fatal(err)
+	}
+	time.Sleep(150 * time.Millisecond)
+	cmd.Process.Signal(os.Interrupt)
+	ctx, cancel := context.WithTimeout(context.Background(), 20*time.Second)
+	defer cancel()
+	done := make(chan error, 1)
+	go func() { done <- cmd.Wait() }()
+	var err error
+	select {
+	case err = <-done:
+	case <-ctx.Done():
+		cmd.Process.Kill()
+		t.Fatal("the run did not stop after SIGINT")
+	}
+	if !isExit(err, exitInterrupted) {
+		t.Fatalf("exit %v, want %d; stderr: %s", err, exitInterrupted, stderr.String())
+	}
+	v, verr := report.Verify(out)
+	if verr != nil {
+		t.Fatalf("verify: %v (stderr %s)", verr, stderr.String())
+	}
+	if v.Complete || len(v.Differences) != 1 || v.Differences[0].Kind != "set" {
+		t.Fatalf("want an incomplete but otherwise intact set, got complete=%v %+v", v.Complete, v.Differences)
+	}
+	if n := v.Manifest.Files; n.Analysed >= n.Found || n.Found != 96 {
+		t.Errorf("files %+v: want fewer than all 96 analysed", n)
+	}
+	b, _ := os.ReadFile(filepath.Join(out, "results.json"))
+	if strings.Contains(string(b), `"verdict":{`) {
+		t.Error("an incomplete set carries verdicts")
+	}
+}
+
+func noFolder(p string) bool {
+	_, err := os.Stat(p)
+	return errors.Is(err, os.ErrNotExist)
+}
+
+func isExit(err error, codes ...int) bool {
+	code := 0
+	var ee *exec.ExitError
+	if errors.As(err, &ee) {
+		code = ee.ExitCode()
+	} else if err != nil {
+		return false
+	}
+	for _, c := range codes {
+		if c == code {
+			return true
+		}
+	}
+	return false
+}

@@ -1,0 +1,194 @@
+package resultset
+
+import (
+	"errors"
+	"os"
+	"path/filepath"
+	"strconv"
+	"strings"
+	"testing"
+)
+
+func write(t *testing.T, p, s string) {
+	t.Helper()
+	if err := os.MkdirAll(filepath.Dir(p), 0o755); err != nil {
+		t.Fatal(err)
+	}
+	if err := os.WriteFile(p, []byte(s), 0o644); err != nil {
+		t.Fatal(err)
+	}
+}
+
+func read(t *testing.T, p string) string {
+	t.Helper()
+	b, err := os.ReadFile(p)
+	if err != nil {
+		t.Fatal(err)
+	}
+	return string(b)
+}
+
+// TestCommitReplacesWhole: a new set replaces the old one whole: a file
+// only the old set had is gone, and no staging folder is left.
+func TestCommitReplacesWhole(t *testing.T) {
+	dir := t.TempDir()
+	out := filepath.Join(dir, "out")
+	s, err := Open(out, nil, false)
+	if err != nil {
+		t.Fatal(err)
+	}
+	write(t, filepath.Join(s.Staging, "results.csv"), "old")
+	write(t, filepath.Join(s.Staging, "report", "sample-0002.html"), "old page")
+	if err := s.Commit(); err != nil {
+		t.Fatal(err)
+	}
+	if _, err := Open(out, nil, false); !errors.Is(err, ErrExists) {
+		t.Fatalf("reopen without force: %v, want ErrExists", err)
+	}
+	s, err = Open(out, nil, true)
+	if err != nil {
+		t.Fatal(err)
+	}
+	write(t, filepath.Join(s.Staging, "results.csv"), "new")
+	if got := read(t, filepath.Join(out, "results.csv")); got != "old" {
+		t.Fatalf("set changed before commit: %q", got)
+	}
+	if err := s.Commit(); err != nil {
+		t.Fatal(err)
+	}
+	if got := read(t, filepath.Join(out, "results.csv")); got != "new" {
+		t.Errorf("results.csv %q after commit", got)
+	}
+	if _, err := os.Stat(filepath.Join(out, "report", "sample-0002.html")); !errors.Is(err, os.ErrNotExist) {
+		t.Errorf("a page of the old set survived: %v", err)
+	}
+	left, _ := filepath.Glob(filepath.Join(dir, ".out.staging-*"))
+	if len(left) != 0 {
+		t.Errorf("staging folders left: %v", left)
+	}
+}
+
+// TestAbortKeepsPrevious: an aborted run leaves the previous set as it was.
+func TestAbortKeepsPrevious(t *testing.T) {
+	out := filepath.Join(t.TempDir(), "out")
+	s, _ := Open(out, nil, false)
+	write(t, filepath.Join(s.Staging, "manifest.json"), "v1")
+	if err := s.Commit(); err != nil {
+		t.Fatal(err)
+	}
+	s, err := Open(out, nil, true)
+	if err != nil {
+		t.Fatal(err)
+	}
+	write(t, filepath.Join(s.Staging, "manifest.json"), "v2")
+	s.Abort()
+	if got := read(t, filepath.Join(out, "manifest.json")); got != "v1" {
+		t.Errorf("manifest %q after abort, want v1", got)
+	}
+	if _, err := os.Stat(s.Staging); !errors.Is(err, os.ErrNotExist) {
+		t.Error("staging folder left after abort")
+	}
+}
+
+// TestLock: a second Open of a folder being written fails at once with
+// ErrBusy and names this process; after the first is done it succeeds.
+// (flock locks belong to open file descriptions, so two Opens in one
+// process conflict just as two processes do.)
+func TestLock(t *testing.T) {
+	out := filepath.Join(t.TempDir(), "out")
+	s, err := Open(out, nil, false)
+	if err != nil {
+		t.Fatal(err)
+	}
+	_, err = Open(out, nil, true)
+	if !errors.Is(err, ErrBusy) || !strings.Contains(err.Error(), "process "+strconv.Itoa(os.Getpid())) {
+		t.Fatalf("second open: %v, want ErrBusy naming pid %d", err, os.Getpid())
+	}
+	s.Abort()
+	s2, err := Open(out, nil, true)
+	if err != nil {
+		t.Fatalf("open after release: %v", err)
+	}
+	s2.Abort()
+}
+
+// TestRefusals: a folder of other files, a file, an input folder, a folder
+// inside one, a folder holding an input, and a symbolic link into an input
+// folder are all refused before anything is written.
+func TestRefusals(t *testing.T) {
+	dir := t.TempDir()
+	in := filepath.Join(dir, "data")
+	write(t, filepath.Join(in, "a.csv"), "x")
+	write(t, filepath.Join(dir, "thesis", "chapter1.tex"), "x")
+	write(t, filepath.Join(dir, "afile"), "x")
+	if err := os.Symlink(in, filepath.Join(dir, "link")); err != nil {
+		t.Fatal(err)
+	}
+	for _, tc := range []struct {
+		name, out, want string
+	}{
+		{"foreign files", filepath.Join(dir, "thesis"), "which no result set holds"},
+		{"a file", filepath.Join(dir, "afile"), "not a folder"},
+		{"the input", in, "is the input"},
+		{"inside the input", filepath.Join(in, "out"), "inside the input"},
+		{"holds the input", dir, "holds the input"},
+		{"link to the input", filepath.Join(dir, "link"), "is the input"},
+	} {
+		s, err := Open(tc.out, []string{in}, true)
+		if err == nil {
+			s.Abort()
+			t.Errorf("%s: accepted", tc.name)
+			continue
+		}
+		if !strings.Contains(err.Error(), tc.want) {
+			t.Errorf("%s: %v, want %q", tc.name, err, tc.want)
+		}
+	}
+	if got := read(t, filepath.Join(dir, "thesis", "chapter1.tex")); got != "x" {
+		t.Error("a refused folder was changed")
+	}
+}
+
+// TestSymlinkedOut: --out naming a link to a folder writes into the
+// folder, and the link stays a link.
+func TestSymlinkedOut(t *testing.T) {
+	dir := t.TempDir()
+	real := filepath.Join(dir, "real")
+	if err := os.Mkdir(real, 0o755); err != nil {
+		t.Fatal(err)
+	}
+	link := filepath.Join(dir, "link")
+	if err := os.Symlink(real, link); err != nil {
+		t.Fatal(err)
+	}
+	s, err := Open(link, nil, false)
+	if err != nil {
+		t.Fatal(err)
+	}
+	write(t, filepath.Join(s.Staging, "results.csv"), "r")
+	if err := s.Commit(); err != nil {
+		t.Fatal(err)
+	}
+	if got := read(t, filepath.Join(link, "results.csv")); got != "r" {
+		t.Errorf("through the link: %q", got)
+	}
+	if st, err := os.Lstat(link); err != nil || st.Mode()&os.ModeSymlink == 0 {
+		t.Error("the link was replaced")
+	}
+}
+
+// TestStaleStagingRemoved: the staging folder of a killed run is removed
+// by the next run.
+func TestStaleStagingRemoved(t *testing.T) {
+	dir := t.TempDir()
+	stale := filepath.Join(dir, ".out.staging-99999999")
+	write(t, filepath.Join(stale, "results.csv"), "half")
+	s, err := Open(filepath.Join(dir, "out"), nil, false)
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer s.Abort()
+	if _, err := os.Stat(stale); !errors.Is(err, os.ErrNotExist) {
+		t.Error("stale staging folder kept")
+	}
+}
