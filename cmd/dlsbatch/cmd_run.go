@@ -191,7 +191,16 @@ func runRun(ctx context.Context, e env, args []string) int {
 		}
 		defer bar.Finish()
 	}
-	results, runErr := rn.Run(ctx, files)
+	stream, err := report.NewStream(out.Staging)
+	if err != nil {
+		return fail(exitFatal, err)
+	}
+	rn.Emit = stream.Add
+	_, runErr := rn.Run(ctx, files)
+	if runErr != nil && ctx.Err() == nil {
+		return fail(exitFatal, runErr) // results could not be kept (e.g. a full disk)
+	}
+	results := stream.Results()
 	complete := runErr == nil
 	groups := batch.Groups(results)
 	samples := qc.Aggregate(results, qc.Options{Thresholds: settings.QC, ExcludeOutliers: o.exclude})
@@ -204,7 +213,7 @@ func runRun(ctx context.Context, e env, args []string) int {
 		Settings: o.record(settings, root), Counts: dls.CountResults(results), Batch: outcome, Sheet: match,
 		Groups: &groups, Samples: samples, Results: results,
 	}
-	set := &report.Set{Doc: doc, HTMLReport: !o.noReport && complete, Root: root, Inputs: files}
+	set := &report.Set{Doc: doc, HTMLReport: !o.noReport && complete, Root: root, Inputs: files, Stream: stream}
 	for _, t := range []string{o.sheetFile, o.specFile, o.solventFile, o.qcFile} {
 		if t != "" {
 			set.Tables = append(set.Tables, t)

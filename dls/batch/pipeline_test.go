@@ -6,6 +6,7 @@ import (
 	"fmt"
 	"math"
 	"strings"
+	"sync"
 	"testing"
 
 	"dlsbatch/dls"
@@ -222,5 +223,58 @@ func TestAnalyzeUserSolventTable(t *testing.T) {
 	s.Solvents = nil
 	if r := Analyze(monoMeasurement(meta), &s); r.Status != dls.StatusError {
 		t.Errorf("the built-in table knows buffer-x: %s", r.Message)
+	}
+}
+
+// TestRunnerEmit: with Emit, results arrive in input order, one file at a
+// time, while no more than 4 files per worker are ever in flight or
+// waiting; an Emit error stops the batch and is returned.
+func TestRunnerEmit(t *testing.T) {
+	var paths []string
+	for i := range 60 {
+		paths = append(paths, fmt.Sprintf("f%02d", i))
+	}
+	var mu sync.Mutex
+	inFlight, most := 0, 0
+	read := func(p string) []Input {
+		mu.Lock()
+		inFlight++
+		most = max(most, inFlight)
+		mu.Unlock()
+		m := monoMeasurement(workedMeta())
+		m.File = p
+		return []Input{{File: p, M: m}}
+	}
+	const workers = 3
+	var got []string
+	rn := &Runner{Read: read, Settings: DefaultSettings(), Workers: workers, Emit: func(res []*dls.Result) error {
+		mu.Lock()
+		inFlight--
+		mu.Unlock()
+		for _, r := range res {
+			got = append(got, r.File)
+		}
+		return nil
+	}}
+	res, err := rn.Run(context.Background(), paths)
+	if err != nil || len(res) != 0 {
+		t.Fatalf("Run returned %d results, %v; want none (emitted)", len(res), err)
+	}
+	if strings.Join(got, " ") != strings.Join(paths, " ") {
+		t.Errorf("emitted out of order: %v", got)
+	}
+	if most > 4*workers {
+		t.Errorf("%d files read but not yet emitted at once, want at most %d", most, 4*workers)
+	}
+	boom := errors.New("disk full")
+	n := 0
+	rn.Emit = func([]*dls.Result) error {
+		if n++; n == 5 {
+			return boom
+		}
+		return nil
+	}
+	if _, err := rn.Run(context.Background(), paths); !errors.Is(err, boom) {
+		t.Errorf("Emit error: Run returned %v", err)
 	}
 }

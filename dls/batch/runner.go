@@ -28,52 +28,107 @@ type Runner struct {
 	// Progress, when set, is called once per finished file from the
 	// worker goroutines (it must be safe for concurrent use).
 	Progress func(path string)
+	// Emit, when set, receives the results of each file in input order,
+	// from the goroutine that called Run, as soon as the file and every
+	// file before it are done; Run then returns no results. With it,
+	// memory holds at most a window of files' results, not the batch.
+	Emit func(results []*dls.Result) error
 }
 
 // Run reads and analyses every path and returns one result per measurement,
 // sorted by file path (in the order given) and then by run label, whatever
 // the number of workers. When ctx is cancelled it stops starting files and
-// returns the results finished so far together with ctx.Err().
+// returns (or emits) the results finished so far together with ctx.Err().
+// Workers run at most 4 files per worker ahead of the first unfinished
+// file, so that the results waiting for their turn stay few.
 func (rn *Runner) Run(ctx context.Context, paths []string) ([]*dls.Result, error) {
 	workers := rn.Workers
 	if workers <= 0 {
 		workers = runtime.GOMAXPROCS(0)
 	}
 	workers = min(workers, max(1, len(paths)))
-	perFile := make([][]*dls.Result, len(paths))
-	done := make([]bool, len(paths))
+	parent := ctx
+	ctx, cancel := context.WithCancel(ctx)
+	defer cancel()
+	type done struct {
+		i   int
+		res []*dls.Result
+	}
 	jobs := make(chan int)
+	finished := make(chan done, workers)
+	window := make(chan struct{}, 4*workers)
 	var wg sync.WaitGroup
-	for w := 0; w < workers; w++ {
+	for range workers {
 		wg.Add(1)
 		go func() {
 			defer wg.Done()
 			for i := range jobs {
-				perFile[i] = rn.analyzeFile(paths[i])
-				done[i] = true
+				res := rn.analyzeFile(paths[i])
 				if rn.Progress != nil {
 					rn.Progress(paths[i])
 				}
+				finished <- done{i, res}
 			}
 		}()
 	}
 	var stopped error
-feed:
-	for i := range paths {
-		select {
-		case <-ctx.Done():
-			stopped = ctx.Err()
-			break feed
-		case jobs <- i:
+	go func() {
+		defer close(jobs)
+		for i := range paths {
+			select {
+			case <-ctx.Done():
+				return
+			case window <- struct{}{}:
+			}
+			select {
+			case <-ctx.Done():
+				<-window
+				return
+			case jobs <- i:
+			}
+		}
+	}()
+	go func() {
+		wg.Wait()
+		close(finished)
+	}()
+	var out []*dls.Result
+	var emitErr error
+	emit := func(res []*dls.Result) {
+		if rn.Emit == nil {
+			out = append(out, res...)
+		} else if emitErr == nil {
+			if emitErr = rn.Emit(res); emitErr != nil {
+				cancel() // no point analysing what cannot be written
+			}
 		}
 	}
-	close(jobs)
-	wg.Wait()
-	var out []*dls.Result
-	for i := range paths {
-		if done[i] {
-			out = append(out, perFile[i]...)
+	pending := map[int][]*dls.Result{}
+	next := 0
+	for d := range finished {
+		pending[d.i] = d.res
+		for {
+			res, ok := pending[next]
+			if !ok {
+				break
+			}
+			delete(pending, next)
+			emit(res)
+			next++
+			<-window
 		}
+	}
+	// Files finished after a gap left by cancellation, in input order.
+	for i := next; i < len(paths); i++ {
+		if res, ok := pending[i]; ok {
+			emit(res)
+		}
+	}
+	if next < len(paths) {
+		stopped = parent.Err()
+	}
+	if emitErr != nil {
+		return out, emitErr
 	}
 	return out, stopped
 }

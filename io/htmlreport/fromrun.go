@@ -13,6 +13,7 @@ type Run struct {
 	Results                []*dls.Result
 	Samples                []*dls.Sample
 	Batch                  spec.Batch
+	Load                   func(i int) (*dls.Result, error) // see Report.Load
 }
 
 // FromRun builds the report model of a run: the batch banner says whether
@@ -34,5 +35,5 @@ func FromRun(run Run) *Report {
 		}
 	}
 	return &Report{Tool: run.Tool, Version: run.Version, Caution: run.Caution, Settings: run.Settings,
-		Results: run.Results, Samples: run.Samples, Batch: b}
+		Results: run.Results, Samples: run.Samples, Batch: b, Load: run.Load}
 }

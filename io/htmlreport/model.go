@@ -240,7 +240,7 @@ type runDetail struct {
 	Assumptions []string
 }
 
-func buildSample(r *Report, i int) samplePage {
+func buildSample(r *Report, i int) (samplePage, error) {
 	s := r.Samples[i]
 	p := samplePage{
 		page:    newPage(r),
@@ -287,6 +287,13 @@ func buildSample(r *Report, i int) samplePage {
 	}
 	for k, idx := range s.Runs {
 		res := r.Results[idx]
+		if r.Load != nil {
+			full, err := r.Load(idx)
+			if err != nil {
+				return p, err
+			}
+			res = full
+		}
 		row := newRunRow(idx, res)
 		row.Used = used[idx]
 		if outl[idx] {
@@ -311,7 +318,7 @@ func buildSample(r *Report, i int) samplePage {
 		}
 		p.Details = append(p.Details, d)
 	}
-	return p
+	return p, nil
 }
 
 func newRunRow(idx int, res *dls.Result) runRow {

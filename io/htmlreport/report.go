@@ -40,6 +40,10 @@ type Report struct {
 	// Samples are the per-sample aggregates; Sample.Runs, Used and Outliers
 	// index Results.
 	Samples []*dls.Sample
+	// Load, when set, gives result i whole for its sample's page (curves,
+	// distributions, parameters), so that Results may hold compact copies
+	// and memory need not hold every curve of a large batch.
+	Load func(i int) (*dls.Result, error)
 	// Batch is the batch-level outcome shown in the index banner.
 	Batch BatchStatus
 	// MaxPlotRuns is the largest number of runs plotted on one sample page
@@ -216,7 +220,11 @@ func renderIndex(w *bytes.Buffer, r *Report) error {
 
 // renderSample writes the page of sample i of a validated report.
 func renderSample(w *bytes.Buffer, r *Report, i int) error {
-	if err := tmpl.ExecuteTemplate(w, "sample", buildSample(r, i)); err != nil {
+	page, err := buildSample(r, i)
+	if err != nil {
+		return fmt.Errorf("htmlreport: %s: %w", SamplePageName(i), err)
+	}
+	if err := tmpl.ExecuteTemplate(w, "sample", page); err != nil {
 		return fmt.Errorf("htmlreport: %s: %w", SamplePageName(i), err)
 	}
 	cleanText(w)

@@ -1,9 +1,14 @@
 package report
 
 import (
+	"bufio"
 	"bytes"
 	"context"
+	"crypto/sha256"
+	"encoding/hex"
+	"encoding/json"
 	"fmt"
+	"io"
 	"os"
 	"path/filepath"
 
@@ -25,6 +30,9 @@ type Set struct {
 	// for an incomplete document, only the inputs with results.
 	Root           string
 	Inputs, Tables []string
+	// Stream, when set, holds the full records of Doc.Results (which are
+	// then its compact copies); see Stream.
+	Stream *Stream
 }
 
 // Names of the files of a result set.
@@ -46,37 +54,44 @@ func WriteSet(ctx context.Context, dir string, s *Set) error {
 		return fmt.Errorf("output folder: %w", err)
 	}
 	d := s.Doc
-	var csvBuf, smpBuf, jsonBuf bytes.Buffer
-	if err := WriteCSV(&csvBuf, d.Results); err != nil {
-		return err
-	}
-	if err := WriteSamplesCSV(&smpBuf, d.Samples, d.Results); err != nil {
-		return err
-	}
-	if err := WriteJSON(&jsonBuf, d); err != nil {
-		return err
-	}
 	inputs := s.Inputs
 	if !d.Complete {
 		inputs = analysed(s.Root, s.Inputs, d.Results)
 	}
 	m := &Manifest{Tool: d.Tool, Version: d.Version, Complete: d.Complete, Root: s.Root, Settings: d.Settings,
 		Files: FileCounts{Found: len(s.Inputs), Analysed: len(inputs)}, Inputs: []FileHash{}, Tables: []FileHash{}}
+	result := func(i int) ([]byte, error) { return json.Marshal(d.Results[i]) }
+	var load func(int) (*dls.Result, error)
+	if s.Stream != nil {
+		result, load = s.Stream.raw, s.Stream.Full
+	} else {
+		for _, r := range d.Results {
+			if err := checkFinite(r); err != nil {
+				return fmt.Errorf("results json: %s: %w", r.File, err)
+			}
+		}
+	}
 	for _, f := range []struct {
-		name string
-		data []byte
-	}{{ResultsCSV, csvBuf.Bytes()}, {SamplesCSV, smpBuf.Bytes()}, {ResultsJSON, jsonBuf.Bytes()}} {
-		m.Outputs = append(m.Outputs, HashBytes(f.name, f.data))
-		if err := atomicfile.Write(filepath.Join(dir, f.name), f.data); err != nil {
+		name  string
+		write func(w io.Writer) error
+	}{
+		{ResultsCSV, func(w io.Writer) error { return WriteCSV(w, d.Results) }},
+		{SamplesCSV, func(w io.Writer) error { return WriteSamplesCSV(w, d.Samples, d.Results) }},
+		{ResultsJSON, func(w io.Writer) error { return writeJSON(w, d, result) }},
+	} {
+		h, err := writeHashed(filepath.Join(dir, f.name), f.write)
+		if err != nil {
 			return err
 		}
+		h.Path = f.name
+		m.Outputs = append(m.Outputs, h)
 	}
 	if err := ctx.Err(); err != nil {
 		return err
 	}
 	if s.HTMLReport {
 		rep := htmlreport.FromRun(htmlreport.Run{Tool: d.Tool, Version: d.Version, Caution: d.Caution,
-			Settings: d.Settings, Results: d.Results, Samples: d.Samples, Batch: d.Batch})
+			Settings: d.Settings, Results: d.Results, Samples: d.Samples, Batch: d.Batch, Load: load})
 		names, err := htmlreport.WriteContext(ctx, filepath.Join(dir, ReportDir), rep)
 		if err != nil {
 			return fmt.Errorf("report: %w", err)
@@ -106,11 +121,46 @@ func WriteSet(ctx context.Context, dir string, s *Set) error {
 			*list.dst = append(*list.dst, h)
 		}
 	}
+	if s.Stream != nil {
+		if err := s.Stream.Close(); err != nil {
+			return fmt.Errorf("results: %w", err)
+		}
+	}
 	var b bytes.Buffer
 	if err := WriteManifest(&b, m); err != nil {
 		return err
 	}
 	return atomicfile.Write(filepath.Join(dir, ManifestJSON), b.Bytes())
+}
+
+// writeHashed writes a file through write and returns its size and
+// SHA-256, computed as the bytes go out.
+func writeHashed(path string, write func(w io.Writer) error) (FileHash, error) {
+	h := sha256.New()
+	var n int64
+	err := atomicfile.WriteFrom(path, func(w io.Writer) error {
+		cw := &countWriter{w: io.MultiWriter(w, h), n: &n}
+		bw := bufio.NewWriterSize(cw, 1<<16)
+		if err := write(bw); err != nil {
+			return err
+		}
+		return bw.Flush()
+	})
+	if err != nil {
+		return FileHash{}, err
+	}
+	return FileHash{Path: path, Bytes: n, SHA256: hex.EncodeToString(h.Sum(nil))}, nil
+}
+
+type countWriter struct {
+	w io.Writer
+	n *int64
+}
+
+func (c *countWriter) Write(p []byte) (int, error) {
+	k, err := c.w.Write(p)
+	*c.n += int64(k)
+	return k, err
 }
 
 // analysed lists, in input order, the inputs of which results exist.

@@ -70,6 +70,12 @@ func WriteJSON(w io.Writer, doc *Document) error {
 			return fmt.Errorf("results json: %s: %w", r.File, err)
 		}
 	}
+	return writeJSON(w, doc, func(i int) ([]byte, error) { return json.Marshal(doc.Results[i]) })
+}
+
+// writeJSON writes results.json with the i-th result's encoding from
+// result.
+func writeJSON(w io.Writer, doc *Document, result func(i int) ([]byte, error)) error {
 	bw := bufio.NewWriter(w)
 	field := func(name string, v any, last bool) error {
 		b, err := json.Marshal(v)
@@ -95,7 +101,7 @@ func WriteJSON(w io.Writer, doc *Document) error {
 	}
 	bw.WriteString(" \"results\": [")
 	for i, r := range doc.Results {
-		b, err := json.Marshal(r)
+		b, err := result(i)
 		if err != nil {
 			return fmt.Errorf("results json: %s: %w", r.File, err)
 		}

@@ -1,0 +1,132 @@
+package report
+
+import (
+	"bufio"
+	"encoding/json"
+	"fmt"
+	"io"
+	"os"
+	"path/filepath"
+
+	"dlsbatch/dls"
+)
+
+// Stream keeps a run's results out of memory: each full record (curves,
+// distributions, audit) goes to a scratch file in the staging folder as it
+// arrives, in input order, and only a compact copy stays in memory for the
+// per-sample statistics, groups, verdicts, tables and the report's index.
+// Records of measurements in a group stay whole in memory, because the
+// group analyses annotate them after the fact. WriteSet then writes
+// results.json from the scratch file and the report's pages from records
+// read back one sample at a time, so memory grows with the number of
+// measurements only by the compact copies.
+type Stream struct {
+	f       *os.File
+	w       *bufio.Writer
+	off     int64
+	spans   []span
+	compact []*dls.Result
+	full    map[int]*dls.Result
+}
+
+type span struct{ off, n int64 }
+
+// scratchName is the scratch file, removed before the set is published.
+const scratchName = ".results.part"
+
+// NewStream starts a stream in dir (the staging folder).
+func NewStream(dir string) (*Stream, error) {
+	f, err := os.OpenFile(filepath.Join(dir, scratchName), os.O_RDWR|os.O_CREATE|os.O_TRUNC, 0o600)
+	if err != nil {
+		return nil, fmt.Errorf("results: %w", err)
+	}
+	return &Stream{f: f, w: bufio.NewWriterSize(f, 1<<16), full: map[int]*dls.Result{}}, nil
+}
+
+// Add records the results of one file. A result holding NaN or Inf is
+// refused, as in WriteJSON.
+func (s *Stream) Add(results []*dls.Result) error {
+	for _, r := range results {
+		if err := checkFinite(r); err != nil {
+			return fmt.Errorf("results json: %s: %w", r.File, err)
+		}
+		if r.Group != "" {
+			s.full[len(s.compact)] = r
+			s.spans = append(s.spans, span{-1, 0})
+			s.compact = append(s.compact, r)
+			continue
+		}
+		b, err := json.Marshal(r)
+		if err != nil {
+			return fmt.Errorf("results json: %s: %w", r.File, err)
+		}
+		if _, err := s.w.Write(b); err != nil {
+			return fmt.Errorf("results: %w", err)
+		}
+		s.spans = append(s.spans, span{s.off, int64(len(b))})
+		s.off += int64(len(b))
+		s.compact = append(s.compact, compact(r))
+	}
+	return nil
+}
+
+// Results are the compact results in input order; the i-th has index i in
+// samples' run lists.
+func (s *Stream) Results() []*dls.Result { return s.compact }
+
+// compact keeps what the tables, statistics, verdicts and the report's
+// index need: everything but the curves, the parameter list and the
+// distribution's arrays other than the intensity weighting on its grid
+// (which the dust and intensity-above checks read).
+func compact(r *dls.Result) *dls.Result {
+	c := *r
+	c.Curves, c.Params = nil, nil
+	if d := r.Distribution; d != nil {
+		c.Distribution = &dls.SizeDistribution{DiameterNm: d.DiameterNm, Intensity: d.Intensity}
+	}
+	return &c
+}
+
+// raw returns the stored encoding of result i.
+func (s *Stream) raw(i int) ([]byte, error) {
+	if r, ok := s.full[i]; ok {
+		return json.Marshal(r)
+	}
+	if err := s.w.Flush(); err != nil {
+		return nil, err
+	}
+	sp := s.spans[i]
+	b := make([]byte, sp.n)
+	if _, err := s.f.ReadAt(b, sp.off); err != nil && err != io.EOF {
+		return nil, err
+	}
+	return b, nil
+}
+
+// Full returns result i whole: read back from the scratch file, with the
+// fields that JSON does not carry (which parts are valid) from the compact
+// copy.
+func (s *Stream) Full(i int) (*dls.Result, error) {
+	if r, ok := s.full[i]; ok {
+		return r, nil
+	}
+	b, err := s.raw(i)
+	if err != nil {
+		return nil, err
+	}
+	var r dls.Result
+	if err := json.Unmarshal(b, &r); err != nil {
+		return nil, fmt.Errorf("results: reading back %s: %w", s.compact[i].File, err)
+	}
+	c := s.compact[i]
+	r.HasConditions, r.HasCumulants, r.HasDistribution = c.HasConditions, c.HasCumulants, c.HasDistribution
+	r.HasCountRate, r.HasDuration = c.HasCountRate, c.HasDuration
+	return &r, nil
+}
+
+// Close removes the scratch file.
+func (s *Stream) Close() error {
+	name := s.f.Name()
+	s.f.Close()
+	return os.Remove(name)
+}
