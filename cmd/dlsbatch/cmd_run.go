@@ -39,6 +39,7 @@ type runOptions struct {
 	corrCols                                 []string
 	corrKind, method, criterion              *enumFlag
 	jobs, order, gridPoints                  int
+	maxFileMB, maxRows, maxColumns           int // input limits
 	cutoff, minLagS, lambda, target          float64
 	uTempK, uViscRel, uIndex, uAngleDeg      float64 // Type B uncertainties
 	quiet, force, extrapolate, noCurves      bool
@@ -70,6 +71,9 @@ func (o *runOptions) addFlags(fs *pflag.FlagSet) {
 	fs.StringVar(&o.tauUnit, "lag-unit", "", "unit of the lag column: s, ms or us")
 	fs.StringSliceVar(&o.corrCols, "corr-column", nil, "correlation column(s) to read in a foreign CSV, each one run (comma-separated or repeated)")
 	fs.Var(o.corrKind, "corr-kind", "kind of the --corr-column values: g2 (baseline ≈ 1), g2m1 (g2 − 1) or g1")
+	fs.IntVar(&o.maxFileMB, "max-file-mb", csvdata.DefaultMaxBytes>>20, "refuse an input file larger than this many MiB")
+	fs.IntVar(&o.maxRows, "max-rows", csvdata.DefaultMaxRows, "refuse an input file with more data rows (lag channels)")
+	fs.IntVar(&o.maxColumns, "max-columns", csvdata.DefaultMaxColumns, "refuse an input file with more columns")
 	fs.StringVar(&o.sigmaCol, "sigma-column", "", "column with the standard uncertainty of each correlation value")
 	fs.Var(o.method, "cumulant-method", "cumulant fit: nonlinear (free baseline, default) or linear (fixed far-channel baseline)")
 	fs.IntVar(&o.order, "cumulant-order", o.order, "cumulant order, 2 or 3")
@@ -305,7 +309,11 @@ func (o *runOptions) settings() (batch.Settings, *csvdata.Options, error) {
 			return s, nil, err
 		}
 	}
-	ro := &csvdata.Options{TauColumn: o.tauCol, TauUnit: o.tauUnit, CorrColumns: o.corrCols, SigmaColumn: o.sigmaCol}
+	if o.maxFileMB < 1 || o.maxRows < 1 || o.maxColumns < 1 {
+		return s, nil, errors.New("--max-file-mb, --max-rows and --max-columns must be at least 1")
+	}
+	ro := &csvdata.Options{TauColumn: o.tauCol, TauUnit: o.tauUnit, CorrColumns: o.corrCols, SigmaColumn: o.sigmaCol,
+		MaxBytes: int64(o.maxFileMB) << 20, MaxRows: o.maxRows, MaxColumns: o.maxColumns}
 	if o.corrKind.value != "" {
 		k, err := dls.ParseCorrKind(o.corrKind.value)
 		if err != nil {
@@ -330,7 +338,7 @@ func (o *runOptions) record(s batch.Settings, root string) *report.Settings {
 		CoverageFactor: s.CoverageFactor, CumulantMethod: s.Cumulants.Method.String(), CumulantOrder: s.Cumulants.Order,
 		Default: dls.Assignments(s.Defaults), DefaultParticleRI: mie.FormatComplexIndex(s.Distribution.DefaultParticleRI),
 		Distribution: s.Distribution.Enabled, ExcludeOutliers: o.exclude, Extrapolate: s.Extrapolate,
-		G1Cutoff: s.Cumulants.Cutoff, GridPoints: s.Distribution.Grid.NGamma, LagColumn: o.tauCol, LagUnit: o.tauUnit,
+		G1Cutoff: s.Cumulants.Cutoff, GridPoints: s.Distribution.Grid.NGamma, LagColumn: o.tauCol, LagUnit: o.tauUnit, MaxColumns: o.maxColumns, MaxFileMB: o.maxFileMB, MaxRows: o.maxRows,
 		MinLagS: s.Cumulants.MinTauS, MinPoints: s.Cumulants.MinPoints,
 		ProbRejectTarget: s.Distribution.Contin.TargetProbReject, QCThresholds: s.QC, QCThresholdsFile: rel(o.qcFile), RangeCheck: s.Cumulants.RangeCheck,
 		Set: dls.Assignments(s.Overrides), Sheet: rel(o.sheetFile), SigmaColumn: o.sigmaCol, SolventFile: rel(o.solventFile), Spec: rel(o.specFile),

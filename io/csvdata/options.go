@@ -40,6 +40,37 @@ type Options struct {
 	// Comma is the cell delimiter. 0 = detect ',' ';' or '\t' from the
 	// header row.
 	Comma rune
+	// Limits on one file, so that a stray huge file cannot take the
+	// machine's memory: its size in bytes, its data rows (lag channels;
+	// a correlator writes a few hundred) and its columns. 0 means the
+	// default: DefaultMaxBytes, DefaultMaxRows, DefaultMaxColumns.
+	MaxBytes   int64
+	MaxRows    int
+	MaxColumns int
+}
+
+// Default limits on one file (see Options).
+const (
+	DefaultMaxBytes   = 64 << 20
+	DefaultMaxRows    = 100_000
+	DefaultMaxColumns = 1_000
+)
+
+// ErrTooLarge marks a file over one of the limits of Options.
+var ErrTooLarge = errors.New("over the limit for one file")
+
+func (o *Options) limits() (bytes int64, rows, cols int) {
+	bytes, rows, cols = o.MaxBytes, o.MaxRows, o.MaxColumns
+	if bytes <= 0 {
+		bytes = DefaultMaxBytes
+	}
+	if rows <= 0 {
+		rows = DefaultMaxRows
+	}
+	if cols <= 0 {
+		cols = DefaultMaxColumns
+	}
+	return bytes, rows, cols
 }
 
 // lagUnit is a unit of the lag column and the divisor that takes a value in

@@ -53,7 +53,13 @@ func Read(r io.Reader, name string, o *Options) []Entry {
 		return []Entry{{File: name, Err: &dls.PosError{File: name, Err: err}}}
 	}
 	p := &parser{name: name, opt: o}
-	p.read(r)
+	maxBytes, _, _ := o.limits()
+	lr := &io.LimitedReader{R: r, N: maxBytes + 1}
+	p.read(lr)
+	if lr.N <= 0 {
+		return []Entry{{File: name, Err: &dls.PosError{File: name,
+			Err: fmt.Errorf("larger than %d MB: %w (raise it with --max-file-mb)", maxBytes>>20, ErrTooLarge)}}}
+	}
 	return p.entries()
 }
 
@@ -211,6 +217,10 @@ func (p *parser) header(s []byte) bool {
 	p.sp = newSplitter(comma)
 	p.decComma = comma != ','
 	names := p.sp.splitStrings(s)
+	if _, _, maxCols := p.opt.limits(); len(names) > maxCols {
+		p.setFileErr(p.posErr(p.line, 0, fmt.Errorf("%d columns, more than %d: %w (raise it with --max-columns)", len(names), maxCols, ErrTooLarge)))
+		return false
+	}
 	if looksNumeric(names, p.decComma) {
 		p.setFileErr(p.posErr(p.line, 0, fmt.Errorf("no header row: the first row holds numbers, expected column names such as tau_s,g2: %w", dls.ErrBadHeader)))
 		return false
@@ -346,6 +356,10 @@ func (p *parser) row(s []byte) bool {
 		p.setFileErr(p.posErr(p.line, L.lag+1, &valueError{column: L.lagName, text: string(p.cells[L.lag]),
 			reason:   fmt.Sprintf("does not increase (line %d has %s)", p.lines[n-1], p.prevLag),
 			sentinel: dls.ErrBadLag}))
+		return false
+	}
+	if _, maxRows, _ := p.opt.limits(); len(p.tau) >= maxRows {
+		p.setFileErr(p.posErr(p.line, 0, fmt.Errorf("more than %d data rows: %w (raise it with --max-rows)", maxRows, ErrTooLarge)))
 		return false
 	}
 	p.tau = append(p.tau, tau)

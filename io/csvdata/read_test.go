@@ -2,6 +2,7 @@ package csvdata_test
 
 import (
 	"errors"
+	"fmt"
 	"math"
 	"path/filepath"
 	"strconv"
@@ -513,5 +514,42 @@ func TestParticleRIMaterialName(t *testing.T) {
 	es = csvdata.Read(strings.NewReader("# particle_ri: 1.59+i0.01\ntau_s,g2\n"+ten), "m.csv", nil)
 	if es[0].Err == nil {
 		t.Error("malformed complex index accepted")
+	}
+}
+
+// TestLimits: a file over the size, row or column limit is refused with
+// ErrTooLarge naming the limit; at the limit it is read (limits are this
+// package's documented Options).
+func TestLimits(t *testing.T) {
+	var b strings.Builder
+	b.WriteString("tau_s,g2\n")
+	for i := 1; i <= 50; i++ {
+		fmt.Fprintf(&b, "%de-6,%.6f\n", i, 1+0.9*math.Exp(-2*2000*float64(i)*1e-6))
+	}
+	data := b.String()
+	for _, tc := range []struct {
+		name string
+		o    csvdata.Options
+		ok   bool
+		want string
+	}{
+		{"defaults", csvdata.Options{}, true, ""},
+		{"rows at the limit", csvdata.Options{MaxRows: 50}, true, ""},
+		{"rows over", csvdata.Options{MaxRows: 49}, false, "more than 49 data rows"},
+		{"columns over", csvdata.Options{MaxColumns: 1}, false, "2 columns, more than 1"},
+		{"bytes at the limit", csvdata.Options{MaxBytes: int64(len(data))}, true, ""},
+		{"bytes over", csvdata.Options{MaxBytes: int64(len(data)) - 1}, false, "larger than"},
+	} {
+		es := csvdata.Read(strings.NewReader(data), "x.csv", &tc.o)
+		err := es[0].Err
+		if tc.ok {
+			if err != nil {
+				t.Errorf("%s: %v", tc.name, err)
+			}
+			continue
+		}
+		if !errors.Is(err, csvdata.ErrTooLarge) || !strings.Contains(err.Error(), tc.want) {
+			t.Errorf("%s: error %v, want ErrTooLarge with %q", tc.name, err, tc.want)
+		}
 	}
 }

@@ -24,6 +24,9 @@ type Settings struct {
 	GridPoints        int           `json:"grid_points"`                  // decay-rate grid of the inversion
 	LagColumn         string        `json:"lag_column"`                   // --lag-column (foreign CSVs)
 	LagUnit           string        `json:"lag_unit"`                     // --lag-unit (foreign CSVs)
+	MaxColumns        int           `json:"max_columns"`                  // limit on the columns of one input file
+	MaxFileMB         int           `json:"max_file_mb"`                  // limit on the size of one input file, MiB
+	MaxRows           int           `json:"max_rows"`                     // limit on the data rows of one input file
 	MinLagS           float64       `json:"min_lag_s"`                    // channels below this lag ignored
 	MinPoints         int           `json:"min_points"`                   // fewest channels a cumulant fit needs
 	ProbRejectTarget  float64       `json:"prob_reject_target"`           // target of the default criterion
