@@ -34,7 +34,7 @@ func TestMain(m *testing.M) {
 }
 
 // child starts the command as a separate process.
-func child(t *testing.T, args ...string) *exec.Cmd {
+func child(t testing.TB, args ...string) *exec.Cmd {
 	t.Helper()
 	cmd := exec.Command(os.Args[0], append([]string{"-test.run=^$", "--"}, args...)...)
 	cmd.Env = append(os.Environ(), "DLSBATCH_AS_MAIN=1")
