@@ -18,6 +18,7 @@
 package safetext
 
 import (
+	"errors"
 	"strconv"
 	"strings"
 	"unicode/utf8"
@@ -41,6 +42,23 @@ func Excerpt(s string) string {
 	}
 	return strconv.Quote(s)
 }
+
+// NumReason returns err ready to wrap into a message that quotes the input
+// already as an excerpt: a *strconv.NumError (which prints the whole input,
+// however long) prints only its reason, such as "invalid syntax", while
+// errors.Is and errors.As still reach it. Any other error is returned as is.
+func NumReason(err error) error {
+	var ne *strconv.NumError
+	if errors.As(err, &ne) {
+		return numReason{ne}
+	}
+	return err
+}
+
+type numReason struct{ ne *strconv.NumError }
+
+func (r numReason) Error() string { return r.ne.Err.Error() }
+func (r numReason) Unwrap() error { return r.ne }
 
 // Terminal returns s fit to print on a terminal as part of one line.
 // Removed: ANSI (ECMA-48) escape sequences whole (ESC followed by a control

@@ -41,6 +41,7 @@ import (
 	"dlsbatch/dls"
 	"dlsbatch/io/csvdata"
 	"dlsbatch/io/csvtable"
+	"dlsbatch/io/safetext"
 )
 
 // Roles a sample-sheet row may give.
@@ -97,7 +98,7 @@ func Parse(r io.Reader, name string) (*Sheet, error) {
 			return nil, t.Err(i, fileCol, errors.New("empty file pattern"))
 		}
 		if _, err := path.Match(row.Pattern, ""); err != nil {
-			return nil, t.Err(i, fileCol, fmt.Errorf("pattern %q: %w", row.Pattern, err))
+			return nil, t.Err(i, fileCol, fmt.Errorf("pattern %s: %w", safetext.Excerpt(row.Pattern), err))
 		}
 		if runCol >= 0 {
 			row.Run = rec[runCol]
@@ -111,7 +112,7 @@ func Parse(r io.Reader, name string) (*Sheet, error) {
 				return nil, t.Err(i, j, err)
 			}
 			if key == dls.KeyRole && !validRole(v) {
-				return nil, t.Err(i, j, fmt.Errorf("role %q: want one of %s: %w", v, strings.Join(Roles, ", "), dls.ErrBadMetadata))
+				return nil, t.Err(i, j, fmt.Errorf("role %s: want one of %s: %w", safetext.Excerpt(v), strings.Join(Roles, ", "), dls.ErrBadMetadata))
 			}
 			p := t.Pos[i+1][j]
 			row.Params = append(row.Params, dls.Param{Key: key, Value: v, Origin: dls.OriginSheet,
@@ -212,7 +213,7 @@ func (s *Sheet) Check(name string, files []string, rel map[string]string) *Match
 		}
 	}
 	for _, row := range s.Unmatched(all) {
-		rep.UnusedRows = append(rep.UnusedRows, fmt.Sprintf("%s:%d: row %q matches no file", name, row.Line, row.Pattern))
+		rep.UnusedRows = append(rep.UnusedRows, fmt.Sprintf("%s:%d: row %s matches no file", name, row.Line, safetext.Excerpt(row.Pattern)))
 	}
 	return rep
 }
