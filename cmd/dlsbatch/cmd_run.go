@@ -24,6 +24,7 @@ import (
 	"dlsbatch/dls/uncert"
 	"dlsbatch/io/csvdata"
 	"dlsbatch/io/report"
+	"dlsbatch/io/safetext"
 	"dlsbatch/io/sheet"
 	"dlsbatch/io/solventfile"
 	"dlsbatch/io/specfile"
@@ -141,7 +142,7 @@ func runRun(ctx context.Context, e env, args []string) int {
 	if code, done := parseFlags(fs, e, "run", runUsage, args); done {
 		return code
 	}
-	say := func(msg any) { fmt.Fprintln(e.stderr, "dlsbatch run:", msg) }
+	say := func(msg any) { fmt.Fprintln(e.stderr, "dlsbatch run:", safetext.Terminal(fmt.Sprint(msg))) }
 	fail := func(code int, msg any) int { say(msg); return code }
 	paths := fs.Args()
 	switch {
@@ -177,10 +178,11 @@ func runRun(ctx context.Context, e env, args []string) int {
 		}
 	}
 
-	files, derrs := csvdata.Discover(paths)
-	for _, err := range derrs {
-		say(err)
+	found := csvdata.Discover(paths)
+	for _, p := range found.Problems {
+		say(p.Err) // and an error row each: the runner gets them as failed inputs
 	}
+	files := found.Files
 	if len(files) == 0 {
 		return fail(exitFatal, "no correlogram files (*.csv) found")
 	}
@@ -198,6 +200,9 @@ func runRun(ctx context.Context, e env, args []string) int {
 
 	rn := &batch.Runner{
 		Read: func(path string) []batch.Input {
+			if in, failed := found.Failed(path); failed {
+				return in
+			}
 			in := csvdata.ReadFile(path, readOpts)
 			for _, x := range in {
 				if sh != nil && x.M != nil {
@@ -210,7 +215,7 @@ func runRun(ctx context.Context, e env, args []string) int {
 		Workers:  o.jobs,
 	}
 	if e.stderrIsTerminal && !o.quiet {
-		bar := progressbar.NewOptions(len(files),
+		bar := progressbar.NewOptions(len(found.Paths()),
 			progressbar.OptionSetWriter(e.stderr),
 			progressbar.OptionSetDescription("analysing"),
 			progressbar.OptionShowCount(),
@@ -223,7 +228,7 @@ func runRun(ctx context.Context, e env, args []string) int {
 		}
 		defer bar.Finish()
 	}
-	results, runErr := rn.Run(ctx, files)
+	results, runErr := rn.Run(ctx, found.Paths())
 	groups := batch.Groups(results)
 	samples := qc.Aggregate(results, qc.Options{Thresholds: settings.QC, ExcludeOutliers: o.exclude})
 	outcome := spec.Evaluate(sp, samples, results)

@@ -1,6 +1,7 @@
 package safetext
 
 import (
+	"errors"
 	"strconv"
 	"strings"
 	"testing"
@@ -113,4 +114,24 @@ func FuzzTerminal(f *testing.F) {
 			t.Fatalf("Terminal is not idempotent on %q: %q", got, again)
 		}
 	})
+}
+
+// NumReason keeps the *strconv.NumError reachable but prints only its
+// reason (the standard library's ErrSyntax and ErrRange texts).
+func TestNumReason(t *testing.T) {
+	long := strings.Repeat("x", 500)
+	_, err := strconv.ParseFloat(long, 64)
+	r := NumReason(err)
+	var ne *strconv.NumError
+	if r.Error() != "invalid syntax" || !errors.As(r, &ne) || !errors.Is(r, strconv.ErrSyntax) {
+		t.Errorf("NumReason(%.40v…) = %q, want %q and the NumError reachable", err, r, "invalid syntax")
+	}
+	_, err = strconv.ParseFloat("1e999", 64)
+	if r := NumReason(err); r.Error() != "value out of range" || !errors.Is(r, strconv.ErrRange) {
+		t.Errorf("NumReason(%v) = %q", err, r)
+	}
+	other := errors.New("other")
+	if NumReason(other) != other {
+		t.Error("an error that is not a NumError changed")
+	}
 }
