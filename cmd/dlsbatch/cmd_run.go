@@ -24,6 +24,7 @@ import (
 	"dlsbatch/io/qcfile"
 	"dlsbatch/io/report"
 	"dlsbatch/io/resultset"
+	"dlsbatch/io/safetext"
 	"dlsbatch/io/sheet"
 	"dlsbatch/io/solventfile"
 	"dlsbatch/io/specfile"
@@ -106,7 +107,7 @@ func runRun(ctx context.Context, e env, args []string) int {
 	if code, done := parseFlags(fs, e, "run", help("run"), help("run.exits"), args); done {
 		return code
 	}
-	say := func(msg any) { fmt.Fprintln(e.stderr, "dlsbatch run:", msg) }
+	say := func(msg any) { fmt.Fprintln(e.stderr, "dlsbatch run:", safetext.Terminal(fmt.Sprint(msg))) }
 	fail := func(code int, msg any) int { say(msg); return code }
 	paths := fs.Args()
 	switch {
@@ -148,11 +149,13 @@ func runRun(ctx context.Context, e env, args []string) int {
 	}
 	defer out.Abort()
 
-	files, derrs := csvdata.Discover(paths)
-	for _, err := range derrs {
-		say(err)
+	found := csvdata.Discover(paths)
+	relative(found.Problems, root)
+	for _, p := range found.Problems {
+		say(p.Err) // and an error row each: the runner gets them as failed inputs
 	}
-	if len(files) == 0 {
+	files := found.Files
+	if len(found.Paths()) == 0 {
 		return fail(exitFatal, "no correlogram files (*.csv) found")
 	}
 	rels := csvdata.RelativePaths(files, paths)
@@ -170,6 +173,9 @@ func runRun(ctx context.Context, e env, args []string) int {
 
 	rn := &batch.Runner{
 		Read: func(path string) []batch.Input {
+			if in, failed := found.Failed(path); failed {
+				return in
+			}
 			in := csvdata.ReadFileAs(path, csvdata.Rel(root, path), readOpts)
 			for _, x := range in {
 				if sh != nil && x.M != nil {
@@ -182,7 +188,7 @@ func runRun(ctx context.Context, e env, args []string) int {
 		Workers:  o.jobs,
 	}
 	if e.stderrIsTerminal && !o.quiet {
-		bar := progressbar.NewOptions(len(files),
+		bar := progressbar.NewOptions(len(found.Paths()),
 			progressbar.OptionSetWriter(e.stderr),
 			progressbar.OptionSetDescription("analysing"),
 			progressbar.OptionShowCount(),
@@ -200,7 +206,7 @@ func runRun(ctx context.Context, e env, args []string) int {
 		return fail(exitFatal, err)
 	}
 	rn.Emit = stream.Add
-	_, runErr := rn.Run(ctx, files)
+	_, runErr := rn.Run(ctx, found.Paths())
 	if runErr != nil && ctx.Err() == nil {
 		return fail(exitFatal, runErr) // results could not be kept (e.g. a full disk)
 	}
@@ -254,6 +260,20 @@ func runRun(ctx context.Context, e env, args []string) int {
 		fmt.Fprintf(e.stdout, "results: %s (%s)\n%s\n", o.out, what, report.Caution)
 	}
 	return exitCode(doc.Counts, outcome)
+}
+
+// relative names the failed entries of input problems by their path
+// relative to the input root, as every other result is named.
+func relative(in []dls.Input, root string) {
+	for i := range in {
+		in[i].File = csvdata.Rel(root, in[i].File)
+		var pe *dls.PosError
+		if errors.As(in[i].Err, &pe) {
+			q := *pe
+			q.File = in[i].File
+			in[i].Err = &q
+		}
+	}
 }
 
 // exitCode maps the outcome of a finished run to the documented codes; the

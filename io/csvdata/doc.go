@@ -156,6 +156,12 @@
 // correlation or sigma value fails only its own run; the other runs of the
 // file are read in full.
 //
+// Messages quote input text only as a short escaped excerpt of the cell at
+// fault (io/safetext.Excerpt: at most 40 characters), and a warning that
+// recurs in a file (a repeated or unknown metadata key, metadata after the
+// header) is given once, for its first line, with the number of further
+// lines like it.
+//
 // # Writing
 //
 // Write produces this format with ',' as delimiter, '\n' line ends, lags as
@@ -167,7 +173,12 @@
 //
 // Discover turns command-line paths into the sorted, duplicate-free list of
 // files to read: files as given, folders searched for *.csv in any letter
-// case, skipping hidden folders and files.
+// case, skipping hidden folders and files. A folder named through a link is
+// searched; inside a folder, links to files are followed and links to
+// folders are not. Every path that cannot be read (missing, a link that
+// cannot be followed, a file or folder that cannot be opened, a named pipe
+// or device) is returned as a failed Entry, which the run reports as a
+// result with status error.
 //
 // References:
 //   - Y. Shafranovich, Common Format and MIME Type for Comma-Separated Values

@@ -5,6 +5,7 @@ import (
 	"strings"
 
 	"dlsbatch/dls"
+	"dlsbatch/io/safetext"
 )
 
 // runCols are the cells of one run: its correlation column and, when given,
@@ -104,6 +105,11 @@ func formatSigma(name string) (label string, ok bool) {
 	return "", false
 }
 
+// maxListed is the most column names a message lists.
+const maxListed = 10
+
+// quoteList lists the non-empty names as excerpts (safetext.Excerpt), at
+// most maxListed of them, with the number of the others.
 func quoteList(names []string) string {
 	var b strings.Builder
 	n := 0
@@ -111,10 +117,20 @@ func quoteList(names []string) string {
 		if s == "" {
 			continue
 		}
+		if n == maxListed {
+			rest := 0
+			for _, s := range names {
+				if s != "" {
+					rest++
+				}
+			}
+			fmt.Fprintf(&b, " and %d more", rest-maxListed)
+			break
+		}
 		if n > 0 {
 			b.WriteString(", ")
 		}
-		fmt.Fprintf(&b, "%q", s)
+		b.WriteString(safetext.Excerpt(s))
 		n++
 	}
 	if n == 0 {
@@ -145,7 +161,7 @@ func resolve(names []string, o *Options) (*layout, *headerError) {
 		}
 		k := strings.ToLower(n)
 		if j, dup := seen[k]; dup {
-			return nil, hErr(i+1, "column %d %q repeats the name of column %d: %w", i+1, n, j+1, dls.ErrBadHeader)
+			return nil, hErr(i+1, "column %d %s repeats the name of column %d: %w", i+1, safetext.Excerpt(n), j+1, dls.ErrBadHeader)
 		}
 		seen[k] = i
 	}
@@ -156,13 +172,13 @@ func resolve(names []string, o *Options) (*layout, *headerError) {
 		L.foreign = true
 		L.lag = find(names, o.TauColumn)
 		if L.lag < 0 {
-			return nil, hErr(0, "no lag column named %q; found %s: %w", o.TauColumn, quoteList(names), dls.ErrBadHeader)
+			return nil, hErr(0, "no lag column named %s; found %s: %w", safetext.Excerpt(o.TauColumn), quoteList(names), dls.ErrBadHeader)
 		}
 		L.lagName = names[L.lag]
 		u, ok := parseUnit(o.TauUnit)
 		if !ok {
 			if u, ok = unitFromName(L.lagName); !ok {
-				return nil, hErr(L.lag+1, "the name of lag column %q carries no unit: give the unit (s, ms or us): %w", L.lagName, dls.ErrBadHeader)
+				return nil, hErr(L.lag+1, "the name of lag column %s carries no unit: give the unit (s, ms or us): %w", safetext.Excerpt(L.lagName), dls.ErrBadHeader)
 			}
 		}
 		L.unit = u
@@ -173,7 +189,7 @@ func resolve(names []string, o *Options) (*layout, *headerError) {
 				continue
 			}
 			if L.lag >= 0 {
-				return nil, hErr(i+1, "two lag columns, %q and %q: %w", L.lagName, n, dls.ErrBadHeader)
+				return nil, hErr(i+1, "two lag columns, %s and %s: %w", safetext.Excerpt(L.lagName), safetext.Excerpt(n), dls.ErrBadHeader)
 			}
 			L.lag, L.lagName, L.unit = i, n, u
 		}
@@ -183,7 +199,7 @@ func resolve(names []string, o *Options) (*layout, *headerError) {
 		}
 		if o.TauUnit != "" {
 			if u, _ := parseUnit(o.TauUnit); u != L.unit {
-				return nil, hErr(L.lag+1, "lag column %q is in %s but the unit given is %s: %w", L.lagName, L.unit.name, u.name, dls.ErrBadHeader)
+				return nil, hErr(L.lag+1, "lag column %s is in %s but the unit given is %s: %w", safetext.Excerpt(L.lagName), L.unit.name, u.name, dls.ErrBadHeader)
 			}
 		}
 	}
@@ -196,10 +212,10 @@ func resolve(names []string, o *Options) (*layout, *headerError) {
 		for _, c := range o.CorrColumns {
 			i := find(names, c)
 			if i < 0 {
-				return nil, hErr(0, "no correlation column named %q; found %s: %w", strings.TrimSpace(c), quoteList(names), dls.ErrBadHeader)
+				return nil, hErr(0, "no correlation column named %s; found %s: %w", safetext.Excerpt(strings.TrimSpace(c)), quoteList(names), dls.ErrBadHeader)
 			}
 			if used[i] {
-				return nil, hErr(i+1, "column %q is named twice among the lag and correlation columns: %w", names[i], dls.ErrBadHeader)
+				return nil, hErr(i+1, "column %s is named twice among the lag and correlation columns: %w", safetext.Excerpt(names[i]), dls.ErrBadHeader)
 			}
 			used[i] = true
 			n := names[i]
@@ -211,7 +227,7 @@ func resolve(names []string, o *Options) (*layout, *headerError) {
 				}
 				k = o.CorrKind
 			case !isFormat:
-				return nil, hErr(i+1, "cannot tell the kind of correlation column %q from its name: give the kind (g2, g2m1 or g1): %w", n, dls.ErrBadHeader)
+				return nil, hErr(i+1, "cannot tell the kind of correlation column %s from its name: give the kind (g2, g2m1 or g1): %w", safetext.Excerpt(n), dls.ErrBadHeader)
 			case L.kind != 0 && k != L.kind:
 				return nil, hErr(i+1, "correlation columns of two kinds, %s and %s: %w", L.kind, k, dls.ErrBadHeader)
 			}
@@ -224,7 +240,7 @@ func resolve(names []string, o *Options) (*layout, *headerError) {
 			}
 			lk := strings.ToLower(label)
 			if prev, dup := labels[lk]; dup {
-				return nil, hErr(i+1, "columns %q and %q give the same run label %q: %w", prev, n, label, dls.ErrBadHeader)
+				return nil, hErr(i+1, "columns %s and %s give the same run label %s: %w", safetext.Excerpt(prev), safetext.Excerpt(n), safetext.Excerpt(label), dls.ErrBadHeader)
 			}
 			labels[lk] = n
 			L.runs = append(L.runs, runCols{label: label, corr: i, sigma: -1, corrName: n})
@@ -247,7 +263,7 @@ func resolve(names []string, o *Options) (*layout, *headerError) {
 				quoteList(names), dls.ErrBadHeader)
 		}
 		if o.CorrKind != 0 && o.CorrKind != L.kind {
-			return nil, hErr(L.runs[0].corr+1, "correlation column %q is %s but the kind given is %s: %w", L.runs[0].corrName, L.kind, o.CorrKind, dls.ErrBadHeader)
+			return nil, hErr(L.runs[0].corr+1, "correlation column %s is %s but the kind given is %s: %w", safetext.Excerpt(L.runs[0].corrName), L.kind, o.CorrKind, dls.ErrBadHeader)
 		}
 	}
 
@@ -256,13 +272,13 @@ func resolve(names []string, o *Options) (*layout, *headerError) {
 		L.foreign = true
 		i := find(names, o.SigmaColumn)
 		if i < 0 {
-			return nil, hErr(0, "no sigma column named %q; found %s: %w", strings.TrimSpace(o.SigmaColumn), quoteList(names), dls.ErrBadHeader)
+			return nil, hErr(0, "no sigma column named %s; found %s: %w", safetext.Excerpt(strings.TrimSpace(o.SigmaColumn)), quoteList(names), dls.ErrBadHeader)
 		}
 		if used[i] {
-			return nil, hErr(i+1, "column %q cannot be the sigma column: it is read as lag or correlation: %w", names[i], dls.ErrBadHeader)
+			return nil, hErr(i+1, "column %s cannot be the sigma column: it is read as lag or correlation: %w", safetext.Excerpt(names[i]), dls.ErrBadHeader)
 		}
 		if len(L.runs) != 1 {
-			return nil, hErr(i+1, "sigma column %q needs exactly one correlation column, the header has %d: %w", names[i], len(L.runs), dls.ErrBadHeader)
+			return nil, hErr(i+1, "sigma column %s needs exactly one correlation column, the header has %d: %w", safetext.Excerpt(names[i]), len(L.runs), dls.ErrBadHeader)
 		}
 		used[i] = true
 		L.runs[0].sigma, L.runs[0].sigmaName = i, names[i]
@@ -287,7 +303,7 @@ func resolve(names []string, o *Options) (*layout, *headerError) {
 				if label != "" {
 					want += "_" + label
 				}
-				return nil, hErr(i+1, "sigma column %q has no correlation column %q: %w", n, want, dls.ErrBadHeader)
+				return nil, hErr(i+1, "sigma column %s has no correlation column %s: %w", safetext.Excerpt(n), safetext.Excerpt(want), dls.ErrBadHeader)
 			}
 			used[i] = true
 			L.runs[r].sigma, L.runs[r].sigmaName = i, n

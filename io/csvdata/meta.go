@@ -8,6 +8,7 @@ import (
 	"strings"
 
 	"dlsbatch/dls"
+	"dlsbatch/io/safetext"
 )
 
 // parseMetaLine splits a comment line (starting with '#') into key and
@@ -71,10 +72,10 @@ func CheckMetaValue(key, v string) error {
 			return nil // a material of the Mie table, resolved by the analysis
 		}
 		if err != nil {
-			return fmt.Errorf("%s %q is not a complex number such as 1.59+0.0i: %w: %w", key, v, dls.ErrBadMetadata, err)
+			return fmt.Errorf("%s %s is not a complex number such as 1.59+0.0i: %w: %w", key, safetext.Excerpt(v), dls.ErrBadMetadata, safetext.NumReason(err))
 		}
 		if cmplx.IsNaN(c) || cmplx.IsInf(c) {
-			return fmt.Errorf("%s %q: %w: %w", key, v, dls.ErrBadMetadata, dls.ErrNonFinite)
+			return fmt.Errorf("%s %s: %w: %w", key, safetext.Excerpt(v), dls.ErrBadMetadata, dls.ErrNonFinite)
 		}
 	case dls.IsNumericKey(key):
 		f, err := strconv.ParseFloat(v, 64)
@@ -83,10 +84,10 @@ func CheckMetaValue(key, v string) error {
 			if strings.Contains(v, ",") {
 				hint = " (write the decimal mark as a point)"
 			}
-			return fmt.Errorf("%s %q is not a number%s: %w: %w", key, v, hint, dls.ErrBadMetadata, err)
+			return fmt.Errorf("%s %s is not a number%s: %w: %w", key, safetext.Excerpt(v), hint, dls.ErrBadMetadata, safetext.NumReason(err))
 		}
 		if math.IsNaN(f) || math.IsInf(f, 0) {
-			return fmt.Errorf("%s %q: %w: %w", key, v, dls.ErrBadMetadata, dls.ErrNonFinite)
+			return fmt.Errorf("%s %s: %w: %w", key, safetext.Excerpt(v), dls.ErrBadMetadata, dls.ErrNonFinite)
 		}
 	}
 	return nil

@@ -12,6 +12,7 @@ import (
 	"strconv"
 
 	"dlsbatch/dls"
+	"dlsbatch/io/safetext"
 )
 
 // MinPoints is the fewest data rows a file must have. Fewer cannot carry a
@@ -74,7 +75,8 @@ type parser struct {
 
 	meta     dls.Metadata
 	metaLine map[string]int // key → line of its value
-	warnings []string
+	warnings []warning
+	warnKind map[warnKind]int // kind → index in warnings
 
 	L          *layout
 	headerLine int
@@ -95,8 +97,59 @@ func (p *parser) posErr(line, col int, err error) *dls.PosError {
 	return &dls.PosError{File: p.name, Line: line, Column: col, Err: err}
 }
 
-func (p *parser) warn(line int, format string, args ...any) {
-	p.warnings = append(p.warnings, p.posErr(line, 0, fmt.Errorf(format, args...)).Error())
+// warnKind tells warnings apart: of each kind a file gets one warning, the
+// first, with the number of further lines like it, so that a file repeating
+// a line a million times gives one short message.
+type warnKind int
+
+const (
+	warnUnknownKey warnKind = iota
+	warnRepeatedKey
+	warnLateMeta
+	warnUnusedColumns
+)
+
+// warning is the first warning of its kind and the count of the others.
+type warning struct {
+	text string
+	more int
+}
+
+func (p *parser) warn(kind warnKind, line int, format string, args ...any) {
+	if i, seen := p.warnKind[kind]; seen {
+		p.warnings[i].more++
+		return
+	}
+	if p.warnKind == nil {
+		p.warnKind = make(map[warnKind]int)
+	}
+	p.warnKind[kind] = len(p.warnings)
+	p.warnings = append(p.warnings, warning{text: p.posErr(line, 0, fmt.Errorf(format, args...)).Error()})
+}
+
+// warningTexts returns the file's warnings as messages.
+func (p *parser) warningTexts() []string {
+	var out []string
+	for _, w := range p.warnings {
+		t := w.text
+		switch {
+		case w.more == 1:
+			t += " (and 1 more line like it)"
+		case w.more > 1:
+			t += " (and " + groupThousands(w.more) + " more lines like it)"
+		}
+		out = append(out, t)
+	}
+	return out
+}
+
+// groupThousands writes n ≥ 0 with ',' between groups of three digits.
+func groupThousands(n int) string {
+	s := strconv.Itoa(n)
+	for i := len(s) - 3; i > 0; i -= 3 {
+		s = s[:i] + "," + s[i:]
+	}
+	return s
 }
 
 var bom = []byte{0xEF, 0xBB, 0xBF}
@@ -179,7 +232,7 @@ func (p *parser) metaLineAt(t string) {
 		return
 	}
 	if !dls.IsMetadataKey(key) {
-		p.warn(p.line, "%q: %v (ignored)", key, dls.ErrUnknownMetadata)
+		p.warn(warnUnknownKey, p.line, "%s: %v (ignored)", safetext.Excerpt(key), dls.ErrUnknownMetadata)
 		return
 	}
 	if value == "" {
@@ -193,7 +246,7 @@ func (p *parser) metaLineAt(t string) {
 		p.metaLine = make(map[string]int)
 	}
 	if prev, dup := p.metaLine[key]; dup {
-		p.warn(p.line, "%s given again (line %d); the value of this line is used", key, prev)
+		p.warn(warnRepeatedKey, p.line, "%s given again (line %d); the value of this line is used", key, prev)
 	}
 	p.metaLine[key] = p.line
 	p.meta.Set(dls.Param{Key: key, Value: value, Origin: dls.OriginFile, Where: fmt.Sprintf("%s:%d", p.name, p.line)})
@@ -203,7 +256,7 @@ func (p *parser) metaLineAt(t string) {
 // warning when it looks like metadata of the format.
 func (p *parser) lateComment(t string) {
 	if key, _, ok := parseMetaLine(t); ok && dls.IsMetadataKey(key) {
-		p.warn(p.line, "metadata %s after the header row is ignored (metadata lines come before the header)", key)
+		p.warn(warnLateMeta, p.line, "metadata %s after the header row is ignored (metadata lines come before the header)", key)
 	}
 }
 
@@ -232,7 +285,7 @@ func (p *parser) header(s []byte) bool {
 	}
 	p.L = L
 	if len(L.unused) > 0 {
-		p.warn(p.line, "columns not read: %s", quoteList(L.unused))
+		p.warn(warnUnusedColumns, p.line, "columns not read: %s", quoteList(L.unused))
 	}
 	n := len(L.runs)
 	p.corr = make([][]float64, n)
@@ -294,9 +347,9 @@ type valueError struct {
 
 func (e *valueError) Error() string {
 	if e.reason != "" {
-		return fmt.Sprintf("column %q: %q %s: %v", e.column, e.text, e.reason, e.sentinel)
+		return fmt.Sprintf("column %s: %s %s: %v", safetext.Excerpt(e.column), safetext.Excerpt(e.text), e.reason, e.sentinel)
 	}
-	return fmt.Sprintf("column %q: %q: %v", e.column, e.text, e.sentinel)
+	return fmt.Sprintf("column %s: %s: %v", safetext.Excerpt(e.column), safetext.Excerpt(e.text), e.sentinel)
 }
 
 func (e *valueError) Unwrap() []error {
@@ -354,7 +407,7 @@ func (p *parser) row(s []byte) bool {
 	}
 	if n := len(p.tau); n > 0 && !(tau > p.tau[n-1]) {
 		p.setFileErr(p.posErr(p.line, L.lag+1, &valueError{column: L.lagName, text: string(p.cells[L.lag]),
-			reason:   fmt.Sprintf("does not increase (line %d has %s)", p.lines[n-1], p.prevLag),
+			reason:   fmt.Sprintf("does not increase (line %d has %s)", p.lines[n-1], safetext.Excerpt(string(p.prevLag))),
 			sentinel: dls.ErrBadLag}))
 		return false
 	}
@@ -451,11 +504,11 @@ func (p *parser) measurement(r int, run string, runMeta dls.Param, hasRunMeta bo
 		CorrColumn: rc.corrName,
 		HeaderLine: p.headerLine,
 	}
-	m.Warnings = append([]string(nil), p.warnings...)
+	m.Warnings = p.warningTexts()
 	if rc.label != "" {
 		if hasRunMeta && runMeta.Value != rc.label {
 			m.Warnings = append(m.Warnings, p.posErr(p.metaLine[dls.KeyRun], 0,
-				fmt.Errorf("run %q of the metadata is replaced by the label %q of column %q", runMeta.Value, rc.label, rc.corrName)).Error())
+				fmt.Errorf("run %s of the metadata is replaced by the label %s of column %s", safetext.Excerpt(runMeta.Value), safetext.Excerpt(rc.label), safetext.Excerpt(rc.corrName))).Error())
 		}
 		m.Meta.Set(dls.Param{Key: dls.KeyRun, Value: rc.label, Origin: dls.OriginFile, Where: fmt.Sprintf("%s:%d", p.name, p.headerLine)})
 	}

@@ -18,6 +18,7 @@ import (
 	"github.com/gocarina/gocsv"
 
 	"dlsbatch/dls"
+	"dlsbatch/io/safetext"
 )
 
 // Table is a CSV table with the position of every cell.
@@ -104,9 +105,9 @@ func (t *Table) CheckHeader(known, required []string) error {
 		case h == "":
 			return t.Err(-1, i, fmt.Errorf("empty column name: %w", dls.ErrBadHeader))
 		case known != nil && !ok[h]:
-			return t.Err(-1, i, fmt.Errorf("unknown column %q (known: %s): %w", h, strings.Join(known, ", "), dls.ErrBadHeader))
+			return t.Err(-1, i, fmt.Errorf("unknown column %s (known: %s): %w", safetext.Excerpt(h), strings.Join(known, ", "), dls.ErrBadHeader))
 		case seen[h]:
-			return t.Err(-1, i, fmt.Errorf("column %q appears twice: %w", h, dls.ErrBadHeader))
+			return t.Err(-1, i, fmt.Errorf("column %s appears twice: %w", safetext.Excerpt(h), dls.ErrBadHeader))
 		}
 		seen[h] = true
 	}

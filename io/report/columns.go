@@ -39,14 +39,17 @@ func cum(f func(r *dls.Result) string) func(r *dls.Result) string {
 }
 
 // Columns of results.csv, in order. New columns are only ever appended.
+// Every column whose value is text rather than a number formatted here
+// (names and labels from the inputs, messages, codes, sources) goes
+// through text, which neutralises formulas.
 var columns = []column{
-	{"file", func(r *dls.Result) string { return r.File }},
-	{"sample", func(r *dls.Result) string { return r.Sample }},
-	{"run", func(r *dls.Result) string { return r.Run }},
-	{"status", func(r *dls.Result) string { return string(r.Status) }},
-	{"message", func(r *dls.Result) string { return r.Message }},
+	{"file", text(func(r *dls.Result) string { return r.File })},
+	{"sample", text(func(r *dls.Result) string { return r.Sample })},
+	{"run", text(func(r *dls.Result) string { return r.Run })},
+	{"status", text(func(r *dls.Result) string { return string(r.Status) })},
+	{"message", text(func(r *dls.Result) string { return r.Message })},
 	{"temperature_c", cond(func(r *dls.Result) string { return fixed(r.TemperatureC, 2) })},
-	{"solvent", cond(func(r *dls.Result) string { return r.Solvent })},
+	{"solvent", text(cond(func(r *dls.Result) string { return r.Solvent }))},
 	{"viscosity_mpas", cond(func(r *dls.Result) string { return fixed(r.ViscosityMPaS, 6) })},
 	{"refractive_index", cond(func(r *dls.Result) string { return fixed(r.RefractiveIndex, 6) })},
 	{"wavelength_nm", cond(func(r *dls.Result) string { return fixed(r.WavelengthNm, 2) })},
@@ -67,7 +70,7 @@ var columns = []column{
 	{"fit_first_tau_s", cum(func(r *dls.Result) string { return sci(r.FitFirstTauS, 4) })},
 	{"fit_last_tau_s", cum(func(r *dls.Result) string { return sci(r.FitLastTauS, 4) })},
 	{"range_shift_pct", cum(func(r *dls.Result) string { return fixed(r.RangeShiftPct, 2) })},
-	{"cumulant_method", cum(func(r *dls.Result) string { return r.Method + "-" + strconv.Itoa(r.Order) })},
+	{"cumulant_method", text(cum(func(r *dls.Result) string { return r.Method + "-" + strconv.Itoa(r.Order) }))},
 	{"linear_z_avg_nm", cum(func(r *dls.Result) string { return fixed(r.LinearZAvgNm, 3) })},
 	{"linear_pdi", cum(func(r *dls.Result) string { return fixed(r.LinearPDI, 4) })},
 	{"count_rate_kcps", func(r *dls.Result) string {
@@ -82,8 +85,8 @@ var columns = []column{
 		}
 		return fixed(r.DurationS, 1)
 	}},
-	{"viscosity_source", cond(func(r *dls.Result) string { return r.ViscositySource })},
-	{"refractive_index_source", cond(func(r *dls.Result) string { return r.IndexSource })},
+	{"viscosity_source", text(cond(func(r *dls.Result) string { return r.ViscositySource }))},
+	{"refractive_index_source", text(cond(func(r *dls.Result) string { return r.IndexSource }))},
 	peakCol(0, "nm"), peakCol(0, "width_nm"), peakCol(0, "intensity_pct"),
 	peakCol(1, "nm"), peakCol(1, "width_nm"), peakCol(1, "intensity_pct"),
 	peakCol(2, "nm"), peakCol(2, "width_nm"), peakCol(2, "intensity_pct"),
@@ -91,15 +94,42 @@ var columns = []column{
 	{"d50_nm", dist(func(r *dls.Result) string { return fixed(r.Intensity.D50Nm, 3) })},
 	{"d90_nm", dist(func(r *dls.Result) string { return fixed(r.Intensity.D90Nm, 3) })},
 	{"dist_z_avg_nm", dist(func(r *dls.Result) string { return fixed(r.DistZAvgNm, 3) })},
-	{"alpha_criterion", dist(func(r *dls.Result) string { return r.AlphaCriterion })},
+	{"alpha_criterion", text(dist(func(r *dls.Result) string { return r.AlphaCriterion }))},
 	{"alpha", dist(func(r *dls.Result) string { return sci(r.Alpha, 4) })},
 	{"dof", dist(func(r *dls.Result) string { return fixed(r.DegreesOfFreedom, 2) })},
-	{"particle_ri", dist(func(r *dls.Result) string { return r.ParticleRI })},
-	{"assumptions", func(r *dls.Result) string { return strings.Join(r.Assumptions, "; ") }},
+	{"particle_ri", text(dist(func(r *dls.Result) string { return r.ParticleRI }))},
+	{"assumptions", text(func(r *dls.Result) string { return strings.Join(r.Assumptions, "; ") })},
 	{"z_avg_uc_nm", cum(func(r *dls.Result) string { return nonzero(r.ZAvgUcNm, 3) })},
 	{"z_avg_expanded_nm", cum(func(r *dls.Result) string { return nonzero(r.ZAvgExpandedNm, 3) })},
-	{"correction", cum(func(r *dls.Result) string { return r.Correction })},
+	{"correction", text(cum(func(r *dls.Result) string { return r.Correction }))},
 	{"z_avg_d0_nm", cum(func(r *dls.Result) string { return nonzero(r.ZAvgD0Nm, 3) })},
+}
+
+// formulaStart lists the characters that make a spreadsheet read a cell as
+// a formula (= + - @) or that it may drop or act on ahead of one (tab,
+// carriage return): the list of the OWASP Foundation's "CSV Injection"
+// page (common practice).
+const formulaStart = "=+-@\t\r"
+
+// neutralise returns a text cell that a spreadsheet would run as a formula
+// with an apostrophe in front, the common defence (OWASP, "CSV Injection"),
+// which spreadsheets show as a plain-text marker. A cell that already starts
+// with an apostrophe gets one more, so that the rule can be undone exactly:
+// removing one leading apostrophe from a cell that starts with an
+// apostrophe followed by one of = + - @ tab CR or an apostrophe gives the
+// text back. Any other cell is returned as is. Numbers written by the tool
+// (which may start with '-') never pass through it; results.json keeps the
+// text unchanged.
+func neutralise(s string) string {
+	if s != "" && (strings.IndexByte(formulaStart, s[0]) >= 0 || s[0] == '\'') {
+		return "'" + s
+	}
+	return s
+}
+
+// text marks a column of text: its cells are neutralised.
+func text(f func(r *dls.Result) string) func(r *dls.Result) string {
+	return func(r *dls.Result) string { return neutralise(f(r)) }
 }
 
 // nonzero formats v, or gives an empty cell when v is 0 (not computed).
@@ -136,6 +166,21 @@ func peakCol(k int, what string) column {
 		}
 		return fixed(p.AreaPct, 1)
 	})}
+}
+
+// sampleColumns are the columns of samples.csv, in order; text marks those
+// whose cells are neutralised (names, labels, file ids, codes, reasons), as
+// opposed to numbers and counts formatted by the tool. New columns are only
+// ever appended.
+var sampleColumns = []struct {
+	name string
+	text bool
+}{
+	{"sample", true}, {"lot", true}, {"product", true}, {"role", true}, {"group", true},
+	{"temperature_c", false}, {"n_runs", false}, {"n_used", false},
+	{"z_avg_mean_nm", false}, {"z_avg_sd_nm", false}, {"z_avg_rsd_pct", false}, {"pdi_mean", false}, {"pdi_sd", false},
+	{"peak1_mean_nm", false}, {"d90_mean_nm", false},
+	{"outliers", true}, {"outliers_excluded", false}, {"flags", true}, {"verdict", true}, {"verdict_reason", true},
 }
 
 // ColumnNames returns the results.csv header.

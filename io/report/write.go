@@ -13,6 +13,7 @@ import (
 	"dlsbatch/dls"
 	"dlsbatch/dls/batch"
 	"dlsbatch/dls/spec"
+	"dlsbatch/io/safetext"
 	"dlsbatch/io/sheet"
 )
 
@@ -128,7 +129,11 @@ func checkFinite(r *dls.Result) error {
 // WriteSummary prints a short table for the terminal: one line per sample
 // (verdict when a specification is in force, runs used of measured, mean
 // and SD of the z-average, mean PDI, flag codes), then the batch outcome,
-// the counts, and the first problems with file and line.
+// the counts, and the first problems with file and line. Every text that
+// comes from the inputs (names, lots, file names, messages, reasons) goes
+// through safetext.Terminal: the summary is printed to a terminal, where
+// escape sequences or control characters in a file name or cell would act
+// instead of showing.
 func WriteSummary(w io.Writer, results []*dls.Result, samples []*dls.Sample, b spec.Batch, maxProblems int) error {
 	tw := tabwriter.NewWriter(w, 0, 0, 2, ' ', 0)
 	head := "sample\tT °C\truns\tz-average nm\tSD nm\tPDI\tflags\t"
@@ -141,6 +146,7 @@ func WriteSummary(w io.Writer, results []*dls.Result, samples []*dls.Sample, b s
 		if smp.Lot != "" {
 			name += " (" + smp.Lot + ")"
 		}
+		name = safetext.Terminal(name)
 		ts := make([]string, len(smp.TemperaturesC))
 		for i, t := range smp.TemperaturesC {
 			ts[i] = fixed(t, 1)
@@ -152,11 +158,11 @@ func WriteSummary(w io.Writer, results []*dls.Result, samples []*dls.Sample, b s
 				sd = fixed(smp.ZAvgSDNm, 1)
 			}
 		}
-		row := fmt.Sprintf("%s\t%s\t%d/%d\t%s\t%s\t%s\t%s\t", name, strings.Join(ts, ","), smp.NUsed, smp.NRuns, zs, sd, pd, flagCodes(smp.Flags))
+		row := fmt.Sprintf("%s\t%s\t%d/%d\t%s\t%s\t%s\t%s\t", name, strings.Join(ts, ","), smp.NUsed, smp.NRuns, zs, sd, pd, safetext.Terminal(flagCodes(smp.Flags)))
 		if b.Specified {
 			v := "–"
 			if smp.Verdict != nil {
-				v = strings.ToUpper(string(smp.Verdict.Outcome))
+				v = safetext.Terminal(strings.ToUpper(string(smp.Verdict.Outcome)))
 			}
 			row = v + "\t" + row
 		}
@@ -171,11 +177,11 @@ func WriteSummary(w io.Writer, results []*dls.Result, samples []*dls.Sample, b s
 		if b.Valid {
 			fmt.Fprintf(w, "batch valid (system suitability passed): %d pass, %d fail, %d without specification\n", b.Pass, b.Fail, b.NoSpec)
 		} else {
-			fmt.Fprintf(w, "BATCH INVALID: %s\n", b.Reason)
+			fmt.Fprintf(w, "BATCH INVALID: %s\n", safetext.Terminal(b.Reason))
 		}
 		for _, smp := range samples {
 			if smp.Verdict != nil && smp.Verdict.Outcome == dls.VerdictFail {
-				fmt.Fprintf(w, "  FAIL  %s: %s\n", smp.Name, smp.Verdict.Reason)
+				fmt.Fprintf(w, "  FAIL  %s: %s\n", safetext.Terminal(smp.Name), safetext.Terminal(smp.Verdict.Reason))
 			}
 		}
 	}
@@ -195,11 +201,11 @@ func WriteSummary(w io.Writer, results []*dls.Result, samples []*dls.Sample, b s
 		msg := r.Message
 		if rest, ok := strings.CutPrefix(msg, r.File+":"); ok {
 			// Errors name file and line already: keep that, with the run.
-			fmt.Fprintf(w, "  %-5s %s:%s\n", r.Status, id, rest)
+			fmt.Fprintf(w, "  %-5s %s:%s\n", r.Status, safetext.Terminal(id), safetext.Terminal(rest))
 			shown++
 			continue
 		}
-		fmt.Fprintf(w, "  %-5s %s: %s\n", r.Status, id, msg)
+		fmt.Fprintf(w, "  %-5s %s: %s\n", r.Status, safetext.Terminal(id), safetext.Terminal(msg))
 		shown++
 	}
 	return nil
@@ -222,9 +228,11 @@ func flagCodes(f []dls.Flag) string {
 // statistics, flags and verdict.
 func WriteSamplesCSV(w io.Writer, samples []*dls.Sample, results []*dls.Result) error {
 	cw := csv.NewWriter(w)
-	cw.Write([]string{"sample", "lot", "product", "role", "group", "temperature_c", "n_runs", "n_used",
-		"z_avg_mean_nm", "z_avg_sd_nm", "z_avg_rsd_pct", "pdi_mean", "pdi_sd", "peak1_mean_nm", "d90_mean_nm",
-		"outliers", "outliers_excluded", "flags", "verdict", "verdict_reason"})
+	head := make([]string, len(sampleColumns))
+	for i, c := range sampleColumns {
+		head[i] = c.name
+	}
+	cw.Write(head)
 	for _, s := range samples {
 		ts := make([]string, len(s.TemperaturesC))
 		for i, t := range s.TemperaturesC {
@@ -260,9 +268,15 @@ func WriteSamplesCSV(w io.Writer, samples []*dls.Sample, results []*dls.Result) 
 		if s.Verdict != nil {
 			verdict, reason = string(s.Verdict.Outcome), s.Verdict.Reason
 		}
-		cw.Write([]string{s.Name, s.Lot, s.Product, string(s.Role), s.Group, strings.Join(ts, " "), strconv.Itoa(s.NRuns), strconv.Itoa(s.NUsed),
+		row := []string{s.Name, s.Lot, s.Product, string(s.Role), s.Group, strings.Join(ts, " "), strconv.Itoa(s.NRuns), strconv.Itoa(s.NUsed),
 			stat(s.ZAvgMeanNm, 3), sd(s.ZAvgSDNm, 3), sd(s.ZAvgRSDPct, 2), stat(s.PDIMean, 4), sd(s.PDISD, 4), opt(s.Peak1MeanNm), opt(s.D90MeanNm),
-			strings.Join(out, " "), strconv.FormatBool(s.OutliersExcluded), flagCodes(s.Flags), verdict, reason})
+			strings.Join(out, " "), strconv.FormatBool(s.OutliersExcluded), flagCodes(s.Flags), verdict, reason}
+		for i, c := range sampleColumns {
+			if c.text {
+				row[i] = neutralise(row[i])
+			}
+		}
+		cw.Write(row)
 	}
 	cw.Flush()
 	if err := cw.Error(); err != nil {

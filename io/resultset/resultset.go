@@ -79,18 +79,15 @@ func Open(dir string, inputs []string, force bool) (*Set, error) {
 	} else if !errors.Is(err, os.ErrNotExist) {
 		return nil, fmt.Errorf("--out %s: %w", dir, err)
 	}
+	// Resolve links in the longest existing part of the path, then check
+	// against the inputs before anything is created.
+	abs = resolveExisting(abs)
+	if err := checkOutside(abs, dir, inputs); err != nil {
+		return nil, err
+	}
 	parent := filepath.Dir(abs)
 	if err := os.MkdirAll(parent, 0o755); err != nil {
 		return nil, fmt.Errorf("--out %s: %w", dir, err)
-	}
-	if rp, err := filepath.EvalSymlinks(parent); err == nil {
-		parent = rp
-		abs = filepath.Join(rp, filepath.Base(abs))
-	} else {
-		return nil, fmt.Errorf("--out %s: the folder above it: %w", dir, err)
-	}
-	if err := checkOutside(abs, dir, inputs); err != nil {
-		return nil, err
 	}
 	s := &Set{Dir: abs}
 	if err := s.takeLock(dir); err != nil {
@@ -199,6 +196,24 @@ func checkOutside(out, typed string, inputs []string) error {
 		}
 	}
 	return nil
+}
+
+// resolveExisting resolves the links of the longest leading part of the
+// absolute path p that exists and appends the rest (an output folder need
+// not exist yet).
+func resolveExisting(p string) string {
+	rest := ""
+	for {
+		if r, err := filepath.EvalSymlinks(p); err == nil {
+			return filepath.Join(r, rest)
+		}
+		parent := filepath.Dir(p)
+		if parent == p {
+			return filepath.Join(p, rest)
+		}
+		rest = filepath.Join(filepath.Base(p), rest)
+		p = parent
+	}
 }
 
 // within reports whether p lies strictly inside dir.

@@ -192,3 +192,59 @@ func TestStaleStagingRemoved(t *testing.T) {
 		t.Error("stale staging folder kept")
 	}
 }
+
+// An output folder inside an input folder is refused, also when one of
+// them is named through a link (Discover searches a linked folder, so its
+// target is input too); a sibling folder whose name starts like the input's
+// is not inside it.
+func TestOutsideLinks(t *testing.T) {
+	dir := t.TempDir()
+	tree(t, dir, "real/a.csv", "elsewhere/")
+	link(t, filepath.Join(dir, "real"), filepath.Join(dir, "night"))
+	j := func(s string) string { return filepath.Join(dir, s) }
+	cases := []struct {
+		out, in string
+		refused bool
+	}{
+		{j("real/o"), j("real"), true},
+		{j("real/o"), j("night"), true},
+		{j("night/o/deeper"), j("real"), true},
+		{j("night"), j("real"), true},
+		{j("elsewhere/o"), j("night"), false},
+		{j("realm/o"), j("real"), false},
+		{j("real/a.csv"), j("night/a.csv"), true},
+	}
+	for _, c := range cases {
+		err := openAndAbort(c.out, []string{c.in})
+		if (err != nil) != c.refused {
+			t.Errorf("Open(%s, inputs %s) = %v, want refused %v", c.out, c.in, err, c.refused)
+		}
+	}
+}
+
+func openAndAbort(out string, inputs []string) error {
+	s, err := Open(out, inputs, true)
+	if err == nil {
+		s.Abort()
+	}
+	return err
+}
+
+func tree(t *testing.T, dir string, names ...string) {
+	t.Helper()
+	for _, n := range names {
+		p := filepath.Join(dir, n)
+		if strings.HasSuffix(n, "/") {
+			os.MkdirAll(p, 0o755)
+			continue
+		}
+		write(t, p, "x")
+	}
+}
+
+func link(t *testing.T, target, name string) {
+	t.Helper()
+	if err := os.Symlink(target, name); err != nil {
+		t.Fatal(err)
+	}
+}

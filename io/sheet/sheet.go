@@ -42,6 +42,7 @@ import (
 	"dlsbatch/dls"
 	"dlsbatch/io/csvdata"
 	"dlsbatch/io/csvtable"
+	"dlsbatch/io/safetext"
 )
 
 // Row is one row of a sample sheet.
@@ -91,7 +92,7 @@ func Parse(r io.Reader, name string) (*Sheet, error) {
 			return nil, t.Err(i, fileCol, errors.New("empty file pattern"))
 		}
 		if _, err := path.Match(row.Pattern, ""); err != nil {
-			return nil, t.Err(i, fileCol, fmt.Errorf("pattern %q: %w", row.Pattern, err))
+			return nil, t.Err(i, fileCol, fmt.Errorf("pattern %s: %w", safetext.Excerpt(row.Pattern), err))
 		}
 		if runCol >= 0 {
 			row.Run = rec[runCol]
@@ -108,7 +109,7 @@ func Parse(r io.Reader, name string) (*Sheet, error) {
 				// Validated here; the value is kept as written (the
 				// analysis reads it in lower case).
 				if _, err := dls.ParseRole(v); err != nil {
-					return nil, t.Err(i, j, err)
+					return nil, t.Err(i, j, fmt.Errorf("role %s: want one of %s: %w", safetext.Excerpt(v), strings.Join(roleNames(), ", "), dls.ErrBadMetadata))
 				}
 			}
 			p := t.Pos[i+1][j]
@@ -201,7 +202,15 @@ func (s *Sheet) Check(name string, files []string, rel map[string]string) *Match
 		}
 	}
 	for _, row := range s.Unmatched(all) {
-		rep.UnusedRows = append(rep.UnusedRows, fmt.Sprintf("%s:%d: row %q matches no file", name, row.Line, row.Pattern))
+		rep.UnusedRows = append(rep.UnusedRows, fmt.Sprintf("%s:%d: row %s matches no file", name, row.Line, safetext.Excerpt(row.Pattern)))
 	}
 	return rep
+}
+
+func roleNames() []string {
+	var out []string
+	for _, r := range dls.Roles() {
+		out = append(out, string(r))
+	}
+	return out
 }

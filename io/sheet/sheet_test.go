@@ -148,3 +148,40 @@ func FuzzParse(f *testing.F) {
 		}
 	})
 }
+
+// Errors quote a cell only as an excerpt: its first 40 characters in Go
+// quoting, then "…" (the rule of io/safetext), so a message stays short
+// whatever the cell holds.
+func TestErrorsQuoteExcerpts(t *testing.T) {
+	long := strings.Repeat("x", 1000)
+	cases := []struct {
+		name, in string
+		want     string
+	}{
+		{"role", "file,role\na.csv," + long + "\n", `role "` + long[:40] + `"…: want one of`},
+		{"pattern", "file\n[" + long + "\n", `pattern "[` + long[:39] + `"…: `},
+		{"metadata number", "file,temperature_c\na.csv,9" + long + "\n", `temperature_c "9` + long[:39] + `"… is not a number`},
+		{"unknown column", "file," + long + "\na.csv,1\n", `unknown column "` + long[:40] + `"… (known:`},
+	}
+	for _, c := range cases {
+		t.Run(c.name, func(t *testing.T) {
+			_, err := Parse(strings.NewReader(c.in), "s.csv")
+			if err == nil || !strings.Contains(err.Error(), c.want) {
+				t.Fatalf("error %v lacks %q", err, c.want)
+			}
+			// Fixed text (the known columns list is about 450 bytes) plus one
+			// excerpt of 40 ASCII characters.
+			if n := len(err.Error()); n > 700 {
+				t.Errorf("message of %d bytes", n)
+			}
+		})
+	}
+	s, err := Parse(strings.NewReader("file\n"+long+".csv\n"), "s.csv")
+	if err != nil {
+		t.Fatal(err)
+	}
+	rep := s.Check("s.csv", []string{"a.csv"}, map[string]string{"a.csv": "a.csv"})
+	if want := `s.csv:2: row "` + long[:40] + `"… matches no file`; len(rep.UnusedRows) != 1 || rep.UnusedRows[0] != want {
+		t.Errorf("unused rows %q, want %q", rep.UnusedRows, want)
+	}
+}

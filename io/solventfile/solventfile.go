@@ -13,6 +13,7 @@ import (
 	"dlsbatch/dls"
 	"dlsbatch/dls/medium"
 	"dlsbatch/io/csvtable"
+	"dlsbatch/io/safetext"
 )
 
 // Models of the viscosity_model and index_model columns.
@@ -100,7 +101,7 @@ func Parse(r io.Reader, file string) ([]Entry, error) {
 		for _, k := range append([]string{e.Name}, e.Aliases...) {
 			key := strings.ToLower(k)
 			if prev, dup := seen[key]; dup {
-				return nil, at("name", fmt.Errorf("%q already defined on line %d", k, prev))
+				return nil, at("name", fmt.Errorf("%s already defined on line %d", safetext.Excerpt(k), prev))
 			}
 			seen[key] = e.Line
 		}
@@ -113,10 +114,10 @@ func Parse(r io.Reader, file string) ([]Entry, error) {
 func number(s string) (float64, error) {
 	v, err := strconv.ParseFloat(strings.TrimSpace(s), 64)
 	if err != nil {
-		return 0, fmt.Errorf("%q: %w (%w)", s, dls.ErrNotANumber, err)
+		return 0, fmt.Errorf("%s: %w (%w)", safetext.Excerpt(s), dls.ErrNotANumber, safetext.NumReason(err))
 	}
 	if math.IsNaN(v) || math.IsInf(v, 0) {
-		return 0, fmt.Errorf("%q: %w", s, dls.ErrNonFinite)
+		return 0, fmt.Errorf("%s: %w", safetext.Excerpt(s), dls.ErrNonFinite)
 	}
 	return v, nil
 }
@@ -140,20 +141,20 @@ func parseRow(rw row, at func(string, error) error) (Entry, error) {
 		return e, at("name", dls.ErrMissingValue)
 	}
 	if strings.Contains(e.Name, ":") {
-		return e, at("name", fmt.Errorf("%q: ':' is reserved for mixtures", e.Name))
+		return e, at("name", fmt.Errorf("%s: ':' is reserved for mixtures", safetext.Excerpt(e.Name)))
 	}
 	if strings.HasPrefix(e.Name, "#") {
-		return e, at("name", fmt.Errorf("%q: a name may not start with '#' (comment lines)", e.Name))
+		return e, at("name", fmt.Errorf("%s: a name may not start with '#' (comment lines)", safetext.Excerpt(e.Name)))
 	}
 	for _, c := range []struct{ col, text string }{{"name", rw.Name}, {"aliases", rw.Aliases}, {"source", rw.Source}} {
 		if strings.ContainsFunc(c.text, unicode.IsControl) {
-			return e, at(c.col, fmt.Errorf("%q holds a control character", c.text))
+			return e, at(c.col, fmt.Errorf("%s holds a control character", safetext.Excerpt(c.text)))
 		}
 	}
 	for _, a := range strings.Split(rw.Aliases, "|") {
 		if a = strings.TrimSpace(a); a != "" {
 			if strings.Contains(a, ":") {
-				return e, at("aliases", fmt.Errorf("%q: ':' is reserved for mixtures", a))
+				return e, at("aliases", fmt.Errorf("%s: ':' is reserved for mixtures", safetext.Excerpt(a)))
 			}
 			e.Aliases = append(e.Aliases, a)
 		}
@@ -176,7 +177,7 @@ func parseRow(rw row, at func(string, error) error) (Entry, error) {
 	want := map[string]int{ViscosityConstant: 1, ViscosityAndrade: 2, ViscosityDIPPR101: 5}
 	n, ok := want[e.ViscosityModel]
 	if !ok {
-		return e, at("viscosity_model", fmt.Errorf("%q: want constant, andrade or dippr101", rw.ViscosityModel))
+		return e, at("viscosity_model", fmt.Errorf("%s: want constant, andrade or dippr101", safetext.Excerpt(rw.ViscosityModel)))
 	}
 	if len(e.ViscosityParams) != n {
 		return e, at("viscosity_params", fmt.Errorf("%s takes %d numbers, got %d", e.ViscosityModel, n, len(e.ViscosityParams)))
@@ -199,7 +200,7 @@ func parseRow(rw row, at func(string, error) error) (Entry, error) {
 			return e, at("index_params", fmt.Errorf("cauchy takes at least 2 numbers (A B), got %d", len(e.IndexParams)))
 		}
 	default:
-		return e, at("index_model", fmt.Errorf("%q: want constant or cauchy", rw.IndexModel))
+		return e, at("index_model", fmt.Errorf("%s: want constant or cauchy", safetext.Excerpt(rw.IndexModel)))
 	}
 	if !(e.IndexParams[0] >= 1) || e.IndexParams[0] > 5 {
 		return e, at("index_params", fmt.Errorf("index %g is outside 1–5: %w", e.IndexParams[0], dls.ErrOutOfRange))

@@ -235,3 +235,31 @@ func FuzzParse(f *testing.F) {
 		}
 	})
 }
+
+// Errors quote a cell only as an excerpt: its first 40 characters in Go
+// quoting, then "…" (the rule of io/safetext); a bad number does not print
+// its *strconv.NumError, which would repeat the whole cell.
+func TestErrorsQuoteExcerpts(t *testing.T) {
+	const head = "name,t_min_c,t_max_c,viscosity_model,viscosity_params,index_model,index_params,source\n"
+	long := strings.Repeat("z", 1000)
+	cases := []struct {
+		name, in string
+		want     string
+	}{
+		{"model", head + "a,0,30," + long + ",1,constant,1.33,lab\n", `"` + long[:40] + `"…: want constant, andrade or dippr101`},
+		{"number", head + "a,0,3" + long + ",constant,1,constant,1.33,lab\n", `"3` + long[:39] + `"…: not a number (invalid syntax)`},
+		{"control character", head + "a\x1b[2J" + long + ",0,30,constant,1,constant,1.33,lab\n", `"a\x1b[2J` + long[:35] + `"… holds a control character`},
+		{"mixture name", head + long + ":b,0,30,constant,1,constant,1.33,lab\n", `"` + long[:40] + `"…: ':' is reserved`},
+	}
+	for _, c := range cases {
+		t.Run(c.name, func(t *testing.T) {
+			_, err := Parse(strings.NewReader(c.in), "user.csv")
+			if err == nil || !strings.Contains(err.Error(), c.want) {
+				t.Fatalf("error %v lacks %q", err, c.want)
+			}
+			if n := len(err.Error()); n > 300 {
+				t.Errorf("message of %d bytes", n)
+			}
+		})
+	}
+}

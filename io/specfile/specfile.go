@@ -38,6 +38,7 @@ import (
 	"dlsbatch/dls"
 	"dlsbatch/dls/spec"
 	"dlsbatch/io/csvtable"
+	"dlsbatch/io/safetext"
 )
 
 // Columns returns the columns of a specification file (a new slice each
@@ -83,7 +84,7 @@ func Parse(r io.Reader, name string) (*spec.Spec, error) {
 			}
 			x, err := strconv.ParseFloat(v, 64)
 			if err != nil || math.IsNaN(x) || math.IsInf(x, 0) {
-				return 0, false, t.Err(i, c, fmt.Errorf("%q is not a finite number: %w", v, dls.ErrNotANumber))
+				return 0, false, t.Err(i, c, fmt.Errorf("%s is not a finite number: %w", safetext.Excerpt(v), dls.ErrNotANumber))
 			}
 			return x, true, nil
 		}
@@ -93,7 +94,7 @@ func Parse(r io.Reader, name string) (*spec.Spec, error) {
 			return nil, t.Err(i, pc, fmt.Errorf("empty product"))
 		}
 		if !spec.IsQuantity(quantity) {
-			return nil, t.Err(i, qc, fmt.Errorf("unknown quantity %q (known: %s)", quantity, strings.Join(spec.QuantityNames(), ", ")))
+			return nil, t.Err(i, qc, fmt.Errorf("unknown quantity %s (known: %s)", safetext.Excerpt(quantity), strings.Join(spec.QuantityNames(), ", ")))
 		}
 		l := spec.Limit{Product: product, Quantity: quantity, Where: fmt.Sprintf("%s:%d", name, t.Line(i))}
 		var err error
@@ -154,7 +155,7 @@ func Parse(r io.Reader, name string) (*spec.Spec, error) {
 		}
 		key := strings.ToLower(product) + "\x00" + quantity + "\x00" + fmtNum(at)
 		if prev, dup := seen[key]; dup {
-			return nil, t.Err(i, qc, fmt.Errorf("%s %s already limited on line %d", product, quantity, prev))
+			return nil, t.Err(i, qc, fmt.Errorf("%s %s already limited on line %d", safetext.Excerpt(product), quantity, prev))
 		}
 		seen[key] = t.Line(i)
 		s.Limits = append(s.Limits, l)

@@ -102,3 +102,29 @@ func TestColumnsIsACopy(t *testing.T) {
 		t.Errorf("Columns() shares its backing array: %v", Columns())
 	}
 }
+
+// Errors quote a cell only as an excerpt: its first 40 characters in Go
+// quoting, then "…" (the rule of io/safetext).
+func TestErrorsQuoteExcerpts(t *testing.T) {
+	h := "product,quantity,min,max,target,tol,at_nm\n"
+	long := strings.Repeat("y", 1000)
+	cases := []struct {
+		name, in string
+		want     string
+	}{
+		{"number", h + "p,pdi," + long + ",,,,\n", `"` + long[:40] + `"… is not a finite number`},
+		{"quantity", h + "p," + long + ",1,2,,,\n", `unknown quantity "` + long[:40] + `"… (known:`},
+		{"repeated product", h + long + ",pdi,,0.1,,,\n" + long + ",pdi,,0.2,,,\n", `"` + long[:40] + `"… pdi already limited on line 2`},
+	}
+	for _, c := range cases {
+		t.Run(c.name, func(t *testing.T) {
+			_, err := Parse(strings.NewReader(c.in), "spec.csv")
+			if err == nil || !strings.Contains(err.Error(), c.want) {
+				t.Fatalf("error %v lacks %q", err, c.want)
+			}
+			if n := len(err.Error()); n > 400 {
+				t.Errorf("message of %d bytes", n)
+			}
+		})
+	}
+}
