@@ -221,4 +221,3 @@ func TestFoundPathsAndFailed(t *testing.T) {
 		t.Error("a readable file reported as failed")
 	}
 }
-
