@@ -34,13 +34,35 @@
 // '#' up to its first ':' is, once trimmed, a key: one or more ASCII
 // letters, digits, '_', '-' or '.'. Any other comment line ("# no colon",
 // "# created 12:30") is only a comment. Keys are case-insensitive and
-// stored in lower case; values are trimmed. The keys of the format are:
+// stored in lower case; values are trimmed. The keys of the format, with
+// the physically plausible range of each numeric one (dls.PlausibleRanges;
+// bounds inclusive):
 //
-//	sample, run, temperature_c, wavelength_nm, angle_deg, solvent,
-//	viscosity_mpas, refractive_index, particle_ri, concentration_mg_ml,
-//	particle_density_g_cm3, volume_fraction, count_rate_kcps, duration_s,
-//	lot, product, role, group, medium_volume_fraction,
-//	medium_relative_viscosity, kd
+//	sample, run, solvent, lot, product, role, group    text
+//	temperature_c               °C      -20 … 150 (and, where η or n comes
+//	                                    from the solvent table, the range of
+//	                                    the solvent's correlation)
+//	wavelength_nm               nm      200 … 2000 (vacuum wavelength)
+//	angle_deg                   °       5 … 179 (180 itself is no geometry)
+//	viscosity_mpas              mPa·s   0.1 … 10⁴
+//	refractive_index            1       1.0 … 2.5 (the medium's)
+//	particle_ri                 1       real part 0.01 … 6 (metals below 1),
+//	                                    imaginary part 0 … 10; or a material
+//	concentration_mg_ml         mg/mL   0 … 1000
+//	particle_density_g_cm3      g/cm³   0.1 … 22.6
+//	volume_fraction             1       0 … 0.64
+//	count_rate_kcps             kcps    0 … 10⁷
+//	duration_s                  s       0 … 10⁵
+//	medium_volume_fraction      1       0 … 0.64
+//	medium_relative_viscosity   1       1 … 10⁴
+//	kd                          1       -100 … 1000, or hard-sphere
+//
+// The reader checks syntax only. The analysis (dls/batch) checks each
+// value, from whatever source, against its range: outside it the
+// measurement fails with an error wrapping dls.ErrImplausible that names
+// the key, the value, the range and where the value came from, unless
+// implausible values are allowed (dlsbatch run --allow-implausible), when
+// it is a warning instead.
 //
 // Each value goes into Measurement.Meta as a dls.Param with Origin
 // dls.OriginFile and Where "file:line". The rules:
@@ -53,7 +75,7 @@
 //     Every other key takes a number (see Numbers below; 25.0, 633, 1e-3).
 //     A value that breaks its rule makes the file fail with an error
 //     wrapping dls.ErrBadMetadata, and the number's own sentinel, at that
-//     line; a unit or range check is left to the analysis.
+//     line; the range check is left to the analysis.
 //   - An empty value ("# viscosity_mpas:") gives no value, as if the line
 //     were absent.
 //   - A key that is not of the format is ignored, with a warning on the
