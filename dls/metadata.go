@@ -2,10 +2,8 @@ package dls
 
 import (
 	"fmt"
-	"math"
 	"slices"
 	"sort"
-	"strconv"
 	"strings"
 )
 
@@ -131,20 +129,18 @@ func (md Metadata) Get(key string) (Param, bool) {
 // String returns the value under key, or "" when absent.
 func (md Metadata) String(key string) string { return md.m[key].Value }
 
-// Float returns the value under key as a finite number. ok is false when the
-// key is absent; err is set when it is present but not a finite number, and
-// then names where the value came from.
+// Float returns the value under key as a finite number, read by
+// ParseNumber. ok is false when the key is absent; err is set when it is
+// present but not a number of that syntax, and then names where the value
+// came from and wraps the *NumberError (and so its sentinel).
 func (md Metadata) Float(key string) (v float64, ok bool, err error) {
 	p, ok := md.m[key]
 	if !ok || strings.TrimSpace(p.Value) == "" {
 		return 0, false, nil
 	}
-	v, err = strconv.ParseFloat(strings.TrimSpace(p.Value), 64)
+	v, err = ParseNumber(strings.TrimSpace(p.Value))
 	if err != nil {
-		return 0, true, fmt.Errorf("%s: %s=%q: %w", p.Where, key, p.Value, ErrNotANumber)
-	}
-	if math.IsNaN(v) || math.IsInf(v, 0) {
-		return 0, true, fmt.Errorf("%s: %s=%q: %w", p.Where, key, p.Value, ErrNonFinite)
+		return 0, true, fmt.Errorf("%s: %s: %w", p.Where, key, err)
 	}
 	return v, true, nil
 }

@@ -34,17 +34,17 @@ import (
 type runOptions struct {
 	set, defaults paramsFlag
 
-	out, particleRI                          string // output folder; default particle index
-	solventFile, sheetFile, specFile, qcFile string // tables
-	tauCol, tauUnit, sigmaCol                string // foreign CSV columns
-	corrCols                                 []string
-	corrKind, method, criterion              *enumFlag
-	jobs, order, gridPoints                  int
-	maxFileMB, maxRows, maxColumns           int // input limits
-	cutoff, minLagS, lambda, target          float64
-	uTempK, uViscRel, uIndex, uAngleDeg      float64 // Type B uncertainties
-	quiet, force, extrapolate, noCurves      bool
-	exclude, noReport, noDist                bool
+	out, particleRI                                  string // output folder; default particle index
+	solventFile, sheetFile, specFile, qcFile         string // tables
+	tauCol, tauUnit, sigmaCol                        string // foreign CSV columns
+	corrCols                                         []string
+	corrKind, method, criterion                      *enumFlag
+	jobs, order, gridPoints                          int
+	maxFileMB, maxRows, maxColumns                   int // input limits
+	cutoff, minLagS, lambda, target                  float64
+	uTempK, uViscRel, uIndex, uAngleDeg              float64 // Type B uncertainties
+	quiet, force, extrapolate, noCurves, implausible bool
+	exclude, noReport, noDist                        bool
 }
 
 func newRunOptions() *runOptions {
@@ -81,6 +81,7 @@ func (o *runOptions) addFlags(fs *pflag.FlagSet) {
 	fs.Float64Var(&o.cutoff, "g1-cutoff", o.cutoff, "end the fit where the estimated g1 falls below this amplitude")
 	fs.Float64Var(&o.minLagS, "min-lag-s", 0, "ignore channels below this lag in s (afterpulsing, dead time)")
 	fs.BoolVar(&o.extrapolate, "extrapolate", false, "allow solvent correlations outside their valid range (every result touched is a warning)")
+	fs.BoolVar(&o.implausible, "allow-implausible", false, "analyse metadata values outside their physically plausible range (each such result is a warning, not an error)")
 	fs.BoolVar(&o.noCurves, "no-curves", false, "leave fitted curves and residuals out of results.json")
 	fs.StringVar(&o.solventFile, "solvent-file", "", "CSV of extra or replacement solvents (see 'dlsbatch solvents --help')")
 	fs.StringVar(&o.sheetFile, "sheet", "", "sample sheet (CSV): per-file sample, lot, product, role and conditions")
@@ -309,6 +310,7 @@ func (o *runOptions) settings() (batch.Settings, *csvdata.Options, error) {
 	c.Method, c.Order, c.Cutoff, c.MinTauS = m, o.order, o.cutoff, o.minLagS
 	s.Overrides, s.Defaults = o.set.params, append(o.defaults.params, s.Defaults...)
 	s.Extrapolate, s.KeepCurves = o.extrapolate, !o.noCurves
+	s.AllowImplausible = o.implausible
 	u := &s.Uncertainty
 	u.TemperatureK, u.ViscosityRel, u.RefractiveIndex, u.AngleRad = o.uTempK, o.uViscRel, o.uIndex, o.uAngleDeg*math.Pi/180
 	if o.uViscRel > 0 {
@@ -353,7 +355,7 @@ func (o *runOptions) record(s batch.Settings, root string) *report.Settings {
 		return csvdata.Rel(root, p)
 	}
 	return &report.Settings{
-		AlphaCriterion: s.Distribution.Contin.Criterion.String(), AlphaLambda: s.Distribution.Contin.Lambda,
+		AllowImplausible: s.AllowImplausible, AlphaCriterion: s.Distribution.Contin.Criterion.String(), AlphaLambda: s.Distribution.Contin.Lambda,
 		BoltzmannJPerK: dls.BoltzmannJPerK, CorrColumns: o.corrCols, CorrKind: o.corrKind.value,
 		CoverageFactor: s.CoverageFactor, CumulantMethod: s.Cumulants.Method.String(), CumulantOrder: s.Cumulants.Order,
 		Default: dls.Assignments(s.Defaults), DefaultParticleRI: mie.FormatComplexIndex(s.Distribution.DefaultParticleRI),

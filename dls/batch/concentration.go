@@ -3,8 +3,6 @@ package batch
 import (
 	"errors"
 	"fmt"
-	"math"
-	"strconv"
 	"strings"
 
 	"dlsbatch/cumulants"
@@ -99,9 +97,9 @@ func applyKD(r *dls.Result, meta dls.Metadata) ([]string, error) {
 		kd = conc.HardSphereKD
 		warn = append(warn, fmt.Sprintf("k_D = %g assumed: hard spheres (Batchelor 1976), not measured for this sample", kd))
 	default:
-		x, err := strconv.ParseFloat(v, 64)
-		if err != nil || math.IsNaN(x) || math.IsInf(x, 0) {
-			return nil, fmt.Errorf("%s: %s %q: want a number or hard-sphere: %w", p.Where, dls.KeyKD, v, dls.ErrBadMetadata)
+		x, err := dls.ParseNumber(v)
+		if err != nil {
+			return nil, fmt.Errorf("%s: %s: want a number or hard-sphere: %w: %w", p.Where, dls.KeyKD, err, dls.ErrBadMetadata)
 		}
 		kd = x
 	}

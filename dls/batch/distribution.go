@@ -118,10 +118,20 @@ func particleIndex(meta dls.Metadata, lambdaM float64, def complex128) (complex1
 		s := mie.FormatComplexIndex(def)
 		return def, s, "particle refractive index not given: " + s + " assumed (volume and number weightings depend on it)", nil
 	}
-	if m, err := mie.ParseComplexIndex(p.Value); err == nil {
+	text := strings.TrimSpace(p.Value)
+	_, serr := dls.ParseComplexNumber(text)
+	switch letter := text[0] >= 'A' && text[0] <= 'Z' || text[0] >= 'a' && text[0] <= 'z'; {
+	case serr == nil:
+		// The syntax is dls's; mie checks the physics (n > 0, k ≥ 0).
+		m, err := mie.ParseComplexIndex(text)
+		if err != nil {
+			return 0, "", "", fmt.Errorf("%s: particle_ri: %w", p.Where, err)
+		}
 		return m, mie.FormatComplexIndex(m), "", nil
+	case !letter: // not a material name either
+		return 0, "", "", fmt.Errorf("%s: particle_ri: %w: %w", p.Where, serr, dls.ErrBadMetadata)
 	}
-	m, src, err := mie.MaterialIndex(p.Value, lambdaM)
+	m, src, err := mie.MaterialIndex(text, lambdaM)
 	if err != nil {
 		return 0, "", "", fmt.Errorf("%s: particle_ri %q is neither a complex index (e.g. 1.59+0.0i) nor a known material: %w", p.Where, p.Value, err)
 	}

@@ -1,7 +1,10 @@
 // Package batch runs the per-measurement pipeline of dlsbatch over many
-// files: metadata precedence (flag, sample sheet, file, default), medium
-// properties at the measured temperature and wavelength, the cumulant fit,
-// and Stokes–Einstein, into one dls.Result per measurement.
+// files: metadata precedence (flag, sample sheet, file, default), the
+// physical plausibility of every numeric value (dls.PlausibleRanges; an
+// error unless Settings.AllowImplausible), medium properties at the
+// measured temperature and wavelength, the cumulant fit, and
+// Stokes–Einstein, into one dls.Result per measurement. A result with
+// status error carries no size.
 //
 // The Runner reads and analyses files on a pool of workers and returns the
 // results in input order (file, then run label) whatever the number of

@@ -5,6 +5,7 @@ import (
 	"math"
 	"sort"
 	"strconv"
+	"strings"
 
 	"dlsbatch/dls"
 	"dlsbatch/dls/conc"
@@ -108,7 +109,7 @@ func concentration(r *dls.Result) (float64, string, bool) {
 	for _, k := range []struct{ key, unit string }{{dls.KeyConcentration, "mg/mL"}, {dls.KeyVolumeFraction, "volume fraction"}} {
 		for _, p := range r.Params {
 			if p.Key == k.key {
-				if v, err := strconv.ParseFloat(p.Value, 64); err == nil && v >= 0 && !math.IsInf(v, 0) {
+				if v, err := dls.ParseNumber(strings.TrimSpace(p.Value)); err == nil && v >= 0 {
 					return v, k.unit, true
 				}
 			}

@@ -27,6 +27,10 @@ type Settings struct {
 	// Extrapolate allows solvent correlations outside their valid range,
 	// with a warning on every result touched.
 	Extrapolate bool
+	// AllowImplausible turns a metadata value outside its physically
+	// plausible range (dls.PlausibleRanges) from an error into a warning
+	// that names it.
+	AllowImplausible bool
 	// KeepCurves stores data, fit and residuals in each result.
 	KeepCurves bool
 	// Solvents is the table solvent names are looked up in; nil means the
@@ -50,7 +54,8 @@ type Settings struct {
 
 // DefaultSettings returns the documented defaults: cumulants.DefaultSettings,
 // no overrides, solvent water by default (reported as an assumption), no
-// extrapolation, curves kept, DefaultDistributionSettings.
+// extrapolation, implausible values refused, curves kept,
+// DefaultDistributionSettings.
 func DefaultSettings() Settings {
 	return Settings{
 		Cumulants:      cumulants.DefaultSettings(),
@@ -63,10 +68,13 @@ func DefaultSettings() Settings {
 	}
 }
 
-// Analyze runs the per-measurement pipeline: metadata precedence, medium
-// properties, cumulant fit and Stokes–Einstein. It never returns nil and
-// never panics on bad data: failures give StatusError with a message that
-// names file and line.
+// Analyze runs the per-measurement pipeline: metadata precedence, the
+// plausibility of every numeric value, medium properties, cumulant fit and
+// Stokes–Einstein. It never returns nil and never panics on bad data:
+// failures give StatusError with a message that names file and line, and a
+// result with StatusError carries no size (its cumulant, distribution,
+// correction and uncertainty parts are zero, HasCumulants and
+// HasDistribution false).
 func Analyze(m *dls.Measurement, s *Settings) *dls.Result {
 	meta := m.Meta.Clone()
 	for _, p := range s.Overrides {
@@ -106,6 +114,7 @@ func Analyze(m *dls.Measurement, s *Settings) *dls.Result {
 		if !errors.As(err, &pe) {
 			err = &dls.PosError{File: m.File, Line: m.HeaderLine, Err: err}
 		}
+		clearSizes(r)
 		r.Status = dls.StatusError
 		r.Message = err.Error()
 		r.Warnings = warn
@@ -113,6 +122,11 @@ func Analyze(m *dls.Measurement, s *Settings) *dls.Result {
 		return r
 	}
 
+	pw, err := plausibility(m, meta, s)
+	if err != nil {
+		return fail(err)
+	}
+	warn = append(warn, pw...)
 	cond, cw, err := conditions(m, meta, s)
 	if err != nil {
 		return fail(err)
@@ -346,6 +360,21 @@ func (g givenIndex) RefractiveIndex(float64, float64) float64 { return float64(g
 func (givenIndex) RangeK() (float64, float64)                 { return 0, math.Inf(1) }
 func (givenIndex) RangeLambdaM() (float64, float64)           { return 0, math.Inf(1) }
 func (givenIndex) Source(float64) string                      { return "user-supplied" }
+
+// clearSizes removes from a failed result everything that a size rests
+// on: the cumulant fit (keeping the correlation column, the count rate and
+// the duration, which are inputs), the distribution, the corrections, the
+// uncertainty and the curves. The conditions stay: they were resolved.
+func clearSizes(r *dls.Result) {
+	c := r.Cumulants
+	r.Cumulants = dls.Cumulants{CorrelationColumn: c.CorrelationColumn, CorrelationKind: c.CorrelationKind,
+		CountRateKcps: c.CountRateKcps, HasCountRate: c.HasCountRate, DurationS: c.DurationS, HasDuration: c.HasDuration}
+	r.DistSummary = dls.DistSummary{}
+	r.Corrections = dls.Corrections{}
+	r.Uncertainty = dls.Uncertainty{}
+	r.Assumptions = nil
+	r.Curves = nil
+}
 
 // dropDistribution removes every distribution result from r.
 func dropDistribution(r *dls.Result) {

@@ -34,13 +34,35 @@
 // '#' up to its first ':' is, once trimmed, a key: one or more ASCII
 // letters, digits, '_', '-' or '.'. Any other comment line ("# no colon",
 // "# created 12:30") is only a comment. Keys are case-insensitive and
-// stored in lower case; values are trimmed. The keys of the format are:
+// stored in lower case; values are trimmed. The keys of the format, with
+// the physically plausible range of each numeric one (dls.PlausibleRanges;
+// bounds inclusive):
 //
-//	sample, run, temperature_c, wavelength_nm, angle_deg, solvent,
-//	viscosity_mpas, refractive_index, particle_ri, concentration_mg_ml,
-//	particle_density_g_cm3, volume_fraction, count_rate_kcps, duration_s,
-//	lot, product, role, group, medium_volume_fraction,
-//	medium_relative_viscosity, kd
+//	sample, run, solvent, lot, product, role, group    text
+//	temperature_c               °C      -20 … 150 (and, where η or n comes
+//	                                    from the solvent table, the range of
+//	                                    the solvent's correlation)
+//	wavelength_nm               nm      200 … 2000 (vacuum wavelength)
+//	angle_deg                   °       5 … 179 (180 itself is no geometry)
+//	viscosity_mpas              mPa·s   0.1 … 10⁴
+//	refractive_index            1       1.0 … 2.5 (the medium's)
+//	particle_ri                 1       real part 0.01 … 6 (metals below 1),
+//	                                    imaginary part 0 … 10; or a material
+//	concentration_mg_ml         mg/mL   0 … 1000
+//	particle_density_g_cm3      g/cm³   0.1 … 22.6
+//	volume_fraction             1       0 … 0.64
+//	count_rate_kcps             kcps    0 … 10⁷
+//	duration_s                  s       0 … 10⁵
+//	medium_volume_fraction      1       0 … 0.64
+//	medium_relative_viscosity   1       1 … 10⁴
+//	kd                          1       -100 … 1000, or hard-sphere
+//
+// The reader checks syntax only. The analysis (dls/batch) checks each
+// value, from whatever source, against its range: outside it the
+// measurement fails with an error wrapping dls.ErrImplausible that names
+// the key, the value, the range and where the value came from, unless
+// implausible values are allowed (dlsbatch run --allow-implausible), when
+// it is a warning instead.
 //
 // Each value goes into Measurement.Meta as a dls.Param with Origin
 // dls.OriginFile and Where "file:line". The rules:
@@ -50,10 +72,10 @@
 //     particle_ri takes a complex number written as 1.59+0.0i (a real
 //     number such as 1.59 is accepted) or the name of a material of the Mie
 //     table (polystyrene, Au, …), evaluated at the measurement's wavelength.
-//     Every other key takes a finite number with a decimal point (25.0, 633,
-//     1e-3). A value that breaks its rule makes the file fail with an error
-//     wrapping dls.ErrBadMetadata at that line; a unit or range check is
-//     left to the analysis.
+//     Every other key takes a number (see Numbers below; 25.0, 633, 1e-3).
+//     A value that breaks its rule makes the file fail with an error
+//     wrapping dls.ErrBadMetadata, and the number's own sentinel, at that
+//     line; the range check is left to the analysis.
 //   - An empty value ("# viscosity_mpas:") gives no value, as if the line
 //     were absent.
 //   - A key that is not of the format is ignored, with a warning on the
@@ -116,15 +138,29 @@
 // # Data rows
 //
 // Every data row has as many cells as the header row. The cells of the lag,
-// correlation and sigma columns hold numbers as Go's strconv.ParseFloat reads
-// them (1.5, 1.5e-6, 1E3, NaN and Inf are numbers but rejected as not
-// finite). When the delimiter is not ',', a cell with exactly one ',' and no
-// '.' uses the comma as its decimal mark ("1,5" in a ';' export is 1.5).
+// correlation and sigma columns hold numbers (see Numbers below). When the
+// delimiter is not ',', a cell with exactly one ',' and no '.' uses the
+// comma as its decimal mark ("1,5" in a ';' export is 1.5).
 // Lags are converted to seconds by dividing by 1e3 (ms) or 1e6 (µs), one
 // correctly rounded operation; they must be positive and strictly
 // increasing. Sigma values must be positive.
 //
 // A file must have at least MinPoints (8) data rows.
+//
+// # Numbers
+//
+// Data cells and numeric metadata values are read by dls.ParseNumber, the
+// one number reader of dlsbatch: decimal digits with an optional sign
+// ('+' or '-'), an optional decimal point and an optional exponent, such
+// as 25, -1.5e-3, .5, 5. or +1.0E+00, and nothing else. Go's digit
+// separators (1_0), hexadecimal (0x1p0), inf, infinity and nan, and spaces
+// inside a number, are rejected, although strconv.ParseFloat would read
+// each. A number too large for float64 (1e999) fails with
+// dls.ErrNonFinite, like the spellings of infinity and NaN; a non-zero
+// number too small for it, which would round to 0 (1e-400), fails with
+// dls.ErrOutOfRange. The complex particle_ri is read by
+// dls.ParseComplexNumber: parts of the same syntax, as a, a+bi, a-bi or bi,
+// optionally in parentheses.
 //
 // # Errors
 //
@@ -143,10 +179,11 @@
 //	dls.ErrBadMetadata    a metadata value that breaks its rule
 //	ErrCellCount          a row with the wrong number of cells
 //	dls.ErrMissingValue   an empty cell in a column that is read
-//	dls.ErrNotANumber     a cell that is not a number (with its *strconv.NumError)
-//	dls.ErrNonFinite      NaN, Inf, or a number beyond float64
+//	dls.ErrNotANumber     a cell that is not a number (with its *dls.NumberError)
+//	dls.ErrNonFinite      NaN, Inf, or a number too large for float64
 //	dls.ErrBadLag         a lag that is not positive or does not increase
-//	dls.ErrOutOfRange     a sigma that is not positive
+//	dls.ErrOutOfRange     a sigma that is not positive; a number that
+//	                      underflows float64 (with its *dls.NumberError)
 //	dls.ErrTooFewPoints   fewer than MinPoints data rows
 //	ErrBadOptions         Options no file can be read with
 //

@@ -43,7 +43,7 @@ func TestMessagesQuoteExcerpts(t *testing.T) {
 		{"long header name repeated", "tau_s,g2," + long + "," + long + "\n", 1, 4, dls.ErrBadHeader,
 			[]string{`column 4 "` + long[:40] + `"… repeats the name of column 3`}, 200},
 		{"long metadata value", "# temperature_c: " + long + "x\n", 1, 0, dls.ErrBadMetadata,
-			[]string{`temperature_c "` + long[:40] + `"… is not a number`}, 200},
+			[]string{`temperature_c "` + long[:40] + `"…: not a number`}, 200},
 		{"earlier lag quoted", "tau_s,g2\n" + zeros + "5e-6,1.2\n1e-6,1.1\n", 3, 1, dls.ErrBadLag,
 			[]string{`(line 2 has "` + zeros[:40] + `"…)`}, 300},
 		{"many names listed up to ten", "a,b,c,d,e,f,g,h,i,j,k,l,g2\n", 1, 0, dls.ErrBadHeader,
@@ -72,14 +72,15 @@ func TestMessagesQuoteExcerpts(t *testing.T) {
 	}
 }
 
-// A metadata value that is not a number keeps its *strconv.NumError for
-// errors.As, without the error printing the whole value.
+// A metadata value that is not a number keeps its *dls.NumberError (with
+// the whole text) for errors.As, without the error printing the whole
+// value.
 func TestMetaNumErrorNotPrinted(t *testing.T) {
 	long := strings.Repeat("9", 1000) + "x"
 	err := csvdata.CheckMetaValue(dls.KeyTemperatureC, long)
-	var ne *strconv.NumError
-	if !errors.As(err, &ne) || !errors.Is(err, dls.ErrBadMetadata) {
-		t.Fatalf("error %v does not wrap the *strconv.NumError and ErrBadMetadata", err)
+	var ne *dls.NumberError
+	if !errors.As(err, &ne) || ne.Text != long || !errors.Is(err, dls.ErrBadMetadata) || !errors.Is(err, dls.ErrNotANumber) {
+		t.Fatalf("error %v does not wrap a *dls.NumberError, ErrBadMetadata and ErrNotANumber", err)
 	}
 	if n := len(err.Error()); n > 150 {
 		t.Errorf("message of %d bytes for a 1001-byte value: %q", n, err)

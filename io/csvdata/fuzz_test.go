@@ -30,6 +30,11 @@ func FuzzRead(f *testing.F) {
 	}
 	f.Add([]byte("lag;a;g2_b;x\n1;0,9;0,8;t\n2;0,8;0,7;u\n3;0,7;0,6;v\n4;0,6;0,5;w\n5;0,5;0,4;x\n6;0,4;0,3;y\n7;0,3;0,2;z\n8;0,2;0,1;-\n"))
 	f.Add([]byte("tau_s,g2\n1e-6,1.5\n2e-6,1.4\n3e-6,1.3\n4e-6,1.2\n5e-6,1.1\n6e-6,1.05\n7e-6,1.02\n8e-6,1.01\n"))
+	// The number syntax: signs, bare points and exponents that read, and
+	// hexadecimal, digit separators, spelt-out infinities and underflows
+	// that do not.
+	f.Add([]byte("# temperature_c: +25.\n# angle_deg: 1.73E+2\ntau_s,g2\n+1e-6,.5\n2e-6,5.\n3E-6,+1.3\n4e-6,1.2e0\n5e-6,1.1\n6e-6,1.05\n7e-6,1.02\n8e-6,-1.01\n"))
+	f.Add([]byte("# duration_s: 1_0\ntau_s,g2\n0x1p-20,1.5\n2e-6,1_4\n3e-6,infinity\n4e-6,1e-400\n5e-6,1 .1\n6e-6,1.05\n7e-6,1.02\n8e-6,1.01\n"))
 	f.Fuzz(func(t *testing.T, data []byte) {
 		// A foreign reading of the same bytes must also fail cleanly.
 		for _, e := range csvdata.Read(bytes.NewReader(data), "f.csv", foreignOptions) {
@@ -137,6 +142,18 @@ func approx(a, b, rel, abs float64) bool {
 // checkMeasurement asserts the invariants Read documents.
 func checkMeasurement(t *testing.T, m *dls.Measurement) {
 	t.Helper()
+	for _, p := range m.Meta.Params() {
+		if dls.IsNumericKey(p.Key) {
+			if _, err := dls.ParseNumber(p.Value); err != nil {
+				t.Fatalf("metadata %s = %q was accepted but is no number: %v", p.Key, p.Value, err)
+			}
+		}
+		if p.Key == dls.KeyParticleRI {
+			if _, err := dls.ParseComplexNumber(p.Value); err != nil && !(p.Value[0] >= 'A' && p.Value[0] <= 'Z' || p.Value[0] >= 'a' && p.Value[0] <= 'z') {
+				t.Fatalf("particle_ri %q was accepted but is neither a number nor a name: %v", p.Value, err)
+			}
+		}
+	}
 	n := len(m.TauS)
 	if n < csvdata.MinPoints || len(m.Corr) != n || len(m.Lines) != n || (m.Sigma != nil && len(m.Sigma) != n) {
 		t.Fatalf("lengths: %d lags, %d values, %d lines, %d sigma", n, len(m.Corr), len(m.Lines), len(m.Sigma))

@@ -2,13 +2,9 @@ package csvdata
 
 import (
 	"fmt"
-	"math"
-	"math/cmplx"
-	"strconv"
 	"strings"
 
 	"dlsbatch/dls"
-	"dlsbatch/io/safetext"
 )
 
 // parseMetaLine splits a comment line (starting with '#') into key and
@@ -61,33 +57,23 @@ func validKey(k string) bool {
 	return true
 }
 
-// CheckMetaValue checks the syntax of a value of a known key: a finite
-// number for the numeric keys, a finite complex number such as 1.59+0.0i (or
-// a real number) for particle_ri, any text for sample, run and solvent.
+// CheckMetaValue checks the syntax of a value of a known key: a number as
+// dls.ParseNumber reads it for the numeric keys; for particle_ri a complex
+// number as dls.ParseComplexNumber reads it (1.59+0.0i, or a real number
+// such as 1.59) or the name of a material; any text for the others. Ranges
+// are left to the analysis (dls.PlausibleRanges).
 func CheckMetaValue(key, v string) error {
 	switch {
 	case key == dls.KeyParticleRI:
-		c, err := strconv.ParseComplex(v, 128)
-		if err != nil && isMaterialName(v) {
-			return nil // a material of the Mie table, resolved by the analysis
-		}
-		if err != nil {
-			return fmt.Errorf("%s %s is not a complex number such as 1.59+0.0i: %w: %w", key, safetext.Excerpt(v), dls.ErrBadMetadata, safetext.NumReason(err))
-		}
-		if cmplx.IsNaN(c) || cmplx.IsInf(c) {
-			return fmt.Errorf("%s %s: %w: %w", key, safetext.Excerpt(v), dls.ErrBadMetadata, dls.ErrNonFinite)
+		if _, err := dls.ParseComplexNumber(v); err != nil {
+			if isMaterialName(v) {
+				return nil // a material of the Mie table, resolved by the analysis
+			}
+			return fmt.Errorf("%s: %w: %w", key, err, dls.ErrBadMetadata)
 		}
 	case dls.IsNumericKey(key):
-		f, err := strconv.ParseFloat(v, 64)
-		if err != nil {
-			hint := ""
-			if strings.Contains(v, ",") {
-				hint = " (write the decimal mark as a point)"
-			}
-			return fmt.Errorf("%s %s is not a number%s: %w: %w", key, safetext.Excerpt(v), hint, dls.ErrBadMetadata, safetext.NumReason(err))
-		}
-		if math.IsNaN(f) || math.IsInf(f, 0) {
-			return fmt.Errorf("%s %s: %w: %w", key, safetext.Excerpt(v), dls.ErrBadMetadata, dls.ErrNonFinite)
+		if _, err := dls.ParseNumber(v); err != nil {
+			return fmt.Errorf("%s %w: %w", key, err, dls.ErrBadMetadata)
 		}
 	}
 	return nil

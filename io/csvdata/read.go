@@ -7,7 +7,6 @@ import (
 	"fmt"
 	"io"
 	"io/fs"
-	"math"
 	"os"
 	"strconv"
 
@@ -304,7 +303,8 @@ func (p *parser) header(s []byte) bool {
 	return true
 }
 
-// looksNumeric reports whether a would-be header row holds only numbers.
+// looksNumeric reports whether a would-be header row holds only numbers
+// (finite or not: "1e999" and "NaN" are no column names either).
 func looksNumeric(cells []string, decComma bool) bool {
 	n := 0
 	var buf []byte
@@ -312,7 +312,7 @@ func looksNumeric(cells []string, decComma bool) bool {
 		if c == "" {
 			continue
 		}
-		if _, err := parseNumber([]byte(c), decComma, &buf); err != nil {
+		if _, err := parseNumber([]byte(c), decComma, &buf); err != nil && errors.Is(err, dls.ErrNotANumber) {
 			return false
 		}
 		n++
@@ -320,11 +320,9 @@ func looksNumeric(cells []string, decComma bool) bool {
 	return n > 0
 }
 
-// errOverflow marks a number too large for float64.
-var errOverflow = errors.New("overflows float64")
-
-// parseNumber parses a cell. With decComma a cell with one ',' and no '.'
-// is read with ',' as its decimal mark; buf is scratch space for that.
+// parseNumber parses a cell with dls.ParseNumber. With decComma a cell
+// with one ',' and no '.' is read with ',' as its decimal mark; buf is
+// scratch space for that.
 func parseNumber(c []byte, decComma bool, buf *[]byte) (float64, error) {
 	if decComma {
 		if i := bytes.IndexByte(c, ','); i >= 0 && bytes.IndexByte(c, '.') < 0 && bytes.IndexByte(c[i+1:], ',') < 0 {
@@ -333,11 +331,11 @@ func parseNumber(c []byte, decComma bool, buf *[]byte) (float64, error) {
 			c = *buf
 		}
 	}
-	return strconv.ParseFloat(string(c), 64)
+	return dls.ParseNumber(string(c))
 }
 
-// valueError is a bad cell: it prints the column and the text and wraps both
-// the dls sentinel and the *strconv.NumError, when there is one.
+// valueError is a bad cell: it prints the column and the text and wraps
+// both the dls sentinel and the *dls.NumberError, when there is one.
 type valueError struct {
 	column, text string
 	reason       string
@@ -367,14 +365,12 @@ func (p *parser) value(i int) (float64, error) {
 	}
 	v, err := parseNumber(c, p.decComma, &p.numBuf)
 	if err != nil {
-		var ne *strconv.NumError
-		if errors.As(err, &ne) && errors.Is(ne.Err, strconv.ErrRange) {
-			return 0, &valueError{column: p.L.names[i], text: string(c), reason: errOverflow.Error(), sentinel: dls.ErrNonFinite, cause: err}
+		ve := &valueError{column: p.L.names[i], text: string(c), sentinel: dls.ErrNotANumber, cause: err}
+		var ne *dls.NumberError
+		if errors.As(err, &ne) {
+			ve.reason, ve.sentinel = ne.Reason, ne.Err
 		}
-		return 0, &valueError{column: p.L.names[i], text: string(c), sentinel: dls.ErrNotANumber, cause: err}
-	}
-	if math.IsNaN(v) || math.IsInf(v, 0) {
-		return 0, &valueError{column: p.L.names[i], text: string(c), sentinel: dls.ErrNonFinite}
+		return 0, ve
 	}
 	return v, nil
 }

@@ -213,6 +213,9 @@ func TestReadBadFixtures(t *testing.T) {
 		{"non-numeric cell", "non_numeric.csv", 7, 2, dls.ErrNotANumber, []string{`column "g2"`, `"1.9x2"`}, 1},
 		{"NaN", "nan_value.csv", 8, 2, dls.ErrNonFinite, []string{`"NaN"`}, 1},
 		{"Inf", "inf_value.csv", 9, 2, dls.ErrNonFinite, []string{`"+Inf"`}, 1},
+		{"hexadecimal", "hex_value.csv", 7, 2, dls.ErrNotANumber, []string{`"0x1.ep0"`, "hexadecimal"}, 1},
+		{"digit separator", "digit_separator.csv", 8, 2, dls.ErrNotANumber, []string{`"1_9"`, "'_'"}, 1},
+		{"underflow", "underflow_value.csv", 9, 2, dls.ErrOutOfRange, []string{`"1e-400"`, "underflows"}, 1},
 		{"negative lag", "negative_lag.csv", 3, 1, dls.ErrBadLag, []string{"not positive"}, 1},
 		{"zero lag", "zero_lag.csv", 3, 1, dls.ErrBadLag, []string{"not positive"}, 1},
 		{"non-increasing lag", "non_increasing_lag.csv", 7, 1, dls.ErrBadLag, []string{"does not increase", "line 6"}, 1},
@@ -328,6 +331,22 @@ func TestReadEdgeCases(t *testing.T) {
 			runs: []string{"", "B"}, kind: dls.KindG2, first: 1e-6, meta: map[string]string{}},
 		{name: "missing cell", in: "tau_s,g2\n" + rows(3, ",", "") + "4e-6,\n", line: 5, col: 2, sentinel: dls.ErrMissingValue},
 		{name: "overflowing value", in: "tau_s,g2\n" + rows(3, ",", "") + "4e-6,1e999\n", line: 5, col: 2, sentinel: dls.ErrNonFinite},
+		// Number syntax (dls.ParseNumber): strconv.ParseFloat reads the
+		// first three as 1, 10 and 0; the reader does not.
+		{name: "hexadecimal value", in: "tau_s,g2\n" + rows(3, ",", "") + "4e-6,0x1p0\n", line: 5, col: 2, sentinel: dls.ErrNotANumber},
+		{name: "digit separator in a value", in: "tau_s,g2\n" + rows(3, ",", "") + "4e-6,1_0\n", line: 5, col: 2, sentinel: dls.ErrNotANumber},
+		{name: "underflowing value", in: "tau_s,g2\n" + rows(3, ",", "") + "4e-6,1e-400\n", line: 5, col: 2, sentinel: dls.ErrOutOfRange},
+		{name: "underflowing lag", in: "tau_s,g2\n1e-400,1.5\n", line: 2, col: 1, sentinel: dls.ErrOutOfRange},
+		{name: "infinity spelt out", in: "tau_s,g2\n" + rows(3, ",", "") + "4e-6,infinity\n", line: 5, col: 2, sentinel: dls.ErrNonFinite},
+		{name: "space inside a value", in: "tau_s,g2\n" + rows(3, ",", "") + "4e-6,1 .5\n", line: 5, col: 2, sentinel: dls.ErrNotANumber},
+		{name: "leading plus, leading and trailing point", in: "tau_s,g2\n" + strings.Replace(strings.Replace(strings.Replace(ten, ",1.5", ",+1.5", 1), ",1.5", ",.5", 1), ",1.5", ",5.", 1),
+			runs: []string{""}, kind: dls.KindG2, first: 1e-6, meta: map[string]string{}},
+		{name: "hexadecimal metadata", in: "# temperature_c: 0x19\ntau_s,g2\n" + ten, line: 1, sentinel: dls.ErrNotANumber},
+		{name: "digit separator in metadata", in: "# duration_s: 1_000\ntau_s,g2\n" + ten, line: 1, sentinel: dls.ErrBadMetadata},
+		{name: "underflowing metadata", in: "# concentration_mg_ml: 1e-400\ntau_s,g2\n" + ten, line: 1, sentinel: dls.ErrOutOfRange},
+		{name: "hexadecimal particle index", in: "# particle_ri: 0x1p0+0i\ntau_s,g2\n" + ten, line: 1, sentinel: dls.ErrBadMetadata},
+		{name: "signed metadata", in: "# temperature_c: +25.\ntau_s,g2\n" + ten,
+			runs: []string{""}, kind: dls.KindG2, first: 1e-6, meta: map[string]string{"temperature_c": "+25."}},
 		{name: "equal lags", in: "tau_s,g2\n1e-6,1.5\n1e-6,1.4\n", line: 3, col: 1, sentinel: dls.ErrBadLag},
 		{name: "two lag columns", in: "tau_s,tau_ms,g2\n", line: 1, col: 2, sentinel: dls.ErrBadHeader},
 		{name: "only comments", in: "# sample: x\n\n", line: 2, sentinel: dls.ErrEmpty},
@@ -417,12 +436,43 @@ func TestReadEdgeCases(t *testing.T) {
 	}
 }
 
-// TestNumError: a non-numeric cell keeps the *strconv.NumError.
+// TestNumError: a non-numeric cell keeps the *dls.NumberError of its text.
 func TestNumError(t *testing.T) {
 	e := csvdata.Read(strings.NewReader("tau_s,g2\n1e-6,x\n"), "x.csv", nil)[0]
-	var ne *strconv.NumError
-	if !errors.As(e.Err, &ne) || ne.Num != "x" {
-		t.Errorf("error %v does not wrap the *strconv.NumError for %q", e.Err, "x")
+	var ne *dls.NumberError
+	if !errors.As(e.Err, &ne) || ne.Text != "x" {
+		t.Errorf("error %v does not wrap the *dls.NumberError for %q", e.Err, "x")
+	}
+}
+
+// TestNumberForms: every form of dls.ParseNumber's syntax reads in a data
+// cell to the float64 nearest its decimal value (IEEE 754 round to
+// nearest, so the comparison is exact), with and without a decimal comma.
+func TestNumberForms(t *testing.T) {
+	forms := []struct {
+		text string
+		want float64
+	}{
+		{"1.5", 1.5}, {"+1.5", 1.5}, {".5", 0.5}, {"5.", 5}, {"1.5e0", 1.5}, {"15E-1", 1.5}, {"+0.15e+1", 1.5}, {"-1.5", -1.5},
+	}
+	for _, comma := range []string{",", ";"} {
+		in := "tau_s" + comma + "g2\n"
+		for k, f := range forms {
+			text := f.text
+			if comma == ";" {
+				text = strings.Replace(text, ".", ",", 1)
+			}
+			in += strconv.Itoa(k+1) + "e-6" + comma + text + "\n"
+		}
+		e := csvdata.Read(strings.NewReader(in), "x.csv", nil)[0]
+		if e.Err != nil {
+			t.Fatalf("delimiter %q: %v", comma, e.Err)
+		}
+		for k, f := range forms {
+			if got := e.M.Corr[k]; got != f.want {
+				t.Errorf("delimiter %q: %q read as %g, want %g", comma, f.text, got, f.want)
+			}
+		}
 	}
 }
 

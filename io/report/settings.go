@@ -7,6 +7,7 @@ import "dlsbatch/dls/qc"
 // (sorted), so the files read like a sorted table; new settings are only
 // ever added. Units are in the key where a value is not SI.
 type Settings struct {
+	AllowImplausible  bool          `json:"allow_implausible"`            // out-of-range metadata values warn instead of failing
 	AlphaCriterion    string        `json:"alpha_criterion"`              // regularisation choice: prob-reject, gcv, l-curve, fixed
 	AlphaLambda       float64       `json:"alpha_lambda"`                 // λ for alpha_criterion fixed (else 0)
 	BoltzmannJPerK    float64       `json:"boltzmann_j_per_k"`            // k_B used in Stokes–Einstein

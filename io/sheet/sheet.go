@@ -19,7 +19,9 @@
 // A role is sample, reference or blank, in any letter case (dls.ParseRole).
 // Empty cells set nothing. Unknown columns are an error (a misspelt column
 // would otherwise be silently ignored), and so is a value that breaks its
-// key's rule; every error names file, line and column. Lines starting with
+// key's rule (csvdata.CheckMetaValue: numbers as dls.ParseNumber reads
+// them); every error names file, line and column. The physical range of
+// each value is checked by the analysis (dls.PlausibleRanges). Lines starting with
 // '#' are comments.
 //
 // Every row that matches a measurement applies, in sheet order: a later

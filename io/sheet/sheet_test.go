@@ -82,6 +82,12 @@ func TestParseErrors(t *testing.T) {
 		{"duplicate column", "file,lot,lot\na,1,2\n", 1, 10, dls.ErrBadHeader, []string{"twice"}},
 		{"non-numeric temperature", "file,temperature_c\na.csv,25\nb.csv,warm\n", 3, 7, dls.ErrBadMetadata, []string{"temperature_c", "warm"}},
 		{"bad role", "file,role\na.csv,standard\n", 2, 7, dls.ErrBadMetadata, []string{"standard"}},
+		// dls.ParseNumber's syntax; strconv.ParseFloat would read these as
+		// 25, 1000 and 0.
+		{"hexadecimal temperature", "file,temperature_c\na.csv,0x19\n", 2, 7, dls.ErrBadMetadata, []string{"temperature_c", "hexadecimal"}},
+		{"digit separator", "file,duration_s\na.csv,1_000\n", 2, 7, dls.ErrNotANumber, []string{"duration_s", "'_'"}},
+		{"underflow", "file,concentration_mg_ml\na.csv,1e-400\n", 2, 7, dls.ErrOutOfRange, []string{"underflows"}},
+		{"spaces in a particle index", "file,particle_ri\na.csv,1.5 + 0.1i\n", 2, 7, dls.ErrBadMetadata, []string{"space"}},
 		{"bad pattern", "file\n[a.csv\n", 2, 1, nil, []string{"pattern"}},
 		{"ragged row", "file,lot\na.csv,1,2\n", 2, 1, dls.ErrBadHeader, []string{"3 fields"}},
 		{"empty", "# nothing\n", 0, 0, dls.ErrEmpty, nil},
@@ -133,6 +139,7 @@ func FuzzParse(f *testing.F) {
 	f.Add(good)
 	f.Add("file,run,temperature_c\na,r1,25\n")
 	f.Add("file\n\"a,b\n")
+	f.Add("file,temperature_c,angle_deg,particle_ri\na,+25.,.9e2,(1.5-0.1i)\nb,0x19,1_0,inf+0i\n")
 	f.Fuzz(func(t *testing.T, in string) {
 		s, err := Parse(strings.NewReader(in), "f.csv")
 		if err != nil {
@@ -141,6 +148,15 @@ func FuzzParse(f *testing.F) {
 				t.Fatalf("unpositioned error %v", err)
 			}
 			return
+		}
+		for _, r := range s.Rows {
+			for _, p := range r.Params {
+				if dls.IsNumericKey(p.Key) {
+					if _, err := dls.ParseNumber(p.Value); err != nil {
+						t.Fatalf("%s = %q accepted but no number: %v", p.Key, p.Value, err)
+					}
+				}
+			}
 		}
 		for _, r := range s.Rows {
 			m := &dls.Measurement{File: "a.csv", Run: r.Run}
@@ -160,7 +176,7 @@ func TestErrorsQuoteExcerpts(t *testing.T) {
 	}{
 		{"role", "file,role\na.csv," + long + "\n", `role "` + long[:40] + `"…: want one of`},
 		{"pattern", "file\n[" + long + "\n", `pattern "[` + long[:39] + `"…: `},
-		{"metadata number", "file,temperature_c\na.csv,9" + long + "\n", `temperature_c "9` + long[:39] + `"… is not a number`},
+		{"metadata number", "file,temperature_c\na.csv,9" + long + "\n", `temperature_c "9` + long[:39] + `"…: not a number`},
 		{"unknown column", "file," + long + "\na.csv,1\n", `unknown column "` + long[:40] + `"… (known:`},
 	}
 	for _, c := range cases {

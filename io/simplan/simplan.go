@@ -10,6 +10,8 @@
 //	refractive_index, material, particle_ri, count_rate_kcps, duration_s,
 //	beta, baseline, seed, dust_bursts, sigma (yes or no)
 //
+// Numbers are decimal as dls.ParseNumber reads them (no hexadecimal, digit
+// separators, inf or nan); runs, dust_bursts and seed are whole numbers.
 // Empty cells take the value of the defaults given to Parse. A row without
 // a seed takes the default seed plus its row number (0-based). Every error
 // is a *dls.PosError naming the plan, line and column.
@@ -21,7 +23,6 @@ import (
 	"errors"
 	"fmt"
 	"io"
-	"math"
 	"os"
 	"path/filepath"
 	"strconv"
@@ -172,9 +173,9 @@ func fill(j *sim.Job, r row) error {
 		if x.v == "" {
 			continue
 		}
-		p, err := strconv.ParseFloat(x.v, 64)
-		if err != nil || math.IsNaN(p) || math.IsInf(p, 0) {
-			return bad(x.col, fmt.Errorf("%q: %w", x.v, dls.ErrNotANumber))
+		p, err := dls.ParseNumber(x.v)
+		if err != nil {
+			return bad(x.col, err)
 		}
 		*x.dst = p
 	}

@@ -2,6 +2,7 @@ package simplan
 
 import (
 	"errors"
+	"math"
 	"os"
 	"path/filepath"
 	"strings"
@@ -52,12 +53,38 @@ func TestAt(t *testing.T) {
 	}
 }
 
+// TestNumberSyntax: plan numbers are read by dls.ParseNumber; each row
+// would read with strconv.ParseFloat (as 25, 10, +Inf and 0).
+func TestNumberSyntax(t *testing.T) {
+	tests := []struct {
+		cell     string
+		sentinel error
+	}{
+		{"0x19", dls.ErrNotANumber},
+		{"1_0", dls.ErrNotANumber},
+		{"inf", dls.ErrNonFinite},
+		{"1e-400", dls.ErrOutOfRange},
+	}
+	for _, tc := range tests {
+		_, err := Parse(strings.NewReader("file,temperature_c\na.csv,"+tc.cell+"\n"), "p.csv", def)
+		var pe *dls.PosError
+		if !errors.As(err, &pe) || pe.Line != 2 || pe.Column != 7 || !errors.Is(err, tc.sentinel) || !strings.Contains(err.Error(), tc.cell) {
+			t.Errorf("temperature_c %q: %v; want an error at p.csv:2:7 wrapping %v", tc.cell, err, tc.sentinel)
+		}
+	}
+	got, err := Parse(strings.NewReader("file,temperature_c,angle_deg\na.csv,+25.,.9e2\n"), "p.csv", def)
+	if err != nil || got[0].Job.TemperatureC != 25 || got[0].Job.AngleDeg != 90 {
+		t.Errorf("signed and bare-point numbers: %v, %+v", err, got)
+	}
+}
+
 // FuzzParse: no panic, every error is positioned in the plan, and every
-// accepted file name is plain.
+// accepted file name is plain and every number finite.
 func FuzzParse(f *testing.F) {
 	f.Add([]byte("file,population\na.csv,mono(100nm)\n"))
 	f.Add([]byte("file,runs\na.csv,\"1\n"))
 	f.Add([]byte("file,seed,sigma\na.csv,-1,maybe\n"))
+	f.Add([]byte("file,temperature_c,angle_deg,beta\na.csv,+25.,.9e2,0x1p-1\nb.csv,1_0,inf,1e-400\n"))
 	if b, err := os.ReadFile(filepath.Join("..", "..", "testdata", "demo-plan.csv")); err == nil {
 		f.Add(b)
 	}
@@ -73,6 +100,13 @@ func FuzzParse(f *testing.F) {
 		for _, e := range got {
 			if e.Job.File == "" || filepath.Base(e.Job.File) != e.Job.File {
 				t.Fatalf("bad file name accepted: %q", e.Job.File)
+			}
+			j := e.Job
+			for _, v := range []float64{j.TemperatureC, j.WavelengthNm, j.AngleDeg, j.ViscosityMPaS, j.RefractiveIndex,
+				j.CountRateKcps, j.DurationS, j.Beta, j.Baseline} {
+				if math.IsNaN(v) || math.IsInf(v, 0) {
+					t.Fatalf("non-finite number accepted: %+v", j)
+				}
 			}
 		}
 	})

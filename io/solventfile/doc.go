@@ -32,6 +32,8 @@
 //	name,aliases,t_min_c,t_max_c,viscosity_model,viscosity_params,index_model,index_params,index_t_c,dn_dt_per_k,lambda_min_nm,lambda_max_nm,source
 //	buffer-a,pbs,15,40,andrade,-6.94 1990,constant,1.3345,25,-1.0e-4,,,lab notebook 12 p. 4
 //
-// Errors name the file, line and column (dls.PosError). Add each entry to a
+// Numbers are decimal as dls.ParseNumber reads them (25, -6.94, 1.0e-4; no
+// hexadecimal, digit separators, inf or nan). Errors name the file, line
+// and column (dls.PosError). Add each entry to a
 // medium.Table with Load or with Parse and Entry.Solvent.
 package solventfile

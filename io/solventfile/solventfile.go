@@ -110,16 +110,9 @@ func Parse(r io.Reader, file string) ([]Entry, error) {
 	return out, nil
 }
 
-// number parses one finite number.
+// number parses one number (dls.ParseNumber).
 func number(s string) (float64, error) {
-	v, err := strconv.ParseFloat(strings.TrimSpace(s), 64)
-	if err != nil {
-		return 0, fmt.Errorf("%s: %w (%w)", safetext.Excerpt(s), dls.ErrNotANumber, safetext.NumReason(err))
-	}
-	if math.IsNaN(v) || math.IsInf(v, 0) {
-		return 0, fmt.Errorf("%s: %w", safetext.Excerpt(s), dls.ErrNonFinite)
-	}
-	return v, nil
+	return dls.ParseNumber(strings.TrimSpace(s))
 }
 
 func numbers(s string) ([]float64, error) {

@@ -124,6 +124,11 @@ func TestParseErrors(t *testing.T) {
 		{"short row", head + "a,1,2\n", 2, 1, dls.ErrBadHeader, "3 fields"},
 		{"bad number", head + "a,x,30,constant,1,constant,1.33,lab\n", 2, 3, dls.ErrNotANumber, "t_min_c"},
 		{"infinite", head + "a,0,inf,constant,1,constant,1.33,lab\n", 2, 5, dls.ErrNonFinite, "t_max_c"},
+		// dls.ParseNumber's syntax; strconv.ParseFloat would read these as
+		// 16, 10 and 0.
+		{"hexadecimal", head + "a,0x10,30,constant,1,constant,1.33,lab\n", 2, 3, dls.ErrNotANumber, "hexadecimal"},
+		{"digit separator", head + "a,0,30,andrade,-6.5 1_900,constant,1.33,lab\n", 2, 16, dls.ErrNotANumber, "'_'"},
+		{"underflow", head + "a,0,30,constant,1e-400,constant,1.33,lab\n", 2, 17, dls.ErrOutOfRange, "underflows"},
 		{"empty range", head + "a,30,20,constant,1,constant,1.33,lab\n", 2, 6, dls.ErrOutOfRange, "t_max_c"},
 		{"model", head + "a,0,30,vogel,1,constant,1.33,lab\n", 2, 8, nil, `"vogel": want constant, andrade or dippr101`},
 		{"param count", head + "a,0,30,andrade,1,constant,1.33,lab\n", 2, 16, nil, "andrade takes 2 numbers, got 1"},
@@ -200,6 +205,8 @@ func FuzzParse(f *testing.F) {
 	f.Add("name,t_min_c,t_max_c,viscosity_model,viscosity_params,index_model,index_params,index_t_c,dn_dt_per_k,lambda_min_nm,lambda_max_nm,source\n" +
 		"\"b,c\",-10,80,dippr101,1 2 3 4 5,cauchy,1.5 0.01,20,-4e-4,400,900,\"x \"\"y\"\"\"\n")
 	f.Add("")
+	f.Add("name,t_min_c,t_max_c,viscosity_model,viscosity_params,index_model,index_params,source\n" +
+		"a,+0.,3E1,andrade,-6.5 .19e4,constant,1.33,lab\nb,0x0,1_0,constant,1e-400,constant,inf,lab\n")
 	f.Fuzz(func(t *testing.T, in string) {
 		entries, err := Parse(strings.NewReader(in), "fuzz.csv")
 		if err != nil {
@@ -247,7 +254,7 @@ func TestErrorsQuoteExcerpts(t *testing.T) {
 		want     string
 	}{
 		{"model", head + "a,0,30," + long + ",1,constant,1.33,lab\n", `"` + long[:40] + `"…: want constant, andrade or dippr101`},
-		{"number", head + "a,0,3" + long + ",constant,1,constant,1.33,lab\n", `"3` + long[:39] + `"…: not a number (invalid syntax)`},
+		{"number", head + "a,0,3" + long + ",constant,1,constant,1.33,lab\n", `"3` + long[:39] + `"…: not a number`},
 		{"control character", head + "a\x1b[2J" + long + ",0,30,constant,1,constant,1.33,lab\n", `"a\x1b[2J` + long[:35] + `"… holds a control character`},
 		{"mixture name", head + long + ":b,0,30,constant,1,constant,1.33,lab\n", `"` + long[:40] + `"…: ':' is reserved`},
 	}

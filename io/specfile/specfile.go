@@ -23,8 +23,10 @@
 //	gold-20,intensity_pct_above,,2,,,100,no aggregates
 //	gold-20,runs,3,,,,,
 //
-// A malformed row, an unknown column or an unknown quantity is an error
-// naming file, line and column, reported before any analysis starts.
+// Numbers are decimal as dls.ParseNumber reads them (0.10, 1e2; no
+// hexadecimal, digit separators, inf or nan). A malformed row, an unknown
+// column or an unknown quantity is an error naming file, line and column,
+// reported before any analysis starts.
 package specfile
 
 import (
@@ -82,9 +84,9 @@ func Parse(r io.Reader, name string) (*spec.Spec, error) {
 			if v == "" {
 				return 0, false, nil
 			}
-			x, err := strconv.ParseFloat(v, 64)
-			if err != nil || math.IsNaN(x) || math.IsInf(x, 0) {
-				return 0, false, t.Err(i, c, fmt.Errorf("%s is not a finite number: %w", safetext.Excerpt(v), dls.ErrNotANumber))
+			x, err := dls.ParseNumber(v)
+			if err != nil {
+				return 0, false, t.Err(i, c, err)
 			}
 			return x, true, nil
 		}
@@ -125,6 +127,9 @@ func Parse(r io.Reader, name string) (*spec.Spec, error) {
 		case hasT && tol < 0:
 			_, c := get("tol")
 			return nil, t.Err(i, c, fmt.Errorf("tolerance %g is negative", tol))
+		case hasT && (math.IsInf(target-tol, 0) || math.IsInf(target+tol, 0)):
+			_, c := get("tol")
+			return nil, t.Err(i, c, fmt.Errorf("target %g ± tolerance %g is beyond float64: %w", target, tol, dls.ErrNonFinite))
 		case hasT:
 			l.Min, l.Max, l.HasMin, l.HasMax = target-tol, target+tol, true, true
 			l.Text = fmt.Sprintf("%s ± %s", fmtNum(target), fmtNum(tol))

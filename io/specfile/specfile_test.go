@@ -2,6 +2,7 @@ package specfile
 
 import (
 	"errors"
+	"math"
 	"strings"
 	"testing"
 
@@ -48,7 +49,14 @@ func TestParseErrors(t *testing.T) {
 		{"unknown column", "product,quantity,maximum\np,pdi,1\n", 1, 18, "unknown column"},
 		{"no limit", h + "p,pdi,,,,,\n", 2, 7, "no limit"},
 		{"min above max", h + "p,pdi,0.3,0.1,,,\n", 2, 7, "above max"},
-		{"not a number", h + "p,pdi,,low,,,\n", 2, 8, "not a finite number"},
+		{"not a number", h + "p,pdi,,low,,,\n", 2, 8, `"low": not a number`},
+		// The number syntax of dls.ParseNumber: strconv.ParseFloat would
+		// read each of these (as 16, 10, +Inf and 0).
+		{"hexadecimal", h + "p,pdi,,0x10,,,\n", 2, 8, "hexadecimal"},
+		{"digit separator", h + "p,pdi,,1_0,,,\n", 2, 8, "'_'"},
+		{"infinity", h + "p,pdi,,+Inf,,,\n", 2, 8, "not finite"},
+		{"underflow", h + "p,pdi,,1e-400,,,\n", 2, 8, "underflows"},
+		{"target ± tol overflows", h + "p,pdi,,,1.7e308,1.7e308,\n", 2, 17, "beyond float64"},
 		{"target without tol", h + "p,z_avg_nm,,,100,,\n", 2, 14, "together"},
 		{"target and min", h + "p,z_avg_nm,90,,100,2,\n", 2, 16, "either"},
 		{"at_nm missing", h + "p,intensity_pct_above,,2,,,\n", 2, 28, "at_nm"},
@@ -76,6 +84,10 @@ func TestParseErrors(t *testing.T) {
 func FuzzParse(f *testing.F) {
 	f.Add(good)
 	f.Add("product,quantity,min\np,pdi,1\n")
+	f.Add("product,quantity,min,max\np,pdi,+.5,5.E+0\n")
+	f.Add("product,quantity,min,max\np,pdi,0x1p-2,1_0\n")
+	f.Add("product,quantity,min,max\np,pdi,1e-400,1e999\n")
+	f.Add("product,quantity,target,tol\np,pdi,1.7e308,1.7e308\n")
 	f.Fuzz(func(t *testing.T, in string) {
 		s, err := Parse(strings.NewReader(in), "f.csv")
 		if err != nil {
@@ -86,6 +98,11 @@ func FuzzParse(f *testing.F) {
 			return
 		}
 		for _, l := range s.Limits {
+			for _, v := range []float64{l.Min, l.Max, l.AtNm} {
+				if math.IsNaN(v) || math.IsInf(v, 0) {
+					t.Fatalf("non-finite limit %+v", l)
+				}
+			}
 			if l.HasMin && l.HasMax && l.Min > l.Max {
 				t.Fatalf("inverted limit %+v", l)
 			}
@@ -112,7 +129,7 @@ func TestErrorsQuoteExcerpts(t *testing.T) {
 		name, in string
 		want     string
 	}{
-		{"number", h + "p,pdi," + long + ",,,,\n", `"` + long[:40] + `"… is not a finite number`},
+		{"number", h + "p,pdi," + long + ",,,,\n", `"` + long[:40] + `"…: not a number`},
 		{"quantity", h + "p," + long + ",1,2,,,\n", `unknown quantity "` + long[:40] + `"… (known:`},
 		{"repeated product", h + long + ",pdi,,0.1,,,\n" + long + ",pdi,,0.2,,,\n", `"` + long[:40] + `"… pdi already limited on line 2`},
 	}

@@ -133,6 +133,10 @@ def bad():
     write(b("non_numeric.csv"), meta + edit(base, 4, 1, "1.9x2"))        # line 7, cell 2
     write(b("nan_value.csv"), meta + edit(base, 5, 1, "NaN"))            # line 8, cell 2
     write(b("inf_value.csv"), meta + edit(base, 6, 1, "+Inf"))           # line 9, cell 2
+    # Numbers Go's strconv.ParseFloat reads (as 1.875, 19 and 0) but dlsbatch does not.
+    write(b("hex_value.csv"), meta + edit(base, 4, 1, "0x1.ep0"))        # line 7, cell 2
+    write(b("digit_separator.csv"), meta + edit(base, 5, 1, "1_9"))      # line 8, cell 2
+    write(b("underflow_value.csv"), meta + edit(base, 6, 1, "1e-400"))   # line 9, cell 2
     write(b("negative_lag.csv"), meta + edit(base, 0, 0, "-1.000000e-06"))  # line 3
     write(b("zero_lag.csv"), meta + edit(base, 0, 0, "0"))               # line 3
     rows = list(base)
