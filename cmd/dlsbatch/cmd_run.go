@@ -21,6 +21,7 @@ import (
 	"dlsbatch/dls/spec"
 	"dlsbatch/dls/uncert"
 	"dlsbatch/io/csvdata"
+	"dlsbatch/io/profile"
 	"dlsbatch/io/qcfile"
 	"dlsbatch/io/report"
 	"dlsbatch/io/resultset"
@@ -34,6 +35,7 @@ import (
 type runOptions struct {
 	set, defaults paramsFlag
 
+	cpuProfile, memProfile                           string
 	out, particleRI                                  string // output folder; default particle index
 	solventFile, sheetFile, specFile, qcFile         string // tables
 	tauCol, tauUnit, sigmaCol                        string // foreign CSV columns
@@ -81,6 +83,8 @@ func (o *runOptions) addFlags(fs *pflag.FlagSet) {
 	fs.Float64Var(&o.cutoff, "g1-cutoff", o.cutoff, "end the fit where the estimated g1 falls below this amplitude")
 	fs.Float64Var(&o.minLagS, "min-lag-s", 0, "ignore channels below this lag in s (afterpulsing, dead time)")
 	fs.BoolVar(&o.extrapolate, "extrapolate", false, "allow solvent correlations outside their valid range (every result touched is a warning)")
+	fs.StringVar(&o.cpuProfile, "cpuprofile", "", "write a CPU profile of the run to this file (go tool pprof)")
+	fs.StringVar(&o.memProfile, "memprofile", "", "write a heap profile at the end of the run to this file (go tool pprof)")
 	fs.BoolVar(&o.implausible, "allow-implausible", false, "analyse metadata values outside their physically plausible range (each such result is a warning, not an error)")
 	fs.BoolVar(&o.noCurves, "no-curves", false, "leave fitted curves and residuals out of results.json")
 	fs.StringVar(&o.solventFile, "solvent-file", "", "CSV of extra or replacement solvents (see 'dlsbatch solvents --help')")
@@ -121,6 +125,15 @@ func runRun(ctx context.Context, e env, args []string) int {
 	if err != nil {
 		return fail(exitUsage, err)
 	}
+	stopProfile, err := profile.Start(o.cpuProfile, o.memProfile)
+	if err != nil {
+		return fail(exitUsage, err)
+	}
+	defer func() {
+		if err := stopProfile(); err != nil {
+			say(err)
+		}
+	}()
 	root, err := csvdata.Root(paths)
 	if err != nil {
 		return fail(exitUsage, err)
