@@ -61,9 +61,10 @@ func WriteSet(ctx context.Context, dir string, s *Set) error {
 	m := &Manifest{Tool: d.Tool, Version: d.Version, Complete: d.Complete, Root: s.Root, Settings: d.Settings,
 		Files: FileCounts{Found: len(s.Inputs), Analysed: len(inputs)}, Inputs: []FileHash{}, Tables: []FileHash{}}
 	result := func(i int) ([]byte, error) { return json.Marshal(d.Results[i]) }
+	row := func(i int) ([]byte, error) { return csvRow(d.Results[i]) }
 	var load func(int) (*dls.Result, error)
 	if s.Stream != nil {
-		result, load = s.Stream.raw, s.Stream.Full
+		result, row, load = s.Stream.raw, s.Stream.row, s.Stream.Full
 	} else {
 		for _, r := range d.Results {
 			if err := checkFinite(r); err != nil {
@@ -75,7 +76,7 @@ func WriteSet(ctx context.Context, dir string, s *Set) error {
 		name  string
 		write func(w io.Writer) error
 	}{
-		{ResultsCSV, func(w io.Writer) error { return WriteCSV(w, d.Results) }},
+		{ResultsCSV, func(w io.Writer) error { return writeCSV(w, len(d.Results), row) }},
 		{SamplesCSV, func(w io.Writer) error { return WriteSamplesCSV(w, d.Samples, d.Results) }},
 		{ResultsJSON, func(w io.Writer) error { return writeJSON(w, d, result) }},
 	} {

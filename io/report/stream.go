@@ -7,6 +7,7 @@ import (
 	"io"
 	"os"
 	"path/filepath"
+	"slices"
 
 	"dlsbatch/dls"
 )
@@ -24,12 +25,20 @@ type Stream struct {
 	f       *os.File
 	w       *bufio.Writer
 	off     int64
-	spans   []span
+	spans   []span // of each result's JSON record, then its CSV row
 	compact []*dls.Result
 	full    map[int]*dls.Result
+	grids   map[gridKey][]float64
 }
 
-type span struct{ off, n int64 }
+type span struct{ off, n, csvN int64 }
+
+// gridKey identifies a diameter grid, shared by every result of one lag
+// grid and optics, so that compact copies hold one copy of it.
+type gridKey struct {
+	n          int
+	first, end float64
+}
 
 // scratchName is the scratch file, removed before the set is published.
 const scratchName = ".results.part"
@@ -40,7 +49,7 @@ func NewStream(dir string) (*Stream, error) {
 	if err != nil {
 		return nil, fmt.Errorf("results: %w", err)
 	}
-	return &Stream{f: f, w: bufio.NewWriterSize(f, 1<<16), full: map[int]*dls.Result{}}, nil
+	return &Stream{f: f, w: bufio.NewWriterSize(f, 1<<16), full: map[int]*dls.Result{}, grids: map[gridKey][]float64{}}, nil
 }
 
 // Add records the results of one file. A result holding NaN or Inf is
@@ -52,7 +61,7 @@ func (s *Stream) Add(results []*dls.Result) error {
 		}
 		if r.Group != "" {
 			s.full[len(s.compact)] = r
-			s.spans = append(s.spans, span{-1, 0})
+			s.spans = append(s.spans, span{-1, 0, 0})
 			s.compact = append(s.compact, r)
 			continue
 		}
@@ -60,12 +69,18 @@ func (s *Stream) Add(results []*dls.Result) error {
 		if err != nil {
 			return fmt.Errorf("results json: %s: %w", r.File, err)
 		}
-		if _, err := s.w.Write(b); err != nil {
-			return fmt.Errorf("results: %w", err)
+		row, err := csvRow(r)
+		if err != nil {
+			return fmt.Errorf("results csv: %s: %w", r.File, err)
 		}
-		s.spans = append(s.spans, span{s.off, int64(len(b))})
-		s.off += int64(len(b))
-		s.compact = append(s.compact, compact(r))
+		for _, part := range [][]byte{b, row} {
+			if _, err := s.w.Write(part); err != nil {
+				return fmt.Errorf("results: %w", err)
+			}
+		}
+		s.spans = append(s.spans, span{s.off, int64(len(b)), int64(len(row))})
+		s.off += int64(len(b) + len(row))
+		s.compact = append(s.compact, s.compactOf(r))
 	}
 	return nil
 }
@@ -74,30 +89,56 @@ func (s *Stream) Add(results []*dls.Result) error {
 // samples' run lists.
 func (s *Stream) Results() []*dls.Result { return s.compact }
 
-// compact keeps what the tables, statistics, verdicts and the report's
-// index need: everything but the curves, the parameter list and the
-// distribution's arrays other than the intensity weighting on its grid
-// (which the dust and intensity-above checks read).
-func compact(r *dls.Result) *dls.Result {
+// compactOf keeps what the per-sample statistics, verdicts, summary,
+// samples.csv and the report's index need: identity, flags, conditions,
+// the cumulant fit, the intensity summary and the intensity weighting on
+// its (shared) grid, which the intensity-above limits read. The rest
+// (curves, parameters, budget, volume and number weightings, notes) is in
+// the scratch file, and results.csv's row with it.
+func (s *Stream) compactOf(r *dls.Result) *dls.Result {
 	c := *r
-	c.Curves, c.Params = nil, nil
+	c.Curves, c.Params, c.Budget, c.Volume, c.Number = nil, nil, nil, nil, nil
+	c.Assumptions, c.Warnings, c.Medium = nil, nil, nil
 	if d := r.Distribution; d != nil {
-		c.Distribution = &dls.SizeDistribution{DiameterNm: d.DiameterNm, Intensity: d.Intensity}
+		g := d.DiameterNm
+		if len(g) > 0 {
+			k := gridKey{len(g), g[0], g[len(g)-1]}
+			if shared, ok := s.grids[k]; ok && slices.Equal(shared, g) {
+				g = shared
+			} else if !ok {
+				s.grids[k] = slices.Clone(g)
+				g = s.grids[k]
+			}
+		}
+		c.Distribution = &dls.SizeDistribution{DiameterNm: g, Intensity: slices.Clone(d.Intensity)}
 	}
 	return &c
 }
 
-// raw returns the stored encoding of result i.
+// raw returns the stored JSON record of result i.
 func (s *Stream) raw(i int) ([]byte, error) {
 	if r, ok := s.full[i]; ok {
 		return json.Marshal(r)
 	}
+	sp := s.spans[i]
+	return s.read(sp.off, sp.n)
+}
+
+// row returns the results.csv row of result i.
+func (s *Stream) row(i int) ([]byte, error) {
+	if r, ok := s.full[i]; ok {
+		return csvRow(r)
+	}
+	sp := s.spans[i]
+	return s.read(sp.off+sp.n, sp.csvN)
+}
+
+func (s *Stream) read(off, n int64) ([]byte, error) {
 	if err := s.w.Flush(); err != nil {
 		return nil, err
 	}
-	sp := s.spans[i]
-	b := make([]byte, sp.n)
-	if _, err := s.f.ReadAt(b, sp.off); err != nil && err != io.EOF {
+	b := make([]byte, n)
+	if _, err := s.f.ReadAt(b, off); err != nil && err != io.EOF {
 		return nil, err
 	}
 	return b, nil

@@ -2,6 +2,7 @@ package report
 
 import (
 	"bufio"
+	"bytes"
 	"encoding/csv"
 	"encoding/json"
 	"fmt"
@@ -24,24 +25,42 @@ const Caution = "Results support, and do not replace, review by qualified staff 
 // WriteCSV writes results.csv: a header and one row per result, in the
 // order given.
 func WriteCSV(w io.Writer, results []*dls.Result) error {
+	return writeCSV(w, len(results), func(i int) ([]byte, error) { return csvRow(results[i]) })
+}
+
+// writeCSV writes results.csv with n rows, the i-th encoded by row.
+func writeCSV(w io.Writer, n int, row func(i int) ([]byte, error)) error {
 	cw := csv.NewWriter(w)
 	if err := cw.Write(ColumnNames()); err != nil {
 		return fmt.Errorf("results csv: %w", err)
 	}
-	row := make([]string, len(columns))
-	for _, r := range results {
-		for i, c := range columns {
-			row[i] = c.get(r)
+	cw.Flush()
+	for i := range n {
+		b, err := row(i)
+		if err != nil {
+			return fmt.Errorf("results csv: %w", err)
 		}
-		if err := cw.Write(row); err != nil {
+		if _, err := w.Write(b); err != nil {
 			return fmt.Errorf("results csv: %w", err)
 		}
 	}
-	cw.Flush()
 	if err := cw.Error(); err != nil {
 		return fmt.Errorf("results csv: %w", err)
 	}
 	return nil
+}
+
+// csvRow encodes the results.csv row of r, line end included.
+func csvRow(r *dls.Result) ([]byte, error) {
+	var b bytes.Buffer
+	cw := csv.NewWriter(&b)
+	row := make([]string, len(columns))
+	for i, c := range columns {
+		row[i] = c.get(r)
+	}
+	cw.Write(row)
+	cw.Flush()
+	return b.Bytes(), cw.Error()
 }
 
 // Document is the top level of results.json.
