@@ -6,7 +6,7 @@ import (
 	"fmt"
 	"math"
 	"runtime"
-	"sync"
+	"strings"
 
 	"github.com/schollz/progressbar/v3"
 	"github.com/spf13/pflag"
@@ -17,14 +17,13 @@ import (
 	"dlsbatch/dls/batch"
 	"dlsbatch/dls/medium"
 	"dlsbatch/dls/mie"
-	"dlsbatch/dls/qc"
 	"dlsbatch/dls/spec"
 	"dlsbatch/dls/uncert"
+	"dlsbatch/io/batchrun"
 	"dlsbatch/io/csvdata"
 	"dlsbatch/io/profile"
 	"dlsbatch/io/qcfile"
 	"dlsbatch/io/report"
-	"dlsbatch/io/resultset"
 	"dlsbatch/io/safetext"
 	"dlsbatch/io/sheet"
 	"dlsbatch/io/solventfile"
@@ -134,137 +133,55 @@ func runRun(ctx context.Context, e env, args []string) int {
 			say(err)
 		}
 	}()
-	root, err := csvdata.Root(paths)
-	if err != nil {
-		return fail(exitUsage, err)
-	}
-	var sh *sheet.Sheet
+	cfg := &batchrun.Config{Paths: paths, Out: o.out, Force: o.force, Settings: settings, Read: readOpts,
+		SheetFile: o.sheetFile, SpecFile: o.specFile, SolventFile: o.solventFile, QCFile: o.qcFile,
+		ExcludeOutliers: o.exclude, HTMLReport: !o.noReport, Workers: o.jobs,
+		Warn: func(msg string) { say(msg) }}
+	cfg.Record = func(root string) *report.Settings { return o.record(cfg.Settings, root) }
 	if o.sheetFile != "" {
-		if sh, err = sheet.ReadFile(o.sheetFile); err != nil {
+		if cfg.Sheet, err = sheet.ReadFile(o.sheetFile); err != nil {
 			return fail(exitUsage, fmt.Errorf("sample sheet: %w", err))
 		}
 	}
-	var sp *spec.Spec
 	if o.specFile != "" {
-		if sp, err = specfile.ReadFile(o.specFile); err != nil {
+		if cfg.Spec, err = specfile.ReadFile(o.specFile); err != nil {
 			return fail(exitUsage, fmt.Errorf("specification: %w", err))
 		}
 	}
 	if o.qcFile != "" {
-		if settings.QC, err = qcfile.ReadFile(o.qcFile, settings.QC); err != nil {
+		if cfg.Settings.QC, err = qcfile.ReadFile(o.qcFile, settings.QC); err != nil {
 			return fail(exitUsage, err)
 		}
 	}
-	// Every --out problem is a usage error before any analysis; from here
-	// the folder is locked and the run writes into a staging folder.
-	out, err := resultset.Open(o.out, paths, o.force)
-	if err != nil {
-		return fail(exitUsage, err)
-	}
-	defer out.Abort()
-
-	found := csvdata.Discover(paths)
-	relative(found.Problems, root)
-	for _, p := range found.Problems {
-		say(p.Err) // and an error row each: the runner gets them as failed inputs
-	}
-	files := found.Files
-	if len(found.Paths()) == 0 {
-		return fail(exitFatal, "no correlogram files (*.csv) found")
-	}
-	rels := csvdata.RelativePaths(files, paths)
-	var match *sheet.MatchReport
-	if sh != nil {
-		match = sh.Check(csvdata.Rel(root, o.sheetFile), files, rels)
-		for i, f := range match.UnmatchedFiles {
-			match.UnmatchedFiles[i] = csvdata.Rel(root, f)
-			say(match.UnmatchedFiles[i] + ": no row of the sample sheet matches this file")
-		}
-		for _, msg := range match.UnusedRows {
-			say(msg)
-		}
-	}
-
-	rn := &batch.Runner{
-		Read: func(path string) []batch.Input {
-			if in, failed := found.Failed(path); failed {
-				return in
-			}
-			in := csvdata.ReadFileAs(path, csvdata.Rel(root, path), readOpts)
-			for _, x := range in {
-				if sh != nil && x.M != nil {
-					sh.Apply(x.M, rels[path])
-				}
-			}
-			return in
-		},
-		Settings: settings,
-		Workers:  o.jobs,
-	}
 	if e.stderrIsTerminal && !o.quiet {
-		bar := progressbar.NewOptions(len(found.Paths()),
-			progressbar.OptionSetWriter(e.stderr),
-			progressbar.OptionSetDescription("analysing"),
-			progressbar.OptionShowCount(),
-			progressbar.OptionClearOnFinish())
-		var mu sync.Mutex
-		rn.Progress = func(string) {
-			mu.Lock()
-			bar.Add(1)
-			mu.Unlock()
+		var bar *progressbar.ProgressBar
+		cfg.Progress = func(done, total int) {
+			if bar == nil {
+				bar = progressbar.NewOptions(total, progressbar.OptionSetWriter(e.stderr),
+					progressbar.OptionSetDescription("analysing"), progressbar.OptionShowCount(), progressbar.OptionClearOnFinish())
+			}
+			bar.Set(done)
 		}
-		defer bar.Finish()
+		defer func() {
+			if bar != nil {
+				bar.Finish()
+			}
+		}()
 	}
-	stream, err := report.NewStream(out.Staging)
-	if err != nil {
+	res, err := batchrun.Run(ctx, cfg)
+	switch {
+	case errors.Is(err, batchrun.ErrUsage):
+		return fail(exitUsage, strings.TrimPrefix(err.Error(), batchrun.ErrUsage.Error()+": "))
+	case errors.Is(err, batchrun.ErrWriteInterrupted):
+		return fail(exitInterrupted, err)
+	case err != nil:
 		return fail(exitFatal, err)
-	}
-	rn.Emit = stream.Add
-	_, runErr := rn.Run(ctx, found.Paths())
-	if runErr != nil && ctx.Err() == nil {
-		return fail(exitFatal, runErr) // results could not be kept (e.g. a full disk)
-	}
-	results := stream.Results()
-	complete := runErr == nil
-	groups := batch.Groups(results)
-	samples := qc.Aggregate(results, qc.Options{Thresholds: settings.QC, ExcludeOutliers: o.exclude})
-	outcome := spec.Batch{Specified: sp != nil, Reason: "not evaluated: the run was interrupted"}
-	if complete {
-		outcome = spec.Evaluate(sp, samples, results)
-	}
-	doc := &report.Document{
-		Tool: "dlsbatch", Version: report.Version(), Caution: report.Caution, Complete: complete,
-		Settings: o.record(settings, root), Counts: dls.CountResults(results), Batch: outcome, Sheet: match,
-		Groups: &groups, Samples: samples, Results: results,
-	}
-	set := &report.Set{Doc: doc, HTMLReport: !o.noReport && complete, Root: root, Inputs: files, Stream: stream}
-	for _, t := range []string{o.sheetFile, o.specFile, o.solventFile, o.qcFile} {
-		if t != "" {
-			set.Tables = append(set.Tables, t)
-		}
-	}
-	// An interrupted analysis still writes what it finished, marked
-	// incomplete and without the report, so that it is quick; a signal
-	// during the writing abandons it and the previous set stays.
-	writeCtx := ctx
-	if !complete {
-		writeCtx = context.Background()
-	}
-	if err := report.WriteSet(writeCtx, out.Staging, set); err != nil {
-		if ctx.Err() != nil {
-			return fail(exitInterrupted, "interrupted while writing; "+o.out+" is as it was")
-		}
-		return fail(exitFatal, err)
-	}
-	if err := out.Commit(); err != nil {
-		return fail(exitFatal, err)
-	}
-	if !complete {
+	case !res.Complete:
 		return fail(exitInterrupted, fmt.Sprintf("interrupted: %d measurements finished; %s holds them, marked incomplete (no verdicts)",
-			len(results), o.out))
+			len(res.Results), o.out))
 	}
 	if !o.quiet {
-		if err := report.WriteSummary(e.stdout, results, samples, outcome, 10); err != nil {
+		if err := report.WriteSummary(e.stdout, res.Results, res.Samples, res.Batch, 10); err != nil {
 			say(err)
 		}
 		what := "results.csv, samples.csv, results.json, manifest.json"
@@ -273,21 +190,7 @@ func runRun(ctx context.Context, e env, args []string) int {
 		}
 		fmt.Fprintf(e.stdout, "results: %s (%s)\n%s\n", o.out, what, report.Caution)
 	}
-	return exitCode(doc.Counts, outcome)
-}
-
-// relative names the failed entries of input problems by their path
-// relative to the input root, as every other result is named.
-func relative(in []dls.Input, root string) {
-	for i := range in {
-		in[i].File = csvdata.Rel(root, in[i].File)
-		var pe *dls.PosError
-		if errors.As(in[i].Err, &pe) {
-			q := *pe
-			q.File = in[i].File
-			in[i].Err = &q
-		}
-	}
+	return exitCode(res.Counts, res.Batch)
 }
 
 // exitCode maps the outcome of a finished run to the documented codes; the

@@ -1,0 +1,203 @@
+// Package batchrun runs one batch from input paths to a published result
+// set: it locks and stages the output folder (io/resultset), discovers and
+// reads the inputs (io/csvdata, io/sheet), analyses them in parallel
+// (dls/batch) while streaming full records out of memory (io/report),
+// aggregates samples and groups (dls/qc, dls/batch), judges them against
+// the specification (dls/spec), writes every output and swaps the set in.
+// The command only turns flags into a Config and the Outcome into an exit
+// code.
+package batchrun
+
+import (
+	"context"
+	"errors"
+	"fmt"
+	"sync"
+
+	"dlsbatch/dls"
+	"dlsbatch/dls/batch"
+	"dlsbatch/dls/qc"
+	"dlsbatch/dls/spec"
+	"dlsbatch/io/csvdata"
+	"dlsbatch/io/report"
+	"dlsbatch/io/resultset"
+	"dlsbatch/io/sheet"
+)
+
+// Config is one run.
+type Config struct {
+	Paths []string // input files and folders, as named
+	Out   string   // output folder
+	Force bool     // replace an existing result set
+
+	Settings batch.Settings
+	Read     *csvdata.Options
+	Sheet    *sheet.Sheet // nil: none
+	Spec     *spec.Spec   // nil: none
+	// Tables are the files Sheet, Spec and the solvent and thresholds
+	// files came from (empty when not given): hashed into the manifest and
+	// named, relative to the input root, in the settings record.
+	SheetFile, SpecFile, SolventFile, QCFile string
+	ExcludeOutliers                          bool
+	HTMLReport                               bool
+	Workers                                  int
+	// Record builds the settings record for the input root.
+	Record func(root string) *report.Settings
+	// Progress, when set, is told how many input files are done of how
+	// many, from any goroutine (it must be safe for concurrent use).
+	Progress func(done, total int)
+	// Warn receives the messages a person should see (input problems,
+	// sample-sheet mismatches); nil drops them.
+	Warn func(msg string)
+}
+
+// Outcome is what a finished (or interrupted) run produced.
+type Outcome struct {
+	Results  []*dls.Result // compact copies, in input order
+	Samples  []*dls.Sample
+	Batch    spec.Batch
+	Counts   dls.Counts
+	Complete bool // false: interrupted, the set holds what finished
+}
+
+// ErrUsage marks a problem with the run's settings or folders found before
+// any analysis (the command's usage-error exit); ErrNoInput a run that
+// found nothing to read.
+var (
+	ErrUsage   = errors.New("usage")
+	ErrNoInput = errors.New("no correlogram files (*.csv) found")
+)
+
+// ErrWriteInterrupted reports a signal while the outputs were being
+// written: the previous set of the folder is kept.
+var ErrWriteInterrupted = errors.New("interrupted while writing; the output folder is as it was")
+
+// Run runs the batch. An interrupted analysis returns an Outcome with
+// Complete false and the set written (what finished, no verdicts); errors
+// wrap ErrUsage, ErrNoInput or ErrWriteInterrupted where those apply.
+func Run(ctx context.Context, cfg *Config) (*Outcome, error) {
+	warn := func(msg string) {
+		if cfg.Warn != nil {
+			cfg.Warn(msg)
+		}
+	}
+	root, err := csvdata.Root(cfg.Paths)
+	if err != nil {
+		return nil, fmt.Errorf("%w: %w", ErrUsage, err)
+	}
+	// Every --out problem is a usage error before any analysis; from here
+	// the folder is locked and the run writes into a staging folder.
+	out, err := resultset.Open(cfg.Out, cfg.Paths, cfg.Force)
+	if err != nil {
+		return nil, fmt.Errorf("%w: %w", ErrUsage, err)
+	}
+	defer out.Abort()
+
+	found := csvdata.Discover(cfg.Paths)
+	relative(found.Problems, root)
+	for _, p := range found.Problems {
+		warn(p.Err.Error()) // and an error row each: the runner gets them as failed inputs
+	}
+	paths := found.Paths()
+	if len(paths) == 0 {
+		return nil, ErrNoInput
+	}
+	files := found.Files
+	rels := csvdata.RelativePaths(files, cfg.Paths)
+	var match *sheet.MatchReport
+	if cfg.Sheet != nil {
+		match = cfg.Sheet.Check(csvdata.Rel(root, cfg.SheetFile), files, rels)
+		for i, f := range match.UnmatchedFiles {
+			match.UnmatchedFiles[i] = csvdata.Rel(root, f)
+			warn(match.UnmatchedFiles[i] + ": no row of the sample sheet matches this file")
+		}
+		for _, msg := range match.UnusedRows {
+			warn(msg)
+		}
+	}
+	stream, err := report.NewStream(out.Staging)
+	if err != nil {
+		return nil, err
+	}
+	rn := &batch.Runner{
+		Read: func(path string) []batch.Input {
+			if in, failed := found.Failed(path); failed {
+				return in
+			}
+			in := csvdata.ReadFileAs(path, csvdata.Rel(root, path), cfg.Read)
+			for _, x := range in {
+				if cfg.Sheet != nil && x.M != nil {
+					cfg.Sheet.Apply(x.M, rels[path])
+				}
+			}
+			return in
+		},
+		Settings: cfg.Settings,
+		Workers:  cfg.Workers,
+		Emit:     stream.Add,
+	}
+	if cfg.Progress != nil {
+		var mu sync.Mutex
+		n := 0
+		rn.Progress = func(string) {
+			mu.Lock()
+			n++
+			cfg.Progress(n, len(paths))
+			mu.Unlock()
+		}
+	}
+	_, runErr := rn.Run(ctx, paths)
+	if runErr != nil && ctx.Err() == nil {
+		return nil, runErr // results could not be kept (e.g. a full disk)
+	}
+	o := &Outcome{Results: stream.Results(), Complete: runErr == nil}
+	groups := batch.Groups(o.Results)
+	o.Samples = qc.Aggregate(o.Results, qc.Options{Thresholds: cfg.Settings.QC, ExcludeOutliers: cfg.ExcludeOutliers})
+	o.Batch = spec.Batch{Specified: cfg.Spec != nil, Reason: "not evaluated: the run was interrupted"}
+	if o.Complete {
+		o.Batch = spec.Evaluate(cfg.Spec, o.Samples, o.Results)
+	}
+	o.Counts = dls.CountResults(o.Results)
+	doc := &report.Document{
+		Tool: "dlsbatch", Version: report.Version(), Caution: report.Caution, Complete: o.Complete,
+		Settings: cfg.Record(root), Counts: o.Counts, Batch: o.Batch, Sheet: match,
+		Groups: &groups, Samples: o.Samples, Results: o.Results,
+	}
+	set := &report.Set{Doc: doc, HTMLReport: cfg.HTMLReport && o.Complete, Root: root, Inputs: files, Stream: stream}
+	for _, t := range []string{cfg.SheetFile, cfg.SpecFile, cfg.SolventFile, cfg.QCFile} {
+		if t != "" {
+			set.Tables = append(set.Tables, t)
+		}
+	}
+	// An interrupted analysis still writes what it finished, marked
+	// incomplete and without the report, so that it is quick; a signal
+	// during the writing abandons it and the previous set stays.
+	writeCtx := ctx
+	if !o.Complete {
+		writeCtx = context.Background()
+	}
+	if err := report.WriteSet(writeCtx, out.Staging, set); err != nil {
+		if ctx.Err() != nil {
+			return nil, ErrWriteInterrupted
+		}
+		return nil, err
+	}
+	if err := out.Commit(); err != nil {
+		return nil, err
+	}
+	return o, nil
+}
+
+// relative names the failed entries of input problems by their path
+// relative to the input root, as every other result is named.
+func relative(in []dls.Input, root string) {
+	for i := range in {
+		in[i].File = csvdata.Rel(root, in[i].File)
+		var pe *dls.PosError
+		if errors.As(in[i].Err, &pe) {
+			q := *pe
+			q.File = in[i].File
+			in[i].Err = &q
+		}
+	}
+}
