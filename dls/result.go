@@ -17,8 +17,10 @@ const (
 
 // Result is everything dlsbatch reports for one measurement, built from
 // parts that each hold one stage of the analysis and say whether they are
-// valid. A part that could not be computed (for an error, say) is zero and
-// is written as empty cells. encoding/json flattens the embedded parts, so
+// valid (has_conditions, has_cumulants, has_distribution in JSON, so that a
+// reader can tell a valid zero from a value never computed). A part that
+// could not be computed (for an error, say) is zero and is written as
+// empty cells. encoding/json flattens the embedded parts, so
 // results.json keeps one flat object per measurement, in this field order.
 type Result struct {
 	Identity
@@ -62,7 +64,7 @@ type Identity struct {
 // HasConditions): temperature, medium, optics and the sources of the
 // medium's properties.
 type Conditions struct {
-	HasConditions   bool    `json:"-"`
+	HasConditions   bool    `json:"has_conditions"`
 	TemperatureC    float64 `json:"temperature_c"`
 	Solvent         string  `json:"solvent"`
 	ViscosityMPaS   float64 `json:"viscosity_mpas"`
@@ -78,7 +80,7 @@ type Conditions struct {
 // (valid when HasCumulants), with the count rate and duration when the file
 // states them.
 type Cumulants struct {
-	HasCumulants      bool    `json:"-"`
+	HasCumulants      bool    `json:"has_cumulants"`
 	Method            string  `json:"cumulant_method"`
 	Order             int     `json:"cumulant_order"`
 	GammaMeanPerS     float64 `json:"gamma_mean_per_s"`
@@ -105,9 +107,9 @@ type Cumulants struct {
 	LinearZAvgNm      float64 `json:"linear_z_avg_nm"`
 	LinearPDI         float64 `json:"linear_pdi"`
 	CountRateKcps     float64 `json:"count_rate_kcps"`
-	HasCountRate      bool    `json:"-"`
+	HasCountRate      bool    `json:"has_count_rate"`
 	DurationS         float64 `json:"duration_s"`
-	HasDuration       bool    `json:"-"`
+	HasDuration       bool    `json:"has_duration"`
 	CorrelationColumn string  `json:"correlation_column"`
 	CorrelationKind   string  `json:"correlation_kind"` // g2, g2m1 or g1
 }
@@ -116,7 +118,7 @@ type Cumulants struct {
 // HasDistribution): the regularisation chosen, the summary of each
 // weighting and the full distributions.
 type DistSummary struct {
-	HasDistribution  bool    `json:"-"`
+	HasDistribution  bool    `json:"has_distribution"`
 	ParticleRI       string  `json:"particle_ri"`
 	AlphaCriterion   string  `json:"alpha_criterion"`
 	Alpha            float64 `json:"alpha"`

@@ -144,9 +144,8 @@ func (s *Stream) read(off, n int64) ([]byte, error) {
 	return b, nil
 }
 
-// Full returns result i whole: read back from the scratch file, with the
-// fields that JSON does not carry (which parts are valid) from the compact
-// copy.
+// Full returns result i whole, read back from the scratch file (JSON
+// carries every field of a result, so the record comes back as it was).
 func (s *Stream) Full(i int) (*dls.Result, error) {
 	if r, ok := s.full[i]; ok {
 		return r, nil
@@ -159,9 +158,6 @@ func (s *Stream) Full(i int) (*dls.Result, error) {
 	if err := json.Unmarshal(b, &r); err != nil {
 		return nil, fmt.Errorf("results: reading back %s: %w", s.compact[i].File, err)
 	}
-	c := s.compact[i]
-	r.HasConditions, r.HasCumulants, r.HasDistribution = c.HasConditions, c.HasCumulants, c.HasDistribution
-	r.HasCountRate, r.HasDuration = c.HasCountRate, c.HasDuration
 	return &r, nil
 }
 
