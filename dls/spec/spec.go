@@ -99,6 +99,14 @@ type Batch struct {
 // system suitability test and returns the batch outcome. results are the
 // per-measurement results that the samples index.
 func Evaluate(s *Spec, samples []*dls.Sample, results []*dls.Result) Batch {
+	return EvaluateLoaded(s, samples, results, nil)
+}
+
+// EvaluateLoaded is Evaluate for results held as compact copies without
+// their distribution arrays: load gives result i whole where a limit needs
+// its intensity distribution (intensity_pct_above). A nil load uses the
+// results as they are.
+func EvaluateLoaded(s *Spec, samples []*dls.Sample, results []*dls.Result, load func(i int) (*dls.Result, error)) Batch {
 	b := Batch{Specified: s != nil, Valid: true}
 	if s == nil {
 		b.NoSpec = len(samples)
@@ -119,7 +127,7 @@ func Evaluate(s *Spec, samples []*dls.Sample, results []*dls.Result) Batch {
 			}
 			continue
 		}
-		v := verdict(smp, limits, results)
+		v := verdict(smp, limits, results, load)
 		smp.Verdict = v
 		if smp.Role == dls.RoleReference {
 			refs++
@@ -155,11 +163,11 @@ func Evaluate(s *Spec, samples []*dls.Sample, results []*dls.Result) Batch {
 	return b
 }
 
-func verdict(smp *dls.Sample, limits []Limit, results []*dls.Result) *dls.Verdict {
+func verdict(smp *dls.Sample, limits []Limit, results []*dls.Result, load func(int) (*dls.Result, error)) *dls.Verdict {
 	v := &dls.Verdict{Outcome: dls.VerdictPass}
 	var failed []string
 	for _, l := range limits {
-		val, ok := value(smp, l, results)
+		val, ok := value(smp, l, results, load)
 		c := dls.Check{Quantity: l.Quantity, Limit: l.Text, Value: val, Pass: ok}
 		if ok {
 			c.Pass = (!l.HasMin || val >= l.Min) && (!l.HasMax || val <= l.Max)
@@ -189,7 +197,7 @@ func trim(v float64) string {
 
 // value returns the sample's value of the limit's quantity, and whether it
 // exists.
-func value(smp *dls.Sample, l Limit, results []*dls.Result) (float64, bool) {
+func value(smp *dls.Sample, l Limit, results []*dls.Result, load func(int) (*dls.Result, error)) (float64, bool) {
 	if smp.NUsed == 0 && l.Quantity != "runs" {
 		return 0, false
 	}
@@ -211,6 +219,11 @@ func value(smp *dls.Sample, l Limit, results []*dls.Result) (float64, bool) {
 		n := 0
 		for _, i := range smp.Used {
 			d := results[i].Distribution
+			if load != nil {
+				if full, err := load(i); err == nil {
+					d = full.Distribution
+				}
+			}
 			if d == nil {
 				continue
 			}

@@ -155,7 +155,7 @@ func Run(ctx context.Context, cfg *Config) (*Outcome, error) {
 	o.Samples = qc.Aggregate(o.Results, qc.Options{Thresholds: cfg.Settings.QC, ExcludeOutliers: cfg.ExcludeOutliers})
 	o.Batch = spec.Batch{Specified: cfg.Spec != nil, Reason: "not evaluated: the run was interrupted"}
 	if o.Complete {
-		o.Batch = spec.Evaluate(cfg.Spec, o.Samples, o.Results)
+		o.Batch = spec.EvaluateLoaded(cfg.Spec, o.Samples, o.Results, stream.Full)
 	}
 	o.Counts = dls.CountResults(o.Results)
 	doc := &report.Document{

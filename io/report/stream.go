@@ -7,7 +7,6 @@ import (
 	"io"
 	"os"
 	"path/filepath"
-	"slices"
 
 	"dlsbatch/dls"
 )
@@ -28,17 +27,9 @@ type Stream struct {
 	spans   []span // of each result's JSON record, then its CSV row
 	compact []*dls.Result
 	full    map[int]*dls.Result
-	grids   map[gridKey][]float64
 }
 
 type span struct{ off, n, csvN int64 }
-
-// gridKey identifies a diameter grid, shared by every result of one lag
-// grid and optics, so that compact copies hold one copy of it.
-type gridKey struct {
-	n          int
-	first, end float64
-}
 
 // scratchName is the scratch file, removed before the set is published.
 const scratchName = ".results.part"
@@ -49,7 +40,7 @@ func NewStream(dir string) (*Stream, error) {
 	if err != nil {
 		return nil, fmt.Errorf("results: %w", err)
 	}
-	return &Stream{f: f, w: bufio.NewWriterSize(f, 1<<16), full: map[int]*dls.Result{}, grids: map[gridKey][]float64{}}, nil
+	return &Stream{f: f, w: bufio.NewWriterSize(f, 1<<16), full: map[int]*dls.Result{}}, nil
 }
 
 // Add records the results of one file. A result holding NaN or Inf is
@@ -80,7 +71,7 @@ func (s *Stream) Add(results []*dls.Result) error {
 		}
 		s.spans = append(s.spans, span{s.off, int64(len(b)), int64(len(row))})
 		s.off += int64(len(b) + len(row))
-		s.compact = append(s.compact, s.compactOf(r))
+		s.compact = append(s.compact, compactOf(r))
 	}
 	return nil
 }
@@ -91,27 +82,14 @@ func (s *Stream) Results() []*dls.Result { return s.compact }
 
 // compactOf keeps what the per-sample statistics, verdicts, summary,
 // samples.csv and the report's index need: identity, flags, conditions,
-// the cumulant fit, the intensity summary and the intensity weighting on
-// its (shared) grid, which the intensity-above limits read. The rest
-// (curves, parameters, budget, volume and number weightings, notes) is in
-// the scratch file, and results.csv's row with it.
-func (s *Stream) compactOf(r *dls.Result) *dls.Result {
+// the cumulant fit and the intensity summary (peaks, percentiles). The rest
+// (curves, parameters, budget, the distributions themselves, volume and
+// number summaries, notes) is in the scratch file with the record's
+// results.csv row; Full reads it back where it is needed.
+func compactOf(r *dls.Result) *dls.Result {
 	c := *r
-	c.Curves, c.Params, c.Budget, c.Volume, c.Number = nil, nil, nil, nil, nil
+	c.Curves, c.Params, c.Budget, c.Volume, c.Number, c.Distribution = nil, nil, nil, nil, nil, nil
 	c.Assumptions, c.Warnings, c.Medium = nil, nil, nil
-	if d := r.Distribution; d != nil {
-		g := d.DiameterNm
-		if len(g) > 0 {
-			k := gridKey{len(g), g[0], g[len(g)-1]}
-			if shared, ok := s.grids[k]; ok && slices.Equal(shared, g) {
-				g = shared
-			} else if !ok {
-				s.grids[k] = slices.Clone(g)
-				g = s.grids[k]
-			}
-		}
-		c.Distribution = &dls.SizeDistribution{DiameterNm: g, Intensity: slices.Clone(d.Intensity)}
-	}
 	return &c
 }
 
