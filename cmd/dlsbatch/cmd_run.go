@@ -5,6 +5,7 @@ import (
 	"errors"
 	"fmt"
 	"math"
+	"os"
 	"runtime"
 	"strings"
 
@@ -38,7 +39,8 @@ type runOptions struct {
 	out, particleRI                                  string // output folder; default particle index
 	solventFile, sheetFile, specFile, qcFile         string // tables
 	tauCol, tauUnit, sigmaCol                        string // foreign CSV columns
-	corrCols                                         []string
+	corrCols, includeGlobs, excludeGlobs             []string
+	shard                                            string
 	corrKind, method, criterion                      *enumFlag
 	jobs, order, gridPoints                          int
 	maxFileMB, maxRows, maxColumns                   int // input limits
@@ -82,6 +84,9 @@ func (o *runOptions) addFlags(fs *pflag.FlagSet) {
 	fs.Float64Var(&o.cutoff, "g1-cutoff", o.cutoff, "end the fit where the estimated g1 falls below this amplitude")
 	fs.Float64Var(&o.minLagS, "min-lag-s", 0, "ignore channels below this lag in s (afterpulsing, dead time)")
 	fs.BoolVar(&o.extrapolate, "extrapolate", false, "allow solvent correlations outside their valid range (every result touched is a warning)")
+	fs.StringArrayVar(&o.includeGlobs, "include", nil, "analyse only files matching this glob (name, or path below the input root if it has a '/'; repeatable)")
+	fs.StringArrayVar(&o.excludeGlobs, "exclude", nil, "leave out files matching this glob (repeatable)")
+	fs.StringVar(&o.shard, "shard", "", "analyse part K of the batch split N ways (K/N, K = 0…N−1; auto: from Slurm's or Kubernetes' array index; merge the parts with 'dlsbatch merge')")
 	fs.StringVar(&o.cpuProfile, "cpuprofile", "", "write a CPU profile of the run to this file (go tool pprof)")
 	fs.StringVar(&o.memProfile, "memprofile", "", "write a heap profile at the end of the run to this file (go tool pprof)")
 	fs.BoolVar(&o.implausible, "allow-implausible", false, "analyse metadata values outside their physically plausible range (each such result is a warning, not an error)")
@@ -133,7 +138,19 @@ func runRun(ctx context.Context, e env, args []string) int {
 			say(err)
 		}
 	}()
+	for _, p := range append(append([]string(nil), o.includeGlobs...), o.excludeGlobs...) {
+		if err := batchrun.CheckPattern(p); err != nil {
+			return fail(exitUsage, err)
+		}
+	}
+	var shard batchrun.Shard
+	if o.shard != "" {
+		if shard, err = batchrun.ShardFromEnv(o.shard, os.Getenv); err != nil {
+			return fail(exitUsage, err)
+		}
+	}
 	cfg := &batchrun.Config{Paths: paths, Out: o.out, Force: o.force, Settings: settings, Read: readOpts,
+		Include: o.includeGlobs, Exclude: o.excludeGlobs, Shard: shard,
 		SheetFile: o.sheetFile, SpecFile: o.specFile, SolventFile: o.solventFile, QCFile: o.qcFile,
 		ExcludeOutliers: o.exclude, HTMLReport: !o.noReport, Workers: o.jobs,
 		Warn: func(msg string) { say(msg) }}
@@ -276,7 +293,7 @@ func (o *runOptions) record(s batch.Settings, root string) *report.Settings {
 		CoverageFactor: s.CoverageFactor, CumulantMethod: s.Cumulants.Method.String(), CumulantOrder: s.Cumulants.Order,
 		Default: dls.Assignments(s.Defaults), DefaultParticleRI: mie.FormatComplexIndex(s.Distribution.DefaultParticleRI),
 		Distribution: s.Distribution.Enabled, ExcludeOutliers: o.exclude, Extrapolate: s.Extrapolate,
-		G1Cutoff: s.Cumulants.Cutoff, GridPoints: s.Distribution.Grid.NGamma, LagColumn: o.tauCol, LagUnit: o.tauUnit, MaxColumns: o.maxColumns, MaxFileMB: o.maxFileMB, MaxRows: o.maxRows,
+		G1Cutoff: s.Cumulants.Cutoff, GridPoints: s.Distribution.Grid.NGamma, Exclude: o.excludeGlobs, Include: o.includeGlobs, LagColumn: o.tauCol, LagUnit: o.tauUnit, MaxColumns: o.maxColumns, MaxFileMB: o.maxFileMB, MaxRows: o.maxRows,
 		MinLagS: s.Cumulants.MinTauS, MinPoints: s.Cumulants.MinPoints,
 		ProbRejectTarget: s.Distribution.Contin.TargetProbReject, QCThresholds: s.QC, QCThresholdsFile: rel(o.qcFile), RangeCheck: s.Cumulants.RangeCheck,
 		Set: dls.Assignments(s.Overrides), Sheet: rel(o.sheetFile), SigmaColumn: o.sigmaCol, SolventFile: rel(o.solventFile), Spec: rel(o.specFile),

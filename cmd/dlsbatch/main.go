@@ -66,6 +66,7 @@ func subcommands() []subcommand {
 		{"solvents", "list the solvent table with valid ranges and sources", runSolvents},
 		{"flags", "list the quality-control flags with their meaning and threshold", runFlags},
 		{"verify", "check a result folder against its manifest", runVerify},
+		{"merge", "merge the result sets of a batch's shards into one", runMerge},
 	}
 }
 

@@ -12,6 +12,7 @@ import (
 	"context"
 	"errors"
 	"fmt"
+	"sort"
 	"sync"
 
 	"dlsbatch/dls"
@@ -39,8 +40,12 @@ type Config struct {
 	// named, relative to the input root, in the settings record.
 	SheetFile, SpecFile, SolventFile, QCFile string
 	ExcludeOutliers                          bool
-	HTMLReport                               bool
-	Workers                                  int
+	// Include and Exclude select the files found (see Select); Shard
+	// analyses one part of them (see ShardOf).
+	Include, Exclude []string
+	Shard            Shard
+	HTMLReport       bool
+	Workers          int
 	// Record builds the settings record for the input root.
 	Record func(root string) *report.Settings
 	// Progress, when set, is told how many input files are done of how
@@ -98,8 +103,19 @@ func Run(ctx context.Context, cfg *Config) (*Outcome, error) {
 	for _, p := range found.Problems {
 		warn(p.Err.Error()) // and an error row each: the runner gets them as failed inputs
 	}
+	all := Select(found, root, cfg.Include, cfg.Exclude)
+	found = cfg.Shard.Part(all, root)
+	// The run's order is that of the inputs' paths relative to the root,
+	// whatever the shard or the way the paths were typed.
 	paths := found.Paths()
-	if len(paths) == 0 {
+	relOf := func(p string) string {
+		if _, problem := found.Failed(p); problem {
+			return p // named relative to the root already
+		}
+		return csvdata.Rel(root, p)
+	}
+	sort.SliceStable(paths, func(a, b int) bool { return relOf(paths[a]) < relOf(paths[b]) })
+	if len(paths) == 0 && cfg.Shard.Count <= 1 {
 		return nil, ErrNoInput
 	}
 	files := found.Files
@@ -150,20 +166,46 @@ func Run(ctx context.Context, cfg *Config) (*Outcome, error) {
 	if runErr != nil && ctx.Err() == nil {
 		return nil, runErr // results could not be kept (e.g. a full disk)
 	}
-	o := &Outcome{Results: stream.Results(), Complete: runErr == nil}
-	groups := batch.Groups(o.Results)
+	var shard *report.ShardInfo
+	if cfg.Shard.Count > 1 {
+		shard = cfg.Shard.Info(all, root)
+	}
+	return publish(ctx, cfg, out, &published{root: root, inputs: files, match: match, stream: stream,
+		complete: runErr == nil, shard: shard})
+}
+
+// published is what a run (or a merge) hands over to be written.
+type published struct {
+	root     string
+	inputs   []string // files analysed, as paths the process can open
+	match    *sheet.MatchReport
+	stream   *report.Stream
+	complete bool
+	shard    *report.ShardInfo
+}
+
+// publish aggregates, judges, writes and swaps in the set of p.
+func publish(ctx context.Context, cfg *Config, out *resultset.Set, p *published) (*Outcome, error) {
+	o := &Outcome{Results: p.stream.Results(), Complete: p.complete}
+	// A shard leaves the group analyses to the merge: a group may span
+	// shards, and its records must reach the merge as analysed.
+	var groups batch.GroupReport
+	if p.shard == nil {
+		groups = batch.Groups(o.Results)
+	}
 	o.Samples = qc.Aggregate(o.Results, qc.Options{Thresholds: cfg.Settings.QC, ExcludeOutliers: cfg.ExcludeOutliers})
 	o.Batch = spec.Batch{Specified: cfg.Spec != nil, Reason: "not evaluated: the run was interrupted"}
 	if o.Complete {
-		o.Batch = spec.EvaluateLoaded(cfg.Spec, o.Samples, o.Results, stream.Full)
+		o.Batch = spec.EvaluateLoaded(cfg.Spec, o.Samples, o.Results, p.stream.Full)
 	}
 	o.Counts = dls.CountResults(o.Results)
 	doc := &report.Document{
 		Tool: "dlsbatch", Version: report.Version(), Caution: report.Caution, Complete: o.Complete,
-		Settings: cfg.Record(root), Counts: o.Counts, Batch: o.Batch, Sheet: match,
+		Settings: cfg.Record(p.root), Counts: o.Counts, Batch: o.Batch, Sheet: p.match,
 		Groups: &groups, Samples: o.Samples, Results: o.Results,
 	}
-	set := &report.Set{Doc: doc, HTMLReport: cfg.HTMLReport && o.Complete, Root: root, Inputs: files, Stream: stream}
+	set := &report.Set{Doc: doc, HTMLReport: cfg.HTMLReport && o.Complete, Root: p.root, Inputs: p.inputs, Stream: p.stream,
+		Shard: p.shard}
 	for _, t := range []string{cfg.SheetFile, cfg.SpecFile, cfg.SolventFile, cfg.QCFile} {
 		if t != "" {
 			set.Tables = append(set.Tables, t)

@@ -31,13 +31,26 @@ type Manifest struct {
 	Files    FileCounts `json:"files"`
 	// Root is the input root (absolute): every input and table path is
 	// relative to it, with forward slashes.
-	Root     string    `json:"root"`
-	Settings *Settings `json:"settings"`
+	Root string `json:"root"`
+	// Shard, in the set of one shard of a split batch, says which part it
+	// is and of what batch (merge checks it); absent otherwise.
+	Shard    *ShardInfo `json:"shard,omitempty"`
+	Settings *Settings  `json:"settings"`
 	// Inputs are the correlogram files in analysis order; Tables the sample
 	// sheet, specification, solvent file and QC thresholds file when given.
 	Inputs  []FileHash `json:"inputs"`
 	Tables  []FileHash `json:"tables"`
 	Outputs []FileHash `json:"outputs"`
+}
+
+// ShardInfo identifies part Index of a batch split Count ways: the batch
+// has BatchInputs inputs (files and input problems), and BatchSHA256 is the
+// SHA-256 of their paths relative to the root, one per line, sorted.
+type ShardInfo struct {
+	Index       int    `json:"index"`
+	Count       int    `json:"count"`
+	BatchInputs int    `json:"batch_inputs"`
+	BatchSHA256 string `json:"batch_sha256"`
 }
 
 // FileCounts are the input files of a run: found, and analysed (all of

@@ -30,6 +30,8 @@ type Set struct {
 	// for an incomplete document, only the inputs with results.
 	Root           string
 	Inputs, Tables []string
+	// Shard is recorded in the manifest of one shard's set.
+	Shard *ShardInfo
 	// Stream, when set, holds the full records of Doc.Results (which are
 	// then its compact copies); see Stream.
 	Stream *Stream
@@ -58,7 +60,7 @@ func WriteSet(ctx context.Context, dir string, s *Set) error {
 	if !d.Complete {
 		inputs = analysed(s.Root, s.Inputs, d.Results)
 	}
-	m := &Manifest{Tool: d.Tool, Version: d.Version, Complete: d.Complete, Root: s.Root, Settings: d.Settings,
+	m := &Manifest{Tool: d.Tool, Version: d.Version, Complete: d.Complete, Root: s.Root, Shard: s.Shard, Settings: d.Settings,
 		Files: FileCounts{Found: len(s.Inputs), Analysed: len(inputs)}, Inputs: []FileHash{}, Tables: []FileHash{}}
 	result := func(i int) ([]byte, error) { return json.Marshal(d.Results[i]) }
 	row := func(i int) ([]byte, error) { return csvRow(d.Results[i]) }

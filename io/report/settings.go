@@ -19,10 +19,12 @@ type Settings struct {
 	Default           []string      `json:"default"`                      // key=value defaults, in precedence order
 	DefaultParticleRI string        `json:"default_particle_ri"`          // particle index where a measurement gives none
 	Distribution      bool          `json:"distribution"`                 // size distributions computed
+	Exclude           []string      `json:"exclude"`                      // --exclude globs
 	ExcludeOutliers   bool          `json:"exclude_outliers"`             // outliers left out of sample statistics
 	Extrapolate       bool          `json:"extrapolate"`                  // correlations allowed outside their range
 	G1Cutoff          float64       `json:"g1_cutoff"`                    // end of the cumulant fit window in g1
 	GridPoints        int           `json:"grid_points"`                  // decay-rate grid of the inversion
+	Include           []string      `json:"include"`                      // --include globs
 	LagColumn         string        `json:"lag_column"`                   // --lag-column (foreign CSVs)
 	LagUnit           string        `json:"lag_unit"`                     // --lag-unit (foreign CSVs)
 	MaxColumns        int           `json:"max_columns"`                  // limit on the columns of one input file

@@ -1,0 +1,44 @@
+package main
+
+import (
+	"context"
+	"errors"
+	"fmt"
+	"strings"
+
+	"github.com/spf13/pflag"
+
+	"dlsbatch/io/batchrun"
+	"dlsbatch/io/report"
+)
+
+func runMerge(ctx context.Context, e env, args []string) int {
+	fs := pflag.NewFlagSet("merge", pflag.ContinueOnError)
+	cfg := &batchrun.MergeConfig{}
+	var noReport, quiet bool
+	fs.StringVarP(&cfg.Out, "out", "o", "", "folder for the merged result set (required)")
+	fs.BoolVar(&cfg.Force, "force", false, "replace results already in the --out folder")
+	fs.BoolVar(&noReport, "no-report", false, "do not write the HTML report")
+	fs.BoolVarP(&quiet, "quiet", "q", false, "print no summary")
+	if code, done := parseFlags(fs, e, "merge", help("merge"), help("run.exits"), args); done {
+		return code
+	}
+	cfg.Dirs, cfg.HTMLReport = fs.Args(), !noReport
+	if cfg.Out == "" {
+		fmt.Fprintln(e.stderr, "dlsbatch merge: --out DIR is required")
+		return exitUsage
+	}
+	res, err := batchrun.Merge(ctx, cfg)
+	switch {
+	case errors.Is(err, batchrun.ErrUsage):
+		fmt.Fprintln(e.stderr, "dlsbatch merge:", strings.TrimPrefix(err.Error(), batchrun.ErrUsage.Error()+": "))
+		return exitUsage
+	case err != nil:
+		fmt.Fprintln(e.stderr, "dlsbatch merge:", err)
+		return exitFatal
+	}
+	if !quiet {
+		report.WriteSummary(e.stdout, res.Results, res.Samples, res.Batch, 10)
+	}
+	return exitCode(res.Counts, res.Batch)
+}

@@ -1,0 +1,224 @@
+package batchrun
+
+import (
+	"bytes"
+	"context"
+	"encoding/json"
+	"fmt"
+	"os"
+	"path/filepath"
+	"sort"
+
+	"dlsbatch/dls"
+	"dlsbatch/io/csvdata"
+	"dlsbatch/io/report"
+	"dlsbatch/io/resultset"
+	"dlsbatch/io/sheet"
+	"dlsbatch/io/specfile"
+)
+
+// ErrShards marks result sets that cannot be merged into one batch.
+var ErrShards = fmt.Errorf("%w: the shards do not make one batch", ErrUsage)
+
+// MergeConfig is a merge of the sets of a batch's shards.
+type MergeConfig struct {
+	Dirs       []string // the shards' result folders
+	Out        string
+	Force      bool
+	HTMLReport bool
+}
+
+// Merge writes into cfg.Out the result set that one run over the whole
+// batch would have written: it checks that the shards share tool version,
+// settings and input root, are complete, disjoint, of one split and cover
+// it, then rebuilds samples, groups, verdicts and system suitability over
+// all measurements and writes every output.
+func Merge(ctx context.Context, cfg *MergeConfig) (*Outcome, error) {
+	if len(cfg.Dirs) == 0 {
+		return nil, fmt.Errorf("%w: name the shards' result folders", ErrUsage)
+	}
+	var mans []*report.Manifest
+	for _, d := range cfg.Dirs {
+		m, err := readManifest(d)
+		if err != nil {
+			return nil, fmt.Errorf("%w: %w", ErrUsage, err)
+		}
+		mans = append(mans, m)
+	}
+	if err := checkShards(cfg.Dirs, mans); err != nil {
+		return nil, err
+	}
+	first := mans[0]
+	root := first.Root
+	abs := func(rel string) string { return filepath.Join(root, filepath.FromSlash(rel)) }
+	out, err := resultset.Open(cfg.Out, append([]string{root}, cfg.Dirs...), cfg.Force)
+	if err != nil {
+		return nil, fmt.Errorf("%w: %w", ErrUsage, err)
+	}
+	defer out.Abort()
+
+	// Every measurement, grouped by input file; each file lies in one shard.
+	byFile := map[string][]*dls.Result{}
+	for _, d := range cfg.Dirs {
+		if err := readResults(filepath.Join(d, report.ResultsJSON), func(r *dls.Result) {
+			byFile[r.File] = append(byFile[r.File], r)
+		}); err != nil {
+			return nil, err
+		}
+	}
+	if len(byFile) != first.Shard.BatchInputs {
+		return nil, fmt.Errorf("%w: the shards hold %d input files, the batch has %d", ErrShards, len(byFile), first.Shard.BatchInputs)
+	}
+	names := make([]string, 0, len(byFile))
+	for f := range byFile {
+		names = append(names, f)
+	}
+	sort.Strings(names)
+	stream, err := report.NewStream(out.Staging)
+	if err != nil {
+		return nil, err
+	}
+	for _, f := range names {
+		if err := stream.Add(byFile[f]); err != nil {
+			return nil, err
+		}
+	}
+
+	rec := first.Settings
+	run := &Config{HTMLReport: cfg.HTMLReport, ExcludeOutliers: rec.ExcludeOutliers,
+		Record: func(string) *report.Settings { return rec }}
+	run.Settings.QC = rec.QCThresholds
+	var inputs []string
+	for _, m := range mans {
+		for _, h := range m.Inputs {
+			inputs = append(inputs, abs(h.Path))
+		}
+	}
+	sort.Slice(inputs, func(a, b int) bool { return inputs[a] < inputs[b] })
+	for _, t := range []struct {
+		rel string
+		dst *string
+	}{{rec.Sheet, &run.SheetFile}, {rec.Spec, &run.SpecFile}, {rec.SolventFile, &run.SolventFile}, {rec.QCThresholdsFile, &run.QCFile}} {
+		if t.rel != "" {
+			*t.dst = abs(t.rel)
+		}
+	}
+	var match *sheet.MatchReport
+	if run.SheetFile != "" {
+		if run.Sheet, err = sheet.ReadFile(run.SheetFile); err != nil {
+			return nil, fmt.Errorf("%w: sample sheet: %w", ErrUsage, err)
+		}
+		rels := map[string]string{}
+		for _, f := range inputs {
+			rels[f] = csvdata.Rel(root, f)
+		}
+		match = run.Sheet.Check(rec.Sheet, inputs, rels)
+		for i, f := range match.UnmatchedFiles {
+			match.UnmatchedFiles[i] = csvdata.Rel(root, f)
+		}
+	}
+	if run.SpecFile != "" {
+		if run.Spec, err = specfile.ReadFile(run.SpecFile); err != nil {
+			return nil, fmt.Errorf("%w: specification: %w", ErrUsage, err)
+		}
+	}
+	return publish(ctx, run, out, &published{root: root, inputs: inputs, match: match, stream: stream, complete: true})
+}
+
+func readManifest(dir string) (*report.Manifest, error) {
+	b, err := os.ReadFile(filepath.Join(dir, report.ManifestJSON))
+	if err != nil {
+		return nil, fmt.Errorf("%s: no result set: %w", dir, err)
+	}
+	var m report.Manifest
+	if err := json.Unmarshal(b, &m); err != nil {
+		return nil, fmt.Errorf("%s: %w", filepath.Join(dir, report.ManifestJSON), err)
+	}
+	return &m, nil
+}
+
+// checkShards says why the sets are not the complete, disjoint shards of
+// one split of one batch, if they are not.
+func checkShards(dirs []string, mans []*report.Manifest) error {
+	first := mans[0]
+	want, _ := json.Marshal(first.Settings)
+	seen := map[int]string{}
+	files := map[string]string{}
+	for i, m := range mans {
+		d := dirs[i]
+		switch {
+		case m.Shard == nil:
+			return fmt.Errorf("%w: %s is not the set of a shard (run with --shard)", ErrShards, d)
+		case !m.Complete:
+			return fmt.Errorf("%w: %s is incomplete (its run was interrupted)", ErrShards, d)
+		case m.Version != first.Version:
+			return fmt.Errorf("%w: %s was written by version %s, %s by %s", ErrShards, d, m.Version, dirs[0], first.Version)
+		case m.Root != first.Root:
+			return fmt.Errorf("%w: %s has input root %s, %s has %s", ErrShards, d, m.Root, dirs[0], first.Root)
+		case m.Shard.Count != first.Shard.Count || m.Shard.BatchSHA256 != first.Shard.BatchSHA256:
+			return fmt.Errorf("%w: %s is part of another split or another batch than %s", ErrShards, d, dirs[0])
+		}
+		if got, _ := json.Marshal(m.Settings); !bytes.Equal(got, want) {
+			return fmt.Errorf("%w: %s was run with other settings than %s", ErrShards, d, dirs[0])
+		}
+		if prev, dup := seen[m.Shard.Index]; dup {
+			return fmt.Errorf("%w: %s and %s are both shard %d", ErrShards, prev, d, m.Shard.Index)
+		}
+		seen[m.Shard.Index] = d
+		for _, h := range m.Inputs {
+			if prev, dup := files[h.Path]; dup {
+				return fmt.Errorf("%w: %s is in %s and %s", ErrShards, h.Path, prev, d)
+			}
+			files[h.Path] = d
+		}
+	}
+	if len(seen) != first.Shard.Count {
+		var missing []int
+		for k := range first.Shard.Count {
+			if _, ok := seen[k]; !ok {
+				missing = append(missing, k)
+			}
+		}
+		return fmt.Errorf("%w: %d of %d shards given; missing %v", ErrShards, len(seen), first.Shard.Count, missing)
+	}
+	return nil
+}
+
+// readResults calls add for every record of a results.json, one at a time.
+func readResults(path string, add func(*dls.Result)) error {
+	f, err := os.Open(path)
+	if err != nil {
+		return err
+	}
+	defer f.Close()
+	dec := json.NewDecoder(f)
+	if t, err := dec.Token(); err != nil || t != json.Delim('{') {
+		return fmt.Errorf("%s: not a results.json", path)
+	}
+	for dec.More() {
+		key, err := dec.Token()
+		if err != nil {
+			return fmt.Errorf("%s: %w", path, err)
+		}
+		if key != "results" {
+			var skip json.RawMessage
+			if err := dec.Decode(&skip); err != nil {
+				return fmt.Errorf("%s: %w", path, err)
+			}
+			continue
+		}
+		if _, err := dec.Token(); err != nil { // [
+			return fmt.Errorf("%s: %w", path, err)
+		}
+		for dec.More() {
+			var r dls.Result
+			if err := dec.Decode(&r); err != nil {
+				return fmt.Errorf("%s: %w", path, err)
+			}
+			add(&r)
+		}
+		return nil
+	}
+	return fmt.Errorf("%s: no results", path)
+}
+
