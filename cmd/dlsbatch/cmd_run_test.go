@@ -336,6 +336,8 @@ func TestHelpListsExitCodes(t *testing.T) {
 	}{
 		{[]string{"run", "--help"}, []string{"0 ", "1 ", "2 ", "3 ", "4 ", "5 ", "130"}},
 		{[]string{"verify", "--help"}, []string{"0 ", "1 ", "2 "}},
+		{[]string{"diff", "--help"}, []string{"0 ", "1 ", "2 "}},
+		{[]string{"merge", "--help"}, []string{"0 ", "1 ", "2 ", "4 ", "5 "}},
 		{[]string{"simulate", "--help"}, []string{"0 ", "1 ", "2 ", "130"}},
 		{[]string{"solvents", "--help"}, []string{"0 ", "1 ", "2 "}},
 		{[]string{"flags", "--help"}, []string{"0 ", "2 "}},

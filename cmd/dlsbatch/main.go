@@ -67,6 +67,7 @@ func subcommands() []subcommand {
 		{"flags", "list the quality-control flags with their meaning and threshold", runFlags},
 		{"verify", "check a result folder against its manifest", runVerify},
 		{"merge", "merge the result sets of a batch's shards into one", runMerge},
+		{"diff", "compare two result sets within tolerances (for CI)", runDiff},
 	}
 }
 
