@@ -221,4 +221,3 @@ func readResults(path string, add func(*dls.Result)) error {
 	}
 	return fmt.Errorf("%s: no results", path)
 }
-
