@@ -1,19 +1,17 @@
 package main
 
 import (
-	"bytes"
 	"context"
+	"errors"
 	"fmt"
 	"math"
 	"os"
-	"path/filepath"
-	"sort"
 
 	"github.com/spf13/pflag"
 
+	"dlsbatch/dls"
 	"dlsbatch/dls/mie"
 	"dlsbatch/dls/sim"
-	"dlsbatch/io/atomicfile"
 	"dlsbatch/io/simplan"
 )
 
@@ -140,83 +138,33 @@ func (o *simOptions) runSingle(e env, grid *sim.Grid, fail func(int, any) int) i
 	if o.output != "" && o.output == o.truth {
 		return fail(exitUsage, "--output and --truth name the same file")
 	}
-	j := o.job
-	j.File = filepath.Base(o.output)
-	if o.output == "" {
-		j.File = "-"
-	}
-	res, err := j.Run(grid, o.jobOptions())
-	if err != nil {
+	warn := func(msg string) { fmt.Fprintln(e.stderr, "dlsbatch simulate: warning:", msg) }
+	var fe *sim.FieldError
+	switch err := simplan.RunSingle(o.job, grid, o.jobOptions(), o.output, o.truth, e.stdout, warn); {
+	case errors.As(err, &fe):
 		return fail(exitUsage, err)
-	}
-	for _, w := range res.Warnings {
-		fmt.Fprintln(e.stderr, "dlsbatch simulate: warning:", w)
-	}
-	var b bytes.Buffer
-	if err := simplan.WriteCorrelogram(&b, res); err != nil {
+	case err != nil:
 		return fail(exitFatal, err)
-	}
-	if o.output == "" {
-		_, err = e.stdout.Write(b.Bytes())
-	} else {
-		err = atomicfile.Write(o.output, b.Bytes())
-	}
-	if err != nil {
-		return fail(exitFatal, err)
-	}
-	if o.truth != "" {
-		t, err := simplan.TruthJSON([]sim.TruthRecord{res.Truth}, "dlsbatch simulate")
-		if err == nil {
-			err = atomicfile.Write(o.truth, t)
-		}
-		if err != nil {
-			return fail(exitFatal, err)
-		}
 	}
 	return exitOK
 }
 
 func (o *simOptions) runPlan(ctx context.Context, e env, grid *sim.Grid, fail func(int, any) int) int {
 	entries, err := simplan.ReadFile(o.plan, o.job)
-	if err != nil {
-		return fail(exitUsage, err)
-	}
-	if err := simplan.CheckOutDir(o.out, o.plan, o.force); err != nil {
-		return fail(exitUsage, err)
-	}
-	files := make([][]byte, len(entries))
-	truths := make([]sim.TruthRecord, len(entries))
-	for i, en := range entries {
-		if ctx.Err() != nil {
-			return fail(exitInterrupted, "interrupted; nothing written")
-		}
-		res, err := en.Job.Run(grid, o.jobOptions())
-		if err != nil {
-			return fail(exitUsage, en.At(err))
-		}
-		for _, w := range res.Warnings {
-			fmt.Fprintf(e.stderr, "dlsbatch simulate: warning: %s:%d: %s\n", o.plan, en.Line, w)
-		}
-		var b bytes.Buffer
-		if err := simplan.WriteCorrelogram(&b, res); err != nil {
-			return fail(exitUsage, en.At(err))
-		}
-		files[i], truths[i] = b.Bytes(), res.Truth
-	}
-	if err := os.MkdirAll(o.out, 0o755); err != nil {
-		return fail(exitFatal, err)
-	}
-	for i, en := range entries {
-		if err := atomicfile.Write(filepath.Join(o.out, en.Job.File), files[i]); err != nil {
-			return fail(exitFatal, err)
-		}
-	}
-	sort.Slice(truths, func(a, b int) bool { return truths[a].File < truths[b].File })
-	t, err := simplan.TruthJSON(truths, "dlsbatch simulate")
 	if err == nil {
-		err = atomicfile.Write(filepath.Join(o.out, "truth.json"), t)
+		err = simplan.CheckOutDir(o.out, o.plan, o.force)
 	}
 	if err != nil {
+		return fail(exitUsage, err)
+	}
+	warn := func(msg string) { fmt.Fprintln(e.stderr, "dlsbatch simulate: warning:", msg) }
+	var pe *dls.PosError
+	switch err := simplan.RunPlan(ctx, entries, grid, o.jobOptions(), o.out, warn); {
+	case errors.Is(err, context.Canceled):
+		return fail(exitInterrupted, "interrupted; nothing written")
+	case errors.As(err, &pe):
+		return fail(exitUsage, err)
+	case err != nil:
 		return fail(exitFatal, err)
 	}
 	fmt.Fprintf(e.stderr, "dlsbatch simulate: wrote %d files and truth.json to %s\n", len(entries), o.out)

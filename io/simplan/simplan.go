@@ -19,17 +19,20 @@ package simplan
 
 import (
 	"bytes"
+	"context"
 	"encoding/json"
 	"errors"
 	"fmt"
 	"io"
 	"os"
 	"path/filepath"
+	"sort"
 	"strconv"
 	"strings"
 
 	"dlsbatch/dls"
 	"dlsbatch/dls/sim"
+	"dlsbatch/io/atomicfile"
 	"dlsbatch/io/csvdata"
 	"dlsbatch/io/csvtable"
 )
@@ -262,4 +265,79 @@ func CheckOutDir(dir, plan string, force bool) error {
 		return fmt.Errorf("--out %s exists and is not empty; use --force to write into it", dir)
 	}
 	return nil
+}
+
+// RunPlan simulates every entry and writes its correlogram and, last,
+// truth.json (sorted by file) into dir; nothing is written unless every
+// entry simulates. Errors about an entry are *dls.PosError in the plan; a
+// cancelled ctx stops before anything is written; warn receives the
+// warnings of each entry with its plan line.
+func RunPlan(ctx context.Context, entries []Entry, grid *sim.Grid, o sim.JobOptions, dir string, warn func(string)) error {
+	files := make([][]byte, len(entries))
+	truths := make([]sim.TruthRecord, len(entries))
+	for i, en := range entries {
+		if err := ctx.Err(); err != nil {
+			return err
+		}
+		res, err := en.Job.Run(grid, o)
+		if err != nil {
+			return en.At(err)
+		}
+		for _, w := range res.Warnings {
+			warn(fmt.Sprintf("%s:%d: %s", en.t.File, en.Line, w))
+		}
+		var b bytes.Buffer
+		if err := WriteCorrelogram(&b, res); err != nil {
+			return en.At(err)
+		}
+		files[i], truths[i] = b.Bytes(), res.Truth
+	}
+	if err := os.MkdirAll(dir, 0o755); err != nil {
+		return err
+	}
+	for i, en := range entries {
+		if err := atomicfile.Write(filepath.Join(dir, en.Job.File), files[i]); err != nil {
+			return err
+		}
+	}
+	sort.Slice(truths, func(a, b int) bool { return truths[a].File < truths[b].File })
+	t, err := TruthJSON(truths, "dlsbatch simulate")
+	if err != nil {
+		return err
+	}
+	return atomicfile.Write(filepath.Join(dir, "truth.json"), t)
+}
+
+// RunSingle simulates one job and writes its correlogram to output ("" =
+// stdout) and its truth record to truth ("" = none). Errors about the job
+// are *sim.FieldError.
+func RunSingle(j sim.Job, grid *sim.Grid, o sim.JobOptions, output, truth string, stdout io.Writer, warn func(string)) error {
+	j.File = filepath.Base(output)
+	if output == "" {
+		j.File = "-"
+	}
+	res, err := j.Run(grid, o)
+	if err != nil {
+		return err
+	}
+	for _, w := range res.Warnings {
+		warn(w)
+	}
+	var b bytes.Buffer
+	if err := WriteCorrelogram(&b, res); err != nil {
+		return err
+	}
+	if output == "" {
+		_, err = stdout.Write(b.Bytes())
+	} else {
+		err = atomicfile.Write(output, b.Bytes())
+	}
+	if err != nil || truth == "" {
+		return err
+	}
+	t, err := TruthJSON([]sim.TruthRecord{res.Truth}, "dlsbatch simulate")
+	if err != nil {
+		return err
+	}
+	return atomicfile.Write(truth, t)
 }
