@@ -9,7 +9,6 @@ import (
 	"runtime"
 	"strings"
 
-	"github.com/schollz/progressbar/v3"
 	"github.com/spf13/pflag"
 
 	"dlsbatch/contin"
@@ -23,6 +22,7 @@ import (
 	"dlsbatch/io/batchrun"
 	"dlsbatch/io/csvdata"
 	"dlsbatch/io/profile"
+	"dlsbatch/io/progress"
 	"dlsbatch/io/qcfile"
 	"dlsbatch/io/report"
 	"dlsbatch/io/safetext"
@@ -41,7 +41,7 @@ type runOptions struct {
 	tauCol, tauUnit, sigmaCol                        string // foreign CSV columns
 	corrCols, includeGlobs, excludeGlobs             []string
 	shard                                            string
-	corrKind, method, criterion                      *enumFlag
+	corrKind, method, criterion, progress            *enumFlag
 	jobs, order, gridPoints                          int
 	maxFileMB, maxRows, maxColumns                   int // input limits
 	cutoff, minLagS, lambda, target                  float64
@@ -56,6 +56,7 @@ func newRunOptions() *runOptions {
 		set:      paramsFlag{flag: "set", origin: dls.OriginFlag},
 		defaults: paramsFlag{flag: "default", origin: dls.OriginDefault},
 		corrKind: newEnum("", "g2", "g2m1", "g1"),
+		progress: newEnum(progress.Auto, progress.Modes()...),
 		method:   newEnum(d.Method.String(), "nonlinear", "linear"),
 		criterion: newEnum(contin.ProbReject.String(), contin.ProbReject.String(), contin.GCV.String(),
 			contin.LCurve.String(), contin.Fixed.String()),
@@ -68,6 +69,7 @@ func (o *runOptions) addFlags(fs *pflag.FlagSet) {
 	fs.StringVarP(&o.out, "out", "o", "", "folder for results.csv and results.json (required; must not lie inside an input folder)")
 	fs.IntVarP(&o.jobs, "jobs", "j", runtime.NumCPU(), "files analysed in parallel; output is the same for any value")
 	fs.BoolVarP(&o.quiet, "quiet", "q", false, "print no summary and no progress")
+	fs.Var(o.progress, "progress", "progress on stderr: auto (a bar on a terminal, else a line every 10 % or 10 s), bar, lines or none")
 	fs.BoolVar(&o.force, "force", false, "replace results already in the --out folder")
 	fs.Var(&o.set, "set", "metadata for every measurement, over file and sheet values (repeatable), e.g. --set temperature_c=25")
 	fs.Var(&o.defaults, "default", "metadata used where no file or sheet gives it (repeatable), e.g. --default angle_deg=173")
@@ -170,20 +172,10 @@ func runRun(ctx context.Context, e env, args []string) int {
 			return fail(exitUsage, err)
 		}
 	}
-	if e.stderrIsTerminal && !o.quiet {
-		var bar *progressbar.ProgressBar
-		cfg.Progress = func(done, total int) {
-			if bar == nil {
-				bar = progressbar.NewOptions(total, progressbar.OptionSetWriter(e.stderr),
-					progressbar.OptionSetDescription("analysing"), progressbar.OptionShowCount(), progressbar.OptionClearOnFinish())
-			}
-			bar.Set(done)
-		}
-		defer func() {
-			if bar != nil {
-				bar.Finish()
-			}
-		}()
+	if mode := o.progress.value; !o.quiet && mode != progress.None {
+		bars := progress.New(e.stderr, mode, e.stderrIsTerminal, "dlsbatch run: ")
+		cfg.Progress = bars.Update
+		defer bars.Done()
 	}
 	res, err := batchrun.Run(ctx, cfg)
 	switch {

@@ -430,7 +430,7 @@ func TestHostileSheetNamesInReport(t *testing.T) {
 		}
 		return nil
 	})
-	want := "manifest.json report/index.html report/sample-0001.html report/sample-0002.html results.csv results.json samples.csv"
+	want := "manifest.json report/index.html report/sample-0001.html report/sample-0002.html results.csv results.json samples.csv summary.txt"
 	if strings.Join(names, " ") != want {
 		t.Errorf("files written: %v, want %s", names, want)
 	}

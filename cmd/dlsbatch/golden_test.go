@@ -7,6 +7,7 @@ import (
 	"fmt"
 	"os"
 	"path/filepath"
+	"regexp"
 	"strings"
 	"testing"
 )
@@ -47,6 +48,13 @@ func TestDemoGolden(t *testing.T) {
 			if code != c.code {
 				t.Fatalf("exit %d, want %d\nstderr:\n%s", code, c.code, stderr)
 			}
+			// summary.txt is the morning summary as printed, less the line
+			// that names the output folder.
+			if sum, err := os.ReadFile(filepath.Join(out, "summary.txt")); err != nil {
+				t.Error(err)
+			} else if want := regexpResults.ReplaceAllString(stdout, ""); string(sum) != want {
+				t.Errorf("summary.txt differs from the printed summary: %s", firstDiff([]byte(want), sum))
+			}
 			stdout = strings.ReplaceAll(stdout, out, "OUT")
 			golden := filepath.Join(root, "testdata", "golden", c.name)
 			files := []string{"results.csv", "samples.csv", "results.json", "manifest.json"}
@@ -84,6 +92,8 @@ func TestDemoGolden(t *testing.T) {
 		})
 	}
 }
+
+var regexpResults = regexp.MustCompile(`(?m)^results: .*\n`)
 
 func quote(s string) string {
 	b, _ := json.Marshal(s)

@@ -48,9 +48,10 @@ type Config struct {
 	Workers          int
 	// Record builds the settings record for the input root.
 	Record func(root string) *report.Settings
-	// Progress, when set, is told how many input files are done of how
-	// many, from any goroutine (it must be safe for concurrent use).
-	Progress func(done, total int)
+	// Progress, when set, is told how many items of a phase ("analysing"
+	// files, "report" pages, "hashing" files) are done of how many, from any
+	// goroutine (it must be safe for concurrent use).
+	Progress func(phase string, done, total int)
 	// Warn receives the messages a person should see (input problems,
 	// sample-sheet mismatches); nil drops them.
 	Warn func(msg string)
@@ -158,7 +159,7 @@ func Run(ctx context.Context, cfg *Config) (*Outcome, error) {
 		rn.Progress = func(string) {
 			mu.Lock()
 			n++
-			cfg.Progress(n, len(paths))
+			cfg.Progress("analysing", n, len(paths))
 			mu.Unlock()
 		}
 	}
@@ -205,7 +206,7 @@ func publish(ctx context.Context, cfg *Config, out *resultset.Set, p *published)
 		Groups: &groups, Samples: o.Samples, Results: o.Results,
 	}
 	set := &report.Set{Doc: doc, HTMLReport: cfg.HTMLReport && o.Complete, Root: p.root, Inputs: p.inputs, Stream: p.stream,
-		Shard: p.shard}
+		Shard: p.shard, Progress: cfg.Progress}
 	for _, t := range []string{cfg.SheetFile, cfg.SpecFile, cfg.SolventFile, cfg.QCFile} {
 		if t != "" {
 			set.Tables = append(set.Tables, t)

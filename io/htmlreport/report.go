@@ -44,6 +44,9 @@ type Report struct {
 	// distributions, parameters), so that Results may hold compact copies
 	// and memory need not hold every curve of a large batch.
 	Load func(i int) (*dls.Result, error)
+	// Progress, when set, is called after each page is written (from the
+	// goroutines that write them).
+	Progress func()
 	// Batch is the batch-level outcome shown in the index banner.
 	Batch BatchStatus
 	// MaxPlotRuns is the largest number of runs plotted on one sample page
@@ -187,6 +190,9 @@ func WriteContext(ctx context.Context, dir string, r *Report) ([]string, error) 
 				b.Reset()
 				if errs[i] = renderSample(&b, r, i); errs[i] == nil {
 					errs[i] = writeFile(dir, SamplePageName(i), b.Bytes())
+				}
+				if r.Progress != nil {
+					r.Progress()
 				}
 			}
 		}()

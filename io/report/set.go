@@ -11,6 +11,7 @@ import (
 	"io"
 	"os"
 	"path/filepath"
+	"sync"
 
 	"dlsbatch/dls"
 	"dlsbatch/io/atomicfile"
@@ -30,6 +31,8 @@ type Set struct {
 	// for an incomplete document, only the inputs with results.
 	Root           string
 	Inputs, Tables []string
+	// Progress, when set, hears of report pages and hashed inputs.
+	Progress func(phase string, done, total int)
 	// Shard is recorded in the manifest of one shard's set.
 	Shard *ShardInfo
 	// Stream, when set, holds the full records of Doc.Results (which are
@@ -43,6 +46,7 @@ const (
 	SamplesCSV   = "samples.csv"
 	ResultsJSON  = "results.json"
 	ManifestJSON = "manifest.json"
+	SummaryTxt   = "summary.txt"
 	ReportDir    = "report"
 )
 
@@ -78,6 +82,7 @@ func WriteSet(ctx context.Context, dir string, s *Set) error {
 		name  string
 		write func(w io.Writer) error
 	}{
+		{SummaryTxt, func(w io.Writer) error { return writeSummaryFile(w, d) }},
 		{ResultsCSV, func(w io.Writer) error { return writeCSV(w, len(d.Results), row) }},
 		{SamplesCSV, func(w io.Writer) error { return WriteSamplesCSV(w, d.Samples, d.Results) }},
 		{ResultsJSON, func(w io.Writer) error { return writeJSON(w, d, result) }},
@@ -95,6 +100,16 @@ func WriteSet(ctx context.Context, dir string, s *Set) error {
 	if s.HTMLReport {
 		rep := htmlreport.FromRun(htmlreport.Run{Tool: d.Tool, Version: d.Version, Caution: d.Caution,
 			Settings: d.Settings, Results: d.Results, Samples: d.Samples, Batch: d.Batch, Load: load})
+		if s.Progress != nil {
+			var mu sync.Mutex
+			n := 0
+			rep.Progress = func() {
+				mu.Lock()
+				n++
+				s.Progress("report", n, len(d.Samples)+1)
+				mu.Unlock()
+			}
+		}
 		names, err := htmlreport.WriteContext(ctx, filepath.Join(dir, ReportDir), rep)
 		if err != nil {
 			return fmt.Errorf("report: %w", err)
@@ -112,9 +127,12 @@ func WriteSet(ctx context.Context, dir string, s *Set) error {
 		paths []string
 		dst   *[]FileHash
 	}{{inputs, &m.Inputs}, {s.Tables, &m.Tables}} {
-		for _, f := range list.paths {
+		for i, f := range list.paths {
 			if err := ctx.Err(); err != nil {
 				return err
+			}
+			if s.Progress != nil && list.dst == &m.Inputs {
+				s.Progress("hashing", i+1, len(list.paths))
 			}
 			h, err := HashFile(f)
 			if err != nil {
@@ -179,4 +197,17 @@ func analysed(root string, inputs []string, results []*dls.Result) []string {
 		}
 	}
 	return out
+}
+
+// writeSummaryFile writes summary.txt: the morning summary as the command
+// prints it, with the caution, and a word when the set is incomplete.
+func writeSummaryFile(w io.Writer, d *Document) error {
+	if !d.Complete {
+		fmt.Fprintf(w, "INCOMPLETE: the run was interrupted; %d measurements finished, no verdicts.\n\n", len(d.Results))
+	}
+	if err := WriteSummary(w, d.Results, d.Samples, d.Batch, 10); err != nil {
+		return err
+	}
+	_, err := fmt.Fprintln(w, Caution)
+	return err
 }
