@@ -35,19 +35,19 @@ import (
 type runOptions struct {
 	set, defaults paramsFlag
 
-	cpuProfile, memProfile                           string
-	out, particleRI                                  string // output folder; default particle index
-	solventFile, sheetFile, specFile, qcFile         string // tables
-	tauCol, tauUnit, sigmaCol                        string // foreign CSV columns
-	corrCols, includeGlobs, excludeGlobs             []string
-	shard                                            string
-	corrKind, method, criterion, progress            *enumFlag
-	jobs, order, gridPoints                          int
-	maxFileMB, maxRows, maxColumns                   int // input limits
-	cutoff, minLagS, lambda, target                  float64
-	uTempK, uViscRel, uIndex, uAngleDeg              float64 // Type B uncertainties
-	quiet, force, extrapolate, noCurves, implausible bool
-	exclude, noReport, noDist                        bool
+	cpuProfile, memProfile                                   string
+	out, particleRI                                          string // output folder; default particle index
+	solventFile, sheetFile, specFile, qcFile                 string // tables
+	tauCol, tauUnit, sigmaCol                                string // foreign CSV columns
+	corrCols, includeGlobs, excludeGlobs                     []string
+	shard                                                    string
+	corrKind, method, criterion, progress                    *enumFlag
+	jobs, order, gridPoints                                  int
+	maxFileMB, maxRows, maxColumns                           int // input limits
+	cutoff, minLagS, lambda, target                          float64
+	uTempK, uViscRel, uIndex, uAngleDeg                      float64 // Type B uncertainties
+	quiet, force, resume, extrapolate, noCurves, implausible bool
+	exclude, noReport, noDist                                bool
 }
 
 func newRunOptions() *runOptions {
@@ -71,6 +71,7 @@ func (o *runOptions) addFlags(fs *pflag.FlagSet) {
 	fs.BoolVarP(&o.quiet, "quiet", "q", false, "print no summary and no progress")
 	fs.Var(o.progress, "progress", "progress on stderr: auto (a bar on a terminal, else a line every 10 % or 10 s), bar, lines or none")
 	fs.BoolVar(&o.force, "force", false, "replace results already in the --out folder")
+	fs.BoolVar(&o.resume, "resume", false, "after a run into --out was killed or interrupted, analyse only the files it had not finished (implies --force)")
 	fs.Var(&o.set, "set", "metadata for every measurement, over file and sheet values (repeatable), e.g. --set temperature_c=25")
 	fs.Var(&o.defaults, "default", "metadata used where no file or sheet gives it (repeatable), e.g. --default angle_deg=173")
 	fs.StringVar(&o.tauCol, "lag-column", "", "name of the lag column in a foreign CSV")
@@ -151,7 +152,7 @@ func runRun(ctx context.Context, e env, args []string) int {
 			return fail(exitUsage, err)
 		}
 	}
-	cfg := &batchrun.Config{Paths: paths, Out: o.out, Force: o.force, Settings: settings, Read: readOpts,
+	cfg := &batchrun.Config{Paths: paths, Out: o.out, Force: o.force || o.resume, Resume: o.resume, Settings: settings, Read: readOpts,
 		Include: o.includeGlobs, Exclude: o.excludeGlobs, Shard: shard,
 		SheetFile: o.sheetFile, SpecFile: o.specFile, SolventFile: o.solventFile, QCFile: o.qcFile,
 		ExcludeOutliers: o.exclude, HTMLReport: !o.noReport, Workers: o.jobs,

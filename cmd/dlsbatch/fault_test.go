@@ -1,6 +1,7 @@
 package main
 
 import (
+	"bytes"
 	"context"
 	"errors"
 	"fmt"
@@ -181,4 +182,49 @@ func isExit(err error, codes ...int) bool {
 		}
 	}
 	return false
+}
+
+// TestResumeAfterKill: a run killed with SIGKILL part way, then resumed,
+// writes the bytes of an uninterrupted run (every output, the manifest
+// with the report's hashes included) and takes the files finished before
+// the kill from the journal instead of analysing them again.
+func TestResumeAfterKill(t *testing.T) {
+	if testing.Short() {
+		t.Skip("runs the command")
+	}
+	in := faultBatch(t)
+	tmp := t.TempDir()
+	ref := filepath.Join(tmp, "ref")
+	base := []string{"run", in, "-q", "-j", "2", "--progress", "none"}
+	if b, err := child(t, append(base, "--out", ref)...).CombinedOutput(); err != nil && !isExit(err, exitOK) {
+		t.Fatalf("reference: %v\n%s", err, b)
+	}
+	out := filepath.Join(tmp, "out")
+	for _, delay := range []time.Duration{300 * time.Millisecond, 700 * time.Millisecond} {
+		os.RemoveAll(out)
+		cmd := child(t, append(base, "--out", out)...)
+		if err := cmd.Start(); err != nil {
+			t.Fatal(err)
+		}
+		time.Sleep(delay)
+		cmd.Process.Signal(syscall.SIGKILL)
+		cmd.Wait()
+		var stderr strings.Builder
+		res := child(t, append(base, "--out", out, "--resume")...)
+		res.Stderr = &stderr
+		if err := res.Run(); err != nil && !isExit(err, exitOK) {
+			t.Fatalf("resume: %v\n%s", err, stderr.String())
+		}
+		for _, f := range []string{"results.csv", "samples.csv", "results.json", "manifest.json", "summary.txt"} {
+			a, _ := os.ReadFile(filepath.Join(ref, f))
+			b, _ := os.ReadFile(filepath.Join(out, f))
+			if !bytes.Equal(a, b) {
+				t.Errorf("kill after %v: %s differs from the uninterrupted run: %s", delay, f, firstDiff(a, b))
+			}
+		}
+		t.Logf("kill after %v, then resume: %s", delay, strings.TrimSpace(stderr.String()))
+		if _, err := os.Stat(filepath.Join(tmp, ".out.journal")); !errors.Is(err, os.ErrNotExist) {
+			t.Error("the journal of a published run was kept")
+		}
+	}
 }

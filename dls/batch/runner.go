@@ -33,6 +33,9 @@ type Runner struct {
 	// file before it are done; Run then returns no results. With it,
 	// memory holds at most a window of files' results, not the batch.
 	Emit func(results []*dls.Result) error
+	// Cached, when set, may give the results of a file already analysed
+	// (a resumed run's journal); the file is then not read or analysed.
+	Cached func(path string) ([]*dls.Result, bool)
 }
 
 // Run reads and analyses every path and returns one result per measurement,
@@ -134,6 +137,11 @@ func (rn *Runner) Run(ctx context.Context, paths []string) ([]*dls.Result, error
 }
 
 func (rn *Runner) analyzeFile(path string) []*dls.Result {
+	if rn.Cached != nil {
+		if res, ok := rn.Cached(path); ok {
+			return res
+		}
+	}
 	inputs := rn.Read(path)
 	res := make([]*dls.Result, 0, len(inputs))
 	for _, in := range inputs {

@@ -10,6 +10,7 @@ package batchrun
 
 import (
 	"context"
+	"encoding/json"
 	"errors"
 	"fmt"
 	"sort"
@@ -30,6 +31,10 @@ type Config struct {
 	Paths []string // input files and folders, as named
 	Out   string   // output folder
 	Force bool     // replace an existing result set
+	// Resume takes, from the journal of an earlier run into Out that did
+	// not finish, the results of every file unchanged since, with the same
+	// settings and tool version (see journal.go).
+	Resume bool
 
 	Settings batch.Settings
 	Read     *csvdata.Options
@@ -136,7 +141,23 @@ func Run(ctx context.Context, cfg *Config) (*Outcome, error) {
 	if err != nil {
 		return nil, err
 	}
+	key, err := settingsKey(cfg, root)
+	if err != nil {
+		return nil, err
+	}
+	jr, err := openJournal(journalPath(out.Dir), key, cfg.Resume)
+	if err != nil {
+		return nil, err
+	}
+	published := false
+	defer func() { jr.close(published) }()
 	rn := &batch.Runner{
+		Cached: func(path string) ([]*dls.Result, bool) {
+			if _, problem := found.Failed(path); problem {
+				return nil, false
+			}
+			return jr.cached(csvdata.Rel(root, path), fileSHA256(path))
+		},
 		Read: func(path string) []batch.Input {
 			if in, failed := found.Failed(path); failed {
 				return in
@@ -151,7 +172,12 @@ func Run(ctx context.Context, cfg *Config) (*Outcome, error) {
 		},
 		Settings: cfg.Settings,
 		Workers:  cfg.Workers,
-		Emit:     stream.Add,
+		Emit: func(res []*dls.Result) error {
+			if err := jr.add(res); err != nil {
+				return err
+			}
+			return stream.Add(res)
+		},
 	}
 	if cfg.Progress != nil {
 		var mu sync.Mutex
@@ -164,6 +190,10 @@ func Run(ctx context.Context, cfg *Config) (*Outcome, error) {
 		}
 	}
 	_, runErr := rn.Run(ctx, paths)
+	if cfg.Resume {
+		warn(fmt.Sprintf("resumed: %d files taken from the journal, %d of its entries ignored (other settings, tool version or file content)",
+			jr.reused, jr.ignored))
+	}
 	if runErr != nil && ctx.Err() == nil {
 		return nil, runErr // results could not be kept (e.g. a full disk)
 	}
@@ -171,12 +201,30 @@ func Run(ctx context.Context, cfg *Config) (*Outcome, error) {
 	if cfg.Shard.Count > 1 {
 		shard = cfg.Shard.Info(all, root)
 	}
-	return publish(ctx, cfg, out, &published{root: root, inputs: files, match: match, stream: stream,
+	o, err := publish(ctx, cfg, out, &publishing{root: root, inputs: files, match: match, stream: stream,
 		complete: runErr == nil, shard: shard})
+	published = err == nil && o.Complete
+	return o, err
 }
 
-// published is what a run (or a merge) hands over to be written.
-type published struct {
+// settingsKey is what a journal entry must match besides the input: the
+// settings record and the content of every table (a sheet changes the
+// metadata of the measurements).
+func settingsKey(cfg *Config, root string) ([]byte, error) {
+	b, err := json.Marshal(cfg.Record(root))
+	if err != nil {
+		return nil, err
+	}
+	for _, t := range []string{cfg.SheetFile, cfg.SpecFile, cfg.SolventFile, cfg.QCFile} {
+		if t != "" {
+			b = append(b, "\n"+fileSHA256(t)...)
+		}
+	}
+	return b, nil
+}
+
+// publishing is what a run (or a merge) hands over to be written.
+type publishing struct {
 	root     string
 	inputs   []string // files analysed, as paths the process can open
 	match    *sheet.MatchReport
@@ -186,7 +234,7 @@ type published struct {
 }
 
 // publish aggregates, judges, writes and swaps in the set of p.
-func publish(ctx context.Context, cfg *Config, out *resultset.Set, p *published) (*Outcome, error) {
+func publish(ctx context.Context, cfg *Config, out *resultset.Set, p *publishing) (*Outcome, error) {
 	o := &Outcome{Results: p.stream.Results(), Complete: p.complete}
 	// A shard leaves the group analyses to the merge: a group may span
 	// shards, and its records must reach the merge as analysed.

@@ -122,7 +122,7 @@ func Merge(ctx context.Context, cfg *MergeConfig) (*Outcome, error) {
 			return nil, fmt.Errorf("%w: specification: %w", ErrUsage, err)
 		}
 	}
-	return publish(ctx, run, out, &published{root: root, inputs: inputs, match: match, stream: stream, complete: true})
+	return publish(ctx, run, out, &publishing{root: root, inputs: inputs, match: match, stream: stream, complete: true})
 }
 
 func readManifest(dir string) (*report.Manifest, error) {

@@ -1,0 +1,163 @@
+package batchrun
+
+import (
+	"bufio"
+	"crypto/sha256"
+	"encoding/hex"
+	"encoding/json"
+	"errors"
+	"fmt"
+	"io"
+	"io/fs"
+	"os"
+	"path/filepath"
+	"sync"
+
+	"dlsbatch/dls"
+	"dlsbatch/io/report"
+)
+
+// The journal records each input file's results as the run finishes them,
+// one JSON line per file, in .DIR.journal beside the output folder: a
+// run killed at any point (or a power cut) leaves it, and `run --resume`
+// takes the results of every file whose content, settings and tool
+// version are unchanged from it instead of analysing the file again. A
+// complete, published run removes it.
+//
+//	{"input_sha256":…, "settings_sha256":…, "version":…, "file":…, "results":[…]}
+type journalEntry struct {
+	InputSHA256    string        `json:"input_sha256"`
+	SettingsSHA256 string        `json:"settings_sha256"`
+	Version        string        `json:"version"`
+	File           string        `json:"file"`
+	Results        []*dls.Result `json:"results"`
+}
+
+// journalPath is the journal of the output folder out.
+func journalPath(out string) string {
+	abs, err := filepath.Abs(out)
+	if err != nil {
+		abs = out
+	}
+	return filepath.Join(filepath.Dir(abs), "."+filepath.Base(abs)+".journal")
+}
+
+// journal is an open journal of a run.
+type journal struct {
+	mu       sync.Mutex
+	f        *os.File
+	w        *bufio.Writer
+	settings string // SHA-256 of the settings and tables
+	version  string
+	old      map[string]journalEntry // by file, from a resumed journal
+	hashes   sync.Map                // rel file → input SHA-256
+	reused   int
+	ignored  int
+}
+
+// openJournal starts the journal of a run. With resume, the entries of an
+// earlier journal are loaded first (and kept in the new one as they are
+// reused); without, an old journal is discarded.
+func openJournal(path string, settings []byte, resume bool) (*journal, error) {
+	h := sha256.Sum256(settings)
+	j := &journal{settings: hex.EncodeToString(h[:]), version: report.Version(), old: map[string]journalEntry{}}
+	if resume {
+		if err := j.load(path); err != nil {
+			return nil, err
+		}
+	}
+	f, err := os.OpenFile(path, os.O_WRONLY|os.O_CREATE|os.O_TRUNC, 0o644)
+	if err != nil {
+		return nil, fmt.Errorf("journal: %w", err)
+	}
+	j.f, j.w = f, bufio.NewWriterSize(f, 1<<16)
+	return j, nil
+}
+
+func (j *journal) load(path string) error {
+	f, err := os.Open(path)
+	if errors.Is(err, fs.ErrNotExist) {
+		return nil
+	}
+	if err != nil {
+		return fmt.Errorf("journal: %w", err)
+	}
+	defer f.Close()
+	dec := json.NewDecoder(f)
+	for {
+		var e journalEntry
+		err := dec.Decode(&e)
+		if errors.Is(err, io.EOF) {
+			return nil
+		}
+		if err != nil {
+			return nil // a line cut by the kill: what came before stands
+		}
+		if e.SettingsSHA256 != j.settings || e.Version != j.version {
+			j.ignored++
+			continue
+		}
+		j.old[e.File] = e
+	}
+}
+
+// cached gives the journal's results for the file named rel whose
+// content has the SHA-256 sum.
+func (j *journal) cached(rel, sum string) ([]*dls.Result, bool) {
+	j.hashes.Store(rel, sum)
+	e, ok := j.old[rel]
+	if !ok {
+		return nil, false
+	}
+	j.mu.Lock()
+	defer j.mu.Unlock()
+	if e.InputSHA256 != sum {
+		j.ignored++
+		return nil, false
+	}
+	j.reused++
+	return e.Results, true
+}
+
+// add records the results of one file (called in input order).
+func (j *journal) add(results []*dls.Result) error {
+	if len(results) == 0 {
+		return nil
+	}
+	rel := results[0].File
+	sum, _ := j.hashes.Load(rel)
+	s, _ := sum.(string)
+	b, err := json.Marshal(journalEntry{InputSHA256: s, SettingsSHA256: j.settings, Version: j.version, File: rel, Results: results})
+	if err != nil {
+		return fmt.Errorf("journal: %w", err)
+	}
+	j.mu.Lock()
+	defer j.mu.Unlock()
+	if _, err := j.w.Write(append(b, '\n')); err != nil {
+		return fmt.Errorf("journal: %w", err)
+	}
+	return j.w.Flush() // each file's line reaches the file system as it is done
+}
+
+// close ends the journal; remove deletes it (the run is published whole).
+func (j *journal) close(remove bool) {
+	j.w.Flush()
+	j.f.Close()
+	if remove {
+		os.Remove(j.f.Name())
+	}
+}
+
+// fileSHA256 is the SHA-256 of a file's content ("" if it cannot be read).
+func fileSHA256(path string) string {
+	f, err := os.Open(path)
+	if err != nil {
+		return ""
+	}
+	defer f.Close()
+	h := sha256.New()
+	if _, err := io.Copy(h, f); err != nil {
+		return ""
+	}
+	return hex.EncodeToString(h.Sum(nil))
+}
