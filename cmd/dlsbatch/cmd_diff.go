@@ -2,7 +2,6 @@ package main
 
 import (
 	"context"
-	"fmt"
 
 	"github.com/spf13/pflag"
 
@@ -19,22 +18,19 @@ func runDiff(ctx context.Context, e env, args []string) int {
 		return code
 	}
 	if fs.NArg() != 2 {
-		fmt.Fprintln(e.stderr, "dlsbatch diff: name two result folders, OLD and NEW")
-		return exitUsage
+		return usageError(e, "diff", "name two result folders, OLD and NEW")
 	}
 	tol := map[string]resultdiff.Tol{}
 	for _, s := range *tols {
 		col, t, err := resultdiff.ParseTol(s)
 		if err != nil {
-			fmt.Fprintln(e.stderr, "dlsbatch diff:", err)
-			return exitUsage
+			return usageError(e, "diff", err)
 		}
 		tol[col] = t
 	}
 	rep, err := resultdiff.Compare(fs.Arg(0), fs.Arg(1), tol)
 	if err != nil {
-		fmt.Fprintln(e.stderr, "dlsbatch diff:", err)
-		return exitUsage
+		return usageError(e, "diff", err)
 	}
 	rep.Write(e.stdout, *most, format.value == "md")
 	if rep.Drift() {

@@ -2,7 +2,6 @@ package main
 
 import (
 	"context"
-	"fmt"
 
 	"github.com/spf13/pflag"
 
@@ -17,8 +16,7 @@ func runFlags(ctx context.Context, e env, args []string) int {
 		return code
 	}
 	if fs.NArg() > 0 {
-		fmt.Fprintf(e.stderr, "dlsbatch flags: takes no arguments\n")
-		return exitUsage
+		return usageError(e, "flags", "takes no arguments")
 	}
 	if err := report.WriteFlagTable(e.stdout, qc.Definitions(qc.DefaultThresholds())); err != nil {
 		return exitFatal

@@ -25,14 +25,12 @@ func runMerge(ctx context.Context, e env, args []string) int {
 	}
 	cfg.Dirs, cfg.HTMLReport = fs.Args(), !noReport
 	if cfg.Out == "" {
-		fmt.Fprintln(e.stderr, "dlsbatch merge: --out DIR is required")
-		return exitUsage
+		return usageError(e, "merge", "--out DIR is required")
 	}
 	res, err := batchrun.Merge(ctx, cfg)
 	switch {
 	case errors.Is(err, batchrun.ErrUsage):
-		fmt.Fprintln(e.stderr, "dlsbatch merge:", strings.TrimPrefix(err.Error(), batchrun.ErrUsage.Error()+": "))
-		return exitUsage
+		return usageError(e, "merge", strings.TrimPrefix(err.Error(), batchrun.ErrUsage.Error()+": "))
 	case err != nil:
 		fmt.Fprintln(e.stderr, "dlsbatch merge:", err)
 		return exitFatal

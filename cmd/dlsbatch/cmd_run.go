@@ -8,6 +8,7 @@ import (
 	"os"
 	"runtime"
 	"strings"
+	"time"
 
 	"github.com/spf13/pflag"
 
@@ -112,14 +113,24 @@ func (o *runOptions) addFlags(fs *pflag.FlagSet) {
 	fs.Float64Var(&o.uAngleDeg, "u-angle-deg", uncert.DefaultAngleUncertaintyRad*180/math.Pi, "standard uncertainty of the scattering angle, degrees")
 }
 
-func runRun(ctx context.Context, e env, args []string) int {
+func runRun(ctx context.Context, e env, a []string) int   { return runBatch(ctx, e, a, "run") }
+func runWatch(ctx context.Context, e env, a []string) int { return runBatch(ctx, e, a, "watch") }
+
+// runBatch is run, or watch: the same run again after every change of the
+// folder (each file analysed once, as it is complete).
+func runBatch(ctx context.Context, e env, args []string, name string) int {
 	o := newRunOptions()
-	fs := pflag.NewFlagSet("run", pflag.ContinueOnError)
+	fs := pflag.NewFlagSet(name, pflag.ContinueOnError)
 	o.addFlags(fs)
-	if code, done := parseFlags(fs, e, "run", help("run"), help("run.exits"), args); done {
+	settle := fs.Duration("settle", 2*time.Second, "watch: a file is complete when its size and time have not changed for this long")
+	poll := fs.Duration("poll", 2*time.Second, "watch: look at the folder this often (network shares send no events)")
+	if name == "run" { // the flags exist: MarkHidden cannot fail
+		_, _ = fs.MarkHidden("settle"), fs.MarkHidden("poll")
+	}
+	if code, done := parseFlags(fs, e, name, help(name), help(name+".exits"), args); done {
 		return code
 	}
-	say := func(msg any) { fmt.Fprintln(e.stderr, "dlsbatch run:", safetext.Terminal(fmt.Sprint(msg))) }
+	say := func(msg any) { fmt.Fprintln(e.stderr, "dlsbatch "+name+":", safetext.Terminal(fmt.Sprint(msg))) }
 	fail := func(code int, msg any) int { say(msg); return code }
 	paths := fs.Args()
 	switch {
@@ -128,7 +139,7 @@ func runRun(ctx context.Context, e env, args []string) int {
 	case o.out == "":
 		return fail(exitUsage, "--out DIR is required")
 	}
-	settings, readOpts, err := o.settings()
+	cfg, err := o.config(paths, say)
 	if err != nil {
 		return fail(exitUsage, err)
 	}
@@ -141,42 +152,22 @@ func runRun(ctx context.Context, e env, args []string) int {
 			say(err)
 		}
 	}()
-	for _, p := range append(append([]string(nil), o.includeGlobs...), o.excludeGlobs...) {
-		if err := batchrun.CheckPattern(p); err != nil {
-			return fail(exitUsage, err)
-		}
-	}
-	var shard batchrun.Shard
-	if o.shard != "" {
-		if shard, err = batchrun.ShardFromEnv(o.shard, os.Getenv); err != nil {
-			return fail(exitUsage, err)
-		}
-	}
-	cfg := &batchrun.Config{Paths: paths, Out: o.out, Force: o.force || o.resume, Resume: o.resume, Settings: settings, Read: readOpts,
-		Include: o.includeGlobs, Exclude: o.excludeGlobs, Shard: shard,
-		SheetFile: o.sheetFile, SpecFile: o.specFile, SolventFile: o.solventFile, QCFile: o.qcFile,
-		ExcludeOutliers: o.exclude, HTMLReport: !o.noReport, Workers: o.jobs,
-		Warn: func(msg string) { say(msg) }}
-	cfg.Record = func(root string) *report.Settings { return o.record(cfg.Settings, root) }
-	if o.sheetFile != "" {
-		if cfg.Sheet, err = sheet.ReadFile(o.sheetFile); err != nil {
-			return fail(exitUsage, fmt.Errorf("sample sheet: %w", err))
-		}
-	}
-	if o.specFile != "" {
-		if cfg.Spec, err = specfile.ReadFile(o.specFile); err != nil {
-			return fail(exitUsage, fmt.Errorf("specification: %w", err))
-		}
-	}
-	if o.qcFile != "" {
-		if cfg.Settings.QC, err = qcfile.ReadFile(o.qcFile, settings.QC); err != nil {
-			return fail(exitUsage, err)
-		}
-	}
 	if mode := o.progress.value; !o.quiet && mode != progress.None {
 		bars := progress.New(e.stderr, mode, e.stderrIsTerminal, "dlsbatch run: ")
 		cfg.Progress = bars.Update
 		defer bars.Done()
+	}
+	if name == "watch" {
+		cfg.Progress = nil
+		err := batchrun.Watch(ctx, &batchrun.WatchConfig{Run: *cfg, Settle: *settle, Poll: *poll,
+			Updated: func(r *batchrun.Outcome, files int) {
+				say(fmt.Sprintf("%s updated: %d files, %d measurements (%d ok, %d warn, %d error)",
+					o.out, files, r.Counts.Total, r.Counts.OK, r.Counts.Warn, r.Counts.Error))
+			}})
+		if err != nil {
+			return fail(exitFatal, err)
+		}
+		return exitOK
 	}
 	res, err := batchrun.Run(ctx, cfg)
 	switch {
@@ -201,6 +192,48 @@ func runRun(ctx context.Context, e env, args []string) int {
 		fmt.Fprintf(e.stdout, "results: %s (%s)\n%s\n", o.out, what, report.Caution)
 	}
 	return exitCode(res.Counts, res.Batch)
+}
+
+// config turns the flags into the run's configuration, reading the
+// sample sheet, specification and thresholds file (errors are usage
+// errors).
+func (o *runOptions) config(paths []string, say func(any)) (*batchrun.Config, error) {
+	settings, readOpts, err := o.settings()
+	if err != nil {
+		return nil, err
+	}
+	for _, p := range append(append([]string(nil), o.includeGlobs...), o.excludeGlobs...) {
+		if err := batchrun.CheckPattern(p); err != nil {
+			return nil, err
+		}
+	}
+	var shard batchrun.Shard
+	if o.shard != "" {
+		if shard, err = batchrun.ShardFromEnv(o.shard, os.Getenv); err != nil {
+			return nil, err
+		}
+	}
+	cfg := &batchrun.Config{Paths: paths, Out: o.out, Force: o.force || o.resume, Resume: o.resume, Settings: settings, Read: readOpts,
+		Include: o.includeGlobs, Exclude: o.excludeGlobs, Shard: shard,
+		SheetFile: o.sheetFile, SpecFile: o.specFile, SolventFile: o.solventFile, QCFile: o.qcFile,
+		ExcludeOutliers: o.exclude, HTMLReport: !o.noReport, Workers: o.jobs, UAngleDeg: o.uAngleDeg,
+		Warn: func(msg string) { say(msg) }}
+	if o.sheetFile != "" {
+		if cfg.Sheet, err = sheet.ReadFile(o.sheetFile); err != nil {
+			return nil, fmt.Errorf("sample sheet: %w", err)
+		}
+	}
+	if o.specFile != "" {
+		if cfg.Spec, err = specfile.ReadFile(o.specFile); err != nil {
+			return nil, fmt.Errorf("specification: %w", err)
+		}
+	}
+	if o.qcFile != "" {
+		if cfg.Settings.QC, err = qcfile.ReadFile(o.qcFile, settings.QC); err != nil {
+			return nil, err
+		}
+	}
+	return cfg, nil
 }
 
 // exitCode maps the outcome of a finished run to the documented codes; the
@@ -257,8 +290,8 @@ func (o *runOptions) settings() (batch.Settings, *csvdata.Options, error) {
 			return s, nil, err
 		}
 	}
-	if o.maxFileMB < 1 || o.maxRows < 1 || o.maxColumns < 1 {
-		return s, nil, errors.New("--max-file-mb, --max-rows and --max-columns must be at least 1")
+	if o.jobs < 1 || o.maxFileMB < 1 || o.maxRows < 1 || o.maxColumns < 1 {
+		return s, nil, errors.New("--jobs, --max-file-mb, --max-rows and --max-columns must be at least 1")
 	}
 	ro := &csvdata.Options{TauColumn: o.tauCol, TauUnit: o.tauUnit, CorrColumns: o.corrCols, SigmaColumn: o.sigmaCol,
 		MaxBytes: int64(o.maxFileMB) << 20, MaxRows: o.maxRows, MaxColumns: o.maxColumns}
@@ -270,27 +303,4 @@ func (o *runOptions) settings() (batch.Settings, *csvdata.Options, error) {
 		ro.CorrKind = k
 	}
 	return s, ro, nil
-}
-
-// record is the settings record of results.json and the manifest.
-func (o *runOptions) record(s batch.Settings, root string) *report.Settings {
-	rel := func(p string) string {
-		if p == "" {
-			return ""
-		}
-		return csvdata.Rel(root, p)
-	}
-	return &report.Settings{
-		AllowImplausible: s.AllowImplausible, AlphaCriterion: s.Distribution.Contin.Criterion.String(), AlphaLambda: s.Distribution.Contin.Lambda,
-		BoltzmannJPerK: dls.BoltzmannJPerK, CorrColumns: o.corrCols, CorrKind: o.corrKind.value,
-		CoverageFactor: s.CoverageFactor, CumulantMethod: s.Cumulants.Method.String(), CumulantOrder: s.Cumulants.Order,
-		Default: dls.Assignments(s.Defaults), DefaultParticleRI: mie.FormatComplexIndex(s.Distribution.DefaultParticleRI),
-		Distribution: s.Distribution.Enabled, ExcludeOutliers: o.exclude, Extrapolate: s.Extrapolate,
-		G1Cutoff: s.Cumulants.Cutoff, GridPoints: s.Distribution.Grid.NGamma, Exclude: o.excludeGlobs, Include: o.includeGlobs, LagColumn: o.tauCol, LagUnit: o.tauUnit, MaxColumns: o.maxColumns, MaxFileMB: o.maxFileMB, MaxRows: o.maxRows,
-		MinLagS: s.Cumulants.MinTauS, MinPoints: s.Cumulants.MinPoints,
-		ProbRejectTarget: s.Distribution.Contin.TargetProbReject, QCThresholds: s.QC, QCThresholdsFile: rel(o.qcFile), RangeCheck: s.Cumulants.RangeCheck,
-		Set: dls.Assignments(s.Overrides), Sheet: rel(o.sheetFile), SigmaColumn: o.sigmaCol, SolventFile: rel(o.solventFile), Spec: rel(o.specFile),
-		UAngleDeg: o.uAngleDeg, URefractiveIndex: s.Uncertainty.RefractiveIndex, UTemperatureK: s.Uncertainty.TemperatureK,
-		UViscosityRel: o.uViscRel,
-	}
 }

@@ -15,13 +15,11 @@ func runVerify(ctx context.Context, e env, args []string) int {
 		return code
 	}
 	if fs.NArg() != 1 {
-		fmt.Fprintln(e.stderr, "dlsbatch verify: name one result folder")
-		return exitUsage
+		return usageError(e, "verify", "name one result folder")
 	}
 	v, err := report.Verify(fs.Arg(0))
 	if err != nil {
-		fmt.Fprintln(e.stderr, "dlsbatch verify:", err)
-		return exitUsage
+		return usageError(e, "verify", err)
 	}
 	for _, d := range v.Differences {
 		fmt.Fprintf(e.stdout, "%s %s\n  expected %s\n  found    %s\n", d.Kind, d.File, d.Expected, d.Found)

@@ -68,6 +68,7 @@ func subcommands() []subcommand {
 		{"verify", "check a result folder against its manifest", runVerify},
 		{"merge", "merge the result sets of a batch's shards into one", runMerge},
 		{"diff", "compare two result sets within tolerances (for CI)", runDiff},
+		{"watch", "keep a result set up to date while an instrument writes files", runWatch},
 	}
 }
 
@@ -143,4 +144,10 @@ func parseFlags(fs *pflag.FlagSet, e env, name, usage, exits string, args []stri
 	}
 	fmt.Fprintf(e.stderr, "dlsbatch %s: %v\nrun 'dlsbatch %s --help' for the flags\n", name, err, name)
 	return exitUsage, true
+}
+
+// usageError reports a usage error of the subcommand name on stderr.
+func usageError(e env, name string, msg any) int {
+	fmt.Fprintln(e.stderr, "dlsbatch "+name+":", msg)
+	return exitUsage
 }

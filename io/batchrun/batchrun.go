@@ -18,6 +18,7 @@ import (
 
 	"dlsbatch/dls"
 	"dlsbatch/dls/batch"
+	"dlsbatch/dls/mie"
 	"dlsbatch/dls/qc"
 	"dlsbatch/dls/spec"
 	"dlsbatch/io/csvdata"
@@ -35,6 +36,12 @@ type Config struct {
 	// not finish, the results of every file unchanged since, with the same
 	// settings and tool version (see journal.go).
 	Resume bool
+	// KeepJournal keeps the journal after a complete run (a watch adds
+	// files to the same batch again and again).
+	KeepJournal bool
+	// Accept, when set, keeps only the files found for which it is true
+	// (a watch leaves out files still being written).
+	Accept func(path string) bool
 
 	Settings batch.Settings
 	Read     *csvdata.Options
@@ -51,7 +58,11 @@ type Config struct {
 	Shard            Shard
 	HTMLReport       bool
 	Workers          int
-	// Record builds the settings record for the input root.
+	// UAngleDeg is the standard uncertainty of the angle as given, in
+	// degrees, recorded as given (Settings hold it in radians).
+	UAngleDeg float64
+	// Record, when set, builds the settings record for the input root
+	// (a merge hands over the shards'); nil builds it from the Config.
 	Record func(root string) *report.Settings
 	// Progress, when set, is told how many items of a phase ("analysing"
 	// files, "report" pages, "hashing" files) are done of how many, from any
@@ -108,6 +119,15 @@ func Run(ctx context.Context, cfg *Config) (*Outcome, error) {
 	relative(found.Problems, root)
 	for _, p := range found.Problems {
 		warn(p.Err.Error()) // and an error row each: the runner gets them as failed inputs
+	}
+	if cfg.Accept != nil {
+		kept := found.Files[:0:0]
+		for _, f := range found.Files {
+			if cfg.Accept(f) {
+				kept = append(kept, f)
+			}
+		}
+		found.Files = kept
 	}
 	all := Select(found, root, cfg.Include, cfg.Exclude)
 	found = cfg.Shard.Part(all, root)
@@ -203,7 +223,7 @@ func Run(ctx context.Context, cfg *Config) (*Outcome, error) {
 	}
 	o, err := publish(ctx, cfg, out, &publishing{root: root, inputs: files, match: match, stream: stream,
 		complete: runErr == nil, shard: shard})
-	published = err == nil && o.Complete
+	published = err == nil && o.Complete && !cfg.KeepJournal
 	return o, err
 }
 
@@ -211,7 +231,7 @@ func Run(ctx context.Context, cfg *Config) (*Outcome, error) {
 // settings record and the content of every table (a sheet changes the
 // metadata of the measurements).
 func settingsKey(cfg *Config, root string) ([]byte, error) {
-	b, err := json.Marshal(cfg.Record(root))
+	b, err := json.Marshal(cfg.record(root))
 	if err != nil {
 		return nil, err
 	}
@@ -250,7 +270,7 @@ func publish(ctx context.Context, cfg *Config, out *resultset.Set, p *publishing
 	o.Counts = dls.CountResults(o.Results)
 	doc := &report.Document{
 		Tool: "dlsbatch", Version: report.Version(), Caution: report.Caution, Complete: o.Complete,
-		Settings: cfg.Record(p.root), Counts: o.Counts, Batch: o.Batch, Sheet: p.match,
+		Settings: cfg.record(p.root), Counts: o.Counts, Batch: o.Batch, Sheet: p.match,
 		Groups: &groups, Samples: o.Samples, Results: o.Results,
 	}
 	set := &report.Set{Doc: doc, HTMLReport: cfg.HTMLReport && o.Complete, Root: p.root, Inputs: p.inputs, Stream: p.stream,
@@ -290,5 +310,41 @@ func relative(in []dls.Input, root string) {
 			q.File = in[i].File
 			in[i].Err = &q
 		}
+	}
+}
+
+// record is the settings record of the run, for the input root.
+func (cfg *Config) record(root string) *report.Settings {
+	if cfg.Record != nil {
+		return cfg.Record(root)
+	}
+	rel := func(p string) string {
+		if p == "" {
+			return ""
+		}
+		return csvdata.Rel(root, p)
+	}
+	s, ro := cfg.Settings, cfg.Read
+	if ro == nil {
+		ro = &csvdata.Options{}
+	}
+	maxBytes, maxRows, maxCols := ro.Limits()
+	corrKind := ""
+	if ro.CorrKind != 0 {
+		corrKind = ro.CorrKind.String()
+	}
+	return &report.Settings{
+		AllowImplausible: s.AllowImplausible, AlphaCriterion: s.Distribution.Contin.Criterion.String(), AlphaLambda: s.Distribution.Contin.Lambda,
+		BoltzmannJPerK: dls.BoltzmannJPerK, CorrColumns: ro.CorrColumns, CorrKind: corrKind,
+		CoverageFactor: s.CoverageFactor, CumulantMethod: s.Cumulants.Method.String(), CumulantOrder: s.Cumulants.Order,
+		Default: dls.Assignments(s.Defaults), DefaultParticleRI: mie.FormatComplexIndex(s.Distribution.DefaultParticleRI),
+		Distribution: s.Distribution.Enabled, Exclude: cfg.Exclude, ExcludeOutliers: cfg.ExcludeOutliers, Extrapolate: s.Extrapolate,
+		G1Cutoff: s.Cumulants.Cutoff, GridPoints: s.Distribution.Grid.NGamma, Include: cfg.Include, LagColumn: ro.TauColumn,
+		LagUnit: ro.TauUnit, MaxColumns: maxCols, MaxFileMB: int(maxBytes >> 20), MaxRows: maxRows,
+		MinLagS: s.Cumulants.MinTauS, MinPoints: s.Cumulants.MinPoints, ProbRejectTarget: s.Distribution.Contin.TargetProbReject,
+		QCThresholds: s.QC, QCThresholdsFile: rel(cfg.QCFile), RangeCheck: s.Cumulants.RangeCheck,
+		Set: dls.Assignments(s.Overrides), Sheet: rel(cfg.SheetFile), SigmaColumn: ro.SigmaColumn, SolventFile: rel(cfg.SolventFile),
+		Spec: rel(cfg.SpecFile), UAngleDeg: cfg.UAngleDeg, URefractiveIndex: s.Uncertainty.RefractiveIndex,
+		UTemperatureK: s.Uncertainty.TemperatureK, UViscosityRel: s.Uncertainty.ViscosityRel,
 	}
 }

@@ -59,7 +59,8 @@ const (
 // ErrTooLarge marks a file over one of the limits of Options.
 var ErrTooLarge = errors.New("over the limit for one file")
 
-func (o *Options) limits() (bytes int64, rows, cols int) {
+// Limits returns the limits in force: the Options' own, or the defaults.
+func (o *Options) Limits() (bytes int64, rows, cols int) {
 	bytes, rows, cols = o.MaxBytes, o.MaxRows, o.MaxColumns
 	if bytes <= 0 {
 		bytes = DefaultMaxBytes

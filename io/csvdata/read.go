@@ -53,7 +53,7 @@ func Read(r io.Reader, name string, o *Options) []Entry {
 		return []Entry{{File: name, Err: &dls.PosError{File: name, Err: err}}}
 	}
 	p := &parser{name: name, opt: o}
-	maxBytes, _, _ := o.limits()
+	maxBytes, _, _ := o.Limits()
 	lr := &io.LimitedReader{R: r, N: maxBytes + 1}
 	p.read(lr)
 	if lr.N <= 0 {
@@ -269,7 +269,7 @@ func (p *parser) header(s []byte) bool {
 	p.sp = newSplitter(comma)
 	p.decComma = comma != ','
 	names := p.sp.splitStrings(s)
-	if _, _, maxCols := p.opt.limits(); len(names) > maxCols {
+	if _, _, maxCols := p.opt.Limits(); len(names) > maxCols {
 		p.setFileErr(p.posErr(p.line, 0, fmt.Errorf("%d columns, more than %d: %w (raise it with --max-columns)", len(names), maxCols, ErrTooLarge)))
 		return false
 	}
@@ -407,7 +407,7 @@ func (p *parser) row(s []byte) bool {
 			sentinel: dls.ErrBadLag}))
 		return false
 	}
-	if _, maxRows, _ := p.opt.limits(); len(p.tau) >= maxRows {
+	if _, maxRows, _ := p.opt.Limits(); len(p.tau) >= maxRows {
 		p.setFileErr(p.posErr(p.line, 0, fmt.Errorf("more than %d data rows: %w (raise it with --max-rows)", maxRows, ErrTooLarge)))
 		return false
 	}
