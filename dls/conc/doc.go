@@ -96,6 +96,21 @@
 //
 //	D_i = a + b·c_i,   a = D0,  b = D0·k_D,  k_D = b/a
 //
+// Stokes–Einstein keeps D·η/T constant for one particle, so points
+// measured at another temperature T_i or viscosity η_i of the continuous
+// phase (Point.TemperatureK, ViscosityPaS) are first brought to the
+// series' reference state (SeriesSettings.TemperatureK, ViscosityPaS;
+// dls/batch uses the group's first run):
+//
+//	D_i ← D_i·(η_i/η_ref)·(T_ref/T_i),   u(D_i) ← u(D_i)·(η_i/η_ref)·(T_ref/T_i)
+//
+// Without it a point 2 K warmer in water is about 5 % faster through η/T
+// alone, which the line reads as concentration dependence (k_D = 3.1
+// instead of 1.45 for hard spheres when the warm point is the most
+// concentrated). k_D and d0 do not depend on the reference chosen; D0 is
+// D0 at the reference state. The factor is taken as exact: u(T) and u(η)
+// enter the size through the budget of package uncert.
+//
 // by weighted least squares with w_i = 1/u(D_i)². With the centred sums
 // S = Σw, c̄ = Σw·c/S, Scc = Σw·(c − c̄)²:
 //
