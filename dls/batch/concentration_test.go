@@ -25,9 +25,10 @@ func TestMediumAndKD(t *testing.T) {
 		status     dls.Status
 		substr     string
 	}{
-		// Einstein at φ = 0.01: η_r = 1 + 2.5·0.01 = 1.025, so the same Γ
-		// means a particle 1/1.025 the size: 97.561 nm (d ∝ 1/η).
-		{"medium by Einstein", func(m map[string]string) { m["medium_volume_fraction"] = "0.01" }, "medium", 100 / 1.025, 0, dls.StatusOK, ""},
+		// Batchelor (1977) at φ = 0.01: η_r = 1 + 2.5·0.01 + 6.2·0.01² =
+		// 1.02562, so the same Γ means a particle 1/1.02562 the size:
+		// 97.502 nm (d ∝ 1/η).
+		{"medium by Batchelor", func(m map[string]string) { m["medium_volume_fraction"] = "0.01" }, "medium", 100 / 1.02562, 0, dls.StatusOK, ""},
 		// A measured relative viscosity of 1.1 is used as given: 90.909 nm.
 		{"medium measured", func(m map[string]string) { m["medium_relative_viscosity"] = "1.1" }, "medium", 100 / 1.1, 0, dls.StatusOK, ""},
 		// Both, inconsistent: η_r 1.1 implies φ ≈ 0.037 by Batchelor, not
@@ -83,8 +84,9 @@ func TestMediumAndKD(t *testing.T) {
 }
 
 func TestMediumReadingImpliesFraction(t *testing.T) {
-	// η_r = 1.025 alone: Einstein's relation inverted gives φ = 0.01
-	// (1 + 2.5·0.01 = 1.025), reported with the correction.
+	// η_r = 1.025 alone: Batchelor's relation inverted gives φ = 0.0097636,
+	// the positive root of 6.2·φ² + 2.5·φ − 0.025 = 0 (computed), reported
+	// with the correction.
 	meta := workedMeta()
 	delete(meta, "viscosity_mpas")
 	delete(meta, "refractive_index")
@@ -92,7 +94,7 @@ func TestMediumReadingImpliesFraction(t *testing.T) {
 	s := DefaultSettings()
 	s.Distribution.Enabled = false
 	r := Analyze(monoMeasurement(meta), &s)
-	if r.Medium == nil || math.Abs(r.Medium.VolumeFraction-0.01) > 1e-6 || !strings.Contains(r.Medium.Check, "implies") {
+	if r.Medium == nil || math.Abs(r.Medium.VolumeFraction-0.0097636) > 1e-6 || !strings.Contains(r.Medium.Check, "implies") {
 		t.Errorf("medium note %+v", r.Medium)
 	}
 }
