@@ -53,9 +53,17 @@
 //	volume_fraction             1       0 … 0.64
 //	count_rate_kcps             kcps    0 … 10⁷
 //	duration_s                  s       0 … 10⁵
-//	medium_volume_fraction      1       0 … 0.64
+//	medium_volume_fraction      1       0 … 0.6 (below φm = 0.63 of the
+//	                                    viscosity relations)
 //	medium_relative_viscosity   1       1 … 10⁴
 //	kd                          1       -100 … 1000, or hard-sphere
+//	u_viscosity_mpas            mPa·s   0 … 10⁴ (standard uncertainty of a
+//	                                    given viscosity_mpas)
+//	u_refractive_index          1       0 … 0.1 (of a given refractive_index)
+//	u_kd                        1       0 … 1000 (of a numeric kd)
+//	u_volume_fraction           1       0 … 0.64 (of the particles' φ)
+//	u_medium_volume_fraction    1       0 … 0.6
+//	u_medium_relative_viscosity 1       0 … 10⁴
 //
 // The reader checks syntax only. The analysis (dls/batch) checks each
 // value, from whatever source, against its range: outside it the
