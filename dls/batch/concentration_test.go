@@ -337,3 +337,31 @@ func TestCorrectionBudgetTerms(t *testing.T) {
 		t.Errorf("u without its value: warnings %q", r.Warnings)
 	}
 }
+
+// TestIndexUncertaintyFromCorrelation: a glycerol–water index from the
+// solvent table carries the entry's stated u(n), 6e-4/√3 (dls/medium: the
+// mixture rule's agreement with the CRC table as a rectangular
+// half-width), larger than the default 1e-4; water's index keeps the
+// default. Exact values: tolerance 1e-15.
+func TestIndexUncertaintyFromCorrelation(t *testing.T) {
+	for _, c := range []struct {
+		solvent string
+		u       float64
+		basis   string
+	}{
+		{"glycerol-water:0.5", 6e-4 / math.Sqrt(3), "Volk & Kähler"},
+		{"water", 1e-4, "default 1e-4"},
+	} {
+		meta := workedMeta()
+		delete(meta, "viscosity_mpas")
+		delete(meta, "refractive_index")
+		meta["solvent"] = c.solvent
+		s := DefaultSettings()
+		s.Distribution.Enabled = false
+		r := Analyze(monoMeasurement(meta), &s)
+		n := component(r.Budget, "refractive_index")
+		if n == nil || math.Abs(n.StandardUncertainty-c.u) > 1e-15 || !strings.Contains(n.Basis, c.basis) {
+			t.Errorf("%s: u(n) component %+v (%s), want %g from %q", c.solvent, n, r.Message, c.u, c.basis)
+		}
+	}
+}
