@@ -152,6 +152,14 @@ func Analyze(m *dls.Measurement, s *Settings) *dls.Result {
 		r.DurationS, r.HasDuration = v, true
 	}
 
+	nm, note, err := normaliseG2(m)
+	if err != nil {
+		return fail(err)
+	}
+	if note != "" {
+		m = nm
+		warn = append(warn, note)
+	}
 	fit, err := fitCumulants(m, &s.Cumulants)
 	if err != nil {
 		return fail(err)

@@ -115,6 +115,12 @@
 //	g1                           field autocorrelation
 //	sigma                        standard uncertainty of each correlation value
 //
+// A g2 column exported without normalisation (a raw G2 = B·(1 + β·g1²) in
+// counts², far channels above 10) is recognised by the analysis: with a
+// clear baseline plateau it is divided by its far-channel mean, with a
+// warning; without one the measurement fails (dls.ErrUnnormalised) with a
+// message that says how to normalise the export (dls/batch).
+//
 // A file holds one run (one correlation column, "g2", "g2m1" or "g1") or
 // several: correlation columns of one kind named "<kind>_<label>" (g2_a,
 // g2_b, …) sharing the lag column, each with an optional "sigma_<label>".
