@@ -51,12 +51,6 @@ func where(meta dls.Metadata, key string) string {
 	return fmt.Sprintf("%s = %s (%s %s)", key, strings.TrimSpace(p.Value), p.Origin, p.Where)
 }
 
-// statedU returns the standard uncertainty given under key, whether it
-// was given, and an error for a value that is not a number.
-func statedU(meta dls.Metadata, key string) (float64, bool, error) {
-	return meta.Float(key)
-}
-
 // applyMedium corrects the viscosity of the continuous phase for a known
 // content of a much smaller colloid, micelle or excipient. Decisions, each
 // recorded in the result:
@@ -84,11 +78,11 @@ func applyMedium(st *state, meta dls.Metadata) ([]string, error) {
 	if err != nil {
 		return nil, err
 	}
-	uPhi, hasUPhi, err := statedU(meta, dls.KeyUMediumVolumeFraction)
+	uPhi, hasUPhi, err := meta.Float(dls.KeyUMediumVolumeFraction)
 	if err != nil {
 		return nil, err
 	}
-	uR, hasUR, err := statedU(meta, dls.KeyUMediumRelViscosity)
+	uR, hasUR, err := meta.Float(dls.KeyUMediumRelViscosity)
 	if err != nil {
 		return nil, err
 	}
@@ -224,7 +218,7 @@ func applyKD(r *dls.Result, meta dls.Metadata) (*kdTerms, []string, error) {
 		}
 		t.kd, t.kdNote = x, "not stated ("+dls.KeyUKD+"): taken as exact"
 	}
-	if u, has, err := statedU(meta, dls.KeyUKD); err != nil {
+	if u, has, err := meta.Float(dls.KeyUKD); err != nil {
 		return nil, nil, err
 	} else if has {
 		t.uKD, t.kdNote, t.kdStated = u, "stated: "+where(meta, dls.KeyUKD), true
@@ -237,7 +231,7 @@ func applyKD(r *dls.Result, meta dls.Metadata) (*kdTerms, []string, error) {
 		return nil, nil, err
 	}
 	t.phi, t.phiNote = f.Value, "not stated ("+dls.KeyUVolumeFraction+"): taken as exact"
-	if u, has, err := statedU(meta, dls.KeyUVolumeFraction); err != nil {
+	if u, has, err := meta.Float(dls.KeyUVolumeFraction); err != nil {
 		return nil, nil, err
 	} else if has {
 		t.uPhi, t.phiNote, t.phiGiven = u, "stated: "+where(meta, dls.KeyUVolumeFraction), true
@@ -270,11 +264,11 @@ func budget(r *dls.Result, fit *cumulants.Result, st state, kdt *kdTerms, meta d
 	u := s.Uncertainty
 	var notes, warn, unstated []string
 	nBasis := ""
-	uEta, hasUEta, err := statedU(meta, dls.KeyUViscosityMPaS)
+	uEta, hasUEta, err := meta.Float(dls.KeyUViscosityMPaS)
 	if err != nil {
 		return []string{"uncertainty not computed: " + err.Error()}
 	}
-	uN, hasUN, err := statedU(meta, dls.KeyURefractiveIndex)
+	uN, hasUN, err := meta.Float(dls.KeyURefractiveIndex)
 	if err != nil {
 		return []string{"uncertainty not computed: " + err.Error()}
 	}
