@@ -3,8 +3,13 @@ package dls
 // BudgetComponent is one input quantity of an uncertainty budget: its
 // value, standard uncertainty, sensitivity coefficient and contribution.
 type BudgetComponent struct {
-	Name   string `json:"name"`   // decay_rate, temperature, viscosity, refractive_index, angle, wavelength
-	Symbol string `json:"symbol"` // Γ̄, T, η, n, θ, λ0
+	// Name is decay_rate, temperature, viscosity, refractive_index, angle,
+	// wavelength; and for corrections medium_volume_fraction,
+	// medium_viscosity_model, medium_relative_viscosity (of the
+	// z-average), kd and volume_fraction (of the size at infinite
+	// dilution).
+	Name   string `json:"name"`
+	Symbol string `json:"symbol"` // Γ̄, T, η, n, θ, λ0; φ_m, η_r; k_D, φ
 	Type   string `json:"type"`   // "A" or "B"
 	// Value and StandardUncertainty are in Unit.
 	Value               float64 `json:"value"`
@@ -35,4 +40,9 @@ type Budget struct {
 	Components        []BudgetComponent `json:"components"`
 	// Notes name the assumptions the budget rests on.
 	Notes []string `json:"notes"`
+	// Unstated names the inputs given by the user without a standard
+	// uncertainty (viscosity, refractive_index, kd, volume_fraction,
+	// medium_volume_fraction, medium_relative_viscosity): each
+	// component's basis says what was assumed instead.
+	Unstated []string `json:"unstated_uncertainties,omitempty"`
 }

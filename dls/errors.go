@@ -54,4 +54,7 @@ var (
 	ErrNotText         = errors.New("not a text file")
 	ErrBadMetadata     = errors.New("bad metadata value")
 	ErrUnknownMetadata = errors.New("unknown metadata key")
+	// ErrUnnormalised: a g2 column far above any normalised correlation
+	// (a raw G2 in counts²) without a baseline plateau to normalise by.
+	ErrUnnormalised = errors.New("unnormalised correlation")
 )

@@ -61,6 +61,17 @@ const (
 	// KeyKD is the interaction parameter k_D of the sized particles per
 	// volume fraction, or "hard-sphere" for Batchelor's 1.45.
 	KeyKD = "kd"
+	// Standard uncertainties stated with a value (for the GUM budget), in
+	// the unit of the value: of a given viscosity_mpas (mPa·s) or
+	// refractive_index, of kd, of the particles' volume fraction (however
+	// it was given), of medium_volume_fraction and of
+	// medium_relative_viscosity.
+	KeyUViscosityMPaS        = "u_viscosity_mpas"
+	KeyURefractiveIndex      = "u_refractive_index"
+	KeyUKD                   = "u_kd"
+	KeyUVolumeFraction       = "u_volume_fraction"
+	KeyUMediumVolumeFraction = "u_medium_volume_fraction"
+	KeyUMediumRelViscosity   = "u_medium_relative_viscosity"
 )
 
 // MetadataKeys returns every key of the input contract, in the order used
@@ -73,6 +84,8 @@ var metadataKeys = []string{
 	KeyParticleDensity, KeyVolumeFraction, KeyCountRateKcps, KeyDurationS,
 	KeyLot, KeyProduct, KeyRole, KeyGroup,
 	KeyMediumVolumeFraction, KeyMediumRelViscosity, KeyKD,
+	KeyUViscosityMPaS, KeyURefractiveIndex, KeyUKD, KeyUVolumeFraction,
+	KeyUMediumVolumeFraction, KeyUMediumRelViscosity,
 }
 
 // IsNumericKey reports whether the value of key must be a finite number.
@@ -80,7 +93,9 @@ func IsNumericKey(key string) bool {
 	switch key {
 	case KeyTemperatureC, KeyWavelengthNm, KeyAngleDeg, KeyViscosityMPaS, KeyRefractiveIndex, KeyConcentration,
 		KeyParticleDensity, KeyVolumeFraction, KeyCountRateKcps, KeyDurationS,
-		KeyMediumVolumeFraction, KeyMediumRelViscosity:
+		KeyMediumVolumeFraction, KeyMediumRelViscosity,
+		KeyUViscosityMPaS, KeyURefractiveIndex, KeyUKD, KeyUVolumeFraction,
+		KeyUMediumVolumeFraction, KeyUMediumRelViscosity:
 		return true
 	}
 	return false

@@ -90,13 +90,28 @@ var plausible = []Range{
 			"for an attenuator reach about 10⁶ kcps (common practice)"},
 	{Key: KeyDurationS, Min: 0, Max: 1e5, Unit: "s",
 		Basis: "a duration is not negative; single runs last seconds to hours, 10⁵ s is more than a day (common practice)"},
-	{Key: KeyMediumVolumeFraction, Min: 0, Max: 0.64,
-		Basis: "random close packing of equal spheres, φ ≈ 0.64 (Scott & Kilgour 1969)"},
+	{Key: KeyMediumVolumeFraction, Min: 0, Max: 0.6,
+		Basis: "below the maximum packing φm = 0.63 at which the viscosity relations of dls/conc diverge (hard-sphere silica at low shear, " +
+			"de Kruif et al. 1985); random close packing of equal spheres is φ ≈ 0.64 (Scott & Kilgour 1969)"},
 	{Key: KeyMediumRelViscosity, Min: 1, Max: 1e4,
 		Basis: "a medium is not less viscous than its solvent; the upper bound matches that of viscosity_mpas for water"},
 	{Key: KeyKD, Min: -100, Max: 1000,
 		Basis: "k_D per volume fraction: 1.45 for hard spheres (Batchelor 1976), negative for attractive proteins, " +
 			"tens to hundreds for charged colloids at low ionic strength (common practice)"},
+	{Key: KeyUViscosityMPaS, Min: 0, Max: 1e4, Unit: "mPa·s",
+		Basis: "a standard uncertainty is not negative, nor larger than the largest plausible viscosity; " +
+			"the budget refuses one of 100 % of the value or more"},
+	{Key: KeyURefractiveIndex, Min: 0, Max: 0.1,
+		Basis: "a standard uncertainty is not negative; refractometers state 1e-5–1e-4, an estimated mixture index " +
+			"perhaps 1e-2, and 0.1 spans the common solvents (common practice)"},
+	{Key: KeyUKD, Min: 0, Max: 1000,
+		Basis: "a standard uncertainty is not negative, nor larger than the largest plausible kd"},
+	{Key: KeyUVolumeFraction, Min: 0, Max: 0.64,
+		Basis: "a standard uncertainty is not negative, nor larger than the densest packing (Scott & Kilgour 1969)"},
+	{Key: KeyUMediumVolumeFraction, Min: 0, Max: 0.6,
+		Basis: "a standard uncertainty is not negative, nor larger than the largest plausible medium_volume_fraction"},
+	{Key: KeyUMediumRelViscosity, Min: 0, Max: 1e4,
+		Basis: "a standard uncertainty is not negative, nor larger than the largest plausible relative viscosity"},
 }
 
 // PlausibleRanges returns a copy of the table of physically plausible
@@ -120,9 +135,15 @@ var plausible = []Range{
 //	volume_fraction             0 … 0.64
 //	count_rate_kcps             0 … 10⁷ kcps
 //	duration_s                  0 … 10⁵ s
-//	medium_volume_fraction      0 … 0.64
+//	medium_volume_fraction      0 … 0.6 (below φm = 0.63 of dls/conc)
 //	medium_relative_viscosity   1 … 10⁴
 //	kd                          -100 … 1000
+//	u_viscosity_mpas            0 … 10⁴ mPa·s
+//	u_refractive_index          0 … 0.1
+//	u_kd                        0 … 1000
+//	u_volume_fraction           0 … 0.64
+//	u_medium_volume_fraction    0 … 0.6
+//	u_medium_relative_viscosity 0 … 10⁴
 //
 // The particle index range admits metals: gold's real part at 633 nm is
 // 0.18 (Johnson & Christy 1972), so a lower bound of 1 would reject the

@@ -155,6 +155,9 @@ type Corrections struct {
 	ZAvgD0Nm float64 `json:"z_avg_d0_nm"`
 	KD       float64 `json:"kd"`
 	KDPhi    float64 `json:"kd_volume_fraction"`
+	// ZAvgD0Budget is the GUM budget of ZAvgD0Nm (its z_avg_nm field holds
+	// d0): the z-average's terms times 1 + k_D·φ, and those of k_D and φ.
+	ZAvgD0Budget *Budget `json:"z_avg_d0_uncertainty_budget,omitempty"`
 }
 
 // Uncertainty is the GUM uncertainty of the z-average: combined standard

@@ -21,16 +21,23 @@ type GroupReport struct {
 	Dilution   []*DilutionGroup `json:"dilution_series"`
 }
 
-// AngleGroup is the multi-angle analysis of one group.
+// AngleGroup is the multi-angle analysis of one group, or of the runs of
+// one concentration of a group that spans several (Concentration and Unit
+// then say which).
 type AngleGroup struct {
-	Group  string             `json:"group"`
-	Sample string             `json:"sample"`
-	Runs   []int              `json:"runs"`
-	Result *multiangle.Result `json:"result,omitempty"`
-	Error  string             `json:"error,omitempty"`
+	Group         string             `json:"group"`
+	Sample        string             `json:"sample"`
+	Runs          []int              `json:"runs"`
+	Concentration *float64           `json:"concentration,omitempty"`
+	Unit          string             `json:"unit,omitempty"`
+	Result        *multiangle.Result `json:"result,omitempty"`
+	Error         string             `json:"error,omitempty"`
 }
 
-// DilutionGroup is the dilution-series analysis of one group.
+// DilutionGroup is the dilution-series analysis of one group. Error says
+// why a series was not fitted: too few concentrations, a run without one,
+// or a series refused because it mixes solvents, or scattering angles
+// without a multi-angle q-check.
 type DilutionGroup struct {
 	Group  string       `json:"group"`
 	Sample string       `json:"sample"`
@@ -46,6 +53,19 @@ type DilutionGroup struct {
 // angles or a dilution series with fewer than three concentrations.
 // Groups spanning one angle and one concentration are left alone.
 // Measurements that could not be analysed take no part.
+//
+// A group that spans several concentrations is a dilution series. Its D
+// values are brought to the temperature and viscosity of the group's
+// first run (in results order) by D·(η/η_ref)·(T_ref/T) before the
+// regression, which the series' record states (reference_temperature_k,
+// and a note when the runs differ). A series is refused, with the reason
+// on each of its results and in its record, when its runs name different
+// solvents, or when they span several angles and no multi-angle q-check
+// shows D independent of q: the runs of at least one concentration must
+// span three or more angles, and no such multi-angle analysis may flag the
+// intercept, the trend of the apparent size with q² or the spread of the
+// sizes. In a group that spans concentrations the multi-angle analysis
+// runs per concentration, never across them.
 func Groups(results []*dls.Result) GroupReport {
 	var rep GroupReport
 	byGroup := map[string][]int{}
@@ -61,46 +81,139 @@ func Groups(results []*dls.Result) GroupReport {
 	}
 	for _, g := range order {
 		idx := byGroup[g]
-		angles := map[float64]bool{}
-		concs := map[float64]bool{}
+		concs := map[float64][]int{}
+		var concOrder []float64
 		for _, i := range idx {
-			angles[math.Round(results[i].AngleDeg*100)/100] = true
 			if c, _, ok := concentration(results[i]); ok {
-				concs[c] = true
+				if _, seen := concs[c]; !seen {
+					concOrder = append(concOrder, c)
+				}
+				concs[c] = append(concs[c], i)
 			}
 		}
+		sort.Float64s(concOrder)
 		first := results[idx[0]]
-		if len(angles) > 1 {
+		var ags []*AngleGroup
+		switch {
+		case len(distinctAngles(results, idx)) > 1 && len(concs) > 1:
+			for _, c := range concOrder {
+				sub := concs[c]
+				if len(distinctAngles(results, sub)) < 2 {
+					continue
+				}
+				_, unit, _ := concentration(results[sub[0]])
+				ag := &AngleGroup{Group: g, Sample: first.Sample, Runs: sub, Concentration: &c, Unit: unit}
+				ag.Result, ag.Error = angleAnalysis(results, sub)
+				ags = append(ags, ag)
+			}
+		case len(distinctAngles(results, idx)) > 1:
 			ag := &AngleGroup{Group: g, Sample: first.Sample, Runs: idx}
 			ag.Result, ag.Error = angleAnalysis(results, idx)
+			ags = append(ags, ag)
+		}
+		for _, ag := range ags {
 			rep.MultiAngle = append(rep.MultiAngle, ag)
+			what := "multi-angle group " + strconv.Quote(g)
+			if ag.Concentration != nil {
+				what += fmt.Sprintf(" at %g %s", *ag.Concentration, ag.Unit)
+			}
 			if ag.Error != "" {
-				warnAll(results, idx, "multi-angle group "+strconv.Quote(g)+": "+ag.Error)
-			} else if res := ag.Result; res.InterceptFlagged || res.TrendFlagged || res.SpreadFlagged {
+				warnAll(results, ag.Runs, what+": "+ag.Error)
+			} else if res := ag.Result; flaggedQ(res) {
 				for _, w := range res.Warnings {
-					warnAll(results, idx, "multi-angle group "+strconv.Quote(g)+": "+w)
+					warnAll(results, ag.Runs, what+": "+w)
 				}
 			}
 		}
 		if len(concs) > 1 {
 			dg := &DilutionGroup{Group: g, Sample: first.Sample, Runs: idx}
-			dg.Result, dg.Unit, dg.Error = dilutionAnalysis(results, idx)
+			if why := refuseSeries(results, idx, ags); why != "" {
+				dg.Error = why
+			} else {
+				dg.Result, dg.Unit, dg.Error = dilutionAnalysis(results, idx)
+			}
 			rep.Dilution = append(rep.Dilution, dg)
+			what := "dilution series " + strconv.Quote(g)
 			if dg.Error != "" {
-				warnAll(results, idx, "dilution series "+strconv.Quote(g)+": "+dg.Error)
+				warnAll(results, idx, what+": "+dg.Error)
 			} else {
 				// The group's size at infinite dilution is the corrected
 				// value of these measurements: name it on each.
 				for _, i := range idx {
 					results[i].Correction = appendCorrection(results[i].Correction, "dilution-series")
+					for _, n := range dg.Result.Notes {
+						results[i].Assumptions = append(results[i].Assumptions, what+": "+n)
+					}
 				}
 				for _, w := range dg.Result.Warnings {
-					warnAll(results, idx, "dilution series "+strconv.Quote(g)+": "+w)
+					warnAll(results, idx, what+": "+w)
 				}
 			}
 		}
 	}
 	return rep
+}
+
+// flaggedQ reports whether a multi-angle analysis found Γ̄/q² depending on
+// q, or Γ̄ not going through zero.
+func flaggedQ(r *multiangle.Result) bool {
+	return r.InterceptFlagged || r.TrendFlagged || r.SpreadFlagged
+}
+
+// distinctAngles returns the angles of the results idx, rounded to
+// 0.01°, in increasing order.
+func distinctAngles(results []*dls.Result, idx []int) []float64 {
+	seen := map[float64]bool{}
+	var out []float64
+	for _, i := range idx {
+		a := math.Round(results[i].AngleDeg*100) / 100
+		if !seen[a] {
+			seen[a] = true
+			out = append(out, a)
+		}
+	}
+	sort.Float64s(out)
+	return out
+}
+
+// refuseSeries returns why the dilution series of results idx cannot be
+// fitted as one line, or "": its runs name different solvents (D·η/T
+// brings them to one viscosity, but not to one solvation or one set of
+// interactions), or they span several angles and none of the multi-angle
+// analyses ags (one per concentration) checks that D does not depend on q.
+func refuseSeries(results []*dls.Result, idx []int, ags []*AngleGroup) string {
+	first := results[idx[0]]
+	for _, i := range idx {
+		r := results[i]
+		if !strings.EqualFold(strings.TrimSpace(r.Solvent), strings.TrimSpace(first.Solvent)) {
+			return fmt.Sprintf("the series mixes solvents (%s in %s, %s in %s): fit one series per solvent (give each its own group)",
+				strconv.Quote(first.Solvent), first.File, strconv.Quote(r.Solvent), r.File)
+		}
+	}
+	angles := distinctAngles(results, idx)
+	if len(angles) < 2 {
+		return ""
+	}
+	list := make([]string, len(angles))
+	for i, a := range angles {
+		list[i] = strconv.FormatFloat(a, 'g', -1, 64) + "°"
+	}
+	checked := false
+	for _, ag := range ags {
+		if ag.Result == nil {
+			continue
+		}
+		if flaggedQ(ag.Result) {
+			return fmt.Sprintf("the series mixes the angles %s and the multi-angle analysis at %g %s finds D depending on q: "+
+				"fit one series per angle (give each its own group)", strings.Join(list, ", "), *ag.Concentration, ag.Unit)
+		}
+		checked = true
+	}
+	if !checked {
+		return fmt.Sprintf("the series mixes the angles %s without a multi-angle q-check (no concentration of the group was analysed at three or more angles): "+
+			"measure one concentration at three or more angles in the group, or fit one series per angle (give each its own group)", strings.Join(list, ", "))
+	}
+	return ""
 }
 
 // concentration returns the sized particles' concentration of a result:
@@ -151,7 +264,8 @@ func dilutionAnalysis(results []*dls.Result, idx []int) (*conc.Series, string, s
 		}
 		unit = u
 		p := conc.Point{Concentration: c, DiffusionM2PerS: r.DiffusionM2PerS, DiffusionSEM2PerS: r.DiffusionM2PerS * r.GammaSEPerS / r.GammaMeanPerS,
-			PDI: r.PDI, PDISE: r.PDISE, HasPDI: true, Intercept: r.Intercept, HasIntercept: true}
+			PDI: r.PDI, PDISE: r.PDISE, HasPDI: true, Intercept: r.Intercept, HasIntercept: true,
+			TemperatureK: dls.KelvinFromCelsius(r.TemperatureC), ViscosityPaS: r.ViscosityMPaS * 1e-3}
 		if r.HasCountRate {
 			p.CountRateKcps, p.HasCountRate = r.CountRateKcps, true
 		}

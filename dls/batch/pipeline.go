@@ -152,6 +152,14 @@ func Analyze(m *dls.Measurement, s *Settings) *dls.Result {
 		r.DurationS, r.HasDuration = v, true
 	}
 
+	nm, note, err := normaliseG2(m)
+	if err != nil {
+		return fail(err)
+	}
+	if note != "" {
+		m = nm
+		warn = append(warn, note)
+	}
 	fit, err := fitCumulants(m, &s.Cumulants)
 	if err != nil {
 		return fail(err)
@@ -191,15 +199,16 @@ func Analyze(m *dls.Measurement, s *Settings) *dls.Result {
 		warn = append(warn, w.Error())
 	}
 	r.Correction, r.Medium = "none", cond.medium
+	r.Assumptions = append(r.Assumptions, cond.assumptions...)
 	if cond.medium != nil {
 		r.Correction = "medium"
 	}
-	kw, err := applyKD(r, meta)
+	kdt, kw, err := applyKD(r, meta)
 	if err != nil {
 		return fail(err)
 	}
 	warn = append(warn, kw...)
-	warn = append(warn, budget(r, fit, cond, s)...)
+	warn = append(warn, budget(r, fit, cond, kdt, meta, s)...)
 	if s.Distribution.Enabled {
 		warn = append(warn, distribution(m, fit, cond, meta, &s.Distribution, r)...)
 	}
@@ -245,9 +254,19 @@ type state struct {
 	optics    dls.Optics
 	// etaLaw is η(T) of the continuous phase, for the uncertainty budget's
 	// ∂d/∂T: the solvent's correlation (times the medium factor), or a
-	// constant for a user-supplied viscosity.
-	etaLaw medium.ViscosityLaw
-	medium *dls.MediumNote
+	// constant for a user-supplied viscosity; solventLaw is the same
+	// before the medium factor (its uncertainty is the solvent's).
+	etaLaw     medium.ViscosityLaw
+	solventLaw medium.ViscosityLaw
+	// indexLaw is the solvent table's index law, nil for a given index.
+	indexLaw         medium.IndexLaw
+	etaGiven, nGiven bool
+	medium           *dls.MediumNote
+	// mediumU holds what the budget needs of a medium correction.
+	mediumU *mediumTerms
+	// assumptions are decisions on the metadata that the result records
+	// without a warning.
+	assumptions []string
 }
 
 // conditions resolves temperature, optics and medium from the metadata.
@@ -321,6 +340,7 @@ func conditions(m *dls.Measurement, meta dls.Metadata, s *Settings) (state, []st
 		}
 		if !nGiven {
 			n, st.nSource = props.RefractiveIndex, props.IndexSource
+			st.indexLaw = sol.Index
 		}
 		warn = append(warn, props.Warnings...)
 	}
@@ -339,13 +359,14 @@ func conditions(m *dls.Measurement, meta dls.Metadata, s *Settings) (state, []st
 	if st.etaLaw == nil {
 		st.etaLaw = medium.ConstantViscosity{PaS: st.etaPaS, TMinK: 0, TMaxK: math.Inf(1), Ref: "user-supplied"}
 	}
-	if !etaGiven {
-		mw, err := applyMedium(&st, meta)
-		if err != nil {
-			return st, nil, err
-		}
-		warn = append(warn, mw...)
+	st.solventLaw, st.etaGiven, st.nGiven = st.etaLaw, etaGiven, nGiven
+	// A given viscosity is the solvent's: a medium fraction or reading
+	// corrects it too (applyMedium says so).
+	mw, err := applyMedium(&st, meta)
+	if err != nil {
+		return st, nil, err
 	}
+	warn = append(warn, mw...)
 	st.optics.RefractiveIndex = n
 	if err := st.optics.Validate(); err != nil {
 		return st, nil, fmt.Errorf("%w: %v", dls.ErrBadMetadata, err)

@@ -31,9 +31,15 @@ var documentedRanges = []struct {
 	{dls.KeyVolumeFraction, "", 0, 0.64},
 	{dls.KeyCountRateKcps, "", 0, 1e7},
 	{dls.KeyDurationS, "", 0, 1e5},
-	{dls.KeyMediumVolumeFraction, "", 0, 0.64},
+	{dls.KeyMediumVolumeFraction, "", 0, 0.6},
 	{dls.KeyMediumRelViscosity, "", 1, 1e4},
 	{dls.KeyKD, "", -100, 1000},
+	{dls.KeyUViscosityMPaS, "", 0, 1e4},
+	{dls.KeyURefractiveIndex, "", 0, 0.1},
+	{dls.KeyUKD, "", 0, 1000},
+	{dls.KeyUVolumeFraction, "", 0, 0.64},
+	{dls.KeyUMediumVolumeFraction, "", 0, 0.6},
+	{dls.KeyUMediumRelViscosity, "", 0, 1e4},
 }
 
 // TestPlausibleRangesAsDocumented: the table is the documented one, and
@@ -56,7 +62,8 @@ func TestPlausibleRangesAsDocumented(t *testing.T) {
 
 // rangeCase is one value at an edge of a documented range: the metadata to
 // set, whether it lies inside, and whether it also breaks a physical limit
-// that no setting lifts (a medium index below 1).
+// that no setting lifts (a medium index below 1, a negative medium volume
+// fraction, a medium less viscous than its solvent).
 type rangeCase struct {
 	name     string
 	key      string
@@ -93,7 +100,11 @@ func edgeCases() []rangeCase {
 				}
 			}
 			name := d.key + " " + d.part + " " + e.what
-			absolute := d.key == dls.KeyRefractiveIndex && e.v < 1
+			// Physical impossibilities that no setting lifts: a medium
+			// index below 1, a negative medium volume fraction, a medium
+			// less viscous than its solvent.
+			absolute := (d.key == dls.KeyRefractiveIndex && e.v < 1) || (d.key == dls.KeyMediumVolumeFraction && e.v < 0) ||
+				(d.key == dls.KeyMediumRelViscosity && e.v < 1)
 			out = append(out, rangeCase{name: name, key: d.key, value: text, inside: e.inside, absolute: absolute})
 		}
 	}

@@ -57,11 +57,22 @@
 //
 // Automatic choice and stated ranges (ModelAuto):
 //
-//	φ ≤ 0.02         Einstein            (first order in φ)
-//	0.02 < φ ≤ 0.10  Batchelor           (second order in φ)
+//	0 ≤ φ ≤ 0.10     Batchelor           (second order in φ; Einstein's
+//	                                      1 + 2.5·φ is its first-order part)
 //	0.10 < φ < φm    Krieger–Dougherty   (warning beyond φm/2, where η_r
 //	                                      depends on φm by more than a few %)
 //	φ ≥ φm, φ < 0, NaN   error
+//
+// Einstein's relation is not chosen automatically: below φ = 0.02 it
+// differs from Batchelor's by 6.2·φ² (at most 0.25 %, at φ = 0.02, where
+// an earlier automatic switch stepped η_r by that much). The switch to
+// Krieger–Dougherty at φ = 0.10 steps η_r from 1.31200 to 1.31289 (φm =
+// 0.63), +0.07 %; the step is documented here and budgeted:
+// ModelUncertainty gives u(η_r) = a/√3 with a the largest difference
+// between the relation used and Batchelor and Krieger–Dougherty at the
+// same φ (a rectangular distribution, GUM 4.3.7), 5.1e-4 at φ = 0.10, so
+// the step lies within the expanded (k = 2) uncertainty it causes.
+// RelativeViscositySlope gives dη_r/dφ, the sensitivity to u(φ).
 //
 // A model forced by the caller is used as asked, with a warning when φ is
 // past its stated range. The relations describe rigid spheres much smaller
@@ -69,7 +80,9 @@
 // raise η_r further, which is why the inverse is offered:
 // VolumeFractionFromViscosity takes a measured relative viscosity of the
 // medium (a viscometer) and returns the hydrodynamic volume fraction the
-// chosen relation implies, and CheckMedium compares it with the stated φ.
+// chosen relation implies (ModelAuto: Batchelor up to η_r = 1.312,
+// Krieger–Dougherty beyond), and CheckMedium compares it with the stated
+// φ.
 //
 // Volume fraction from a mass concentration c (mg/mL = kg/m³) and the
 // density ρ of the dispersed material (g/cm³ = 1000 kg/m³):
@@ -95,6 +108,21 @@
 // A dilution series measures D at several concentrations and fits
 //
 //	D_i = a + b·c_i,   a = D0,  b = D0·k_D,  k_D = b/a
+//
+// Stokes–Einstein keeps D·η/T constant for one particle, so points
+// measured at another temperature T_i or viscosity η_i of the continuous
+// phase (Point.TemperatureK, ViscosityPaS) are first brought to the
+// series' reference state (SeriesSettings.TemperatureK, ViscosityPaS;
+// dls/batch uses the group's first run):
+//
+//	D_i ← D_i·(η_i/η_ref)·(T_ref/T_i),   u(D_i) ← u(D_i)·(η_i/η_ref)·(T_ref/T_i)
+//
+// Without it a point 2 K warmer in water is about 5 % faster through η/T
+// alone, which the line reads as concentration dependence (k_D = 3.1
+// instead of 1.45 for hard spheres when the warm point is the most
+// concentrated). k_D and d0 do not depend on the reference chosen; D0 is
+// D0 at the reference state. The factor is taken as exact: u(T) and u(η)
+// enter the size through the budget of package uncert.
 //
 // by weighted least squares with w_i = 1/u(D_i)². With the centred sums
 // S = Σw, c̄ = Σw·c/S, Scc = Σw·(c − c̄)²:

@@ -75,7 +75,7 @@ func TestRelativeViscosityChecks(t *testing.T) {
 
 // TestCorrectMediumHandWorked: water at 25 °C (0.8900 mPa·s, CRC Handbook,
 // rounded) holding φ = 0.05 of small rigid excipient particles. By hand:
-// φ = 0.05 is in Batchelor's range (0.02 < φ ≤ 0.10), so
+// φ = 0.05 is in Batchelor's range (φ ≤ 0.10, the automatic choice), so
 //
 //	η_r = 1 + 2.5·0.05 + 6.2·0.05² = 1 + 0.125 + 0.0155 = 1.1405
 //	η   = 0.8900 mPa·s × 1.1405 = 1.015045 mPa·s
@@ -105,9 +105,9 @@ func TestAutoChoice(t *testing.T) {
 		want  Model
 		warns int
 	}{
-		{0, ModelEinstein, 0},
-		{0.01, ModelEinstein, 0},
-		{0.02, ModelEinstein, 0},
+		{0, ModelBatchelor, 0},
+		{0.01, ModelBatchelor, 0},
+		{0.02, ModelBatchelor, 0},
 		{0.0201, ModelBatchelor, 0},
 		{0.10, ModelBatchelor, 0},
 		{0.1001, ModelKriegerDougherty, 0},
@@ -176,9 +176,8 @@ func TestBadVolumeFractions(t *testing.T) {
 // TestInverse: the inverse relations return the φ that was put in (round
 // trip, 1e-12), the printed check value KD(0.63) at φ = 0.30 = 2.76887
 // gives back 0.30 within the rounding of the 6 printed digits
-// (5e-6/(dη_r/dφ ≈ 13) ≈ 4e-7), and by hand η_r = 1.05 → φ = 0.05/2.5 =
-// 0.02 (Einstein) and η_r = 1.312 → 0.10 (Batchelor: 6.2·0.01 + 0.25 =
-// 0.312).
+// (5e-6/(dη_r/dφ ≈ 13) ≈ 4e-7), and by hand η_r = 1.312 → 0.10
+// (Batchelor: 6.2·0.01 + 0.25 = 0.312).
 func TestInverse(t *testing.T) {
 	for _, m := range []Model{ModelEinstein, ModelBatchelor, ModelKriegerDougherty} {
 		for _, phi := range []float64{0, 1e-6, 0.003, 0.02, 0.07, 0.1, 0.25, 0.5} {
@@ -197,7 +196,9 @@ func TestInverse(t *testing.T) {
 		etaR, want, tol float64
 		model           Model
 	}{
-		{1.05, 0.02, 1e-12, ModelEinstein},
+		// Positive root of 6.2·φ² + 2.5·φ − 0.05 = 0 (Batchelor, the
+		// automatic choice up to η_r = 1.312), computed.
+		{1.05, 0.0190956803775, 1e-12, ModelBatchelor},
 		{1.312, 0.10, 1e-12, ModelBatchelor},
 		{2.76887, 0.30, 1e-6, ModelKriegerDougherty},
 	} {
@@ -217,19 +218,20 @@ func TestInverse(t *testing.T) {
 	}
 }
 
-// TestCheckMedium: stated φ = 0.01 and a viscometer reading η_r = 1.025 ±
-// 0.001 (Einstein: implied φ = 0.025/2.5 = 0.01 ± 0.0004, by hand) agree;
+// TestCheckMedium (Einstein's relation forced, for values by hand): stated
+// φ = 0.01 and a viscometer reading η_r = 1.025 ± 0.001 (implied φ = 0.025/2.5 = 0.01 ± 0.0004, by hand) agree;
 // η_r = 1.05 ± 0.001 implies φ = 0.02 ± 0.0004, 25 standard uncertainties
 // from 0.01, and is flagged.
 func TestCheckMedium(t *testing.T) {
-	c, err := CheckMedium(0.01, 1.025, 0.001, nil)
+	ein := &MediumSettings{Model: ModelEinstein}
+	c, err := CheckMedium(0.01, 1.025, 0.001, ein)
 	if err != nil {
 		t.Fatal(err)
 	}
 	if !c.Consistent || !scalar.EqualWithinAbs(c.ImpliedVolumeFraction, 0.01, 1e-12) || !scalar.EqualWithinAbs(c.ImpliedU, 0.0004, 1e-12) {
 		t.Errorf("consistent case: %+v", c)
 	}
-	c, err = CheckMedium(0.01, 1.05, 0.001, nil)
+	c, err = CheckMedium(0.01, 1.05, 0.001, ein)
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -329,5 +331,48 @@ func TestParseModel(t *testing.T) {
 	}
 	if _, err := ParseModel("quemada"); err == nil {
 		t.Error("unknown model parsed")
+	}
+}
+
+// TestAutoModelContinuity: the automatic relation has no step at φ = 0.02
+// (Batchelor on both sides; the former switch from Einstein stepped η_r by
+// 6.2·0.02² = 2.48e-3), and its one step, at φ = 0.10 to
+// Krieger–Dougherty (φm = 0.63), is 1.312886 − 1.312 = 8.86e-4 (computed
+// from the published formulas), within twice the model uncertainty it is
+// budgeted with. Model uncertainties: |Batchelor − Krieger–Dougherty|/√3,
+// computed from the same formulas (φ = 0.05: |1.1405 − 1.139101|/√3 =
+// 8.076e-4; φ = 0.10: 5.113e-4); the tolerance 1e-6 covers the digits
+// printed here. Slopes: Batchelor 2.5 + 12.4·φ by hand.
+func TestAutoModelContinuity(t *testing.T) {
+	below, _, _, _ := RelativeViscosity(EinsteinMaxPhi, nil)
+	above, _, _, _ := RelativeViscosity(math.Nextafter(EinsteinMaxPhi, 1), nil)
+	if math.Abs(above-below) > 1e-12 {
+		t.Errorf("step at φ = 0.02: %g → %g", below, above)
+	}
+	lo, _, _, _ := RelativeViscosity(BatchelorMaxPhi, nil)
+	hi, _, _, _ := RelativeViscosity(math.Nextafter(BatchelorMaxPhi, 1), nil)
+	u, err := ModelUncertainty(BatchelorMaxPhi, nil)
+	if err != nil || !scalar.EqualWithinAbs(hi-lo, 8.8556e-4, 1e-6) || !(hi-lo < 2*u) {
+		t.Errorf("step at φ = 0.10: %g (want 8.8556e-4, below 2·u = %g; err %v)", hi-lo, 2*u, err)
+	}
+	for _, c := range []struct{ phi, u, slope float64 }{
+		{0.05, 8.0765e-4, 2.5 + 12.4*0.05},
+		{0.10, 5.1128e-4, 2.5 + 12.4*0.10},
+	} {
+		u, err := ModelUncertainty(c.phi, nil)
+		if err != nil || !scalar.EqualWithinAbs(u, c.u, 1e-6) {
+			t.Errorf("φ = %g: u_model %g, want %g (%v)", c.phi, u, c.u, err)
+		}
+		sl, err := RelativeViscositySlope(c.phi, nil)
+		if err != nil || !scalar.EqualWithinAbs(sl, c.slope, 1e-12) {
+			t.Errorf("φ = %g: slope %g, want %g (%v)", c.phi, sl, c.slope, err)
+		}
+	}
+	// Forced Einstein at 0.05 is compared with Batchelor: 6.2·0.05²/√3.
+	if u, _ := ModelUncertainty(0.05, &MediumSettings{Model: ModelEinstein}); !scalar.EqualWithinAbs(u, 6.2*0.0025/math.Sqrt(3), 1e-12) {
+		t.Errorf("forced Einstein u_model %g", u)
+	}
+	if _, err := ModelUncertainty(-1, nil); err == nil {
+		t.Error("negative φ accepted")
 	}
 }

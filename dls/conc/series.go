@@ -37,6 +37,14 @@ type Point struct {
 	Intercept    float64
 	InterceptSE  float64
 	HasIntercept bool
+	// TemperatureK and ViscosityPaS are the temperature and the viscosity
+	// of the continuous phase at which D was measured. When every point
+	// gives them (both > 0), D and u(D) are brought to the series'
+	// reference state (SeriesSettings.TemperatureK, ViscosityPaS) by
+	// D·(η/η_ref)·(T_ref/T) before the fit; zero in every point means the
+	// points were measured at the reference state.
+	TemperatureK float64
+	ViscosityPaS float64
 }
 
 // Scaling says how the covariance of the series fit treats the stated
@@ -70,8 +78,12 @@ type SeriesSettings struct {
 	// Unit names the concentration unit (e.g. "mg/mL", "volume fraction")
 	// for messages and output; k_D is in its reciprocal.
 	Unit string
-	// TemperatureK and ViscosityPaS (of the continuous phase) turn D0 into
-	// a size at infinite dilution; zero leaves the size out.
+	// TemperatureK and ViscosityPaS (of the continuous phase) are the
+	// reference state of the series: points that give their own
+	// temperature and viscosity are brought to it (D·η/T is what
+	// Stokes–Einstein keeps constant), and D0 at it becomes the size at
+	// infinite dilution. Zero leaves the size out, and then no point may
+	// give its own state.
 	TemperatureK float64
 	ViscosityPaS float64
 	Scaling      Scaling
@@ -86,8 +98,14 @@ type SeriesSettings struct {
 
 // Residual is one point of the series fit.
 type Residual struct {
-	Concentration   float64 `json:"concentration"`
+	Concentration float64 `json:"concentration"`
+	// DiffusionM2PerS is D at the reference state, as fitted;
+	// MeasuredM2PerS is D as measured and ToReference the factor
+	// (η/η_ref)·(T_ref/T) between them (1 for a point at the reference
+	// state).
 	DiffusionM2PerS float64 `json:"diffusion_m2_per_s"`
+	MeasuredM2PerS  float64 `json:"measured_diffusion_m2_per_s"`
+	ToReference     float64 `json:"to_reference"`
 	FittedM2PerS    float64 `json:"fitted_m2_per_s"`
 	ResidualM2PerS  float64 `json:"residual_m2_per_s"`
 	// Normalized is the residual over the point's stated uncertainty.
@@ -124,6 +142,10 @@ type Series struct {
 	Unit     string `json:"unit"`
 	Points   int    `json:"points"`
 	Distinct int    `json:"distinct_concentrations"`
+	// ReferenceTemperatureK and ReferenceViscosityPaS are the state every
+	// D was brought to (0 when the settings gave none).
+	ReferenceTemperatureK float64 `json:"reference_temperature_k"`
+	ReferenceViscosityPaS float64 `json:"reference_viscosity_pa_s"`
 
 	D0M2PerS       float64 `json:"diffusion0_m2_per_s"`
 	D0SEM2PerS     float64 `json:"diffusion0_se_m2_per_s"`
@@ -156,6 +178,9 @@ type Series struct {
 	// name other doubts (few points, short span, first-order range).
 	Flagged  bool     `json:"flagged"`
 	Warnings []string `json:"warnings"`
+	// Notes say what was done to the data without casting doubt on the
+	// result (D brought to the reference state).
+	Notes []string `json:"notes"`
 }
 
 // ErrTooFewConcentrations reports a dilution series with fewer than three
@@ -198,6 +223,14 @@ func FitDilutionSeries(pts []Point, s *SeriesSettings) (*Series, error) {
 	if n < 3 {
 		return nil, fmt.Errorf("%d points: %w", n, ErrTooFewConcentrations)
 	}
+	hasRef := set.TemperatureK != 0 || set.ViscosityPaS != 0
+	if hasRef && (!(set.TemperatureK > 0) || !(set.ViscosityPaS > 0) || math.IsInf(set.TemperatureK, 0) || math.IsInf(set.ViscosityPaS, 0)) {
+		return nil, fmt.Errorf("temperature %g K and viscosity %g Pa·s must both be positive numbers for the size", set.TemperatureK, set.ViscosityPaS)
+	}
+	factor, err := toReference(pts, set)
+	if err != nil {
+		return nil, err
+	}
 	x := make([]float64, n)
 	y := make([]float64, n)
 	for i, p := range pts {
@@ -222,7 +255,7 @@ func FitDilutionSeries(pts []Point, s *SeriesSettings) (*Series, error) {
 		if p.CountRateKcps < 0 || p.PDISE < 0 || p.InterceptSE < 0 {
 			return nil, fmt.Errorf("point %d: negative count rate or standard uncertainty: %w", i+1, ErrRange)
 		}
-		x[i], y[i] = p.Concentration, p.DiffusionM2PerS
+		x[i], y[i] = p.Concentration, p.DiffusionM2PerS*factor[i]
 	}
 	distinct := stats.CountDistinct(x, 1e-9*floats.Norm(x, math.Inf(1)), 0)
 	if distinct < 3 {
@@ -236,7 +269,7 @@ func FitDilutionSeries(pts []Point, s *SeriesSettings) (*Series, error) {
 	ws := make([]float64, n)
 	for i := range y {
 		ys[i] = y[i] / ref
-		r := ref / pts[i].DiffusionSEM2PerS
+		r := ref / (pts[i].DiffusionSEM2PerS * factor[i])
 		ws[i] = r * r
 		if math.IsInf(ws[i], 0) || ws[i] == 0 {
 			return nil, fmt.Errorf("point %d: standard uncertainty %g m²/s of D is out of proportion to D: %w", i+1, pts[i].DiffusionSEM2PerS, ErrRange)
@@ -253,7 +286,7 @@ func FitDilutionSeries(pts []Point, s *SeriesSettings) (*Series, error) {
 	ga, gb := -b/(a*a), 1/a
 	varKD := ga*ga*varA + gb*gb*varB + 2*ga*gb*cov
 	r := &Series{
-		Unit: unit, Points: n, Distinct: distinct,
+		Unit: unit, Points: n, Distinct: distinct, ReferenceTemperatureK: set.TemperatureK, ReferenceViscosityPaS: set.ViscosityPaS,
 		D0M2PerS: a, D0SEM2PerS: math.Sqrt(varA), SlopeM2PerS: b, SlopeSEM2PerS: math.Sqrt(varB),
 		CovD0Slope: cov, KD: kd, KDSE: math.Sqrt(math.Max(0, varKD)),
 		Scaling: set.Scaling.String(), ScaleFactor: l.Scale,
@@ -261,11 +294,16 @@ func FitDilutionSeries(pts []Point, s *SeriesSettings) (*Series, error) {
 		ChiSquarePProb: distuv.ChiSquared{K: float64(l.DOF)}.Survival(l.Chi2),
 	}
 	for i, p := range pts {
-		res := p.DiffusionM2PerS - l.Fitted[i]*ref
+		res := y[i] - l.Fitted[i]*ref
 		r.Residuals = append(r.Residuals, Residual{
-			Concentration: p.Concentration, DiffusionM2PerS: p.DiffusionM2PerS,
-			FittedM2PerS: l.Fitted[i] * ref, ResidualM2PerS: res, Normalized: res / p.DiffusionSEM2PerS,
+			Concentration: p.Concentration, DiffusionM2PerS: y[i], MeasuredM2PerS: p.DiffusionM2PerS, ToReference: factor[i],
+			FittedM2PerS: l.Fitted[i] * ref, ResidualM2PerS: res, Normalized: res / (p.DiffusionSEM2PerS * factor[i]),
 		})
+	}
+	if lo, hi := minMax(factor); hi-lo > 1e-6 {
+		tlo, thi := minMax(pointField(pts, func(p Point) float64 { return p.TemperatureK }))
+		r.Notes = append(r.Notes, fmt.Sprintf("D brought to %.2f °C and %.5g mPa·s by D·(η/η_ref)·(T_ref/T) before the fit (points at %.2f–%.2f °C; factors %.5f–%.5f)",
+			set.TemperatureK-dls.ZeroCelsiusK, set.ViscosityPaS*1e3, tlo-dls.ZeroCelsiusK, thi-dls.ZeroCelsiusK, lo, hi))
 	}
 	cmax := x[0]
 	cmin := math.Inf(1)
@@ -276,10 +314,7 @@ func FitDilutionSeries(pts []Point, s *SeriesSettings) (*Series, error) {
 		}
 	}
 	r.MaxKDC = math.Abs(kd * cmax)
-	if set.TemperatureK != 0 || set.ViscosityPaS != 0 {
-		if !(set.TemperatureK > 0) || !(set.ViscosityPaS > 0) || math.IsInf(set.TemperatureK, 0) || math.IsInf(set.ViscosityPaS, 0) {
-			return nil, fmt.Errorf("temperature %g K and viscosity %g Pa·s must both be positive numbers for the size", set.TemperatureK, set.ViscosityPaS)
-		}
+	if hasRef {
 		d := dls.DiameterFromDiffusion(set.TemperatureK, set.ViscosityPaS, a)
 		r.DiameterNm = d * 1e9
 		r.DiameterSENm = r.DiameterNm * r.D0SEM2PerS / a
@@ -349,6 +384,52 @@ func FitDilutionSeries(pts []Point, s *SeriesSettings) (*Series, error) {
 		return nil, fmt.Errorf("count-rate check is numerically degenerate: %w", ErrRange)
 	}
 	return r, nil
+}
+
+// toReference returns, for each point, the factor (η/η_ref)·(T_ref/T)
+// that brings its D to the reference state of s: all ones when no point
+// gives its state. A point that gives a state when others do not, or when
+// the series has no reference, is an error, and so is a state that is not
+// a pair of positive finite numbers.
+func toReference(pts []Point, s SeriesSettings) ([]float64, error) {
+	f := make([]float64, len(pts))
+	given := 0
+	for i, p := range pts {
+		f[i] = 1
+		if p.TemperatureK == 0 && p.ViscosityPaS == 0 {
+			continue
+		}
+		given++
+		if !(p.TemperatureK > 0) || !(p.ViscosityPaS > 0) || math.IsInf(p.TemperatureK, 0) || math.IsInf(p.ViscosityPaS, 0) {
+			return nil, fmt.Errorf("point %d: temperature %g K and viscosity %g Pa·s must both be positive numbers: %w", i+1, p.TemperatureK, p.ViscosityPaS, ErrRange)
+		}
+		f[i] = (p.ViscosityPaS / s.ViscosityPaS) * (s.TemperatureK / p.TemperatureK)
+	}
+	switch {
+	case given == 0:
+		return f, nil
+	case given < len(pts):
+		return nil, fmt.Errorf("%d of %d points give their temperature and viscosity: give them for every point or for none", given, len(pts))
+	case s.TemperatureK == 0:
+		return nil, fmt.Errorf("the points give their temperature and viscosity but the series has no reference state (SeriesSettings.TemperatureK, ViscosityPaS)")
+	}
+	return f, nil
+}
+
+func minMax(v []float64) (lo, hi float64) {
+	lo, hi = v[0], v[0]
+	for _, x := range v {
+		lo, hi = math.Min(lo, x), math.Max(hi, x)
+	}
+	return lo, hi
+}
+
+func pointField(pts []Point, f func(Point) float64) []float64 {
+	out := make([]float64, len(pts))
+	for i, p := range pts {
+		out[i] = f(p)
+	}
+	return out
 }
 
 // finite reports whether every value is a finite number.

@@ -295,3 +295,60 @@ func TestSeriesQC(t *testing.T) {
 		})
 	}
 }
+
+// TestSeriesReferenceState: a series measured partly at 27 °C. The truth is
+// D_i = k_B·T_i·(1 + k_D·c_i)/(3π·η(T_i)·d0) for d0 = 100 nm and
+// k_D = 0.01 mL/mg, with the IAPWS 2008 viscosity η(25 °C) = 0.890023 and
+// η(27 °C) = 0.850906 mPa·s (testdata/water/iapws_viscosity.py, IAPWS
+// R12-08 with the Tanaka 2001 density), the 27 °C point the most
+// concentrated. Brought to the reference state
+// (25 °C) by D·(η/η_ref)·(T_ref/T), the series is exact again: D0, k_D and
+// d0 back to 1e-9 (rounding only). Regressed as measured, the 27 °C point
+// (5 % faster through η/T alone) raises k_D by more than half.
+func TestSeriesReferenceState(t *testing.T) {
+	const eta25w, eta27w = 0.890023e-3, 0.850906e-3
+	const t27 = 300.15
+	c := []float64{1, 2, 4, 8}
+	temps := []float64{tK25, tK25, tK25, t27}
+	etas := []float64{eta25w, eta25w, eta25w, eta27w}
+	pts := make([]Point, len(c))
+	for i := range c {
+		d := dls.DiffusionFromDiameter(temps[i], etas[i], 100e-9) * (1 + 0.01*c[i])
+		pts[i] = Point{Concentration: c[i], DiffusionM2PerS: d, DiffusionSEM2PerS: 0.002 * d, TemperatureK: temps[i], ViscosityPaS: etas[i]}
+	}
+	set := &SeriesSettings{Unit: "mg/mL", TemperatureK: tK25, ViscosityPaS: eta25w}
+	s, err := FitDilutionSeries(pts, set)
+	if err != nil {
+		t.Fatal(err)
+	}
+	d0 := dls.DiffusionFromDiameter(tK25, eta25w, 100e-9)
+	if !scalar.EqualWithinRel(s.D0M2PerS, d0, 1e-9) || !scalar.EqualWithinRel(s.KD, 0.01, 1e-9) || !scalar.EqualWithinRel(s.DiameterNm, 100, 1e-9) {
+		t.Errorf("D0 %.10g (want %.10g), k_D %.10g (want 0.01), d0 %.10g nm (want 100)", s.D0M2PerS, d0, s.KD, s.DiameterNm)
+	}
+	if s.ReferenceTemperatureK != tK25 || len(s.Notes) != 1 || s.ChiSquare > 1e-12 {
+		t.Errorf("reference %g K, notes %q, χ² %g", s.ReferenceTemperatureK, s.Notes, s.ChiSquare)
+	}
+	if r := s.Residuals[3]; !scalar.EqualWithinRel(r.ToReference, (eta27w/eta25w)*(tK25/t27), 1e-12) || r.MeasuredM2PerS != pts[3].DiffusionM2PerS {
+		t.Errorf("27 °C residual row %+v", r)
+	}
+
+	// Without the states the same numbers give a wrong k_D: the guard
+	// that the test above can fail.
+	raw := append([]Point(nil), pts...)
+	for i := range raw {
+		raw[i].TemperatureK, raw[i].ViscosityPaS = 0, 0
+	}
+	if s, err := FitDilutionSeries(raw, set); err != nil || s.KD < 0.015 {
+		t.Errorf("as measured: k_D %v (err %v); want 50 %% or more high", s.KD, err)
+	}
+
+	// States for some points only, or without a reference: errors.
+	some := append([]Point(nil), pts...)
+	some[0].TemperatureK, some[0].ViscosityPaS = 0, 0
+	if _, err := FitDilutionSeries(some, set); err == nil {
+		t.Error("states for 3 of 4 points accepted")
+	}
+	if _, err := FitDilutionSeries(pts, &SeriesSettings{}); err == nil {
+		t.Error("point states without a reference state accepted")
+	}
+}

@@ -72,15 +72,32 @@
 //	α = 1 − C_m + a·b·C_m·(1 − C_m)/(a·C_m + b·(1 − C_m))
 //	μ = μ_w^α · μ_g^(1−α)
 //
-// and the index by Lorentz–Lorenz mixing of water (IAPWS R9-97) and glycerol
-// (Rheims et al.) by their volume fractions before mixing, φ_g from the
-// Pátek water density and Cheng's glycerol density ρ_g = 1277 − 0.654·t
-// kg/m³:
+// Density of the mixture, Volk & Kähler 2018: the ideal (volume-additive)
+// mix of water (Pátek) and glycerol, ρ_g = 1273.3 − 0.6121·t kg/m³, times a
+// contraction factor,
 //
-//	(n² − 1)/(n² + 2) = φ_g·L(n_g) + (1 − φ_g)·L(n_w),  L(n) = (n² − 1)/(n² + 2)
+//	φ_g = (w/ρ_g)/(w/ρ_g + (1 − w)/ρ_w)              (volume fraction before mixing)
+//	ρ   = κ·[φ_g·ρ_g + (1 − φ_g)·ρ_w]
+//	κ   = 1 + A·sin(w^1.31·π)^0.81,  A = 1.78e-6·t² − 1.82e-4·t + 1.41e-2
 //
-// This ideal mixing neglects the volume contraction of glycerol–water and
-// so gives an index a few 1e-3 low at intermediate fractions.
+// (κ = 1.0108 at 50 wt % and 20 °C). It reproduces the density table of
+// the Glycerine Producers' Association (1963) at 15–30 °C and 0–100 wt %
+// within 0.05 %; the ideal mix is up to 1.1 % light.
+//
+// Index: Lorentz–Lorenz with additive specific refractions r = L(n)/ρ of
+// water (IAPWS R9-97) and glycerol (Rheims et al.) and the mixture's own
+// density, L(n) = ρ·[w·r_g + (1 − w)·r_w], which is
+//
+//	L(n) = κ·[φ_g·L(n_g) + (1 − φ_g)·L(n_w)],  L(n) = (n² − 1)/(n² + 2)
+//
+// Without κ (ideal mixing) the index ran up to 5.6e-3 low (60 wt %, 20 °C,
+// 589 nm), a 0.8 % size bias. With κ it lies within 6e-4 of the CRC
+// "Concentrative properties of aqueous solutions" table at 10–90 wt %
+// (values from memory), most of that at high w, where the pure-glycerol
+// data run 1.5e-3 below the handbook. The entry states its uncertainty
+// (IndexUncertainty, used by the GUM budget): 6e-4/√3 = 3.5e-4 for a
+// mixture at 15–30 °C, twice that at other temperatures (the contraction
+// was checked at 15–30 °C only), 1.5e-3/√3 for pure glycerol.
 //
 // References:
 //   - A. Pátek, J. Hrubý, J. Klomfar, M. Součková, A. H. Harvey, Reference
@@ -104,6 +121,13 @@
 //     8th ed., McGraw-Hill, 2008, Table 2-313 (DIPPR 801 correlations).
 //   - N.-S. Cheng, Formula for the viscosity of a glycerol–water mixture,
 //     Ind. Eng. Chem. Res. 47, 3285 (2008).
+//   - A. Volk, C. J. Kähler, Density model for aqueous glycerol solutions,
+//     Exp. Fluids 59, 75 (2018).
+//   - Glycerine Producers' Association, Physical properties of glycerine
+//     and its solutions, New York (1963), density table.
+//   - CRC Handbook of Chemistry and Physics, CRC Press (e.g. 97th ed.,
+//     2016), table "Concentrative properties of aqueous solutions"
+//     (glycerol, 20 °C).
 //   - Dispersion formulas: Chang et al., Opt. Mater. Express 14, 1253
 //     (2024); Sani & Dell'Oro, Opt. Mater. 37, 36 (2014) and 60, 137 (2016);
 //     Li, Wang, Ma, Liu, Infrared Phys. Technol. 125, 104313 (2022); Kerl &

@@ -35,6 +35,15 @@ type IndexLaw interface {
 	Source(tK float64) string
 }
 
+// IndexUncertainty is implemented by index laws that state the standard
+// uncertainty of their values (the glycerol–water mixture rule); laws
+// without it leave u(n) to the caller's default.
+type IndexUncertainty interface {
+	// IndexUncertainty returns the standard uncertainty of the index at tK
+	// kelvin and vacuum wavelength lambdaM metres, and its basis in words.
+	IndexUncertainty(tK, lambdaM float64) (u float64, basis string)
+}
+
 // DIPPR101 is the liquid-viscosity equation 101 of the DIPPR 801 project,
 //
 //	η / (Pa·s) = exp(C1 + C2/T + C3·ln T + C4·T^C5),  T in K,

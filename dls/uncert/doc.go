@@ -81,6 +81,25 @@
 // pass the mean decay rate and its standard error s_Γ/√n with ν = n − 1 to
 // ZAverage.
 //
+// # Terms of corrections and given values
+//
+// Extend adds Type B components to a budget and combines again (Scaled
+// multiplies one by an exact factor). dls/batch uses them for
+//
+//	medium by φ_m     u(φ_m), ∂d/∂φ_m = −d·(dη_r/dφ)/η_r, and the model
+//	                  term u(η_r) of the relation used (dls/conc
+//	                  ModelUncertainty), ∂d/∂η_r = −d/η_r
+//	medium by reading u(η_r) of medium_relative_viscosity (stated, or 1 %
+//	                  assumed), ∂d/∂η_r = −d/η_r
+//	k_D correction    a second budget, of d0 = d·(1 + k_D·φ): the terms of d
+//	                  times 1 + k_D·φ, then u(k_D) with ∂d0/∂k_D = d·φ and
+//	                  u(φ) with ∂d0/∂φ = d·k_D
+//
+// and takes u(η) and u(n) of a given viscosity or index from the value's
+// own stated uncertainty (u_viscosity_mpas, u_refractive_index), u(n) of a
+// correlation that states one (glycerol–water) from it. Budget.Unstated
+// lists the given values that came without one.
+//
 // # References
 //
 //   - JCGM 100:2008, Evaluation of measurement data — Guide to the

@@ -53,9 +53,17 @@
 //	volume_fraction             1       0 … 0.64
 //	count_rate_kcps             kcps    0 … 10⁷
 //	duration_s                  s       0 … 10⁵
-//	medium_volume_fraction      1       0 … 0.64
+//	medium_volume_fraction      1       0 … 0.6 (below φm = 0.63 of the
+//	                                    viscosity relations)
 //	medium_relative_viscosity   1       1 … 10⁴
 //	kd                          1       -100 … 1000, or hard-sphere
+//	u_viscosity_mpas            mPa·s   0 … 10⁴ (standard uncertainty of a
+//	                                    given viscosity_mpas)
+//	u_refractive_index          1       0 … 0.1 (of a given refractive_index)
+//	u_kd                        1       0 … 1000 (of a numeric kd)
+//	u_volume_fraction           1       0 … 0.64 (of the particles' φ)
+//	u_medium_volume_fraction    1       0 … 0.6
+//	u_medium_relative_viscosity 1       0 … 10⁴
 //
 // The reader checks syntax only. The analysis (dls/batch) checks each
 // value, from whatever source, against its range: outside it the
@@ -106,6 +114,12 @@
 //	g2m1                         g2 − 1 (baseline ≈ 0)
 //	g1                           field autocorrelation
 //	sigma                        standard uncertainty of each correlation value
+//
+// A g2 column exported without normalisation (a raw G2 = B·(1 + β·g1²) in
+// counts², far channels above 10) is recognised by the analysis: with a
+// clear baseline plateau it is divided by its far-channel mean, with a
+// warning; without one the measurement fails (dls.ErrUnnormalised) with a
+// message that says how to normalise the export (dls/batch).
 //
 // A file holds one run (one correlation column, "g2", "g2m1" or "g1") or
 // several: correlation columns of one kind named "<kind>_<label>" (g2_a,

@@ -14,7 +14,10 @@
 //	                    particle_density_g_cm3, volume_fraction,
 //	                    count_rate_kcps, duration_s, lot, product, role,
 //	                    group, medium_volume_fraction,
-//	                    medium_relative_viscosity, kd
+//	                    medium_relative_viscosity, kd, u_viscosity_mpas,
+//	                    u_refractive_index, u_kd, u_volume_fraction,
+//	                    u_medium_volume_fraction,
+//	                    u_medium_relative_viscosity
 //
 // A role is sample, reference or blank, in any letter case (dls.ParseRole).
 // Empty cells set nothing. Unknown columns are an error (a misspelt column
