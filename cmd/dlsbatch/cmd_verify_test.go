@@ -59,3 +59,31 @@ func appendTo(t *testing.T, p, s string) {
 	f.WriteString(s)
 	f.Close()
 }
+
+// TestPathIndependentBytes: the same inputs named as a relative path, an
+// absolute one and a dotted one with a trailing slash, from different
+// working directories, give byte-identical outputs (inputs are recorded
+// relative to the input root, stored once in the manifest).
+func TestPathIndependentBytes(t *testing.T) {
+	in := batchDir(t)
+	parent, name := filepath.Dir(in), filepath.Base(in)
+	tmp := t.TempDir()
+	outs := []string{filepath.Join(tmp, "rel"), filepath.Join(tmp, "abs"), filepath.Join(tmp, "dotted")}
+	t.Chdir(parent)
+	runCmd(t, "run", name, "--out", outs[0], "-q")
+	t.Chdir(tmp)
+	runCmd(t, "run", in, "--out", outs[1], "-q")
+	t.Chdir(in)
+	runCmd(t, "run", "./", "--out", outs[2], "-q")
+	for _, f := range []string{"results.csv", "samples.csv", "results.json", "manifest.json", "summary.txt", "report/index.html"} {
+		want, err := os.ReadFile(filepath.Join(outs[0], f))
+		if err != nil {
+			t.Fatal(err)
+		}
+		for _, o := range outs[1:] {
+			if got, _ := os.ReadFile(filepath.Join(o, f)); string(got) != string(want) {
+				t.Errorf("%s differs between %s and %s: %s", f, filepath.Base(outs[0]), filepath.Base(o), firstDiff(want, got))
+			}
+		}
+	}
+}
