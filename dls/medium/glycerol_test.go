@@ -10,7 +10,8 @@ import (
 )
 
 // Cheng, Ind. Eng. Chem. Res. 47, 3285 (2008): values computed from his
-// equations 6, 21, 22 with an independent script, printed to four
+// equations 6, 21, 22 with an independent script (a few lines of Python
+// from the paper's equations), printed to four
 // significant digits, so the tolerance is 0.05 % relative (half a unit of
 // the fourth digit at the smallest value, 1.005).
 func TestGlycerolWaterCheng(t *testing.T) {

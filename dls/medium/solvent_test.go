@@ -152,7 +152,8 @@ func TestSolventWaterProps(t *testing.T) {
 		t.Errorf("Props = %g, %g; want %g, %g", p.ViscosityPaS, p.RefractiveIndex, mu, n)
 	}
 	// Laser-line table value at 25 °C, 632.8 nm (IAPWS R9-97 with Pátek
-	// density, computed by an independent script; 5 decimals).
+	// density, computed by an independent script; 5 decimals; a pin, see
+	// TestWaterRefractiveIndexLaserLines for the outside check).
 	mediumClose(t, "n(632.8 nm, 25 °C)", p.RefractiveIndex, 1.33162, 1e-5)
 	if !strings.Contains(p.ViscositySource, "IAPWS 2008") || !strings.Contains(p.IndexSource, "R9-97") {
 		t.Errorf("sources %q, %q", p.ViscositySource, p.IndexSource)
@@ -263,8 +264,9 @@ func TestDIPPR101WaterRowAgainstIAPWS(t *testing.T) {
 }
 
 // The dispersion formulas as evaluated here against n(589.3 nm) and
-// n(632.8 nm) computed from the same coefficients by an independent script
-// (printed to 5 decimals: 1e-5), at each formula's own temperature.
+// n(632.8 nm) computed from the same coefficients (data/refractive_index.tsv)
+// by a separate Python evaluation of the formulas as written in that file's
+// header (printed to 5 decimals: 1e-5), at each formula's own temperature.
 func TestDispersionFormulas(t *testing.T) {
 	tests := []struct {
 		name       string

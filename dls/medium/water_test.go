@@ -54,7 +54,11 @@ func TestWaterViscosityIAPWS2008Table4(t *testing.T) {
 // Liquid water at 0.101325 MPa. Expected density and viscosity: computed
 // with an independent script from Pátek et al. 2009 (density) and IAPWS
 // 2008 (viscosity); they check this implementation of the same formulas,
-// so the tolerance is half a unit of the printed last digit.
+// so the tolerance is half a unit of the printed last digit. The script is
+// not kept in the repository, so these rows are in effect a pin at the
+// printed digits; the outside checks of the same quantities are the IAPWS
+// Table 4 values above, the SR6-08 correlation (3e-4, 0–90 °C) and Tanaka
+// 2001 / Kell 1975 (density) below.
 func TestWaterAtOneAtmosphere(t *testing.T) {
 	tests := []struct {
 		tC, rho, muMicroPaS float64
@@ -132,7 +136,9 @@ func TestWaterViscosityHandbook(t *testing.T) {
 
 func TestWaterDensity(t *testing.T) {
 	// Pátek et al. 2009 at exactly 0.1 MPa, computed with an independent
-	// script (printed to 1e-6 kg/m³, so ±0.6e-6).
+	// script (printed to 1e-6 kg/m³, so ±0.6e-6). The script is not in the
+	// repository; Tanaka 2001 and Kell 1975 below check the same density
+	// from outside at 1.5 ppm and 0.02 kg/m³.
 	patek := []struct{ tK, rho float64 }{
 		{273.15, 999.842383},
 		{293.15, 998.206546},
@@ -175,7 +181,9 @@ func TestWaterRefractiveIndexIAPWS97CheckValues(t *testing.T) {
 		{"release 773.15 K 0.5893 µm", 773.15, 30.4758534, 0.5893, 1.00949307},
 		// From memory, reproduced by an independent script from the formula.
 		{"773.15 K 0.2265 µm", 773.15, 30.4758534, 0.2265, 1.01098988},
-		// Computed from the formula with an independent script.
+		// Computed from the formula with an independent script (not in the
+		// repository: a pin; Daimon & Masumura below checks the index near
+		// 1 µm from outside only to 4e-5).
 		{"298.15 K 1.01 µm (computed)", 298.15, 997.047435, 1.01, 1.32483403},
 		{"773.15 K 1.01 µm (computed)", 773.15, 30.4758534, 1.01, 1.00932712},
 	}
@@ -192,6 +200,10 @@ func TestWaterRefractiveIndexIAPWS97CheckValues(t *testing.T) {
 
 // Values at DLS laser lines at 0.101325 MPa, computed with an independent
 // script (IAPWS R9-97 with Pátek density), printed to 5 decimals: 1e-5.
+// The script is not in the repository, so the table is a pin at 5
+// decimals; the outside check of the same index is the Daimon & Masumura
+// test below (2e-5 over 0.40–0.85 µm at 19–21.5 °C) and the release check
+// values above.
 func TestWaterRefractiveIndexLaserLines(t *testing.T) {
 	lines := []float64{405, 488, 514.5, 532, 589.3, 632.8, 660, 785, 830}
 	table := []struct {
