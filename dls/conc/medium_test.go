@@ -38,7 +38,8 @@ func TestPublishedCoefficients(t *testing.T) {
 
 // TestRelativeViscosityChecks compares with independently computed values
 // of the published formulas (φ = 0.10 and 0.30; Einstein 1911, Batchelor
-// 1977, Krieger & Dougherty 1959 with [η] = 2.5), printed to 6 significant
+// 1977, Krieger & Dougherty 1959 with [η] = 2.5: η_r = (1 − φ/φm)^(−2.5·φm),
+// worked in Python 3 outside the project), printed to 6 significant
 // digits: tolerance 6e-6 (half a unit of the last digit, plus rounding).
 func TestRelativeViscosityChecks(t *testing.T) {
 	cases := []struct {
