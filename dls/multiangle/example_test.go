@@ -10,7 +10,13 @@ import (
 
 // Five angles of one sample in water at 25 °C; Γ̄ and its standard error
 // from each angle's cumulant fit (here made up to follow Γ̄ = D·q² for a
-// 100 nm sphere, with small deviations).
+// 100 nm sphere, with small deviations). The printed results were worked
+// outside the project (Python 3): the per-angle sizes are 100/(1 + dev) nm
+// by hand; D, its SE, the intercept and its SE are the weighted straight
+// line Γ̄ = a + D·q² (weights 1/u², known uncertainties, χ²/ν = 0.68 so no
+// Birge scaling) by its normal equations, d from Stokes–Einstein; z is the
+// slope over its SE of the weighted line of the per-angle sizes against q².
+// They agree to the printed digits.
 func ExampleAnalyze() {
 	const tK, eta = 298.15, 0.890022e-3
 	d := dls.DiffusionFromDiameter(tK, eta, 100e-9)
