@@ -56,7 +56,9 @@ func TestReadFixture(t *testing.T) {
 	near(t, "toluene-ref η", p.ViscosityPaS, 0.5542e-3, 1e-15)
 	// Constant index 1.49450 at 25 °C with dn/dT −5e-4 /K (the file's).
 	near(t, "toluene-ref n(25 °C)", p.RefractiveIndex, 1.49450, 1e-12)
-	p, _ = s.Props(299.15, 632.8e-9, false)
+	if p, err = s.Props(299.15, 632.8e-9, false); err != nil {
+		t.Fatal(err)
+	}
 	near(t, "toluene-ref n(26 °C)", p.RefractiveIndex, 1.49450-5e-4, 1e-12)
 	if s.Origin != path+":8" {
 		t.Errorf("origin %q", s.Origin)
@@ -98,9 +100,18 @@ func TestReadFixture(t *testing.T) {
 	if !strings.HasPrefix(s.Origin, path) {
 		t.Errorf("ethylene glycol not overridden: origin %q", s.Origin)
 	}
-	builtin, _ := medium.Lookup("ethylene glycol")
-	p1, _ := s.Props(298.15, 632.8e-9, false)
-	p2, _ := builtin.Props(298.15, 632.8e-9, false)
+	builtin, err := medium.Lookup("ethylene glycol")
+	if err != nil {
+		t.Fatal(err)
+	}
+	// Errors checked: two failed Props would give two zero viscosities,
+	// which compare equal and would let the check pass.
+	p1, err1 := s.Props(298.15, 632.8e-9, false)
+	p2, err2 := builtin.Props(298.15, 632.8e-9, false)
+	if err1 != nil || err2 != nil || !(p2.ViscosityPaS > 0) {
+		t.Fatalf("ethylene glycol at 25 °C: %v, %v, η = %g", err1, err2, p2.ViscosityPaS)
+	}
+	// Same coefficients, same arithmetic: 1e-15 Pa·s is far below η ≈ 16e-3.
 	near(t, "overridden EG η", p1.ViscosityPaS, p2.ViscosityPaS, 1e-15)
 	if _, err := tab.Lookup("meg"); !errors.Is(err, dls.ErrUnknownSolvent) {
 		t.Errorf("alias of the replaced entry still found: %v", err)
