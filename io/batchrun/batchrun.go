@@ -171,12 +171,18 @@ func Run(ctx context.Context, cfg *Config) (*Outcome, error) {
 	}
 	published := false
 	defer func() { jr.close(published) }()
+	var hashed sync.Map // input path → its FileHash, taken at analysis
 	rn := &batch.Runner{
 		Cached: func(path string) ([]*dls.Result, bool) {
 			if _, problem := found.Failed(path); problem {
 				return nil, false
 			}
-			return jr.cached(csvdata.Rel(root, path), fileSHA256(path))
+			h, err := report.HashFile(path)
+			if err != nil {
+				return nil, false
+			}
+			hashed.Store(path, h) // the manifest takes it from here: each input is read for its hash once
+			return jr.cached(csvdata.Rel(root, path), h.SHA256)
 		},
 		Read: func(path string) []batch.Input {
 			if in, failed := found.Failed(path); failed {
@@ -221,8 +227,10 @@ func Run(ctx context.Context, cfg *Config) (*Outcome, error) {
 	if cfg.Shard.Count > 1 {
 		shard = cfg.Shard.Info(all, root)
 	}
+	known := map[string]report.FileHash{}
+	hashed.Range(func(k, v any) bool { known[k.(string)] = v.(report.FileHash); return true })
 	o, err := publish(ctx, cfg, out, &publishing{root: root, inputs: files, match: match, stream: stream,
-		complete: runErr == nil, shard: shard})
+		complete: runErr == nil, shard: shard, hashes: known})
 	published = err == nil && o.Complete && !cfg.KeepJournal
 	return o, err
 }
@@ -251,6 +259,7 @@ type publishing struct {
 	stream   *report.Stream
 	complete bool
 	shard    *report.ShardInfo
+	hashes   map[string]report.FileHash // of inputs, by path, where already known
 }
 
 // publish aggregates, judges, writes and swaps in the set of p.
@@ -274,7 +283,7 @@ func publish(ctx context.Context, cfg *Config, out *resultset.Set, p *publishing
 		Groups: &groups, Samples: o.Samples, Results: o.Results,
 	}
 	set := &report.Set{Doc: doc, HTMLReport: cfg.HTMLReport && o.Complete, Root: p.root, Inputs: p.inputs, Stream: p.stream,
-		Shard: p.shard, Progress: cfg.Progress}
+		Shard: p.shard, Progress: cfg.Progress, Hashes: p.hashes}
 	for _, t := range []string{cfg.SheetFile, cfg.SpecFile, cfg.SolventFile, cfg.QCFile} {
 		if t != "" {
 			set.Tables = append(set.Tables, t)

@@ -33,6 +33,9 @@ type Set struct {
 	Inputs, Tables []string
 	// Progress, when set, hears of report pages and hashed inputs.
 	Progress func(phase string, done, total int)
+	// Hashes, where set, give inputs' hashes already taken (by path), so
+	// that a file is read once for them.
+	Hashes map[string]FileHash
 	// Shard is recorded in the manifest of one shard's set.
 	Shard *ShardInfo
 	// Stream, when set, holds the full records of Doc.Results (which are
@@ -134,9 +137,12 @@ func WriteSet(ctx context.Context, dir string, s *Set) error {
 			if s.Progress != nil && list.dst == &m.Inputs {
 				s.Progress("hashing", i+1, len(list.paths))
 			}
-			h, err := HashFile(f)
-			if err != nil {
-				return err
+			h, ok := s.Hashes[f]
+			if !ok || list.dst != &m.Inputs {
+				var err error
+				if h, err = HashFile(f); err != nil {
+					return err
+				}
 			}
 			h.Path = csvdata.Rel(s.Root, f)
 			*list.dst = append(*list.dst, h)
