@@ -294,9 +294,10 @@ func TestReadEdgeCases(t *testing.T) {
 		name     string
 		in       string
 		opt      *csvdata.Options
-		line     int   // of the error; 0 with sentinel nil
-		col      int   // of the error
-		sentinel error // nil = must read
+		line     int    // of the error; 0 with sentinel nil
+		col      int    // of the error
+		sentinel error  // nil = must read
+		errText  string // a part of the error's message, when given
 		runs     []string
 		kind     dls.CorrKind
 		first    float64 // first lag in s when it reads
@@ -365,6 +366,12 @@ func TestReadEdgeCases(t *testing.T) {
 			runs: []string{""}, kind: dls.KindG2, first: 1e-6, meta: map[string]string{}},
 		{name: "kind option contradicts the name", in: "tau_s,g2\n" + ten, opt: &csvdata.Options{CorrKind: dls.KindG1}, line: 1, col: 2, sentinel: dls.ErrBadHeader},
 		{name: "foreign lag without unit", in: "lag,g2\n" + ten, opt: &csvdata.Options{TauColumn: "lag"}, line: 1, col: 1, sentinel: dls.ErrBadHeader},
+		// A unit in the name and another in the options: the reader cannot
+		// tell which is right (1 ms = 1000 µs, BIPM SI brochure, 9th ed.).
+		{name: "foreign lag unit option contradicts the name", in: "Lag time (µs),g2\n" + ten, opt: &csvdata.Options{TauColumn: "Lag time (µs)", TauUnit: "ms"},
+			line: 1, col: 1, sentinel: dls.ErrBadHeader, errText: "says us but the unit given is ms"},
+		{name: "foreign lag unit option agrees with the name", in: "Lag time (µs),g2\n" + ten, opt: &csvdata.Options{TauColumn: "Lag time (µs)", TauUnit: "us"},
+			runs: []string{""}, kind: dls.KindG2, first: 1e-12, meta: map[string]string{}},
 		{name: "foreign lag with unit option", in: "lag,g2\n" + ten, opt: &csvdata.Options{TauColumn: "lag", TauUnit: "µs"},
 			runs: []string{""}, kind: dls.KindG2, first: 1e-12, meta: map[string]string{}},
 		{name: "foreign lag unit in brackets", in: "Delay [ms];Value\n" + rows(10, ";", ""), opt: &csvdata.Options{TauColumn: "delay [ms]", CorrColumns: []string{"VALUE"}, CorrKind: dls.KindG1},
@@ -389,6 +396,9 @@ func TestReadEdgeCases(t *testing.T) {
 			if tc.sentinel != nil {
 				for _, e := range entries {
 					posErr(t, e.Err, "x.csv", tc.line, tc.col, tc.sentinel)
+					if e.Err != nil && !strings.Contains(e.Err.Error(), tc.errText) {
+						t.Errorf("error %q lacks %q", e.Err, tc.errText)
+					}
 					if e.M != nil {
 						t.Error("measurement with an error")
 					}
