@@ -135,3 +135,23 @@ func DecimalPoint(key, v string) string {
 	}
 	return strings.ReplaceAll(v, ",", ".")
 }
+
+// ParseAssignment reads a command-line "key=value" (dls.ParseAssignment)
+// and checks its value as a metadata line's (CheckMetaValue; a role as
+// dls.ParseRole reads it), so that a bad --set or --default is a usage
+// error before any file is read.
+func ParseAssignment(s string, origin dls.Origin, where string) (dls.Param, error) {
+	p, err := dls.ParseAssignment(s, origin, where)
+	if err != nil {
+		return p, err
+	}
+	if err := CheckMetaValue(p.Key, p.Value); err != nil {
+		return p, fmt.Errorf("%q: %w", s, err)
+	}
+	if p.Key == dls.KeyRole {
+		if _, err := dls.ParseRole(p.Value); err != nil {
+			return p, fmt.Errorf("%q: %w", s, err)
+		}
+	}
+	return p, nil
+}

@@ -71,6 +71,19 @@ func Columns() []string {
 	return append([]string{"file"}, dls.MetadataKeys()...)
 }
 
+// Load reads the sample sheet at path, with "sample sheet: " before an
+// error; an empty path gives no sheet (nil) and no error.
+func Load(path string) (*Sheet, error) {
+	if path == "" {
+		return nil, nil
+	}
+	s, err := ReadFile(path)
+	if err != nil {
+		return nil, fmt.Errorf("sample sheet: %w", err)
+	}
+	return s, nil
+}
+
 // ReadFile parses the sample sheet at path.
 func ReadFile(p string) (*Sheet, error) {
 	f, err := os.Open(p)

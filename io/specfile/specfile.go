@@ -51,6 +51,19 @@ func Columns() []string {
 	return []string{"product", "quantity", "min", "max", "target", "tol", "at_nm", "note"}
 }
 
+// Load reads the specification at path, with "specification: " before an
+// error; an empty path gives no specification (nil) and no error.
+func Load(path string) (*spec.Spec, error) {
+	if path == "" {
+		return nil, nil
+	}
+	s, err := ReadFile(path)
+	if err != nil {
+		return nil, fmt.Errorf("specification: %w", err)
+	}
+	return s, nil
+}
+
 // ReadFile parses the specification at path.
 func ReadFile(path string) (*spec.Spec, error) {
 	f, err := os.Open(path)
