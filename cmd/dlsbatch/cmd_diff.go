@@ -20,13 +20,9 @@ func runDiff(ctx context.Context, e env, args []string) int {
 	if fs.NArg() != 2 {
 		return usageError(e, "diff", "name two result folders, OLD and NEW")
 	}
-	tol := map[string]resultdiff.Tol{}
-	for _, s := range *tols {
-		col, t, err := resultdiff.ParseTol(s)
-		if err != nil {
-			return usageError(e, "diff", err)
-		}
-		tol[col] = t
+	tol, err := resultdiff.ParseTols(*tols)
+	if err != nil {
+		return usageError(e, "diff", err)
 	}
 	rep, err := resultdiff.Compare(fs.Arg(0), fs.Arg(1), tol)
 	if err != nil {

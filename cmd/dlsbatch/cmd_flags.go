@@ -2,8 +2,7 @@ package main
 
 import (
 	"context"
-
-	"github.com/spf13/pflag"
+	"io"
 
 	"dlsbatch/dls/qc"
 	"dlsbatch/io/qcfile"
@@ -11,15 +10,7 @@ import (
 )
 
 func runFlags(ctx context.Context, e env, args []string) int {
-	fs := pflag.NewFlagSet("flags", pflag.ContinueOnError)
-	if code, done := parseFlags(fs, e, "flags", help("flags")+qcfile.Help(), help("flags.exits"), args); done {
-		return code
-	}
-	if fs.NArg() > 0 {
-		return usageError(e, "flags", "takes no arguments")
-	}
-	if err := report.WriteFlagTable(e.stdout, qc.Definitions(qc.DefaultThresholds())); err != nil {
-		return exitFatal
-	}
-	return exitOK
+	return listCommand(e, "flags", help("flags")+qcfile.Help(), args, func(w io.Writer) error {
+		return report.WriteFlagTable(w, qc.Definitions(qc.DefaultThresholds()))
+	})
 }

@@ -20,7 +20,7 @@ func runMerge(ctx context.Context, e env, args []string) int {
 	fs.BoolVar(&cfg.Force, "force", false, "replace results already in the --out folder")
 	fs.BoolVar(&noReport, "no-report", false, "do not write the HTML report")
 	fs.BoolVarP(&quiet, "quiet", "q", false, "print no summary")
-	if code, done := parseFlags(fs, e, "merge", help("merge"), help("run.exits"), args); done {
+	if code, done := parseFlags(fs, e, "merge", help("merge"), help("merge.exits"), args); done {
 		return code
 	}
 	cfg.Dirs, cfg.HTMLReport = fs.Args(), !noReport

@@ -35,16 +35,15 @@ import (
 // runOptions are the flags of `dlsbatch run`.
 type runOptions struct {
 	set, defaults paramsFlag
+	read          csvdata.Options // foreign columns, decimal comma, lines to skip, limits
 
 	cpuProfile, memProfile                                   string
 	out, particleRI                                          string // output folder; default particle index
 	solventFile, sheetFile, specFile, qcFile                 string // tables
-	tauCol, tauUnit, sigmaCol                                string // foreign CSV columns
-	corrCols, includeGlobs, excludeGlobs                     []string
+	includeGlobs, excludeGlobs                               []string
 	shard                                                    string
 	corrKind, method, criterion, progress                    *enumFlag
-	jobs, order, gridPoints                                  int
-	maxFileMB, maxRows, maxColumns                           int // input limits
+	jobs, order, gridPoints, maxFileMB                       int
 	cutoff, minLagS, lambda, target                          float64
 	uTempK, uViscRel, uIndex, uAngleDeg                      float64 // Type B uncertainties
 	quiet, force, resume, extrapolate, noCurves, implausible bool
@@ -75,14 +74,16 @@ func (o *runOptions) addFlags(fs *pflag.FlagSet) {
 	fs.BoolVar(&o.resume, "resume", false, "after a run into --out was killed or interrupted, analyse only the files it had not finished (implies --force)")
 	fs.Var(&o.set, "set", "metadata for every measurement, over file and sheet values (repeatable), e.g. --set temperature_c=25")
 	fs.Var(&o.defaults, "default", "metadata used where no file or sheet gives it (repeatable), e.g. --default angle_deg=173")
-	fs.StringVar(&o.tauCol, "lag-column", "", "name of the lag column in a foreign CSV")
-	fs.StringVar(&o.tauUnit, "lag-unit", "", "unit of the lag column: s, ms or us")
-	fs.StringSliceVar(&o.corrCols, "corr-column", nil, "correlation column(s) to read in a foreign CSV, each one run (comma-separated or repeated)")
+	fs.StringVar(&o.read.TauColumn, "lag-column", "", "name of the lag column in a foreign CSV")
+	fs.StringVar(&o.read.TauUnit, "lag-unit", "", "unit of the lag column: s, ms or us (a unit in the column's name must agree)")
+	fs.BoolVar(&o.read.DecimalComma, "decimal-comma", false, "read ',' in numbers as the decimal mark also in ','-delimited files (';' and tab files always)")
+	fs.IntVar(&o.read.SkipLines, "skip-lines", 0, "skip this many lines at the start of every input file (an instrument's preamble)")
+	fs.StringSliceVar(&o.read.CorrColumns, "corr-column", nil, "correlation column(s) to read in a foreign CSV, each one run (comma-separated or repeated)")
 	fs.Var(o.corrKind, "corr-kind", "kind of the --corr-column values: g2 (baseline ≈ 1), g2m1 (g2 − 1) or g1")
 	fs.IntVar(&o.maxFileMB, "max-file-mb", csvdata.DefaultMaxBytes>>20, "refuse an input file larger than this many MiB")
-	fs.IntVar(&o.maxRows, "max-rows", csvdata.DefaultMaxRows, "refuse an input file with more data rows (lag channels)")
-	fs.IntVar(&o.maxColumns, "max-columns", csvdata.DefaultMaxColumns, "refuse an input file with more columns")
-	fs.StringVar(&o.sigmaCol, "sigma-column", "", "column with the standard uncertainty of each correlation value")
+	fs.IntVar(&o.read.MaxRows, "max-rows", csvdata.DefaultMaxRows, "refuse an input file with more data rows (lag channels)")
+	fs.IntVar(&o.read.MaxColumns, "max-columns", csvdata.DefaultMaxColumns, "refuse an input file with more columns")
+	fs.StringVar(&o.read.SigmaColumn, "sigma-column", "", "column with the standard uncertainty of each correlation value")
 	fs.Var(o.method, "cumulant-method", "cumulant fit: nonlinear (free baseline, default) or linear (fixed far-channel baseline)")
 	fs.IntVar(&o.order, "cumulant-order", o.order, "cumulant order, 2 or 3")
 	fs.Float64Var(&o.cutoff, "g1-cutoff", o.cutoff, "end the fit where the estimated g1 falls below this amplitude")
@@ -218,15 +219,10 @@ func (o *runOptions) config(paths []string, say func(any)) (*batchrun.Config, er
 		SheetFile: o.sheetFile, SpecFile: o.specFile, SolventFile: o.solventFile, QCFile: o.qcFile,
 		ExcludeOutliers: o.exclude, HTMLReport: !o.noReport, Workers: o.jobs, UAngleDeg: o.uAngleDeg,
 		Warn: func(msg string) { say(msg) }}
-	if o.sheetFile != "" {
-		if cfg.Sheet, err = sheet.ReadFile(o.sheetFile); err != nil {
-			return nil, fmt.Errorf("sample sheet: %w", err)
-		}
-	}
-	if o.specFile != "" {
-		if cfg.Spec, err = specfile.ReadFile(o.specFile); err != nil {
-			return nil, fmt.Errorf("specification: %w", err)
-		}
+	var errSheet, errSpec error // both reported at once
+	cfg.Sheet, errSheet = sheet.Load(o.sheetFile)
+	if cfg.Spec, errSpec = specfile.Load(o.specFile); errSheet != nil || errSpec != nil {
+		return nil, errors.Join(errSheet, errSpec)
 	}
 	if o.qcFile != "" {
 		if cfg.Settings.QC, err = qcfile.ReadFile(o.qcFile, settings.QC); err != nil {
@@ -290,17 +286,14 @@ func (o *runOptions) settings() (batch.Settings, *csvdata.Options, error) {
 			return s, nil, err
 		}
 	}
-	if o.jobs < 1 || o.maxFileMB < 1 || o.maxRows < 1 || o.maxColumns < 1 {
-		return s, nil, errors.New("--jobs, --max-file-mb, --max-rows and --max-columns must be at least 1")
+	ro := &o.read
+	if o.jobs < 1 || o.maxFileMB < 1 || ro.MaxRows < 1 || ro.MaxColumns < 1 || ro.SkipLines < 0 {
+		return s, nil, errors.New("--jobs, --max-file-mb, --max-rows and --max-columns must be at least 1, --skip-lines at least 0")
 	}
-	ro := &csvdata.Options{TauColumn: o.tauCol, TauUnit: o.tauUnit, CorrColumns: o.corrCols, SigmaColumn: o.sigmaCol,
-		MaxBytes: int64(o.maxFileMB) << 20, MaxRows: o.maxRows, MaxColumns: o.maxColumns}
-	if o.corrKind.value != "" {
-		k, err := dls.ParseCorrKind(o.corrKind.value)
-		if err != nil {
-			return s, nil, err
+	if ro.MaxBytes = int64(o.maxFileMB) << 20; o.corrKind.value != "" {
+		if ro.CorrKind, err1 = dls.ParseCorrKind(o.corrKind.value); err1 != nil {
+			return s, nil, err1
 		}
-		ro.CorrKind = k
 	}
 	return s, ro, nil
 }

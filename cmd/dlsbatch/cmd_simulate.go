@@ -5,7 +5,6 @@ import (
 	"errors"
 	"fmt"
 	"math"
-	"os"
 
 	"github.com/spf13/pflag"
 
@@ -129,18 +128,16 @@ func (o *simOptions) jobOptions() sim.JobOptions {
 	return jo
 }
 
+func simWarn(e env) func(string) {
+	return func(msg string) { fmt.Fprintln(e.stderr, "dlsbatch simulate: warning:", msg) }
+}
+
 func (o *simOptions) runSingle(e env, grid *sim.Grid, fail func(int, any) int) int {
-	for _, p := range []string{o.output, o.truth} {
-		if _, err := os.Stat(p); p != "" && !o.force && err == nil {
-			return fail(exitUsage, p+" exists; use --force to replace it")
-		}
+	if err := simplan.CheckOutFiles(o.output, o.truth, o.force); err != nil {
+		return fail(exitUsage, err)
 	}
-	if o.output != "" && o.output == o.truth {
-		return fail(exitUsage, "--output and --truth name the same file")
-	}
-	warn := func(msg string) { fmt.Fprintln(e.stderr, "dlsbatch simulate: warning:", msg) }
 	var fe *sim.FieldError
-	switch err := simplan.RunSingle(o.job, grid, o.jobOptions(), o.output, o.truth, e.stdout, warn); {
+	switch err := simplan.RunSingle(o.job, grid, o.jobOptions(), o.output, o.truth, e.stdout, simWarn(e)); {
 	case errors.As(err, &fe):
 		return fail(exitUsage, err)
 	case err != nil:
@@ -157,9 +154,8 @@ func (o *simOptions) runPlan(ctx context.Context, e env, grid *sim.Grid, fail fu
 	if err != nil {
 		return fail(exitUsage, err)
 	}
-	warn := func(msg string) { fmt.Fprintln(e.stderr, "dlsbatch simulate: warning:", msg) }
 	var pe *dls.PosError
-	switch err := simplan.RunPlan(ctx, entries, grid, o.jobOptions(), o.out, warn); {
+	switch err := simplan.RunPlan(ctx, entries, grid, o.jobOptions(), o.out, simWarn(e)); {
 	case errors.Is(err, context.Canceled):
 		return fail(exitInterrupted, "interrupted; nothing written")
 	case errors.As(err, &pe):

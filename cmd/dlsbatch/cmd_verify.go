@@ -2,7 +2,6 @@ package main
 
 import (
 	"context"
-	"fmt"
 
 	"github.com/spf13/pflag"
 
@@ -21,13 +20,8 @@ func runVerify(ctx context.Context, e env, args []string) int {
 	if err != nil {
 		return usageError(e, "verify", err)
 	}
-	for _, d := range v.Differences {
-		fmt.Fprintf(e.stdout, "%s %s\n  expected %s\n  found    %s\n", d.Kind, d.File, d.Expected, d.Found)
-	}
-	if !v.OK() {
-		fmt.Fprintf(e.stdout, "%s: %d difference(s) in %d files checked\n", fs.Arg(0), len(v.Differences), v.Checked)
+	if v.Write(e.stdout, fs.Arg(0)); !v.OK() {
 		return 1
 	}
-	fmt.Fprintf(e.stdout, "%s: intact and complete (%d files checked)\n", fs.Arg(0), v.Checked)
 	return exitOK
 }

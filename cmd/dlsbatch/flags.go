@@ -5,6 +5,7 @@ import (
 	"strings"
 
 	"dlsbatch/dls"
+	"dlsbatch/io/csvdata"
 )
 
 // enumFlag is a string flag restricted to a fixed set of values; Set names
@@ -30,7 +31,8 @@ func (f *enumFlag) Set(s string) error {
 	return fmt.Errorf("%q is not one of %s", s, strings.Join(f.allowed, ", "))
 }
 
-// paramsFlag collects repeated key=value metadata settings.
+// paramsFlag collects repeated key=value metadata settings, each checked
+// as it is parsed (a bad value is a usage error).
 type paramsFlag struct {
 	flag   string // flag name, for provenance
 	origin dls.Origin
@@ -42,7 +44,7 @@ func (f *paramsFlag) String() string { return strings.Join(dls.Assignments(f.par
 func (f *paramsFlag) Type() string { return "key=value" }
 
 func (f *paramsFlag) Set(s string) error {
-	p, err := dls.ParseAssignment(s, f.origin, "--"+f.flag+" "+s)
+	p, err := csvdata.ParseAssignment(s, f.origin, "--"+f.flag+" "+s)
 	if err == nil {
 		f.params = append(f.params, p)
 	}

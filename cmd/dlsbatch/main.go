@@ -65,6 +65,7 @@ func subcommands() []subcommand {
 		{"simulate", "write synthetic correlograms of a stated population", runSimulate},
 		{"solvents", "list the solvent table with valid ranges and sources", runSolvents},
 		{"flags", "list the quality-control flags with their meaning and threshold", runFlags},
+		{"formats", "describe the input, sample-sheet and specification files", runFormats},
 		{"verify", "check a result folder against its manifest", runVerify},
 		{"merge", "merge the result sets of a batch's shards into one", runMerge},
 		{"diff", "compare two result sets within tolerances (for CI)", runDiff},
@@ -124,9 +125,8 @@ func usageText() string {
 
 // parseFlags parses args into fs for the subcommand name. For --help it
 // prints usage (its text, the flags and the command's own exit codes) to
-// stdout and
-// returns exitOK with done set; on a bad flag it reports the error and a
-// hint on stderr and returns exitUsage with done set.
+// stdout and returns exitOK with done set; on a bad flag it reports the
+// error and a hint on stderr and returns exitUsage with done set.
 func parseFlags(fs *pflag.FlagSet, e env, name, usage, exits string, args []string) (code int, done bool) {
 	fs.SetOutput(e.stderr)
 	fs.Usage = func() {} // pflag calls it on --help and on errors; printed here instead
@@ -144,6 +144,21 @@ func parseFlags(fs *pflag.FlagSet, e env, name, usage, exits string, args []stri
 	}
 	fmt.Fprintf(e.stderr, "dlsbatch %s: %v\nrun 'dlsbatch %s --help' for the flags\n", name, err, name)
 	return exitUsage, true
+}
+
+// listCommand runs a command that takes no arguments and writes a listing.
+func listCommand(e env, name, usage string, args []string, write func(io.Writer) error) int {
+	fs := pflag.NewFlagSet(name, pflag.ContinueOnError)
+	if code, done := parseFlags(fs, e, name, usage, help(name+".exits"), args); done {
+		return code
+	}
+	if fs.NArg() > 0 {
+		return usageError(e, name, "takes no arguments")
+	}
+	if write(e.stdout) != nil {
+		return exitFatal
+	}
+	return exitOK
 }
 
 // usageError reports a usage error of the subcommand name on stderr.

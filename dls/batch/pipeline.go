@@ -273,30 +273,31 @@ type state struct {
 func conditions(m *dls.Measurement, meta dls.Metadata, s *Settings) (state, []string, error) {
 	var st state
 	var warn []string
+	// Every missing condition is named in one message, with its fixes.
+	var missing []string
 	need := func(key, hint string) (float64, error) {
 		v, ok, err := meta.Float(key)
-		if err != nil {
-			return 0, err
+		if err == nil && !ok {
+			missing = append(missing, key+"="+hint)
 		}
-		if !ok {
-			return 0, fmt.Errorf("%w: no %s for this measurement; give it as a '# %s: %s' line in the file, a sample-sheet column, or --default %s=%s", dls.ErrMissingValue, key, key, hint, key, hint)
-		}
-		return v, nil
+		return v, err
 	}
 	var err error
+	var lamNm, angle float64
 	if st.tempC, err = need(dls.KeyTemperatureC, "25"); err != nil {
 		return st, nil, err
 	}
+	if lamNm, err = need(dls.KeyWavelengthNm, "633"); err != nil {
+		return st, nil, err
+	}
+	if angle, err = need(dls.KeyAngleDeg, "173"); err != nil {
+		return st, nil, err
+	}
+	if len(missing) > 0 {
+		return st, nil, missingError(missing)
+	}
 	if st.tempC <= -273.15 {
 		return st, nil, fmt.Errorf("%w: temperature %g °C is below absolute zero", dls.ErrBadMetadata, st.tempC)
-	}
-	lamNm, err := need(dls.KeyWavelengthNm, "633")
-	if err != nil {
-		return st, nil, err
-	}
-	angle, err := need(dls.KeyAngleDeg, "173")
-	if err != nil {
-		return st, nil, err
 	}
 	st.optics = dls.Optics{WavelengthM: lamNm * 1e-9, AngleRad: angle * math.Pi / 180}
 	tK := dls.KelvinFromCelsius(st.tempC)
@@ -318,7 +319,7 @@ func conditions(m *dls.Measurement, meta dls.Metadata, s *Settings) (state, []st
 			sol, err = medium.Lookup(st.solvent)
 		}
 		if err != nil {
-			return st, nil, err
+			return st, nil, solventError(m, meta, err)
 		}
 		// A user-given viscosity or index needs no correlation, so the
 		// correlation's range does not apply to it: replace the law of a
@@ -332,7 +333,7 @@ func conditions(m *dls.Measurement, meta dls.Metadata, s *Settings) (state, []st
 		}
 		props, perr := use.Props(tK, st.optics.WavelengthM, s.Extrapolate)
 		if perr != nil {
-			return st, nil, perr
+			return st, nil, tableError(meta, etaGiven, nGiven, perr)
 		}
 		if !etaGiven {
 			eta, st.etaSource = props.ViscosityPaS*1e3, props.ViscositySource
@@ -372,6 +373,51 @@ func conditions(m *dls.Measurement, meta dls.Metadata, s *Settings) (state, []st
 		return st, nil, fmt.Errorf("%w: %v", dls.ErrBadMetadata, err)
 	}
 	return st, warn, nil
+}
+
+// missingError names every missing condition (each as key=example) and
+// the three ways to give them.
+func missingError(missing []string) error {
+	keys := make([]string, len(missing))
+	lines := make([]string, len(missing))
+	flags := make([]string, len(missing))
+	for i, m := range missing {
+		k, v, _ := strings.Cut(m, "=")
+		keys[i], lines[i], flags[i] = k, "'# "+k+": "+v+"'", "--default "+m
+	}
+	return fmt.Errorf("%w: no %s for this measurement; give each as a line %s in the file, a sample-sheet column of that name, or %s",
+		dls.ErrMissingValue, strings.Join(keys, ", "), strings.Join(lines, ", "), strings.Join(flags, " "))
+}
+
+// solventError places an unknown solvent at the line (or sheet cell, or
+// flag) that names it and says how to go without the table.
+func solventError(m *dls.Measurement, meta dls.Metadata, err error) error {
+	if !errors.Is(err, dls.ErrUnknownSolvent) {
+		return err
+	}
+	p, _ := meta.Get(dls.KeySolvent)
+	err = fmt.Errorf("%w (%s %s); or give viscosity_mpas and refractive_index of the medium at the measurement's temperature and wavelength, which need no solvent table",
+		err, p.Origin, p.Where)
+	return paramError(m, p, err)
+}
+
+// tableError says which value the solvent table was asked for when its
+// correlation does not cover the state: a value given by the user is
+// never at fault, and giving the other one too is a way out.
+func tableError(meta dls.Metadata, etaGiven, nGiven bool, err error) error {
+	sol, _ := meta.Get(dls.KeySolvent)
+	from := fmt.Sprintf("from the %s table entry (solvent %s %s)", sol.Value, sol.Origin, sol.Where)
+	switch {
+	case etaGiven:
+		p, _ := meta.Get(dls.KeyViscosityMPaS)
+		return fmt.Errorf("the refractive index is not given and comes %s; the viscosity_mpas given (%s %s) is not at fault; give refractive_index too: %w",
+			from, p.Origin, p.Where, err)
+	case nGiven:
+		p, _ := meta.Get(dls.KeyRefractiveIndex)
+		return fmt.Errorf("the viscosity is not given and comes %s; the refractive_index given (%s %s) is not at fault; give viscosity_mpas too: %w",
+			from, p.Origin, p.Where, err)
+	}
+	return err
 }
 
 // givenIndex is a user-supplied refractive index, valid at any state.

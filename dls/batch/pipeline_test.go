@@ -95,33 +95,56 @@ func TestAnalyzeErrorsAndAssumptions(t *testing.T) {
 		status dls.Status
 		want   error
 		substr string
+		also   []string // further parts of the message
 	}{
-		{"missing temperature", func(m map[string]string) { delete(m, "temperature_c") }, dls.StatusError, dls.ErrMissingValue, "temperature_c"},
-		{"missing angle", func(m map[string]string) { delete(m, "angle_deg") }, dls.StatusError, dls.ErrMissingValue, "angle_deg"},
+		{"missing temperature", func(m map[string]string) { delete(m, "temperature_c") }, dls.StatusError, dls.ErrMissingValue, "temperature_c", nil},
+		{"missing angle", func(m map[string]string) { delete(m, "angle_deg") }, dls.StatusError, dls.ErrMissingValue, "angle_deg", nil},
 		{"unknown solvent", func(m map[string]string) {
 			m["solvent"] = "unobtainium"
 			delete(m, "viscosity_mpas")
-		}, dls.StatusError, dls.ErrUnknownSolvent, "unobtainium"},
-		{"non-numeric temperature", func(m map[string]string) { m["temperature_c"] = "warm" }, dls.StatusError, dls.ErrNotANumber, "mono.csv:"},
-		{"angle out of range", func(m map[string]string) { m["angle_deg"] = "190" }, dls.StatusError, dls.ErrBadMetadata, "outside"},
+		}, dls.StatusError, dls.ErrUnknownSolvent, "unobtainium", nil},
+		{"non-numeric temperature", func(m map[string]string) { m["temperature_c"] = "warm" }, dls.StatusError, dls.ErrNotANumber, "mono.csv:", nil},
+		{"angle out of range", func(m map[string]string) { m["angle_deg"] = "190" }, dls.StatusError, dls.ErrBadMetadata, "outside", nil},
 		{"temperature outside the water correlation", func(m map[string]string) {
 			m["temperature_c"] = "150"
 			delete(m, "viscosity_mpas")
 			delete(m, "refractive_index")
-		}, dls.StatusError, dls.ErrOutOfRange, "°C"},
-		{"explicit values need no correlation range", func(m map[string]string) { m["temperature_c"] = "150" }, dls.StatusOK, nil, ""},
+		}, dls.StatusError, dls.ErrOutOfRange, "°C", nil},
+		{"explicit values need no correlation range", func(m map[string]string) { m["temperature_c"] = "150" }, dls.StatusOK, nil, "", nil},
 		// Water's viscosity correlation stops at 90 °C, its index at 110 °C
 		// (the ranges of the IAPWS-based table): a given viscosity at 95 °C
 		// needs only the index, which is in range; at 150 °C it is not.
 		{"given viscosity, index from table", func(m map[string]string) {
 			m["temperature_c"] = "95"
 			delete(m, "refractive_index")
-		}, dls.StatusOK, nil, ""},
+		}, dls.StatusOK, nil, "", nil},
 		{"given viscosity, index out of range", func(m map[string]string) {
 			m["temperature_c"] = "150"
 			delete(m, "refractive_index")
-		}, dls.StatusError, dls.ErrOutOfRange, "refractive index"},
-		{"solvent assumed", func(m map[string]string) { delete(m, "solvent") }, dls.StatusWarn, nil, "water assumed"},
+		}, dls.StatusError, dls.ErrOutOfRange, "refractive index", nil},
+		{"solvent assumed", func(m map[string]string) { delete(m, "solvent") }, dls.StatusWarn, nil, "water assumed", nil},
+		// Messages that say what to do. Lines: monoMeasurement numbers the
+		// values in the order of dls.MetadataKeys, from 1.
+		{"every missing condition in one message", func(m map[string]string) {
+			delete(m, "temperature_c")
+			delete(m, "wavelength_nm")
+			delete(m, "angle_deg")
+		}, dls.StatusError, dls.ErrMissingValue, "no temperature_c, wavelength_nm, angle_deg for this measurement",
+			[]string{"'# wavelength_nm: 633'", "--default temperature_c=25 --default wavelength_nm=633 --default angle_deg=173"}},
+		{"unknown solvent at its line, with the way out", func(m map[string]string) {
+			m["solvent"] = "unobtainium"
+			delete(m, "viscosity_mpas")
+		}, dls.StatusError, dls.ErrUnknownSolvent, "mono.csv:4: ", []string{"give viscosity_mpas and refractive_index"}},
+		{"given viscosity not blamed", func(m map[string]string) {
+			m["temperature_c"] = "150"
+			delete(m, "refractive_index")
+		}, dls.StatusError, dls.ErrOutOfRange, "the refractive index is not given and comes from the water table entry",
+			[]string{"viscosity_mpas given (file mono.csv:5) is not at fault", "give refractive_index too"}},
+		{"given index not blamed", func(m map[string]string) {
+			m["temperature_c"] = "95"
+			delete(m, "viscosity_mpas")
+		}, dls.StatusError, dls.ErrOutOfRange, "the viscosity is not given and comes from the water table entry",
+			[]string{"refractive_index given (file mono.csv:5) is not at fault", "give viscosity_mpas too"}},
 	}
 	for _, c := range cases {
 		t.Run(c.name, func(t *testing.T) {
@@ -132,8 +155,10 @@ func TestAnalyzeErrorsAndAssumptions(t *testing.T) {
 			if r.Status != c.status {
 				t.Fatalf("status %s (%s), want %s", r.Status, r.Message, c.status)
 			}
-			if c.substr != "" && !strings.Contains(r.Message, c.substr) {
-				t.Errorf("message %q lacks %q", r.Message, c.substr)
+			for _, sub := range append([]string{c.substr}, c.also...) {
+				if !strings.Contains(r.Message, sub) {
+					t.Errorf("message %q lacks %q", r.Message, sub)
+				}
 			}
 			if c.status == dls.StatusError && !strings.HasPrefix(r.Message, "mono.csv:") {
 				t.Errorf("message %q does not name the file", r.Message)

@@ -7,12 +7,23 @@
 // A correlogram file is plain UTF-8 text. A UTF-8 byte order mark at the
 // start is skipped; lines end in "\n" or "\r\n". A file with a NUL byte or
 // bytes that are not UTF-8 (a spreadsheet workbook, a UTF-16 export) is
-// rejected as not text, as is a line longer than 4 MiB. In order, the file
-// holds:
+// rejected as not text, as is a line longer than 4 MiB, with one exception:
+// a file whose first line that is not UTF-8 follows only ASCII lines is read
+// as Windows-1252 (which includes the printable Latin-1 characters) from
+// that line on, decoded with golang.org/x/text/encoding/charmap, when every
+// line from there decodes without a control character or a byte the
+// encoding leaves undefined; each measurement then carries a warning naming
+// the line. In order, the file holds:
 //
-//  1. optional metadata lines, each "# key: value";
+//  1. optional metadata lines, each "# key: value", or, without '#',
+//     "key: value" or "key<TAB>value" with a key of the format (any other
+//     line is taken for the header row; when it looks like "Key: value" the
+//     error says so and suggests Options.SkipLines);
 //  2. one header row naming the columns;
 //  3. data rows of numbers, one per lag time.
+//
+// Options.SkipLines drops that many lines at the start without reading them
+// (an instrument's preamble); line numbers still count them.
 //
 // Blank lines (nothing but spaces) are skipped everywhere, and so are data
 // rows whose cells are all empty (",,,"). A line whose first non-space
@@ -84,6 +95,11 @@
 //     A value that breaks its rule makes the file fail with an error
 //     wrapping dls.ErrBadMetadata, and the number's own sentinel, at that
 //     line; the range check is left to the analysis.
+//   - When numbers use a decimal comma (the delimiter is ';' or tab, or
+//     Options.DecimalComma), a value of a numeric key, particle_ri or kd
+//     with ',' and no '.' is read with ',' as its decimal mark and stored
+//     with '.' ("# temperature_c: 25,0" is 25.0); errors quote the value as
+//     written.
 //   - An empty value ("# viscosity_mpas:") gives no value, as if the line
 //     were absent.
 //   - A key that is not of the format is ignored, with a warning on the
@@ -153,8 +169,9 @@
 //
 // Every data row has as many cells as the header row. The cells of the lag,
 // correlation and sigma columns hold numbers (see Numbers below). When the
-// delimiter is not ',', a cell with exactly one ',' and no '.' uses the
-// comma as its decimal mark ("1,5" in a ';' export is 1.5).
+// delimiter is not ',' (or with Options.DecimalComma, for quoted cells), a
+// cell with exactly one ',' and no '.' uses the comma as its decimal mark
+// ("1,5" in a ';' export is 1.5).
 // Lags are converted to seconds by dividing by 1e3 (ms) or 1e6 (µs), one
 // correctly rounded operation; they must be positive and strictly
 // increasing. Sigma values must be positive.
@@ -186,7 +203,8 @@
 // not characters. The error wraps a sentinel for errors.Is:
 //
 //	dls.ErrEmpty          no bytes, or only blank and comment lines
-//	dls.ErrNotText        NUL bytes, invalid UTF-8, UTF-16, a line over 4 MiB
+//	dls.ErrNotText        NUL bytes, neither UTF-8 nor Windows-1252, UTF-16,
+//	                      a line over 4 MiB
 //	dls.ErrBadHeader      missing header, no lag or no correlation column (the
 //	                      message lists the names found and those expected), a
 //	                      repeated name, two kinds, a sigma without its run

@@ -176,10 +176,15 @@ func resolve(names []string, o *Options) (*layout, *headerError) {
 		}
 		L.lagName = names[L.lag]
 		u, ok := parseUnit(o.TauUnit)
-		if !ok {
-			if u, ok = unitFromName(L.lagName); !ok {
-				return nil, hErr(L.lag+1, "the name of lag column %s carries no unit: give the unit (s, ms or us): %w", safetext.Excerpt(L.lagName), dls.ErrBadHeader)
-			}
+		nu, named := unitFromName(L.lagName)
+		switch {
+		case ok && named && nu != u:
+			return nil, hErr(L.lag+1, "the name of lag column %s says %s but the unit given is %s: drop the unit option or correct it: %w",
+				safetext.Excerpt(L.lagName), nu.name, u.name, dls.ErrBadHeader)
+		case !ok && !named:
+			return nil, hErr(L.lag+1, "the name of lag column %s carries no unit: give the unit (s, ms or us): %w", safetext.Excerpt(L.lagName), dls.ErrBadHeader)
+		case !ok:
+			u = nu
 		}
 		L.unit = u
 	} else {

@@ -5,6 +5,7 @@ import (
 	"strings"
 
 	"dlsbatch/dls"
+	"dlsbatch/io/safetext"
 )
 
 // parseMetaLine splits a comment line (starting with '#') into key and
@@ -77,4 +78,80 @@ func CheckMetaValue(key, v string) error {
 		}
 	}
 	return nil
+}
+
+// parsePreambleLine reads a line before the header that does not start
+// with '#' as metadata when it is "key: value" or "key<TAB>value" (two
+// cells) and key is a key of the format (in any letter case). ok is false
+// for any other line, which is then taken for the header row.
+func parsePreambleLine(t string) (key, value string, ok bool) {
+	i := strings.IndexAny(t, ":\t")
+	if i < 0 {
+		return "", "", false
+	}
+	key = strings.ToLower(strings.TrimSpace(t[:i]))
+	if !validKey(key) || !dls.IsMetadataKey(key) {
+		return "", "", false
+	}
+	value = strings.TrimSpace(t[i+1:])
+	if t[i] == '\t' && strings.IndexByte(value, '\t') >= 0 {
+		return "", "", false // more than two cells: a header row
+	}
+	return key, value, true
+}
+
+// preambleHint says how to read a file whose would-be header row t looks
+// like a line of an instrument's preamble ("Operator: xy", "Date<TAB>…"),
+// or returns "".
+func preambleHint(t string) string {
+	i := strings.IndexAny(t, ":\t")
+	if i <= 0 || i > 40 {
+		return ""
+	}
+	key, rest := strings.TrimSpace(t[:i]), t[i+1:]
+	switch {
+	case key == "" || strings.ContainsAny(key, ",;\""):
+		return ""
+	case t[i] == ':' && rest != "" && rest[0] != ' ' && rest[0] != '\t':
+		return "" // "a:b" is no "Key: value"
+	case t[i] == '\t' && strings.IndexByte(strings.TrimSpace(rest), '\t') >= 0:
+		return ""
+	}
+	return fmt.Sprintf("line looks like a preamble (%s …): before the header only '# key: value' lines and lines "+
+		"'key: value' of the format's keys are read; skip others with --skip-lines N", safetext.Excerpt(key))
+}
+
+// DecimalPoint rewrites a value of a numeric key (and of particle_ri and
+// kd) written with decimal commas ("25,0", "1,59+0,01i") with points; a
+// value with a '.' or without a ',' is returned as it is. Exports from
+// decimal-comma locales write numbers so; the caller decides when a comma
+// is a decimal mark (a ';' or tab delimiter, or the user says so).
+func DecimalPoint(key, v string) string {
+	if !(dls.IsNumericKey(key) || key == dls.KeyParticleRI || key == dls.KeyKD) {
+		return v
+	}
+	if strings.IndexByte(v, '.') >= 0 || strings.IndexByte(v, ',') < 0 {
+		return v
+	}
+	return strings.ReplaceAll(v, ",", ".")
+}
+
+// ParseAssignment reads a command-line "key=value" (dls.ParseAssignment)
+// and checks its value as a metadata line's (CheckMetaValue; a role as
+// dls.ParseRole reads it), so that a bad --set or --default is a usage
+// error before any file is read.
+func ParseAssignment(s string, origin dls.Origin, where string) (dls.Param, error) {
+	p, err := dls.ParseAssignment(s, origin, where)
+	if err != nil {
+		return p, err
+	}
+	if err := CheckMetaValue(p.Key, p.Value); err != nil {
+		return p, fmt.Errorf("%q: %w", s, err)
+	}
+	if p.Key == dls.KeyRole {
+		if _, err := dls.ParseRole(p.Value); err != nil {
+			return p, fmt.Errorf("%q: %w", s, err)
+		}
+	}
+	return p, nil
 }

@@ -40,6 +40,16 @@ type Options struct {
 	// Comma is the cell delimiter. 0 = detect ',' ';' or '\t' from the
 	// header row.
 	Comma rune
+	// DecimalComma reads numbers with ',' as the decimal mark (a value
+	// with one ',' and no '.'), in metadata values and, when the delimiter
+	// is not ',', in data cells (a cell of a ','-delimited file can hold a
+	// comma only when quoted). Without it the decimal comma is taken when
+	// the delimiter is not ','.
+	DecimalComma bool
+	// SkipLines is the number of lines at the start of the file that are
+	// not read at all (an instrument's preamble); 0 reads every line. Line
+	// numbers in messages still count them.
+	SkipLines int
 	// Limits on one file, so that a stray huge file cannot take the
 	// machine's memory: its size in bytes, its data rows (lag channels;
 	// a correlator writes a few hundred) and its columns. 0 means the
@@ -131,6 +141,9 @@ func (o *Options) validate() error {
 	}
 	if o.CorrKind != 0 && o.CorrKind != dls.KindG2 && o.CorrKind != dls.KindG2m1 && o.CorrKind != dls.KindG1 {
 		return fmt.Errorf("correlation kind %v: want g2, g2m1 or g1: %w", o.CorrKind, ErrBadOptions)
+	}
+	if o.SkipLines < 0 {
+		return fmt.Errorf("lines to skip %d: want 0 or more: %w", o.SkipLines, ErrBadOptions)
 	}
 	if o.Comma != 0 && !validComma(o.Comma) {
 		return fmt.Errorf("delimiter %q cannot separate cells: %w", o.Comma, ErrBadOptions)

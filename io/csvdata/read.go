@@ -72,6 +72,13 @@ type parser struct {
 	sp       *splitter
 	decComma bool // a cell may use ',' as its decimal mark
 
+	nonASCII bool // a line before this one held UTF-8 beyond ASCII
+	cp1252   bool // the file is read as Windows-1252
+	cp1252At int  // from this line
+	decoded  []byte
+
+	pending []pendingMeta // metadata lines, checked once the header is known
+
 	meta     dls.Metadata
 	metaLine map[string]int // key → line of its value
 	warnings []warning
@@ -96,6 +103,13 @@ func (p *parser) posErr(line, col int, err error) *dls.PosError {
 	return &dls.PosError{File: p.name, Line: line, Column: col, Err: err}
 }
 
+// pendingMeta is a metadata line whose value is checked once the header
+// row has told whether numbers use a decimal comma.
+type pendingMeta struct {
+	key, value string
+	line       int
+}
+
 // warnKind tells warnings apart: of each kind a file gets one warning, the
 // first, with the number of further lines like it, so that a file repeating
 // a line a million times gives one short message.
@@ -106,6 +120,7 @@ const (
 	warnRepeatedKey
 	warnLateMeta
 	warnUnusedColumns
+	warnEncoding
 )
 
 // warning is the first warning of its kind and the count of the others.
@@ -166,9 +181,12 @@ func (p *parser) read(r io.Reader) {
 			}
 			b = bytes.TrimPrefix(b, bom)
 		}
-		if why := textProblem(b); why != "" {
-			p.fileErr = p.posErr(p.line, 0, fmt.Errorf("%s: %w", why, dls.ErrNotText))
+		b, ok := p.text(b)
+		if !ok {
 			return
+		}
+		if p.line <= p.opt.SkipLines {
+			continue
 		}
 		t := bytes.TrimSpace(b)
 		if len(t) == 0 {
@@ -177,13 +195,19 @@ func (p *parser) read(r io.Reader) {
 		p.nonBlank = true
 		if t[0] == '#' {
 			if p.L == nil {
-				p.metaLineAt(string(t))
+				if key, value, ok := parseMetaLine(string(t)); ok {
+					p.metaLineAt(key, value)
+				}
 			} else {
 				p.lateComment(string(t))
 			}
 			continue
 		}
 		if p.L == nil {
+			if key, value, ok := parsePreambleLine(string(t)); ok {
+				p.metaLineAt(key, value)
+				continue
+			}
 			if !p.header(b) || p.fileErr != nil {
 				return
 			}
@@ -206,6 +230,9 @@ func (p *parser) read(r io.Reader) {
 		return
 	}
 	if p.L == nil {
+		if p.applyMeta(); p.fileErr != nil {
+			return
+		}
 		if p.nonBlank {
 			p.fileErr = p.posErr(p.line, 0, fmt.Errorf("only comments, no header row and no data: %w", dls.ErrEmpty))
 		} else {
@@ -224,22 +251,51 @@ func (p *parser) setFileErr(err error) {
 	}
 }
 
-// metaLineAt handles a '#' line before the header.
-func (p *parser) metaLineAt(t string) {
-	key, value, ok := parseMetaLine(t)
-	if !ok {
-		return
+// text returns line b as UTF-8 text, or reports (setting the file's error)
+// that the file is not text. A file whose first line that is not UTF-8
+// comes after ASCII lines only, and which reads as Windows-1252 without
+// control characters, is read as Windows-1252 from there on, with a
+// warning.
+func (p *parser) text(b []byte) ([]byte, bool) {
+	if p.cp1252 {
+		d, ok := decode1252(b, p.decoded[:0])
+		p.decoded = d
+		if !ok {
+			p.fileErr = p.posErr(p.line, 0, fmt.Errorf("read as Windows-1252 from line %d, this line holds a NUL or control character: %w",
+				p.cp1252At, dls.ErrNotText))
+			return nil, false
+		}
+		return d, true
 	}
+	why := textProblem(b)
+	if why == "" {
+		if !p.nonASCII && !isASCII(b) {
+			p.nonASCII = true
+		}
+		return b, true
+	}
+	if why == "invalid UTF-8" && !p.nonASCII {
+		if d, ok := decode1252(b, p.decoded[:0]); ok {
+			p.decoded, p.cp1252, p.cp1252At = d, true, p.line
+			p.warn(warnEncoding, p.line, "not UTF-8: read as Windows-1252 (Latin-1) from this line on; save the export as UTF-8 to be sure of its characters")
+			return d, true
+		}
+		why = "neither UTF-8 nor Windows-1252 (Latin-1) text"
+	}
+	p.fileErr = p.posErr(p.line, 0, fmt.Errorf("%s: %w", why, dls.ErrNotText))
+	return nil, false
+}
+
+// metaLineAt handles a metadata line before the header: a '#' line, or a
+// preamble line with a key of the format. Its value is checked once the
+// header row is known (applyMeta).
+func (p *parser) metaLineAt(key, value string) {
 	if !dls.IsMetadataKey(key) {
 		p.warn(warnUnknownKey, p.line, "%s: %v (ignored)", safetext.Excerpt(key), dls.ErrUnknownMetadata)
 		return
 	}
 	if value == "" {
 		return // an empty value gives no value
-	}
-	if err := CheckMetaValue(key, value); err != nil {
-		p.setFileErr(p.posErr(p.line, 0, err))
-		return
 	}
 	if p.metaLine == nil {
 		p.metaLine = make(map[string]int)
@@ -248,7 +304,29 @@ func (p *parser) metaLineAt(t string) {
 		p.warn(warnRepeatedKey, p.line, "%s given again (line %d); the value of this line is used", key, prev)
 	}
 	p.metaLine[key] = p.line
-	p.meta.Set(dls.Param{Key: key, Value: value, Origin: dls.OriginFile, Where: fmt.Sprintf("%s:%d", p.name, p.line)})
+	p.pending = append(p.pending, pendingMeta{key: key, value: value, line: p.line})
+}
+
+// applyMeta checks the metadata lines read so far, in file order, and sets
+// their values; with a decimal comma (the delimiter is not ',', or
+// Options.DecimalComma) a number's ',' is read as its decimal point and
+// the value stored with '.'.
+func (p *parser) applyMeta() {
+	for _, m := range p.pending {
+		v := m.value
+		if p.decComma || p.opt.DecimalComma {
+			v = DecimalPoint(m.key, v)
+		}
+		if err := CheckMetaValue(m.key, v); err != nil {
+			if v != m.value {
+				err = CheckMetaValue(m.key, m.value) // the message quotes the text as written
+			}
+			p.setFileErr(p.posErr(m.line, 0, err))
+			return
+		}
+		p.meta.Set(dls.Param{Key: m.key, Value: v, Origin: dls.OriginFile, Where: fmt.Sprintf("%s:%d", p.name, m.line)})
+	}
+	p.pending = nil
 }
 
 // lateComment handles a '#' line after the header: it is ignored, with a
@@ -267,7 +345,7 @@ func (p *parser) header(s []byte) bool {
 		comma = detectComma(s)
 	}
 	p.sp = newSplitter(comma)
-	p.decComma = comma != ','
+	p.decComma = comma != ',' || p.opt.DecimalComma
 	names := p.sp.splitStrings(s)
 	if _, _, maxCols := p.opt.Limits(); len(names) > maxCols {
 		p.setFileErr(p.posErr(p.line, 0, fmt.Errorf("%d columns, more than %d: %w (raise it with --max-columns)", len(names), maxCols, ErrTooLarge)))
@@ -279,7 +357,11 @@ func (p *parser) header(s []byte) bool {
 	}
 	L, herr := resolve(names, p.opt)
 	if herr != nil {
-		p.setFileErr(p.posErr(p.line, herr.col, herr.err))
+		err := herr.err
+		if hint := preambleHint(string(bytes.TrimSpace(s))); hint != "" {
+			err = fmt.Errorf("%w; %s", err, hint)
+		}
+		p.setFileErr(p.posErr(p.line, herr.col, err))
 		return false
 	}
 	p.L = L
@@ -300,6 +382,7 @@ func (p *parser) header(s []byte) bool {
 		}
 	}
 	p.cells = make([][]byte, 0, len(names))
+	p.applyMeta() // a bad value fails every run, whose labels are now known
 	return true
 }
 

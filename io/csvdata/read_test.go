@@ -294,9 +294,10 @@ func TestReadEdgeCases(t *testing.T) {
 		name     string
 		in       string
 		opt      *csvdata.Options
-		line     int   // of the error; 0 with sentinel nil
-		col      int   // of the error
-		sentinel error // nil = must read
+		line     int    // of the error; 0 with sentinel nil
+		col      int    // of the error
+		sentinel error  // nil = must read
+		errText  string // a part of the error's message, when given
 		runs     []string
 		kind     dls.CorrKind
 		first    float64 // first lag in s when it reads
@@ -365,6 +366,12 @@ func TestReadEdgeCases(t *testing.T) {
 			runs: []string{""}, kind: dls.KindG2, first: 1e-6, meta: map[string]string{}},
 		{name: "kind option contradicts the name", in: "tau_s,g2\n" + ten, opt: &csvdata.Options{CorrKind: dls.KindG1}, line: 1, col: 2, sentinel: dls.ErrBadHeader},
 		{name: "foreign lag without unit", in: "lag,g2\n" + ten, opt: &csvdata.Options{TauColumn: "lag"}, line: 1, col: 1, sentinel: dls.ErrBadHeader},
+		// A unit in the name and another in the options: the reader cannot
+		// tell which is right (1 ms = 1000 µs, BIPM SI brochure, 9th ed.).
+		{name: "foreign lag unit option contradicts the name", in: "Lag time (µs),g2\n" + ten, opt: &csvdata.Options{TauColumn: "Lag time (µs)", TauUnit: "ms"},
+			line: 1, col: 1, sentinel: dls.ErrBadHeader, errText: "says us but the unit given is ms"},
+		{name: "foreign lag unit option agrees with the name", in: "Lag time (µs),g2\n" + ten, opt: &csvdata.Options{TauColumn: "Lag time (µs)", TauUnit: "us"},
+			runs: []string{""}, kind: dls.KindG2, first: 1e-12, meta: map[string]string{}},
 		{name: "foreign lag with unit option", in: "lag,g2\n" + ten, opt: &csvdata.Options{TauColumn: "lag", TauUnit: "µs"},
 			runs: []string{""}, kind: dls.KindG2, first: 1e-12, meta: map[string]string{}},
 		{name: "foreign lag unit in brackets", in: "Delay [ms];Value\n" + rows(10, ";", ""), opt: &csvdata.Options{TauColumn: "delay [ms]", CorrColumns: []string{"VALUE"}, CorrKind: dls.KindG1},
@@ -377,6 +384,35 @@ func TestReadEdgeCases(t *testing.T) {
 			runs: []string{""}, kind: dls.KindG2, first: 1e-9, meta: map[string]string{}},
 		{name: "foreign kind unknown", in: "tau_s,corr\n" + ten, opt: &csvdata.Options{CorrColumns: []string{"corr"}}, line: 1, col: 2, sentinel: dls.ErrBadHeader},
 		{name: "foreign column missing", in: "tau_s,g2\n" + ten, opt: &csvdata.Options{TauColumn: "lag (s)"}, line: 1, sentinel: dls.ErrBadHeader},
+		// Decimal commas (ISO 80000-1:2022, 7.3.2, allows the comma as
+		// the decimal sign): in a file delimited by ';' or tab, or with
+		// Options.DecimalComma, metadata numbers take them too and are
+		// stored with a point.
+		{name: "decimal comma in metadata of a ';' file", in: "# temperature_c: 25,0\n# particle_ri: 1,59+0,01i\n# kd: -8,5\ntau_s;g2\n" + rows(10, ";", ""),
+			runs: []string{""}, kind: dls.KindG2, first: 1e-6, meta: map[string]string{"temperature_c": "25.0", "particle_ri": "1.59+0.01i", "kd": "-8.5"}},
+		{name: "decimal comma forced in a ',' file", in: "# angle_deg: 90,0\ntau_s,g2\n" + ten, opt: &csvdata.Options{DecimalComma: true},
+			runs: []string{""}, kind: dls.KindG2, first: 1e-6, meta: map[string]string{"angle_deg": "90.0"}},
+		{name: "text metadata keeps its commas", in: "# sample: lot 3,4\ntau_s;g2\n" + rows(10, ";", ""),
+			runs: []string{""}, kind: dls.KindG2, first: 1e-6, meta: map[string]string{"sample": "lot 3,4"}},
+		{name: "two decimal commas in a number", in: "# angle_deg: 1,7,3\ntau_s;g2\n" + rows(10, ";", ""), line: 1, sentinel: dls.ErrBadMetadata, errText: `"1,7,3"`},
+		// A preamble without '#': lines "key: value" or "key<TAB>value"
+		// with keys of the format are metadata; others get a hint.
+		{name: "preamble of known keys", in: "Temperature_C: 25\nangle_deg\t173\nsample:  LOT 7 \n\ntau_s,g2\n" + ten,
+			runs: []string{""}, kind: dls.KindG2, first: 1e-6, meta: map[string]string{"temperature_c": "25", "angle_deg": "173", "sample": "LOT 7"}},
+		{name: "tab preamble with decimal commas", in: "temperature_c\t25,5\ntau_s\tg2\n" + rows(10, "\t", ""),
+			runs: []string{""}, kind: dls.KindG2, first: 1e-6, meta: map[string]string{"temperature_c": "25.5"}},
+		{name: "preamble of unknown keys", in: "Operator: A. N. Other\ntau_s,g2\n" + ten, line: 1, sentinel: dls.ErrBadHeader, errText: "--skip-lines"},
+		{name: "preamble skipped", in: "Operator: A. N. Other\nDate\t1.2.2024\ntau_s,g2\n" + ten, opt: &csvdata.Options{SkipLines: 2},
+			runs: []string{""}, kind: dls.KindG2, first: 1e-6, meta: map[string]string{}},
+		{name: "skipped lines still count", in: "x\ny\ntau_s,g2\n" + rows(3, ",", "") + "4e-6,x\n", opt: &csvdata.Options{SkipLines: 2}, line: 7, col: 2, sentinel: dls.ErrNotANumber},
+		{name: "negative lines to skip", in: "tau_s,g2\n" + ten, opt: &csvdata.Options{SkipLines: -1}, sentinel: csvdata.ErrBadOptions},
+		// Windows-1252 (Unicode Consortium mapping table CP1252.TXT: 0xB5
+		// is U+00B5 MICRO SIGN, 0x80 U+20AC EURO SIGN, 0x81 undefined).
+		{name: "Latin-1 metadata", in: "# sample: Probe \xb5-1\n# lot: \x80 12\ntau_s,g2\n" + ten,
+			runs: []string{""}, kind: dls.KindG2, first: 1e-6, meta: map[string]string{"sample": "Probe µ-1", "lot": "€ 12"}, warn: []string{"x.csv:1: not UTF-8: read as Windows-1252"}},
+		{name: "Latin-1 after UTF-8 beyond ASCII", in: "# sample: µ\n# lot: \xb5\ntau_s,g2\n" + ten, line: 2, sentinel: dls.ErrNotText},
+		{name: "byte undefined in Windows-1252", in: "# sample: \x81\ntau_s,g2\n" + ten, line: 1, sentinel: dls.ErrNotText},
+		{name: "control character in a Latin-1 file", in: "# sample: \xb5\ntau_s,g2\n\x01" + ten, line: 3, sentinel: dls.ErrNotText},
 		{name: "explicit comma", in: "tau_s|g2\n" + strings.ReplaceAll(ten, ",", "|"), opt: &csvdata.Options{Comma: '|'},
 			runs: []string{""}, kind: dls.KindG2, first: 1e-6, meta: map[string]string{}},
 	}
@@ -389,6 +425,9 @@ func TestReadEdgeCases(t *testing.T) {
 			if tc.sentinel != nil {
 				for _, e := range entries {
 					posErr(t, e.Err, "x.csv", tc.line, tc.col, tc.sentinel)
+					if e.Err != nil && !strings.Contains(e.Err.Error(), tc.errText) {
+						t.Errorf("error %q lacks %q", e.Err, tc.errText)
+					}
 					if e.M != nil {
 						t.Error("measurement with an error")
 					}

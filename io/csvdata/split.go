@@ -3,6 +3,8 @@ package csvdata
 import (
 	"bytes"
 	"unicode/utf8"
+
+	"golang.org/x/text/encoding/charmap"
 )
 
 // splitter cuts a line into trimmed cells at a delimiter. A cell that starts
@@ -143,4 +145,29 @@ func textProblem(b []byte) string {
 		return "invalid UTF-8"
 	}
 	return ""
+}
+
+// isASCII reports whether b holds only 7-bit bytes.
+func isASCII(b []byte) bool {
+	for _, c := range b {
+		if c >= 0x80 {
+			return false
+		}
+	}
+	return true
+}
+
+// decode1252 appends line b decoded from Windows-1252 to dst. ok is false
+// when b holds a NUL, a control character other than tab and CR, or a byte
+// that Windows-1252 leaves undefined (0x81, 0x8D, 0x8F, 0x90, 0x9D): such a
+// file is no text in that encoding either.
+func decode1252(b, dst []byte) ([]byte, bool) {
+	for _, c := range b {
+		r := charmap.Windows1252.DecodeByte(c)
+		if r < 0x20 && r != '\t' && r != '\r' || r >= 0x7F && r < 0xA0 || r == utf8.RuneError {
+			return dst, false
+		}
+		dst = utf8.AppendRune(dst, r)
+	}
+	return dst, true
 }

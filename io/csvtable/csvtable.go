@@ -1,7 +1,10 @@
 // Package csvtable reads the small hand-edited CSV tables of dlsbatch
 // (sample sheets, specifications, solvent files): UTF-8 text with one
 // header row, '#' comment lines and blank lines skipped, header names
-// case-insensitive. It keeps the line and column of every cell so that each
+// case-insensitive. Cells are separated by ',', ';' or a tab: the one of
+// these that occurs most often in the header row outside double quotes
+// (ties in that order, ',' when none occurs), as a spreadsheet of a
+// decimal-comma locale saves ';'. It keeps the line and column of every cell so that each
 // error names file, line and column, and hands the records to gocsv for
 // struct mapping.
 package csvtable
@@ -24,6 +27,7 @@ import (
 // Table is a CSV table with the position of every cell.
 type Table struct {
 	File   string
+	Comma  rune       // the delimiter: ',', ';' or '\t'
 	Header []string   // lower case, trimmed
 	Rows   [][]string // cells trimmed of surrounding space
 	// Pos[0] holds the header's positions, Pos[i+1] those of Rows[i]:
@@ -43,9 +47,10 @@ func Read(r io.Reader, file string) (*Table, error) {
 		return nil, &dls.PosError{File: file, Err: dls.ErrNotText}
 	}
 	cr := csv.NewReader(bytes.NewReader(data))
+	cr.Comma = detectComma(data)
 	cr.Comment = '#'
 	cr.FieldsPerRecord = -1
-	t := &Table{File: file}
+	t := &Table{File: file, Comma: cr.Comma}
 	for {
 		rec, err := cr.Read()
 		if err == io.EOF {
@@ -89,6 +94,56 @@ func Read(r io.Reader, file string) (*Table, error) {
 		return nil, &dls.PosError{File: file, Err: dls.ErrEmpty}
 	}
 	return t, nil
+}
+
+// detectComma picks the delimiter from the header row, the first line
+// that is neither blank nor a comment.
+func detectComma(data []byte) rune {
+	for len(data) > 0 {
+		line := data
+		if i := bytes.IndexByte(data, '\n'); i >= 0 {
+			line, data = data[:i], data[i+1:]
+		} else {
+			data = nil
+		}
+		t := bytes.TrimSpace(line)
+		if len(t) == 0 || t[0] == '#' {
+			continue
+		}
+		var n [3]int
+		inQuote := false
+		for _, c := range t {
+			switch {
+			case c == '"':
+				inQuote = !inQuote
+			case inQuote:
+			case c == ',':
+				n[0]++
+			case c == ';':
+				n[1]++
+			case c == '\t':
+				n[2]++
+			}
+		}
+		best := 0
+		for i := 1; i < 3; i++ {
+			if n[i] > n[best] {
+				best = i
+			}
+		}
+		return []rune{',', ';', '\t'}[best]
+	}
+	return ','
+}
+
+// Number returns the text of a numeric cell with a decimal comma ("0,10")
+// written with a point, when the table is not delimited by ',' and the
+// cell has one ',' and no '.'; otherwise the cell as it is.
+func (t *Table) Number(v string) string {
+	if t.Comma == ',' || strings.Count(v, ",") != 1 || strings.IndexByte(v, '.') >= 0 {
+		return v
+	}
+	return strings.Replace(v, ",", ".", 1)
 }
 
 // CheckHeader reports the first header cell that is not a known column

@@ -63,3 +63,34 @@ func TestReadErrors(t *testing.T) {
 		}
 	}
 }
+
+// TestDelimiters: a table saved by a spreadsheet of a decimal-comma locale
+// uses ';' (common practice of such locales; ISO 80000-1:2022, 7.3.2,
+// allows the comma as decimal sign), a tab-separated export uses tabs; the
+// header row decides, quotes hide delimiters.
+func TestDelimiters(t *testing.T) {
+	cases := []struct {
+		name, in string
+		comma    rune
+		cells    []string // of the first row
+		number   string   // Number of the last cell
+	}{
+		{"comma", "# a;b;c\nfile,lot\nx.csv,\"0,5\"\n", ',', []string{"x.csv", "0,5"}, "0,5"},
+		{"semicolon", "file;lot\nx.csv;0,5\n", ';', []string{"x.csv", "0,5"}, "0.5"},
+		{"tab", "\nfile\tlot\nx.csv\t1,25e-3\n", '\t', []string{"x.csv", "1,25e-3"}, "1.25e-3"},
+		{"quoted commas do not count", "\"a,b,c\";lot\nx;1,2,3\n", ';', []string{"x", "1,2,3"}, "1,2,3"},
+		{"tie goes to comma", "file,lot;x\n1,2;3\n", ',', []string{"1", "2;3"}, "2;3"},
+	}
+	for _, c := range cases {
+		tb, err := Read(strings.NewReader(c.in), "t.csv")
+		if err != nil {
+			t.Fatalf("%s: %v", c.name, err)
+		}
+		if tb.Comma != c.comma || strings.Join(tb.Rows[0], "|") != strings.Join(c.cells, "|") {
+			t.Errorf("%s: delimiter %q row %q, want %q %q", c.name, tb.Comma, tb.Rows[0], c.comma, c.cells)
+		}
+		if got := tb.Number(tb.Rows[0][len(tb.Rows[0])-1]); got != c.number {
+			t.Errorf("%s: Number %q, want %q", c.name, got, c.number)
+		}
+	}
+}

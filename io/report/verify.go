@@ -4,6 +4,7 @@ import (
 	"encoding/json"
 	"errors"
 	"fmt"
+	"io"
 	"io/fs"
 	"os"
 	"path/filepath"
@@ -29,6 +30,20 @@ type Verification struct {
 
 // OK reports an intact, complete result set.
 func (v *Verification) OK() bool { return v.Complete && len(v.Differences) == 0 }
+
+// Write prints each difference (kind, file, expected, found) and a closing
+// line on the folder dir: how many differences, or intact and complete.
+func (v *Verification) Write(w io.Writer, dir string) error {
+	for _, d := range v.Differences {
+		fmt.Fprintf(w, "%s %s\n  expected %s\n  found    %s\n", d.Kind, d.File, d.Expected, d.Found)
+	}
+	if !v.OK() {
+		_, err := fmt.Fprintf(w, "%s: %d difference(s) in %d files checked\n", dir, len(v.Differences), v.Checked)
+		return err
+	}
+	_, err := fmt.Fprintf(w, "%s: intact and complete (%d files checked)\n", dir, v.Checked)
+	return err
+}
 
 // ErrNoManifest reports a folder without a readable manifest.
 var ErrNoManifest = errors.New("no readable manifest.json")

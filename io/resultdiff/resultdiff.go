@@ -41,6 +41,20 @@ func DefaultTol(column string) Tol {
 }
 
 // ParseTol reads "column=value": a value ending in % is relative, "exact"
+// ParseTols reads every --tol of a command line (ParseTol) into a map by
+// column; a later one for a column wins.
+func ParseTols(list []string) (map[string]Tol, error) {
+	tol := map[string]Tol{}
+	for _, s := range list {
+		col, t, err := ParseTol(s)
+		if err != nil {
+			return nil, err
+		}
+		tol[col] = t
+	}
+	return tol, nil
+}
+
 // compares text, anything else is absolute.
 func ParseTol(s string) (string, Tol, error) {
 	col, v, ok := strings.Cut(s, "=")

@@ -25,7 +25,9 @@
 // key's rule (csvdata.CheckMetaValue: numbers as dls.ParseNumber reads
 // them); every error names file, line and column. The physical range of
 // each value is checked by the analysis (dls.PlausibleRanges). Lines starting with
-// '#' are comments.
+// '#' are comments. Cells are separated by ',', ';' or tabs, as the header
+// row shows (io/csvtable); in a sheet not delimited by ',', numbers may use
+// a decimal comma ("25,0"), stored with a point.
 //
 // Every row that matches a measurement applies, in sheet order: a later
 // row overrides an earlier one, so a glob row can set what a group shares
@@ -69,11 +71,24 @@ func Columns() []string {
 	return append([]string{"file"}, dls.MetadataKeys()...)
 }
 
+// Load reads the sample sheet at path, with "sample sheet: " before an
+// error; an empty path gives no sheet (nil) and no error.
+func Load(path string) (*Sheet, error) {
+	if path == "" {
+		return nil, nil
+	}
+	s, err := ReadFile(path)
+	if err != nil {
+		return nil, fmt.Errorf("sample sheet: %w", err)
+	}
+	return s, nil
+}
+
 // ReadFile parses the sample sheet at path.
 func ReadFile(p string) (*Sheet, error) {
 	f, err := os.Open(p)
 	if err != nil {
-		return nil, fmt.Errorf("sample sheet: %w", err)
+		return nil, err // the caller names the table ("sample sheet: …")
 	}
 	defer f.Close()
 	return Parse(f, p)
@@ -107,7 +122,13 @@ func Parse(r io.Reader, name string) (*Sheet, error) {
 			if j == fileCol || j == runCol || v == "" {
 				continue
 			}
+			if t.Comma != ',' {
+				v = csvdata.DecimalPoint(key, v) // "25,0" in a ';' sheet is 25.0
+			}
 			if err := csvdata.CheckMetaValue(key, v); err != nil {
+				if v != rec[j] {
+					err = csvdata.CheckMetaValue(key, rec[j]) // quote the cell as written
+				}
 				return nil, t.Err(i, j, err)
 			}
 			if key == dls.KeyRole {

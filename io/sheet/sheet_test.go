@@ -201,3 +201,27 @@ func TestErrorsQuoteExcerpts(t *testing.T) {
 		t.Errorf("unused rows %q, want %q", rep.UnusedRows, want)
 	}
 }
+
+// TestDecimalCommaSheet: a sheet saved with ';' by a spreadsheet of a
+// decimal-comma locale (ISO 80000-1:2022, 7.3.2, allows the comma as
+// decimal sign) sets the values the ',' sheet would, with points; text
+// keeps its commas and a number with two commas is an error at its cell.
+func TestDecimalCommaSheet(t *testing.T) {
+	s, err := Parse(strings.NewReader("file;sample;temperature_c;particle_ri\nx.csv;lot 3,4;25,5;1,59+0,01i\n"), "s.csv")
+	if err != nil {
+		t.Fatal(err)
+	}
+	want := map[string]string{dls.KeySample: "lot 3,4", dls.KeyTemperatureC: "25.5", dls.KeyParticleRI: "1.59+0.01i"}
+	m := &dls.Measurement{File: "x.csv"}
+	s.Apply(m, "x.csv")
+	for k, v := range want {
+		if got := m.Meta.String(k); got != v {
+			t.Errorf("%s = %q, want %q", k, got, v)
+		}
+	}
+	_, err = Parse(strings.NewReader("file;angle_deg\nx.csv;1,7,3\n"), "s.csv")
+	var pe *dls.PosError
+	if !errors.As(err, &pe) || pe.Line != 2 || pe.Column != 7 || !strings.Contains(err.Error(), `"1,7,3"`) {
+		t.Errorf("error %v, want one at s.csv:2:7 quoting the cell", err)
+	}
+}

@@ -267,6 +267,20 @@ func CheckOutDir(dir, plan string, force bool) error {
 	return nil
 }
 
+// CheckOutFiles refuses, unless force, an output or truth file that
+// exists, and the two naming the same file ("" names none).
+func CheckOutFiles(output, truth string, force bool) error {
+	for _, p := range []string{output, truth} {
+		if _, err := os.Stat(p); p != "" && !force && err == nil {
+			return fmt.Errorf("%s exists; use --force to replace it", p)
+		}
+	}
+	if output != "" && output == truth {
+		return errors.New("--output and --truth name the same file")
+	}
+	return nil
+}
+
 // RunPlan simulates every entry and writes its correlogram and, last,
 // truth.json (sorted by file) into dir; nothing is written unless every
 // entry simulates. Errors about an entry are *dls.PosError in the plan; a

@@ -24,7 +24,9 @@
 //	gold-20,runs,3,,,,,
 //
 // Numbers are decimal as dls.ParseNumber reads them (0.10, 1e2; no
-// hexadecimal, digit separators, inf or nan). A malformed row, an unknown
+// hexadecimal, digit separators, inf or nan). Cells are separated by ',',
+// ';' or tabs, as the header row shows (io/csvtable); in a file not
+// delimited by ',', a number may use a decimal comma (0,10). A malformed row, an unknown
 // column or an unknown quantity is an error naming file, line and column,
 // reported before any analysis starts.
 package specfile
@@ -49,11 +51,24 @@ func Columns() []string {
 	return []string{"product", "quantity", "min", "max", "target", "tol", "at_nm", "note"}
 }
 
+// Load reads the specification at path, with "specification: " before an
+// error; an empty path gives no specification (nil) and no error.
+func Load(path string) (*spec.Spec, error) {
+	if path == "" {
+		return nil, nil
+	}
+	s, err := ReadFile(path)
+	if err != nil {
+		return nil, fmt.Errorf("specification: %w", err)
+	}
+	return s, nil
+}
+
 // ReadFile parses the specification at path.
 func ReadFile(path string) (*spec.Spec, error) {
 	f, err := os.Open(path)
 	if err != nil {
-		return nil, fmt.Errorf("specification: %w", err)
+		return nil, err // the caller names the table ("specification: …")
 	}
 	defer f.Close()
 	return Parse(f, path)
@@ -84,7 +99,7 @@ func Parse(r io.Reader, name string) (*spec.Spec, error) {
 			if v == "" {
 				return 0, false, nil
 			}
-			x, err := dls.ParseNumber(v)
+			x, err := dls.ParseNumber(t.Number(v))
 			if err != nil {
 				return 0, false, t.Err(i, c, err)
 			}

@@ -145,3 +145,33 @@ func TestErrorsQuoteExcerpts(t *testing.T) {
 		})
 	}
 }
+
+// TestDecimalCommaLocale: the specification of TestParse as a spreadsheet
+// of a decimal-comma locale saves it (';' between cells, ',' as decimal
+// sign, ISO 80000-1:2022, 7.3.2) gives the same limits; the numbers are the
+// decimal texts of the ',' file, so the comparison is exact.
+func TestDecimalCommaLocale(t *testing.T) {
+	semi := "product;quantity;min;max;target;tol;at_nm;note\n" +
+		"latex-100;z_avg_nm;;;101,8;3,0;;reference latex, lab window\n" +
+		"gold-20;pdi;;0,10;;;;\n" +
+		"gold-20;intensity_pct_above;;2;;;100;\n"
+	s, err := Parse(strings.NewReader(semi), "spec.csv")
+	if err != nil {
+		t.Fatal(err)
+	}
+	cases := []struct {
+		min, max float64
+	}{{101.8 - 3.0, 101.8 + 3.0}, {0, 0.10}, {0, 2}}
+	if len(s.Limits) != len(cases) {
+		t.Fatalf("%d limits, want %d", len(s.Limits), len(cases))
+	}
+	for i, c := range cases {
+		l := s.Limits[i]
+		if l.Min != c.min || l.Max != c.max {
+			t.Errorf("limit %d: %g … %g, want %g … %g", i, l.Min, l.Max, c.min, c.max)
+		}
+	}
+	if _, err := Parse(strings.NewReader("product;quantity;max\ngold-20;pdi;0,1,0\n"), "spec.csv"); err == nil {
+		t.Error("0,1,0 read as a number")
+	}
+}

@@ -148,8 +148,8 @@ def bad():
         pass
     with open(b("not_text_nul.csv"), "wb") as f:                         # NUL bytes on line 2
         f.write(b"tau_s,g2\n\x00\x00\x01\x02\x03binary\n")
-    with open(b("not_text_utf8.csv"), "wb") as f:                        # invalid UTF-8 on line 3
-        f.write(b"# sample: demo-bad\ntau_s,g2\n1.0e-06,1.9\xff\xfe\n")
+    with open(b("not_text_utf8.csv"), "wb") as f:                        # invalid UTF-8 and Windows-1252 on line 3
+        f.write(b"# sample: demo-bad\ntau_s,g2\n1.0e-06,1.9\x81\xfe\n")
     rows = list(base)
     rows[1 + 2] += ",1.5"
     write(b("wrong_cell_count.csv"), meta + rows)                        # line 5 has 3 cells
