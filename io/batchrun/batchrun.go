@@ -171,6 +171,11 @@ func Run(ctx context.Context, cfg *Config) (*Outcome, error) {
 	}
 	published := false
 	defer func() { jr.close(published) }()
+	var measuredAt []string // of each result, in input order
+	sheetRel := map[string]string{}
+	for _, f := range files {
+		sheetRel[csvdata.Rel(root, f)] = rels[f]
+	}
 	rn := &batch.Runner{
 		Cached: func(path string) ([]*dls.Result, bool) {
 			if _, problem := found.Failed(path); problem {
@@ -196,6 +201,7 @@ func Run(ctx context.Context, cfg *Config) (*Outcome, error) {
 			if err := jr.add(res); err != nil {
 				return err
 			}
+			measuredAt = append(measuredAt, measuredAtOf(res)...)
 			return stream.Add(res)
 		},
 	}
@@ -222,7 +228,7 @@ func Run(ctx context.Context, cfg *Config) (*Outcome, error) {
 		shard = cfg.Shard.Info(all, root)
 	}
 	o, err := publish(ctx, cfg, out, &publishing{root: root, inputs: files, match: match, stream: stream,
-		complete: runErr == nil, shard: shard})
+		complete: runErr == nil, shard: shard, measuredAt: measuredAt, sheetRel: sheetRel})
 	published = err == nil && o.Complete && !cfg.KeepJournal
 	return o, err
 }
@@ -251,6 +257,11 @@ type publishing struct {
 	stream   *report.Stream
 	complete bool
 	shard    *report.ShardInfo
+	// measuredAt holds each result's measured_at ("" without), sheetRel
+	// each input's path as the sheet's patterns see it, by its name
+	// relative to the root (nil: that name): the batch order.
+	measuredAt []string
+	sheetRel   map[string]string
 }
 
 // publish aggregates, judges, writes and swaps in the set of p.
@@ -265,7 +276,8 @@ func publish(ctx context.Context, cfg *Config, out *resultset.Set, p *publishing
 	o.Samples = qc.Aggregate(o.Results, qc.Options{Thresholds: cfg.Settings.QC, ExcludeOutliers: cfg.ExcludeOutliers})
 	o.Batch = spec.Batch{Specified: cfg.Spec != nil, Reason: "not evaluated: the run was interrupted"}
 	if o.Complete {
-		o.Batch = spec.EvaluateLoaded(cfg.Spec, o.Samples, o.Results, p.stream.Full)
+		o.Batch = spec.EvaluateRun(cfg.Spec, o.Samples, spec.Run{Results: o.Results, Load: p.stream.Full,
+			Order: batchOrder(cfg.Sheet, o.Results, p), QC: qc.Options{Thresholds: cfg.Settings.QC, ExcludeOutliers: cfg.ExcludeOutliers}})
 	}
 	o.Counts = dls.CountResults(o.Results)
 	doc := &report.Document{
@@ -347,4 +359,35 @@ func (cfg *Config) record(root string) *report.Settings {
 		Spec: rel(cfg.SpecFile), UAngleDeg: cfg.UAngleDeg, URefractiveIndex: s.Uncertainty.RefractiveIndex,
 		UTemperatureK: s.Uncertainty.TemperatureK, UViscosityRel: s.Uncertainty.ViscosityRel,
 	}
+}
+
+// measuredAtOf returns the measured_at metadata of each result ("" when
+// absent).
+func measuredAtOf(res []*dls.Result) []string {
+	out := make([]string, len(res))
+	for i, r := range res {
+		for _, p := range r.Params {
+			if p.Key == dls.KeyMeasuredAt {
+				out[i] = p.Value
+			}
+		}
+	}
+	return out
+}
+
+// batchOrder is the order the measurements were taken in, as far as the
+// inputs tell (spec.BatchOrder).
+func batchOrder(sh *sheet.Sheet, results []*dls.Result, p *publishing) spec.Order {
+	var ranks []int
+	if sh != nil {
+		rels := make([]string, len(results))
+		for i, r := range results {
+			rels[i] = r.File
+			if rel, ok := p.sheetRel[r.File]; ok {
+				rels[i] = rel
+			}
+		}
+		ranks = sh.Ranks(rels)
+	}
+	return spec.BatchOrder(len(results), p.measuredAt, ranks)
 }

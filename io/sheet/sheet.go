@@ -219,3 +219,38 @@ func roleNames() []string {
 	}
 	return out
 }
+
+// Ranks returns, for each file (paths relative to its input folder, as
+// patterns see them), the index of the first row that names that file
+// alone, matching it and no other file of rels, or -1 when no row does: a
+// sheet that lists every file on a row of its own gives the batch order
+// (package dls/spec, BatchOrder).
+func (s *Sheet) Ranks(rels []string) []int {
+	rank := make([]int, len(rels))
+	for i := range rank {
+		rank[i] = -1
+	}
+	for k, row := range s.Rows {
+		hit := -1
+		for i, r := range rels {
+			if matches(row.Pattern, filepath.ToSlash(r)) {
+				if hit >= 0 && rels[hit] != r {
+					hit = -2
+					break
+				}
+				if hit == -1 {
+					hit = i
+				}
+			}
+		}
+		if hit < 0 {
+			continue
+		}
+		for i, r := range rels {
+			if r == rels[hit] && rank[i] < 0 {
+				rank[i] = k
+			}
+		}
+	}
+	return rank
+}

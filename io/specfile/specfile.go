@@ -6,7 +6,13 @@
 //	product   required  product name, matched (case-insensitively) with the
 //	                    product of each sample (sample sheet or file)
 //	quantity  required  z_avg_nm, pdi, z_avg_rsd_pct, d90_nm, peak1_nm,
-//	                    intensity_pct_above, runs
+//	                    intensity_pct_above, runs, count_rate_kcps (mean of
+//	                    the runs; the limit of a blank), drift_pct (a
+//	                    reference product: |last block − first block| /
+//	                    first block of its z-average, %); or, with no
+//	                    bounds, none (the product has no specification, and
+//	                    no other row) or no_bracketing (its samples need no
+//	                    reference block before and after them)
 //	min, max  optional  inclusive bounds; either or both
 //	target,   optional  a certified or nominal value and its tolerance,
 //	tol                 instead of min and max: target − tol ≤ x ≤ target + tol
@@ -22,6 +28,18 @@
 //	gold-20,pdi,,0.10,,,,
 //	gold-20,intensity_pct_above,,2,,,100,no aggregates
 //	gold-20,runs,3,,,,,
+//	latex-100,drift_pct,,2,,,,start and end blocks within 2 %
+//	water-blank,count_rate_kcps,,15,,,,filtered dispersant
+//	user-sample,none,,,,,,core facility sample: sized, not released
+//	gold-20-rd,no_bracketing,,,,,,development lots: one reference block
+//
+// With a specification in force, every sample's product must have a row
+// (a sample with an empty product has no specification, as intended);
+// products are matched ignoring letter case. A sample is released only
+// when passing reference blocks bracket it in batch order (package
+// dls/spec), unless its product has a no_bracketing row. A blank (role
+// blank) is judged on its count rate: its product's count_rate_kcps
+// limit, or the QC threshold max_blank_count_rate_kcps without one.
 //
 // Numbers are decimal as dls.ParseNumber reads them (0.10, 1e2; no
 // hexadecimal, digit separators, inf or nan). A malformed row, an unknown
@@ -99,6 +117,21 @@ func Parse(r io.Reader, name string) (*spec.Spec, error) {
 			return nil, t.Err(i, qc, fmt.Errorf("unknown quantity %s (known: %s)", safetext.Excerpt(quantity), strings.Join(spec.QuantityNames(), ", ")))
 		}
 		l := spec.Limit{Product: product, Quantity: quantity, Where: fmt.Sprintf("%s:%d", name, t.Line(i))}
+		if spec.IsRule(quantity) {
+			for _, n := range []string{"min", "max", "target", "tol", "at_nm"} {
+				if v, c := get(n); v != "" {
+					return nil, t.Err(i, c, fmt.Errorf("%s takes no %s: it is no limit", quantity, n))
+				}
+			}
+			l.Text = quantity
+			key := strings.ToLower(product) + "\x00" + quantity
+			if prev, dup := seen[key]; dup {
+				return nil, t.Err(i, qc, fmt.Errorf("%s %s already given on line %d", safetext.Excerpt(product), quantity, prev))
+			}
+			seen[key] = t.Line(i)
+			s.Limits = append(s.Limits, l)
+			continue
+		}
 		var err error
 		var hasT, hasTol bool
 		var target, tol float64
@@ -167,6 +200,17 @@ func Parse(r io.Reader, name string) (*spec.Spec, error) {
 	}
 	if len(s.Limits) == 0 {
 		return nil, &dls.PosError{File: name, Err: dls.ErrEmpty}
+	}
+	// none means no specification: no other row for the product.
+	for _, l := range s.Limits {
+		if l.Quantity != spec.QuantityNone {
+			continue
+		}
+		for _, o := range s.Limits {
+			if o.Quantity != spec.QuantityNone && strings.EqualFold(o.Product, l.Product) {
+				return nil, fmt.Errorf("%s: product %s has quantity none (no specification) and a %s row at %s", l.Where, safetext.Excerpt(l.Product), o.Quantity, o.Where)
+			}
+		}
 	}
 	return s, nil
 }
