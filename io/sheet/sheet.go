@@ -17,7 +17,7 @@
 //	                    medium_relative_viscosity, kd, u_viscosity_mpas,
 //	                    u_refractive_index, u_kd, u_volume_fraction,
 //	                    u_medium_volume_fraction,
-//	                    u_medium_relative_viscosity
+//	                    u_medium_relative_viscosity, measured_at
 //
 // A role is sample, reference or blank, in any letter case (dls.ParseRole).
 // Empty cells set nothing. Unknown columns are an error (a misspelt column
@@ -33,6 +33,11 @@
 // command-line flags and above the file's own metadata. The sheet's values
 // are never used as paths: patterns are only compared with the names of
 // files found under the inputs.
+//
+// Batch order: a sheet whose rows name each file on a row of its own (a
+// name or a pattern that matches that file alone) gives the order in which
+// the files were measured, where the measured_at metadata does not
+// (Ranks; package dls/spec).
 package sheet
 
 import (

@@ -2,6 +2,7 @@ package sheet
 
 import (
 	"errors"
+	"fmt"
 	"strings"
 	"testing"
 
@@ -199,5 +200,28 @@ func TestErrorsQuoteExcerpts(t *testing.T) {
 	rep := s.Check("s.csv", []string{"a.csv"}, map[string]string{"a.csv": "a.csv"})
 	if want := `s.csv:2: row "` + long[:40] + `"… matches no file`; len(rep.UnusedRows) != 1 || rep.UnusedRows[0] != want {
 		t.Errorf("unused rows %q, want %q", rep.UnusedRows, want)
+	}
+}
+
+// TestRanks: a row gives a file its rank only when it names that file
+// alone; a glob over several files ranks none of them (the sheet format of
+// this project).
+func TestRanks(t *testing.T) {
+	in := "file,sample\n*.csv,x\nb.csv,B\nsub/a.csv,A\nc*.csv,C\nb.csv,again\n"
+	s, err := Parse(strings.NewReader(in), "sheet.csv")
+	if err != nil {
+		t.Fatal(err)
+	}
+	cases := []struct {
+		rels []string
+		want string
+	}{
+		{[]string{"sub/a.csv", "b.csv", "c1.csv"}, "[2 1 3]"},
+		{[]string{"sub/a.csv", "b.csv", "b.csv", "c1.csv", "c2.csv"}, "[2 1 1 -1 -1]"},
+	}
+	for _, c := range cases {
+		if got := fmt.Sprint(s.Ranks(c.rels)); got != c.want {
+			t.Errorf("Ranks(%v) = %s, want %s", c.rels, got, c.want)
+		}
 	}
 }

@@ -89,6 +89,7 @@ func Parse(r io.Reader, name string) (*spec.Spec, error) {
 	col := func(n string) int { return t.Col(n) }
 	s := &spec.Spec{File: name}
 	seen := map[string]int{}
+	var rows []int // the table row of each limit
 	for i, rec := range t.Rows {
 		get := func(n string) (string, int) {
 			c := col(n)
@@ -130,6 +131,7 @@ func Parse(r io.Reader, name string) (*spec.Spec, error) {
 			}
 			seen[key] = t.Line(i)
 			s.Limits = append(s.Limits, l)
+			rows = append(rows, i)
 			continue
 		}
 		var err error
@@ -197,18 +199,19 @@ func Parse(r io.Reader, name string) (*spec.Spec, error) {
 		}
 		seen[key] = t.Line(i)
 		s.Limits = append(s.Limits, l)
+		rows = append(rows, i)
 	}
 	if len(s.Limits) == 0 {
 		return nil, &dls.PosError{File: name, Err: dls.ErrEmpty}
 	}
-	// none means no specification: no other row for the product.
-	for _, l := range s.Limits {
-		if l.Quantity != spec.QuantityNone {
-			continue
-		}
-		for _, o := range s.Limits {
-			if o.Quantity != spec.QuantityNone && strings.EqualFold(o.Product, l.Product) {
-				return nil, fmt.Errorf("%s: product %s has quantity none (no specification) and a %s row at %s", l.Where, safetext.Excerpt(l.Product), o.Quantity, o.Where)
+	// none means no specification: no other row for the product. The
+	// later of the two rows is named.
+	for a, l := range s.Limits {
+		for b := a + 1; b < len(s.Limits); b++ {
+			o := s.Limits[b]
+			if strings.EqualFold(o.Product, l.Product) && (l.Quantity == spec.QuantityNone) != (o.Quantity == spec.QuantityNone) {
+				return nil, t.Err(rows[b], t.Col("quantity"), fmt.Errorf("product %s has quantity none (no specification) and a %s row",
+					safetext.Excerpt(o.Product), map[bool]string{true: l.Quantity, false: o.Quantity}[o.Quantity == spec.QuantityNone]))
 			}
 		}
 	}
