@@ -5,6 +5,7 @@ import (
 	"slices"
 	"sort"
 	"strings"
+	"time"
 )
 
 // Origin says where a parameter value came from.
@@ -72,6 +73,11 @@ const (
 	KeyUVolumeFraction       = "u_volume_fraction"
 	KeyUMediumVolumeFraction = "u_medium_volume_fraction"
 	KeyUMediumRelViscosity   = "u_medium_relative_viscosity"
+	// KeyMeasuredAt is when the measurement was taken, ISO 8601
+	// (ParseMeasuredAt): the batch order of the system suitability
+	// test's reference bracketing (package dls/spec) where every
+	// measurement of the batch has one.
+	KeyMeasuredAt = "measured_at"
 )
 
 // MetadataKeys returns every key of the input contract, in the order used
@@ -85,7 +91,7 @@ var metadataKeys = []string{
 	KeyLot, KeyProduct, KeyRole, KeyGroup,
 	KeyMediumVolumeFraction, KeyMediumRelViscosity, KeyKD,
 	KeyUViscosityMPaS, KeyURefractiveIndex, KeyUKD, KeyUVolumeFraction,
-	KeyUMediumVolumeFraction, KeyUMediumRelViscosity,
+	KeyUMediumVolumeFraction, KeyUMediumRelViscosity, KeyMeasuredAt,
 }
 
 // IsNumericKey reports whether the value of key must be a finite number.
@@ -181,3 +187,28 @@ func (md Metadata) Clone() Metadata {
 
 // Len is the number of parameters held.
 func (md Metadata) Len() int { return len(md.m) }
+
+// ParseMeasuredAt reads a measured_at value: an ISO 8601 calendar date and
+// time of day, "2024-05-02T21:14:05", with or without seconds, fractional
+// seconds and a UTC offset ("Z", "+02:00"); a space may stand for the T.
+// hasOffset says whether an offset was given: a time without one is the
+// instrument's local time, read as if it were UTC, and compares correctly
+// only with other times written without an offset.
+func ParseMeasuredAt(s string) (t time.Time, hasOffset bool, err error) {
+	v := strings.TrimSpace(s)
+	if len(v) > 10 && v[10] == ' ' {
+		v = v[:10] + "T" + v[11:]
+	}
+	for _, layout := range []string{"2006-01-02T15:04:05Z07:00", "2006-01-02T15:04Z07:00"} {
+		if t, err := time.Parse(layout, v); err == nil {
+			return t, true, nil
+		}
+	}
+	for _, layout := range []string{"2006-01-02T15:04:05", "2006-01-02T15:04"} {
+		if t, err := time.Parse(layout, v); err == nil {
+			return t, false, nil
+		}
+	}
+	return time.Time{}, false, fmt.Errorf("%s %s: want an ISO 8601 date and time such as 2024-05-02T21:14:05 or 2024-05-02T21:14:05+02:00: %w",
+		KeyMeasuredAt, Excerpt(s), ErrBadMetadata)
+}

@@ -76,3 +76,38 @@ func TestMetadataKeysIsACopy(t *testing.T) {
 		t.Errorf("MetadataKeys() shares its backing array")
 	}
 }
+
+// TestParseMeasuredAt: ISO 8601 extended format date and time (ISO
+// 8601-1:2019), with or without seconds, fraction and UTC offset; the
+// instants are checked against Unix times computed by hand.
+func TestParseMeasuredAt(t *testing.T) {
+	cases := []struct {
+		in     string
+		unix   int64 // seconds since 1970-01-01T00:00Z, the text read as UTC where it has no offset
+		offset bool
+		ok     bool
+	}{
+		{"2024-05-02T21:14:05Z", 1714684445, true, true},
+		{"2024-05-02T23:14:05+02:00", 1714684445, true, true},
+		{"2024-05-02T21:14Z", 1714684440, true, true},
+		{"2024-05-02T21:14:05", 1714684445, false, true},
+		{"2024-05-02 21:14:05.25", 1714684445, false, true},
+		{" 2024-05-02T21:14 ", 1714684440, false, true},
+		{"2024-05-02", 0, false, false},
+		{"02.05.2024 21:14", 0, false, false},
+		{"2024-13-02T21:14", 0, false, false},
+	}
+	for _, c := range cases {
+		tm, off, err := ParseMeasuredAt(c.in)
+		if (err == nil) != c.ok {
+			t.Errorf("%q: error %v, want ok %v", c.in, err, c.ok)
+			continue
+		}
+		if c.ok && (tm.Unix() != c.unix || off != c.offset) {
+			t.Errorf("%q: %d offset %v, want %d offset %v", c.in, tm.Unix(), off, c.unix, c.offset)
+		}
+		if !c.ok && !errors.Is(err, ErrBadMetadata) {
+			t.Errorf("%q: %v does not wrap ErrBadMetadata", c.in, err)
+		}
+	}
+}

@@ -42,7 +42,7 @@ func child(t testing.TB, args ...string) *exec.Cmd {
 	return cmd
 }
 
-// faultBatch copies the demo night into four folders (96 files), enough
+// faultBatch copies the demo night into four folders (100 files: 25 each), enough
 // for a run to take a measurable time.
 func faultBatch(t *testing.T) string {
 	t.Helper()
@@ -154,8 +154,8 @@ func TestInterruptMarksIncomplete(t *testing.T) {
 	if v.Complete || len(v.Differences) != 1 || v.Differences[0].Kind != "set" {
 		t.Fatalf("want an incomplete but otherwise intact set, got complete=%v %+v", v.Complete, v.Differences)
 	}
-	if n := v.Manifest.Files; n.Analysed >= n.Found || n.Found != 96 {
-		t.Errorf("files %+v: want fewer than all 96 analysed", n)
+	if n := v.Manifest.Files; n.Analysed >= n.Found || n.Found != 100 {
+		t.Errorf("files %+v: want fewer than all 100 analysed", n)
 	}
 	b, _ := os.ReadFile(filepath.Join(out, "results.json"))
 	if strings.Contains(string(b), `"verdict":{`) {

@@ -57,6 +57,12 @@ const (
 	FewRuns        Code = "FEW-RUNS"
 	HighRSD        Code = "HIGH-RSD"
 	NoValidRuns    Code = "NO-VALID-RUNS"
+	// Blank marks every analysed run of role blank: what its fit calls a
+	// size is the dispersant's own signal (solvent density fluctuations,
+	// stray light, a few stray particles), not a particle size.
+	Blank Code = "BLANK"
+	// BlankScatter: a blank scatters more than clean dispersant should.
+	BlankScatter Code = "BLANK-SCATTER"
 )
 
 // Thresholds are the settings behind the flags. Defaults: DefaultThresholds.
@@ -78,6 +84,10 @@ type Thresholds struct {
 	OutlierK         float64 `json:"outlier_k"`           // OUTLIER beyond this many robust SDs of the median
 	MinRuns          int     `json:"min_runs"`            // FEW-RUNS below this number of analysed runs
 	MaxRSDPct        float64 `json:"max_rsd_pct"`         // HIGH-RSD above this repeatability RSD of the z-average, %
+	// BLANK-SCATTER above this count rate of a run of role blank; also the
+	// blank's verdict limit where the specification sets no
+	// count_rate_kcps for the blank's product (package dls/spec).
+	MaxBlankCountRateKcps float64 `json:"max_blank_count_rate_kcps"`
 }
 
 // DefaultThresholds returns the defaults (common practice, from memory,
@@ -87,7 +97,10 @@ type Thresholds struct {
 // above 3, cumulant rms over 2× the distribution fit's, PDI above 0.3,
 // decay time below 5 first lags or above 10 % of the last lag, second peak
 // of 5 %, distribution z-average off by 10 %, count rate below 10 kcps,
-// outliers beyond 3 robust SDs, at least 3 runs, RSD above 5 %.
+// outliers beyond 3 robust SDs, at least 3 runs, RSD above 5 %, a blank
+// above 20 kcps (filtered water in a backscatter instrument with the
+// attenuator open gives a few to about ten kcps; common practice, from
+// memory: set it for the instrument and its attenuator).
 func DefaultThresholds() Thresholds {
 	return Thresholds{
 		MinIntercept: 0.1, MaxIntercept: 1.0, MaxBaselineShift: 0.005,
@@ -98,6 +111,7 @@ func DefaultThresholds() Thresholds {
 		MinPeakPct: 5, MaxDistMismatch: 0.10,
 		MinCountRateKcps: 10,
 		OutlierK:         3, MinRuns: 3, MaxRSDPct: 5,
+		MaxBlankCountRateKcps: 20,
 	}
 }
 
@@ -126,6 +140,8 @@ func Definitions(t Thresholds) []Definition {
 		{FewRuns, "sample", "fewer analysed runs than a repeatability statement needs", fmt.Sprintf("runs used < %d", t.MinRuns)},
 		{HighRSD, "sample", "poor repeatability of the z-average", fmt.Sprintf("RSD > %g %%", t.MaxRSDPct)},
 		{NoValidRuns, "sample", "no run of the sample could be analysed", "runs used = 0"},
+		{Blank, "run", "a blank (dispersant only): its fitted size is the dispersant's signal, not a particle size", "role blank, analysed"},
+		{BlankScatter, "run", "a blank scatters more than clean dispersant: dirty solvent, cell or filter", fmt.Sprintf("role blank, count rate > %g kcps", t.MaxBlankCountRateKcps)},
 	}
 }
 
@@ -198,8 +214,14 @@ func Measurement(r *dls.Result, tau []float64, t Thresholds) []dls.Flag {
 			add(OutsideWindow, "decay time %.3g s exceeds %g of the last lag (%.3g s): the size is near the upper limit of the window", dt, t.MaxDecayFraction, tau[len(tau)-1])
 		}
 	}
-	if r.HasCountRate && r.CountRateKcps < t.MinCountRateKcps {
+	if r.HasCountRate && r.CountRateKcps < t.MinCountRateKcps && r.Role != dls.RoleBlank {
 		add(LowCountRate, "count rate %.1f kcps < %g", r.CountRateKcps, t.MinCountRateKcps)
+	}
+	if r.Role == dls.RoleBlank {
+		add(Blank, "a blank: the fitted %.1f nm is the dispersant's signal, not a particle size", r.ZAvgNm)
+		if r.HasCountRate && r.CountRateKcps > t.MaxBlankCountRateKcps {
+			add(BlankScatter, "blank count rate %.1f kcps > %g", r.CountRateKcps, t.MaxBlankCountRateKcps)
+		}
 	}
 	return f
 }
@@ -244,6 +266,18 @@ func Aggregate(results []*dls.Result, o Options) []*dls.Sample {
 		out = append(out, s)
 	}
 	return out
+}
+
+// Block aggregates the given runs (indices into results, in any order) as
+// one sample named after the first: the statistics of a block of reference
+// measurements, judged on its own by the system suitability test (package
+// dls/spec).
+func Block(results []*dls.Result, runs []int, o Options) *dls.Sample {
+	r := results[runs[0]]
+	s := &dls.Sample{Name: r.Sample, Lot: r.Lot, Product: r.Product, Role: r.Role, Group: r.Group,
+		OutliersExcluded: o.ExcludeOutliers, Runs: append([]int(nil), runs...)}
+	aggregate(s, results, o)
+	return s
 }
 
 func aggregate(s *dls.Sample, results []*dls.Result, o Options) {

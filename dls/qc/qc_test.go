@@ -42,6 +42,8 @@ func TestFlagsFireAndStayQuiet(t *testing.T) {
 		{DistMismatch, func(r *dls.Result) { r.DistZAvgNm = 111 }},
 		{LowCountRate, func(r *dls.Result) { r.CountRateKcps = 9 }},
 		{Failed, func(r *dls.Result) { r.Status = dls.StatusError; r.Message = "x.csv:3: bad" }},
+		{Blank, func(r *dls.Result) { r.Role = dls.RoleBlank; r.CountRateKcps = 12 }},
+		{BlankScatter, func(r *dls.Result) { r.Role = dls.RoleBlank; r.CountRateKcps = 20.1 }}, // > 20 kcps
 	}
 	for _, c := range cases {
 		r := clean()
@@ -66,6 +68,29 @@ func TestFlagsFireAndStayQuiet(t *testing.T) {
 	}
 }
 
+// TestBlankFlags: a blank at the threshold raises BLANK only, and a blank's
+// low count rate is expected, not LOW-COUNT-RATE (common practice: a clean
+// dispersant scatters little).
+func TestBlankFlags(t *testing.T) {
+	cases := []struct {
+		kcps float64
+		want string
+	}{{20, "BLANK"}, {3, "BLANK"}, {25, "BLANK BLANK-SCATTER"}}
+	for _, c := range cases {
+		r := clean()
+		r.Role, r.CountRateKcps, r.ZAvgNm = dls.RoleBlank, c.kcps, 1.3
+		var got []string
+		for _, f := range Measurement(r, r.Curves.TauS, DefaultThresholds()) {
+			if f.Code == Blank || f.Code == BlankScatter || f.Code == LowCountRate {
+				got = append(got, string(f.Code))
+			}
+		}
+		if strings.Join(got, " ") != c.want {
+			t.Errorf("blank at %g kcps: %v, want %s", c.kcps, got, c.want)
+		}
+	}
+}
+
 func TestDefinitionsCoverCodes(t *testing.T) {
 	seen := map[Code]bool{}
 	for _, d := range Definitions(DefaultThresholds()) {
@@ -75,7 +100,7 @@ func TestDefinitionsCoverCodes(t *testing.T) {
 		seen[d.Code] = true
 	}
 	for _, c := range []Code{LowIntercept, HighIntercept, NoBaseline, BaselineOffset, Dust, PoorFit, HighPDI, OutsideWindow,
-		Multimodal, DistMismatch, LowCountRate, Failed, Outlier, FewRuns, HighRSD, NoValidRuns} {
+		Multimodal, DistMismatch, LowCountRate, Failed, Outlier, FewRuns, HighRSD, NoValidRuns, Blank, BlankScatter} {
 		if !seen[c] {
 			t.Errorf("%s has no definition", c)
 		}

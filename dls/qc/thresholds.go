@@ -47,6 +47,7 @@ var thresholdRanges = []ThresholdKey{
 	{Key: "outlier_k", Min: 1, Max: 100}, // below 1 most runs would be outliers
 	{Key: "min_runs", Min: 1, Max: 100, Integer: true},
 	{Key: "max_rsd_pct", Min: 0, Max: 100},
+	{Key: "max_blank_count_rate_kcps", Min: 0, Max: 100000},
 }
 
 // ThresholdKeys returns the keys of Thresholds with their ranges, in the

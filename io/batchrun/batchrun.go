@@ -171,7 +171,12 @@ func Run(ctx context.Context, cfg *Config) (*Outcome, error) {
 	}
 	published := false
 	defer func() { jr.close(published) }()
-	var hashed sync.Map // input path → its FileHash, taken at analysis
+	var hashed sync.Map     // input path → its FileHash, taken at analysis
+	var measuredAt []string // of each result, in input order
+	sheetRel := map[string]string{}
+	for _, f := range files {
+		sheetRel[csvdata.Rel(root, f)] = rels[f]
+	}
 	rn := &batch.Runner{
 		Cached: func(path string) ([]*dls.Result, bool) {
 			if _, problem := found.Failed(path); problem {
@@ -202,6 +207,7 @@ func Run(ctx context.Context, cfg *Config) (*Outcome, error) {
 			if err := jr.add(res); err != nil {
 				return err
 			}
+			measuredAt = append(measuredAt, measuredAtOf(res)...)
 			return stream.Add(res)
 		},
 	}
@@ -230,7 +236,7 @@ func Run(ctx context.Context, cfg *Config) (*Outcome, error) {
 	known := map[string]report.FileHash{}
 	hashed.Range(func(k, v any) bool { known[k.(string)] = v.(report.FileHash); return true })
 	o, err := publish(ctx, cfg, out, &publishing{root: root, inputs: files, match: match, stream: stream,
-		complete: runErr == nil, shard: shard, hashes: known})
+		complete: runErr == nil, shard: shard, hashes: known, measuredAt: measuredAt, sheetRel: sheetRel})
 	published = err == nil && o.Complete && !cfg.KeepJournal
 	return o, err
 }
@@ -260,6 +266,11 @@ type publishing struct {
 	complete bool
 	shard    *report.ShardInfo
 	hashes   map[string]report.FileHash // of inputs, by path, where already known
+	// measuredAt holds each result's measured_at ("" without), sheetRel
+	// each input's path as the sheet's patterns see it, by its name
+	// relative to the root (nil: that name): the batch order.
+	measuredAt []string
+	sheetRel   map[string]string
 }
 
 // publish aggregates, judges, writes and swaps in the set of p.
@@ -274,7 +285,8 @@ func publish(ctx context.Context, cfg *Config, out *resultset.Set, p *publishing
 	o.Samples = qc.Aggregate(o.Results, qc.Options{Thresholds: cfg.Settings.QC, ExcludeOutliers: cfg.ExcludeOutliers})
 	o.Batch = spec.Batch{Specified: cfg.Spec != nil, Reason: "not evaluated: the run was interrupted"}
 	if o.Complete {
-		o.Batch = spec.EvaluateLoaded(cfg.Spec, o.Samples, o.Results, p.stream.Full)
+		o.Batch = spec.EvaluateRun(cfg.Spec, o.Samples, spec.Run{Results: o.Results, Load: p.stream.Full,
+			Order: batchOrder(cfg.Sheet, o.Results, p), QC: qc.Options{Thresholds: cfg.Settings.QC, ExcludeOutliers: cfg.ExcludeOutliers}})
 	}
 	o.Counts = dls.CountResults(o.Results)
 	doc := &report.Document{
@@ -356,4 +368,35 @@ func (cfg *Config) record(root string) *report.Settings {
 		Spec: rel(cfg.SpecFile), UAngleDeg: cfg.UAngleDeg, URefractiveIndex: s.Uncertainty.RefractiveIndex,
 		UTemperatureK: s.Uncertainty.TemperatureK, UViscosityRel: s.Uncertainty.ViscosityRel,
 	}
+}
+
+// measuredAtOf returns the measured_at metadata of each result ("" when
+// absent).
+func measuredAtOf(res []*dls.Result) []string {
+	out := make([]string, len(res))
+	for i, r := range res {
+		for _, p := range r.Params {
+			if p.Key == dls.KeyMeasuredAt {
+				out[i] = p.Value
+			}
+		}
+	}
+	return out
+}
+
+// batchOrder is the order the measurements were taken in, as far as the
+// inputs tell (spec.BatchOrder).
+func batchOrder(sh *sheet.Sheet, results []*dls.Result, p *publishing) spec.Order {
+	var ranks []int
+	if sh != nil {
+		rels := make([]string, len(results))
+		for i, r := range results {
+			rels[i] = r.File
+			if rel, ok := p.sheetRel[r.File]; ok {
+				rels[i] = rel
+			}
+		}
+		ranks = sh.Ranks(rels)
+	}
+	return spec.BatchOrder(len(results), p.measuredAt, ranks)
 }

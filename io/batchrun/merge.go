@@ -78,7 +78,9 @@ func Merge(ctx context.Context, cfg *MergeConfig) (*Outcome, error) {
 	if err != nil {
 		return nil, err
 	}
+	var measuredAt []string
 	for _, f := range names {
+		measuredAt = append(measuredAt, measuredAtOf(byFile[f])...)
 		if err := stream.Add(byFile[f]); err != nil {
 			return nil, err
 		}
@@ -122,7 +124,7 @@ func Merge(ctx context.Context, cfg *MergeConfig) (*Outcome, error) {
 			return nil, fmt.Errorf("%w: specification: %w", ErrUsage, err)
 		}
 	}
-	return publish(ctx, run, out, &publishing{root: root, inputs: inputs, match: match, stream: stream, complete: true})
+	return publish(ctx, run, out, &publishing{root: root, inputs: inputs, match: match, stream: stream, complete: true, measuredAt: measuredAt})
 }
 
 func readManifest(dir string) (*report.Manifest, error) {

@@ -17,7 +17,7 @@
 //	                    medium_relative_viscosity, kd, u_viscosity_mpas,
 //	                    u_refractive_index, u_kd, u_volume_fraction,
 //	                    u_medium_volume_fraction,
-//	                    u_medium_relative_viscosity
+//	                    u_medium_relative_viscosity, measured_at
 //
 // A role is sample, reference or blank, in any letter case (dls.ParseRole).
 // Empty cells set nothing. Unknown columns are an error (a misspelt column
@@ -35,6 +35,11 @@
 // command-line flags and above the file's own metadata. The sheet's values
 // are never used as paths: patterns are only compared with the names of
 // files found under the inputs.
+//
+// Batch order: a sheet whose rows name each file on a row of its own (a
+// name or a pattern that matches that file alone) gives the order in which
+// the files were measured, where the measured_at metadata does not
+// (Ranks; package dls/spec).
 package sheet
 
 import (
@@ -239,4 +244,39 @@ func roleNames() []string {
 		out = append(out, string(r))
 	}
 	return out
+}
+
+// Ranks returns, for each file (paths relative to its input folder, as
+// patterns see them), the index of the first row that names that file
+// alone, matching it and no other file of rels, or -1 when no row does: a
+// sheet that lists every file on a row of its own gives the batch order
+// (package dls/spec, BatchOrder).
+func (s *Sheet) Ranks(rels []string) []int {
+	rank := make([]int, len(rels))
+	for i := range rank {
+		rank[i] = -1
+	}
+	for k, row := range s.Rows {
+		hit := -1
+		for i, r := range rels {
+			if matches(row.Pattern, filepath.ToSlash(r)) {
+				if hit >= 0 && rels[hit] != r {
+					hit = -2
+					break
+				}
+				if hit == -1 {
+					hit = i
+				}
+			}
+		}
+		if hit < 0 {
+			continue
+		}
+		for i, r := range rels {
+			if r == rels[hit] && rank[i] < 0 {
+				rank[i] = k
+			}
+		}
+	}
+	return rank
 }

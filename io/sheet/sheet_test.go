@@ -2,6 +2,7 @@ package sheet
 
 import (
 	"errors"
+	"fmt"
 	"strings"
 	"testing"
 
@@ -223,5 +224,28 @@ func TestDecimalCommaSheet(t *testing.T) {
 	var pe *dls.PosError
 	if !errors.As(err, &pe) || pe.Line != 2 || pe.Column != 7 || !strings.Contains(err.Error(), `"1,7,3"`) {
 		t.Errorf("error %v, want one at s.csv:2:7 quoting the cell", err)
+	}
+}
+
+// TestRanks: a row gives a file its rank only when it names that file
+// alone; a glob over several files ranks none of them (the sheet format of
+// this project).
+func TestRanks(t *testing.T) {
+	in := "file,sample\n*.csv,x\nb.csv,B\nsub/a.csv,A\nc*.csv,C\nb.csv,again\n"
+	s, err := Parse(strings.NewReader(in), "sheet.csv")
+	if err != nil {
+		t.Fatal(err)
+	}
+	cases := []struct {
+		rels []string
+		want string
+	}{
+		{[]string{"sub/a.csv", "b.csv", "c1.csv"}, "[2 1 3]"},
+		{[]string{"sub/a.csv", "b.csv", "b.csv", "c1.csv", "c2.csv"}, "[2 1 1 -1 -1]"},
+	}
+	for _, c := range cases {
+		if got := fmt.Sprint(s.Ranks(c.rels)); got != c.want {
+			t.Errorf("Ranks(%v) = %s, want %s", c.rels, got, c.want)
+		}
 	}
 }

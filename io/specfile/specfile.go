@@ -6,7 +6,13 @@
 //	product   required  product name, matched (case-insensitively) with the
 //	                    product of each sample (sample sheet or file)
 //	quantity  required  z_avg_nm, pdi, z_avg_rsd_pct, d90_nm, peak1_nm,
-//	                    intensity_pct_above, runs
+//	                    intensity_pct_above, runs, count_rate_kcps (mean of
+//	                    the runs; the limit of a blank), drift_pct (a
+//	                    reference product: |last block − first block| /
+//	                    first block of its z-average, %); or, with no
+//	                    bounds, none (the product has no specification, and
+//	                    no other row) or no_bracketing (its samples need no
+//	                    reference block before and after them)
 //	min, max  optional  inclusive bounds; either or both
 //	target,   optional  a certified or nominal value and its tolerance,
 //	tol                 instead of min and max: target − tol ≤ x ≤ target + tol
@@ -22,6 +28,18 @@
 //	gold-20,pdi,,0.10,,,,
 //	gold-20,intensity_pct_above,,2,,,100,no aggregates
 //	gold-20,runs,3,,,,,
+//	latex-100,drift_pct,,2,,,,start and end blocks within 2 %
+//	water-blank,count_rate_kcps,,15,,,,filtered dispersant
+//	user-sample,none,,,,,,core facility sample: sized, not released
+//	gold-20-rd,no_bracketing,,,,,,development lots: one reference block
+//
+// With a specification in force, every sample's product must have a row
+// (a sample with an empty product has no specification, as intended);
+// products are matched ignoring letter case. A sample is released only
+// when passing reference blocks bracket it in batch order (package
+// dls/spec), unless its product has a no_bracketing row. A blank (role
+// blank) is judged on its count rate: its product's count_rate_kcps
+// limit, or the QC threshold max_blank_count_rate_kcps without one.
 //
 // Numbers are decimal as dls.ParseNumber reads them (0.10, 1e2; no
 // hexadecimal, digit separators, inf or nan). Cells are separated by ',',
@@ -86,6 +104,7 @@ func Parse(r io.Reader, name string) (*spec.Spec, error) {
 	col := func(n string) int { return t.Col(n) }
 	s := &spec.Spec{File: name}
 	seen := map[string]int{}
+	var rows []int // the table row of each limit
 	for i, rec := range t.Rows {
 		get := func(n string) (string, int) {
 			c := col(n)
@@ -114,6 +133,22 @@ func Parse(r io.Reader, name string) (*spec.Spec, error) {
 			return nil, t.Err(i, qc, fmt.Errorf("unknown quantity %s (known: %s)", safetext.Excerpt(quantity), strings.Join(spec.QuantityNames(), ", ")))
 		}
 		l := spec.Limit{Product: product, Quantity: quantity, Where: fmt.Sprintf("%s:%d", name, t.Line(i))}
+		if spec.IsRule(quantity) {
+			for _, n := range []string{"min", "max", "target", "tol", "at_nm"} {
+				if v, c := get(n); v != "" {
+					return nil, t.Err(i, c, fmt.Errorf("%s takes no %s: it is no limit", quantity, n))
+				}
+			}
+			l.Text = quantity
+			key := strings.ToLower(product) + "\x00" + quantity
+			if prev, dup := seen[key]; dup {
+				return nil, t.Err(i, qc, fmt.Errorf("%s %s already given on line %d", safetext.Excerpt(product), quantity, prev))
+			}
+			seen[key] = t.Line(i)
+			s.Limits = append(s.Limits, l)
+			rows = append(rows, i)
+			continue
+		}
 		var err error
 		var hasT, hasTol bool
 		var target, tol float64
@@ -179,9 +214,21 @@ func Parse(r io.Reader, name string) (*spec.Spec, error) {
 		}
 		seen[key] = t.Line(i)
 		s.Limits = append(s.Limits, l)
+		rows = append(rows, i)
 	}
 	if len(s.Limits) == 0 {
 		return nil, &dls.PosError{File: name, Err: dls.ErrEmpty}
+	}
+	// none means no specification: no other row for the product. The
+	// later of the two rows is named.
+	for a, l := range s.Limits {
+		for b := a + 1; b < len(s.Limits); b++ {
+			o := s.Limits[b]
+			if strings.EqualFold(o.Product, l.Product) && (l.Quantity == spec.QuantityNone) != (o.Quantity == spec.QuantityNone) {
+				return nil, t.Err(rows[b], t.Col("quantity"), fmt.Errorf("product %s has quantity none (no specification) and a %s row",
+					safetext.Excerpt(o.Product), map[bool]string{true: l.Quantity, false: o.Quantity}[o.Quantity == spec.QuantityNone]))
+			}
+		}
 	}
 	return s, nil
 }

@@ -7,6 +7,7 @@ import (
 	"testing"
 
 	"dlsbatch/dls"
+	"dlsbatch/dls/spec"
 )
 
 const good = `product,quantity,min,max,target,tol,at_nm,note
@@ -38,6 +39,32 @@ func TestParse(t *testing.T) {
 	}
 }
 
+// TestParseRules: the rows without bounds (none, no_bracketing) and the
+// new limits drift_pct and count_rate_kcps read as the format doc says.
+func TestParseRules(t *testing.T) {
+	in := "product,quantity,min,max,target,tol,at_nm,note\n" +
+		"latex,z_avg_nm,,,62.5,2.5,,\nlatex,drift_pct,,2,,,,\nwater,count_rate_kcps,,15,,,,\nuser,none,,,,,,\ngold-rd,no_bracketing,,,,,,\ngold-rd,pdi,,0.2,,,,\n"
+	s, err := Parse(strings.NewReader(in), "spec.csv")
+	if err != nil {
+		t.Fatal(err)
+	}
+	want := []struct {
+		q    string
+		max  float64
+		rule bool
+	}{{"z_avg_nm", 65, false}, {"drift_pct", 2, false}, {"count_rate_kcps", 15, false}, {"none", 0, true}, {"no_bracketing", 0, true}, {"pdi", 0.2, false}}
+	if len(s.Limits) != len(want) {
+		t.Fatalf("%d limits, want %d", len(s.Limits), len(want))
+	}
+	for i, w := range want {
+		l := s.Limits[i]
+		// Exact: the bounds are the decimal values as written (65 = 62.5 + 2.5 exactly in binary).
+		if l.Quantity != w.q || spec.IsRule(l.Quantity) != w.rule || (!w.rule && l.Max != w.max) || (w.rule && (l.HasMin || l.HasMax)) {
+			t.Errorf("row %d: %+v, want %s max %g", i+2, l, w.q, w.max)
+		}
+	}
+}
+
 func TestParseErrors(t *testing.T) {
 	h := "product,quantity,min,max,target,tol,at_nm\n"
 	cases := []struct {
@@ -63,6 +90,13 @@ func TestParseErrors(t *testing.T) {
 		{"at_nm misplaced", h + "p,pdi,,0.1,,,100\n", 2, 14, "only to"},
 		{"duplicate", h + "p,pdi,,0.1,,,\np,pdi,,0.2,,,\n", 3, 3, "already limited"},
 		{"empty", "# nothing\n", 0, 0, "empty"},
+		// none and no_bracketing are rules without bounds; none is a
+		// product's only row (the format of this project).
+		{"none with a bound", h + "p,none,,1,,,\n", 2, 9, "takes no max"},
+		{"no_bracketing with a target", h + "p,no_bracketing,,,1,1,\n", 2, 19, "takes no target"},
+		{"none and a limit", h + "p,pdi,,0.1,,,\nP,none,,,,,\n", 3, 3, "quantity none"},
+		{"limit after none", h + "p,none,,,,,\np,pdi,,0.1,,,\n", 3, 3, "a pdi row"},
+		{"none twice", h + "p,none,,,,,\np,none,,,,,\n", 3, 3, "already given"},
 	}
 	for _, c := range cases {
 		t.Run(c.name, func(t *testing.T) {
