@@ -50,6 +50,7 @@
 // bounds inclusive):
 //
 //	sample, run, solvent, lot, product, role, group    text
+//	measured_at (ISO 8601, e.g. 2026-12-01T22:15:00Z)   text: the batch order
 //	temperature_c               °C      -20 … 150 (and, where η or n comes
 //	                                    from the solvent table, the range of
 //	                                    the solvent's correlation)
