@@ -67,9 +67,11 @@ type ScanRow struct {
 }
 
 // Picks holds, for each criterion, the index into Result.Scan of the row
-// that criterion chooses, or −1 when it was not evaluated (a fixed α, or
-// a scan too short for the L-curve). ProbReject includes the bisection
-// rows only when ProbReject is the selected criterion.
+// that criterion chooses, or −1 when it was not evaluated (a fixed α, a
+// scan too short for the L-curve, or GCV and L-curve after ProbReject's
+// search, which solves only part of the lattice: see Settings.FullScan).
+// ProbReject includes the bisection rows only when ProbReject is the
+// selected criterion.
 type Picks struct {
 	ProbReject, GCV, LCurve int
 }
@@ -107,8 +109,9 @@ type Result struct {
 	// solution is zero).
 	SumAmplitude, MeanRatePerS float64
 
-	// Scan lists every strength solved, by increasing α; Chosen indexes
-	// the row the criterion selected.
+	// Scan lists every strength solved, by increasing α (all NAlpha of
+	// them, plus refinements, for a full scan); Chosen indexes the row the
+	// criterion selected.
 	Scan   []ScanRow
 	Chosen int
 	Picks  Picks
@@ -189,6 +192,7 @@ type problem struct {
 	totalIters int
 	qrSolves   int
 	qrReady    bool // ws.qr holds this problem's data rows
+	ft         fTest
 }
 
 // Invert computes the regularised non-negative inverse Laplace transform of
@@ -454,10 +458,26 @@ func (p *problem) warmFrom(r int) {
 	}
 }
 
+// latticeLambda returns strength k of the NAlpha log-spaced strengths
+// from LambdaMin to LambdaMax (the ends exact).
+func (s *Settings) latticeLambda(k int) float64 {
+	switch k {
+	case 0:
+		return s.LambdaMin
+	case s.NAlpha - 1:
+		return s.LambdaMax
+	}
+	lo, hi := math.Log(s.LambdaMin), math.Log(s.LambdaMax)
+	return math.Exp(lo + (hi-lo)*float64(k)/float64(s.NAlpha-1))
+}
+
 func (p *problem) run(estimateSigma bool) (*Result, error) {
 	s := p.s
 	nBase := 1
-	if s.Criterion == Fixed {
+	full := s.Criterion != ProbReject || s.FullScan
+	var lo, hi int // rows bracketing the target (search), hi < 0: none
+	switch {
+	case s.Criterion == Fixed:
 		a2 := s.Alpha * s.Alpha
 		lambda := a2 * p.g.trR / p.trG
 		if s.Lambda > 0 {
@@ -465,36 +485,38 @@ func (p *problem) run(estimateSigma bool) (*Result, error) {
 			a2 = p.a2Of(lambda)
 		}
 		p.solveAt(lambda, a2, false)
-	} else {
+	case full:
 		nBase = s.NAlpha
-		lo, hi := math.Log(s.LambdaMin), math.Log(s.LambdaMax)
 		for k := 0; k < nBase; k++ {
-			lambda := math.Exp(lo + (hi-lo)*float64(k)/float64(nBase-1))
-			if k == nBase-1 {
-				lambda = s.LambdaMax
-			}
-			if k == 0 {
-				lambda = s.LambdaMin
-			}
+			lambda := s.latticeLambda(k)
 			p.solveAt(lambda, p.a2Of(lambda), false)
 		}
+	default:
+		lo, hi = p.search()
 	}
 	var warns []error
 	warns = append(warns, p.g.warnings...)
+	if !full {
+		nBase = 0
+	}
 	p.statistics(nBase, &warns)
 
 	picks := Picks{ProbReject: -1, GCV: -1, LCurve: -1}
 	chosen := 0
 	if s.Criterion != Fixed {
-		picks.ProbReject = p.pickProbReject()
-		if s.Criterion == ProbReject && s.Refine > 0 {
-			p.refine()
-			p.statistics(nBase, nil)
-			picks.ProbReject = p.pickProbReject()
+		if full {
+			lo, hi = p.baseBracket()
 		}
-		picks.GCV = p.pickGCV()
-		if nBase >= 5 {
-			picks.LCurve = p.pickLCurve()
+		if s.Criterion == ProbReject && s.Refine > 0 && hi >= 0 {
+			p.refine(lo, hi)
+			p.statistics(0, nil)
+		}
+		picks.ProbReject = p.pickProbReject()
+		if full {
+			picks.GCV = p.pickGCV()
+			if s.NAlpha >= 5 {
+				picks.LCurve = p.pickLCurve()
+			}
 		}
 		switch s.Criterion {
 		case ProbReject:
@@ -509,7 +531,8 @@ func (p *problem) run(estimateSigma bool) (*Result, error) {
 			}
 		}
 	}
-	// Sort the rows by α (refinement rows were appended) and remap.
+	// Sort the rows by α (search and refinement rows were appended out of
+	// order) and remap.
 	order := make([]int, len(p.rows))
 	for i := range order {
 		order[i] = i
@@ -531,7 +554,7 @@ func (p *problem) run(estimateSigma bool) (*Result, error) {
 	solOf := p.solIdx[chosen]
 	chosen = inv[chosen]
 
-	if s.Criterion != Fixed && (chosen == 0 || chosen == len(rows)-1) {
+	if s.Criterion != Fixed && (rows[chosen].Lambda == s.LambdaMin || rows[chosen].Lambda == s.LambdaMax) {
 		warns = append(warns, fmt.Errorf("contin: %v chose λ = %.3g at the end of the scan [%g, %g]: %w",
 			s.Criterion, rows[chosen].Lambda, s.LambdaMin, s.LambdaMax, ErrScanEdge))
 	}
@@ -548,8 +571,103 @@ func (p *problem) run(estimateSigma bool) (*Result, error) {
 	return p.result(rows, chosen, solOf, picks, estimateSigma, warns), nil
 }
 
-// statistics fills ProbReject, GCV and (on the first nBase rows) the
-// L-curve curvature; doubts are appended to warns unless it is nil.
+// fTest holds the reference of the probability to reject: V₀ (floored
+// when the least-regularised fit is exact) and the F distribution with
+// N_DF₀ and N_y − N_DF₀ degrees of freedom.
+type fTest struct {
+	v0, d1, d2 float64
+	exact      bool // V₀ was below the floor
+	fd         distuv.F
+}
+
+// reference sets p.ft from row 0, the least-regularised row.
+func (p *problem) reference() {
+	ref := p.rows[0]
+	ny := float64(p.ny)
+	ft := fTest{v0: ref.ChiSquare}
+	if floor := 1e-14 * p.yWeightedSq(); ft.v0 < floor {
+		ft.v0, ft.exact = floor, true
+	}
+	ft.d1 = math.Max(ref.DegreesOfFreedom, 1)
+	ft.d2 = math.Max(ny-ref.DegreesOfFreedom, 1)
+	ft.fd = distuv.F{D1: ft.d1, D2: ft.d2}
+	p.ft = ft
+}
+
+// probReject returns the probability to reject of a row with weighted
+// residual sum of squares v against the reference.
+func (p *problem) probReject(v float64) float64 {
+	ft := &p.ft
+	f := (v - ft.v0) / ft.v0 * ft.d2 / ft.d1
+	if !(f > 0) {
+		return 0
+	}
+	pr := ft.fd.CDF(f)
+	if math.IsNaN(pr) {
+		return 1
+	}
+	return math.Min(math.Max(pr, 0), 1)
+}
+
+// search finds, on the lattice of NAlpha strengths that the full scan
+// solves, the first strength whose probability to reject reaches the
+// target, by bisection over the lattice indices, and returns the rows lo
+// (below the target) and hi (at or above it; −1 when no strength reaches
+// it, lo is then the largest). It solves the reference row 0 and about
+// log₂(NAlpha) others. The bracket is the full scan's because V, and so
+// P_reject, does not decrease as α grows: with Φ = ||Lx/w||², the
+// minimisers x₁, x₂ at α₁ < α₂ satisfy V₁ + α₁²Φ₁ ≤ V₂ + α₁²Φ₂ and
+// V₂ + α₂²Φ₂ ≤ V₁ + α₂²Φ₁; adding the two gives Φ₂ ≤ Φ₁, and then the
+// first gives V₁ ≤ V₂ (the constraint x ≥ 0 does not enter).
+func (p *problem) search() (lo, hi int) {
+	s := p.s
+	t := s.TargetProbReject
+	p.solveAt(s.LambdaMin, p.a2Of(s.LambdaMin), false)
+	p.reference()
+	klo, khi := 0, s.NAlpha // lattice indices; khi = NAlpha: not reached
+	lo, hi = 0, -1
+	for khi-klo > 1 {
+		k := (klo + khi) / 2
+		r := p.probe(k, lo, hi)
+		if p.rows[r].ProbReject >= t {
+			khi, hi = k, r
+		} else {
+			klo, lo = k, r
+		}
+	}
+	return lo, hi
+}
+
+// probe solves lattice strength k, warm-started from whichever of the rows
+// lo and hi (hi < 0: none) is nearer in log λ, and sets its P_reject.
+func (p *problem) probe(k, lo, hi int) int {
+	lambda := p.s.latticeLambda(k)
+	from := lo
+	if hi >= 0 && math.Log(p.rows[hi].Lambda/lambda) < math.Log(lambda/p.rows[lo].Lambda) {
+		from = hi
+	}
+	p.warmFrom(from)
+	r := p.solveAt(lambda, p.a2Of(lambda), false)
+	p.rows[r].ProbReject = p.probReject(p.rows[r].ChiSquare)
+	return r
+}
+
+// baseBracket returns, for a full scan, the first base row whose
+// probability to reject reaches the target and the row before it (hi < 0
+// when none does).
+func (p *problem) baseBracket() (lo, hi int) {
+	for i := 1; i < p.s.NAlpha; i++ {
+		if p.rows[i].ProbReject >= p.s.TargetProbReject {
+			return i - 1, i
+		}
+	}
+	return 0, -1
+}
+
+// statistics fills GCV and, unless the criterion is Fixed, ProbReject of
+// every row and the L-curve curvature of the first nBase rows (the base
+// scan of a full scan; 0 for a search); doubts are appended to warns
+// unless it is nil.
 func (p *problem) statistics(nBase int, warns *[]error) {
 	rows := p.rows
 	ny := float64(p.ny)
@@ -564,31 +682,22 @@ func (p *problem) statistics(nBase int, warns *[]error) {
 	if p.s.Criterion == Fixed {
 		return
 	}
-	ref := rows[0] // smallest λ of the base scan
-	v0 := ref.ChiSquare
-	floor := 1e-14 * p.yWeightedSq()
-	if v0 < floor {
-		if warns != nil {
-			*warns = append(*warns, fmt.Errorf("contin: least-regularised fit is exact (V = %.3g), F-test degenerate: %w", v0, ErrIllConditioned))
-		}
-		v0 = floor
+	p.reference()
+	if p.ft.exact && warns != nil {
+		*warns = append(*warns, fmt.Errorf("contin: least-regularised fit is exact (V = %.3g), F-test degenerate: %w", rows[0].ChiSquare, ErrIllConditioned))
 	}
-	d1 := math.Max(ref.DegreesOfFreedom, 1)
-	d2 := math.Max(ny-ref.DegreesOfFreedom, 1)
-	fd := distuv.F{D1: d1, D2: d2}
 	for i := range rows {
-		r := &rows[i]
-		f := (r.ChiSquare - v0) / v0 * d2 / d1
-		if !(f > 0) {
-			r.ProbReject = 0
-			continue
-		}
-		pr := fd.CDF(f)
-		if math.IsNaN(pr) {
-			pr = 1
-		}
-		r.ProbReject = math.Min(math.Max(pr, 0), 1)
+		rows[i].ProbReject = p.probReject(rows[i].ChiSquare)
 	}
+	if nBase > 0 {
+		p.lcurve(nBase)
+	}
+}
+
+// lcurve fills the L-curve curvature of the first nBase rows (the base
+// scan, in increasing α).
+func (p *problem) lcurve(nBase int) {
+	rows := p.rows
 	// L-curve on the base rows, which are in increasing α. Points closer
 	// than lcurveMinStep of the (scaled) curve's diagonal to the last kept
 	// point are pruned first: on the plateau of the nearly unregularised solutions
@@ -703,37 +812,15 @@ func (p *problem) pickLCurve() int {
 	return best
 }
 
-// refine bisects log λ between the base rows that bracket the target
-// probability to reject, warm-starting each solve from the nearer end.
-func (p *problem) refine() {
+// refine bisects log λ between the rows lo and hi that bracket the target
+// probability to reject, warm-starting each solve from the lower end.
+func (p *problem) refine(lo, hi int) {
 	t := p.s.TargetProbReject
-	hi := -1
-	for i := 1; i < p.s.NAlpha; i++ {
-		if p.rows[i].ProbReject >= t {
-			hi = i
-			break
-		}
-	}
-	if hi < 0 {
-		return
-	}
-	lo := hi - 1
-	ny := float64(p.ny)
-	ref := p.rows[0]
-	v0 := math.Max(ref.ChiSquare, 1e-14*p.yWeightedSq())
-	d1 := math.Max(ref.DegreesOfFreedom, 1)
-	d2 := math.Max(ny-ref.DegreesOfFreedom, 1)
-	fd := distuv.F{D1: d1, D2: d2}
 	for step := 0; step < p.s.Refine; step++ {
 		lambda := math.Sqrt(p.rows[lo].Lambda * p.rows[hi].Lambda)
 		p.warmFrom(lo)
 		r := p.solveAt(lambda, p.a2Of(lambda), true)
-		f := (p.rows[r].ChiSquare - v0) / v0 * d2 / d1
-		pr := 0.0
-		if f > 0 {
-			pr = fd.CDF(f)
-		}
-		if pr >= t {
+		if p.probReject(p.rows[r].ChiSquare) >= t {
 			hi = r
 		} else {
 			lo = r

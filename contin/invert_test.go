@@ -314,49 +314,78 @@ func TestNegativeTail(t *testing.T) {
 
 func withinAbs(a, b, tol float64) bool { return math.Abs(a-b) <= tol }
 
-// TestScanConsistency checks invariants of the audit trail: rows sorted by
-// α, α²/λ the same ratio tr(G)/tr(R) on every row, the chosen row and the
-// picks inside the scan, and the result fields equal to the chosen row.
+// TestScanConsistency checks invariants of the audit trail, for the full
+// scan and for the default search: rows sorted by α, α²/λ the same ratio
+// tr(G)/tr(R) on every row, the chosen row and the picks inside the scan,
+// and the result fields equal to the chosen row. The full scan holds every
+// lattice strength; the search holds lattice strengths (the least
+// regularised first) and at most DefaultRefine refinements, at most
+// 2 + ⌈log₂ 21⌉ = 7 lattice rows, and no GCV or L-curve pick.
 func TestScanConsistency(t *testing.T) {
 	g, tau := testGrid(t)
 	y, sig := noisy(g1Of([]population{{1000, 0.1, 0.4}, {4000, 0.1, 0.6}}, tau), 1e-3, 9)
-	r, err := Invert(g, y, sig, nil)
-	if err != nil {
-		t.Fatal(err)
+	lattice := map[float64]bool{}
+	ds := DefaultSettings()
+	for k := 0; k < DefaultNAlpha; k++ {
+		lattice[ds.latticeLambda(k)] = true
 	}
-	checkFinite(t, r)
-	ratio := r.Scan[0].Alpha * r.Scan[0].Alpha / r.Scan[0].Lambda
-	nRefined := 0
-	for i, s := range r.Scan {
-		if i > 0 && !(s.Alpha > r.Scan[i-1].Alpha) {
-			t.Fatalf("rows %d, %d not increasing in α", i-1, i)
+	for _, full := range []bool{true, false} {
+		s := DefaultSettings()
+		s.FullScan = full
+		r, err := Invert(g, y, sig, s)
+		if err != nil {
+			t.Fatal(err)
 		}
-		if q := s.Alpha * s.Alpha / s.Lambda; !within(q, ratio, 1e-12) {
-			t.Fatalf("row %d: α²/λ = %g, row 0 %g", i, q, ratio)
+		checkFinite(t, r)
+		ratio := r.Scan[0].Alpha * r.Scan[0].Alpha / r.Scan[0].Lambda
+		nRefined := 0
+		for i, s := range r.Scan {
+			if i > 0 && !(s.Alpha > r.Scan[i-1].Alpha) {
+				t.Fatalf("full=%v: rows %d, %d not increasing in α", full, i-1, i)
+			}
+			if q := s.Alpha * s.Alpha / s.Lambda; !within(q, ratio, 1e-12) {
+				t.Fatalf("full=%v: row %d: α²/λ = %g, row 0 %g", full, i, q, ratio)
+			}
+			if s.Refined {
+				nRefined++
+			} else if !lattice[s.Lambda] {
+				t.Errorf("full=%v: row %d: λ = %v is not a lattice strength", full, i, s.Lambda)
+			}
 		}
-		if s.Refined {
-			nRefined++
+		if r.Scan[0].Lambda != DefaultLambdaMin || nRefined > DefaultRefine {
+			t.Errorf("full=%v: first λ %g, %d refined", full, r.Scan[0].Lambda, nRefined)
 		}
-	}
-	if len(r.Scan) != DefaultNAlpha+nRefined || nRefined > DefaultRefine {
-		t.Errorf("%d rows, %d refined", len(r.Scan), nRefined)
-	}
-	for _, k := range []int{r.Chosen, r.Picks.ProbReject, r.Picks.GCV, r.Picks.LCurve} {
-		if k < 0 || k >= len(r.Scan) {
-			t.Fatalf("index %d outside the scan", k)
+		picks := []int{r.Chosen, r.Picks.ProbReject}
+		if full {
+			if len(r.Scan) != DefaultNAlpha+nRefined {
+				t.Errorf("full scan: %d rows, %d refined", len(r.Scan), nRefined)
+			}
+			picks = append(picks, r.Picks.GCV, r.Picks.LCurve)
+		} else {
+			if n := len(r.Scan) - nRefined; n > 7 {
+				t.Errorf("search: %d lattice rows", n)
+			}
+			if r.Picks.GCV != -1 || r.Picks.LCurve != -1 {
+				t.Errorf("search: picks %+v, want −1 for GCV and L-curve", r.Picks)
+			}
 		}
-	}
-	c := r.Scan[r.Chosen]
-	if r.Chosen != r.Picks.ProbReject || r.Alpha != c.Alpha || r.ChiSquare != c.ChiSquare || r.DegreesOfFreedom != c.DegreesOfFreedom {
-		t.Errorf("result fields differ from the chosen row")
-	}
-	var sx, sxg float64
-	for j, x := range r.Amplitude {
-		sx += x
-		sxg += x * r.GammaPerS[j]
-	}
-	if !within(r.SumAmplitude, sx, 1e-12) || !within(r.MeanRatePerS, sxg/sx, 1e-12) {
-		t.Errorf("SumAmplitude %g MeanRatePerS %g, recomputed %g %g", r.SumAmplitude, r.MeanRatePerS, sx, sxg/sx)
+		for _, k := range picks {
+			if k < 0 || k >= len(r.Scan) {
+				t.Fatalf("full=%v: index %d outside the scan", full, k)
+			}
+		}
+		c := r.Scan[r.Chosen]
+		if r.Chosen != r.Picks.ProbReject || r.Alpha != c.Alpha || r.ChiSquare != c.ChiSquare || r.DegreesOfFreedom != c.DegreesOfFreedom {
+			t.Errorf("full=%v: result fields differ from the chosen row", full)
+		}
+		var sx, sxg float64
+		for j, x := range r.Amplitude {
+			sx += x
+			sxg += x * r.GammaPerS[j]
+		}
+		if !within(r.SumAmplitude, sx, 1e-12) || !within(r.MeanRatePerS, sxg/sx, 1e-12) {
+			t.Errorf("full=%v: SumAmplitude %g MeanRatePerS %g, recomputed %g %g", full, r.SumAmplitude, r.MeanRatePerS, sx, sxg/sx)
+		}
 	}
 }
 

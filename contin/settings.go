@@ -96,6 +96,15 @@ type Settings struct {
 	// Baseline adds a free (sign-unconstrained, unregularised) constant
 	// column to the model, absorbing a residual baseline error of g1.
 	Baseline bool
+	// FullScan makes ProbReject solve every one of the NAlpha strengths,
+	// as GCV and LCurve always do, so that the scan is complete for audit
+	// and Result.Picks holds the GCV and L-curve choices too. Without it
+	// ProbReject solves the least-regularised strength and bisects the
+	// lattice of NAlpha strengths for the two that bracket the target
+	// (about log₂ NAlpha solves instead of NAlpha); P_reject grows with λ,
+	// so the bracket, the refinement and the choice are those of the full
+	// scan.
+	FullScan bool
 	// MaxIter bounds the active-set iterations (additions plus
 	// interpolation steps) per strength; 0 means 3·(number of unknowns).
 	// A solve that hits the bound keeps its last feasible iterate and is
