@@ -107,7 +107,9 @@
 //
 // The active-set method of Lawson & Hanson (1974, ch. 23) on the normal
 // equations (G + α²R) x = A'Wy, as in the fast NNLS of Bro & De Jong
-// (1997): G and A'Wy are formed once per correlogram, and the Cholesky
+// (1997): A'Wy and the diagonal of G are formed once per correlogram, a
+// row of G when its variable first enters a passive set (a third of the
+// rows or fewer are ever needed), and the Cholesky
 // factor of the passive-set matrix grows by one row per added variable and
 // shrinks by Givens rotations when one leaves, O(p²) each. Safeguards:
 //
@@ -201,8 +203,9 @@
 // its supports, R, its trace, and on first use the unit-weight Gram
 // matrix, reused whenever all σ are equal) and is safe for concurrent use.
 // Cache shares grids across a batch keyed by a hash of the lags and
-// settings. Per call, Invert forms G = A'WA (skipped for equal σ), then
-// does O(p²) work per active-set step; scratch space comes from a pool
+// settings. Per call, Invert forms the rows of G = A'WA that the passive
+// sets need (copied from the unit-weight matrix for equal σ), then does
+// O(p²) work per active-set step; scratch space comes from a pool
 // owned by the grid, so a call allocates little beyond its Result.
 //
 // # References

@@ -173,6 +173,10 @@ func newWorkspace(g *Grid) *workspace {
 		C:      make([]float64, N*N),
 		z:      make([]float64, N),
 		depTol: neDepTol,
+		have:   make([]bool, N),
+		bw:     ws.B,
+		m:      g.m,
+		supp:   g.supp,
 	}
 	return ws
 }
@@ -321,8 +325,11 @@ func checkDecay(g *Grid, y, sigma []float64) error {
 	return nil
 }
 
-// prepare forms the square-root weights, the Gram matrix G = [A 1]'W[A 1]
-// and the right-hand side [A 1]'Wy.
+// prepare forms the square-root weights, the right-hand side [A 1]'Wy and
+// the diagonal of the Gram matrix G = [A 1]'W[A 1]. The rows of G are
+// formed when their variable first enters a passive set (neSolver.ensure):
+// the gradient and the passive-set factor need only those, and typically
+// a third of the rates ever become passive.
 func (p *problem) prepare(sigma []float64) {
 	g, ws := p.g, p.ws
 	m, S := g.m, g.stride
@@ -338,22 +345,27 @@ func (p *problem) prepare(sigma []float64) {
 			constant = false
 		}
 	}
+	ne := &ws.ne
+	for j := range ne.have {
+		ne.have[j] = false
+	}
 	if constant {
-		// Shared weights: scale the grid's unit Gram matrix.
-		c := ws.sw[0] * ws.sw[0]
-		u := g.unitGram()
-		for i, v := range u {
-			ws.G[i] = c * v
+		// Shared weights: rows are the grid's unit Gram matrix, scaled.
+		ne.unit, ne.c = g.unitGram(), ws.sw[0]*ws.sw[0]
+		for j := 0; j < S; j++ {
+			ws.G[j*S+j] = ne.c * ne.unit[j*S+j]
 		}
 	} else {
+		ne.unit = nil
 		for j := 0; j < S; j++ {
-			a := g.at[j*m : (j+1)*m]
-			b := ws.B[j*m : (j+1)*m]
+			l := g.supp[j]
+			a := g.at[j*m : j*m+l]
+			b := ws.B[j*m : j*m+l]
 			for i, v := range a {
 				b[i] = ws.sw[i] * v
 			}
+			ws.G[j*S+j] = floats.Dot(b, b)
 		}
-		gram(ws.G, S, ws.B, m, g.supp)
 	}
 	for j := 0; j < S; j++ {
 		l := g.supp[j]
@@ -363,8 +375,8 @@ func (p *problem) prepare(sigma []float64) {
 	for j := 0; j < g.n; j++ {
 		p.trG += ws.G[j*S+j]
 	}
-	ws.ne.N = p.N
-	ws.ne.tolFactor = float64(g.m+p.N) * eps
+	ne.N = p.N
+	ne.tolFactor = float64(g.m+p.N) * eps
 	ws.as.init(p.N, g.n)
 }
 

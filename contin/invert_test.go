@@ -560,3 +560,63 @@ func TestConcurrentAndReproducible(t *testing.T) {
 		}
 	}
 }
+
+// TestLazyGramRows: rows of G formed on demand, in any order, equal the
+// full Gram matrix [A 1]'W[A 1] bit for bit (the same dot products over the
+// same supports), for per-point weights and for equal weights (then the
+// grid's unit matrix, scaled); and a sum over the kernel by a plain loop
+// agrees to rounding (1e-13 relative: sums of at most m positive terms).
+func TestLazyGramRows(t *testing.T) {
+	g, tau := testGrid(t)
+	y, sig := noisy(g1Of([]population{{3000, 0.2, 1}}, tau), 1e-3, 12)
+	for i := range sig {
+		sig[i] *= 1 + 0.5*math.Sin(float64(i)) // unequal weights
+	}
+	S, m := g.stride, g.m
+	order := rand.New(rand.NewPCG(3, 4)).Perm(S)
+	equal := make([]float64, m)
+	for i := range equal {
+		equal[i] = 2e-3
+	}
+	for _, sigma := range [][]float64{sig, equal} {
+		ws := newWorkspace(g)
+		p := &problem{g: g, ws: ws, y: y, s: *DefaultSettings(), ny: m, N: S}
+		p.prepare(sigma)
+		for _, k := range order {
+			ws.ne.ensure(k)
+		}
+		full := make([]float64, S*S)
+		sw := make([]float64, m)
+		b := make([]float64, S*m)
+		for i := range sw {
+			sw[i] = 1 / sigma[i]
+		}
+		for j := 0; j < S; j++ {
+			for i := 0; i < m; i++ {
+				b[j*m+i] = sw[i] * g.at[j*m+i]
+			}
+		}
+		gram(full, S, b, m, g.supp)
+		if &sigma[0] == &equal[0] {
+			c := sw[0] * sw[0] // as prepare scales the unit matrix
+			for i, v := range g.unitGram() {
+				full[i] = c * v
+			}
+		}
+		for j := 0; j < S; j++ {
+			for k := 0; k < S; k++ {
+				got, want := ws.G[j*S+k], full[j*S+k]
+				if math.Float64bits(got) != math.Float64bits(want) {
+					t.Fatalf("equal weights %v: G[%d][%d] = %v, full matrix %v", &sigma[0] == &equal[0], j, k, got, want)
+				}
+				var plain float64
+				for i := 0; i < m; i++ {
+					plain += sw[i] * sw[i] * g.at[j*m+i] * g.at[k*m+i]
+				}
+				if !withinAbs(got, plain, 1e-13*math.Abs(plain)) {
+					t.Fatalf("G[%d][%d] = %v, plain sum %v", j, k, got, plain)
+				}
+			}
+		}
+	}
+}

@@ -235,6 +235,47 @@ type neSolver struct {
 	p         int
 	tolFactor float64 // relative rounding bound of the gradient entries
 	depTol    float64 // relative pivot below which a variable counts as dependent
+
+	// Rows of G are formed on first use (ensure); the diagonal is always
+	// there. have marks the rows formed; a formed row k has also written
+	// column k, so a later row copies nothing and recomputes nothing.
+	have []bool
+	unit []float64 // unit-weight Gram matrix (stride S) when all weights equal c, else nil
+	c    float64
+	bw   []float64 // weighted kernel rows W½A (stride m), when unit is nil
+	m    int
+	supp []int
+}
+
+// ensure forms row t of G (and, by symmetry, column t): from the scaled
+// unit-weight matrix, or as dot products of the weighted kernel rows,
+// with the same arithmetic (floats.Dot over the common support) as a
+// full Gram matrix, so the entries are bit for bit the same.
+func (e *neSolver) ensure(t int) {
+	if e.have[t] {
+		return
+	}
+	S := e.S
+	row := e.G[t*S : (t+1)*S]
+	if e.unit != nil {
+		u := e.unit[t*S : (t+1)*S]
+		for j, v := range u {
+			row[j] = e.c * v
+		}
+	} else {
+		m, supp := e.m, e.supp
+		bt := e.bw[t*m : t*m+supp[t]]
+		for j := 0; j < S; j++ {
+			if j == t || e.have[j] {
+				continue // the diagonal, or set when row j was formed
+			}
+			l := min(supp[t], supp[j])
+			v := floats.Dot(e.bw[j*m:j*m+l], bt[:l])
+			row[j] = v
+			e.G[j*S+t] = v
+		}
+	}
+	e.have[t] = true
 }
 
 func (e *neSolver) hAt(j, k int) float64 {
@@ -248,6 +289,7 @@ func (e *neSolver) hAt(j, k int) float64 {
 func (e *neSolver) reset() { e.p = 0 }
 
 func (e *neSolver) add(pas []int, t int) bool {
+	e.ensure(t)
 	p, N := e.p, e.N
 	row := e.C[p*N : p*N+p+1]
 	for i, j := range pas[:p] {

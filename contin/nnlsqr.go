@@ -128,7 +128,10 @@ func (q *qrSolver) applyReflector(c int, x []float64) {
 	}
 }
 
-func (q *qrSolver) add(_ []int, t int) bool { return q.addCol(t, false) }
+func (q *qrSolver) add(_ []int, t int) bool {
+	q.ne.ensure(t) // grad works on the normal equations' rows
+	return q.addCol(t, false)
+}
 
 func (q *qrSolver) addCol(t int, force bool) bool {
 	p, rows := q.p, q.rows
