@@ -29,12 +29,16 @@ type DistributionSettings struct {
 	// Cache shares kernels between measurements with the same lag grid; it
 	// is safe for concurrent use. nil builds a grid per measurement.
 	Cache *contin.Cache
+	// MieCache shares the Mie intensities of the size grid between
+	// measurements with the same rate grid, temperature, medium and optics
+	// (safe for concurrent use); nil computes them per measurement.
+	MieCache *sizedist.WeightCache
 }
 
 // DefaultDistributionSettings returns the documented defaults: the
 // inversion on, contin.DefaultSettings (probability to reject 0.5, free
 // baseline column), the default grid and peak rule, particle index
-// 1.59+0i, vertical polarisation, a fresh kernel cache.
+// 1.59+0i, vertical polarisation, a fresh kernel cache and Mie cache.
 func DefaultDistributionSettings() DistributionSettings {
 	return DistributionSettings{
 		Enabled:           true,
@@ -42,6 +46,7 @@ func DefaultDistributionSettings() DistributionSettings {
 		DefaultParticleRI: complex(1.59, 0),
 		Polarization:      mie.Vertical,
 		Cache:             &contin.Cache{},
+		MieCache:          &sizedist.WeightCache{},
 	}
 }
 
@@ -196,7 +201,7 @@ func distribution(m *dls.Measurement, fit *cumulants.Result, st state, meta dls.
 	}
 	d, err := sizedist.New(sizedist.Input{
 		GammaPerS: inv.GammaPerS, Amplitude: inv.Amplitude, TempK: tK, ViscosityPaS: st.etaPaS,
-		Optics: st.optics, ParticleIndex: mPart, Polarization: s.Polarization,
+		Optics: st.optics, ParticleIndex: mPart, Polarization: s.Polarization, Cache: s.MieCache,
 	})
 	if err != nil {
 		return fail(err)
