@@ -1,6 +1,7 @@
 package contin
 
 import (
+	"cmp"
 	"fmt"
 	"math"
 	"slices"
@@ -197,6 +198,7 @@ type problem struct {
 	qrSolves   int
 	qrReady    bool // ws.qr holds this problem's data rows
 	ft         fTest
+	pDone      []bool // row → its ProbReject is set
 }
 
 // Invert computes the regularised non-negative inverse Laplace transform of
@@ -258,6 +260,13 @@ func Invert(g *Grid, y, sigma []float64, s *Settings) (*Result, error) {
 	ws := g.pool.Get().(*workspace)
 	defer g.pool.Put(ws)
 	p := &problem{g: g, ws: ws, y: y, s: st, ny: ny}
+	nr := 1
+	if st.Criterion != Fixed {
+		nr = st.NAlpha + st.Refine
+	}
+	p.rows = make([]ScanRow, 0, nr)
+	p.solIdx = make([]int, 0, nr)
+	p.pDone = make([]bool, 0, nr)
 	p.N = g.n
 	if st.Baseline {
 		p.N = g.n + 1
@@ -452,6 +461,7 @@ func (p *problem) solveAt(lambda, a2 float64, refined bool) int {
 	p.nsol++
 	p.rows = append(p.rows, row)
 	p.solIdx = append(p.solIdx, k)
+	p.pDone = append(p.pDone, false)
 	return len(p.rows) - 1
 }
 
@@ -549,7 +559,7 @@ func (p *problem) run(estimateSigma bool) (*Result, error) {
 	for i := range order {
 		order[i] = i
 	}
-	sort.SliceStable(order, func(a, b int) bool { return p.rows[order[a]].Lambda < p.rows[order[b]].Lambda })
+	slices.SortStableFunc(order, func(a, b int) int { return cmp.Compare(p.rows[a].Lambda, p.rows[b].Lambda) })
 	inv := make([]int, len(order))
 	rows := make([]ScanRow, len(order))
 	for newI, oldI := range order {
@@ -660,7 +670,7 @@ func (p *problem) probe(k, lo, hi int) int {
 	}
 	p.warmFrom(from)
 	r := p.solveAt(lambda, p.a2Of(lambda), false)
-	p.rows[r].ProbReject = p.probReject(p.rows[r].ChiSquare)
+	p.rows[r].ProbReject, p.pDone[r] = p.probReject(p.rows[r].ChiSquare), true
 	return r
 }
 
@@ -698,8 +708,14 @@ func (p *problem) statistics(nBase int, warns *[]error) {
 	if p.ft.exact && warns != nil {
 		*warns = append(*warns, fmt.Errorf("contin: least-regularised fit is exact (V = %.3g), F-test degenerate: %w", rows[0].ChiSquare, ErrIllConditioned))
 	}
+	for len(p.pDone) < len(rows) { // rows made without solveAt
+		p.pDone = append(p.pDone, false)
+	}
 	for i := range rows {
-		rows[i].ProbReject = p.probReject(rows[i].ChiSquare)
+		if !p.pDone[i] {
+			rows[i].ProbReject = p.probReject(rows[i].ChiSquare)
+			p.pDone[i] = true
+		}
 	}
 	if nBase > 0 {
 		p.lcurve(nBase)
@@ -832,7 +848,8 @@ func (p *problem) refine(lo, hi int) {
 		lambda := math.Sqrt(p.rows[lo].Lambda * p.rows[hi].Lambda)
 		p.warmFrom(lo)
 		r := p.solveAt(lambda, p.a2Of(lambda), true)
-		if p.probReject(p.rows[r].ChiSquare) >= t {
+		p.rows[r].ProbReject, p.pDone[r] = p.probReject(p.rows[r].ChiSquare), true
+		if p.rows[r].ProbReject >= t {
 			hi = r
 		} else {
 			lo = r
@@ -860,14 +877,23 @@ func (p *problem) result(rows []ScanRow, chosen, sol int, picks Picks, estimateS
 	if p.N > n {
 		res.Baseline = x[n]
 	}
-	for i := range res.Fitted {
-		f := res.Baseline
-		for j := 0; j < n; j++ {
-			if x[j] != 0 {
-				f += x[j] * g.at[j*g.m+i]
-			}
+	// Fitted_i = B + Σ_j x_j A_ij over the non-zero x_j, added column by
+	// column in increasing j: the same additions in the same order as a
+	// row-by-row sum, without visiting the zeros.
+	fit := res.Fitted
+	for i := range fit {
+		fit[i] = res.Baseline
+	}
+	for j, xj := range x[:n] {
+		if xj == 0 {
+			continue
 		}
-		res.Fitted[i] = f
+		col := g.at[j*g.m : j*g.m+g.supp[j]]
+		for i, a := range col {
+			fit[i] += xj * a
+		}
+	}
+	for i, f := range fit {
 		res.Residuals[i] = p.y[i] - f
 	}
 	var sx, sxg float64

@@ -389,7 +389,7 @@ func (e *neSolver) grad(pas []int, x, w, tol []float64) {
 	if a2 := e.a2; a2 != 0 {
 		n, rb := e.n, e.rband
 		x := x[:n]
-		for j := 0; j < n; j++ {
+		band := func(j int) {
 			var v, u float64
 			b := rb[5*j : 5*j+5]
 			for d := max(-2, -j); d <= min(2, n-1-j); d++ {
@@ -399,6 +399,23 @@ func (e *neSolver) grad(pas []int, x, w, tol []float64) {
 			}
 			w[j] -= a2 * v
 			tol[j] += a2 * u
+		}
+		// The rows away from both ends have all five band entries; the
+		// same terms in the same order as band, without the bounds.
+		for j := 0; j < min(2, n); j++ {
+			band(j)
+		}
+		for j := 2; j < n-2; j++ {
+			b := rb[5*j : 5*j+5 : 5*j+5]
+			xs := x[j-2 : j+3 : j+3]
+			r0, r1, r2, r3, r4 := b[0]*xs[0], b[1]*xs[1], b[2]*xs[2], b[3]*xs[3], b[4]*xs[4]
+			v := r0 + r1 + r2 + r3 + r4
+			u := math.Abs(r0) + math.Abs(r1) + math.Abs(r2) + math.Abs(r3) + math.Abs(r4)
+			w[j] -= a2 * v
+			tol[j] += a2 * u
+		}
+		for j := max(2, n-2); j < n; j++ {
+			band(j)
 		}
 	}
 	f := e.tolFactor
