@@ -111,7 +111,10 @@
 // row of G when its variable first enters a passive set (a third of the
 // rows or fewer are ever needed), and the Cholesky
 // factor of the passive-set matrix grows by one row per added variable and
-// shrinks by Givens rotations when one leaves, O(p²) each. Safeguards:
+// shrinks by Givens rotations when one leaves, O(p²) each. The smallest
+// strength starts from x = 0, or with InvertFrom from the solution of an
+// earlier inversion of similar data; each later one from the nearest
+// solved strength. Safeguards:
 //
 //   - a gradient entry w_j counts as positive only above its own rounding
 //     bound (m + N)·eps·(|g_j| + Σ_k G_jk|x_k| + α²Σ_k|R_jk||x_k|)

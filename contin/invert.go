@@ -123,6 +123,11 @@ type Result struct {
 	// Warnings lists doubts that did not stop the inversion; each wraps one
 	// of the warning sentinels (ErrIterationLimit, ErrScanEdge, ...).
 	Warnings []error
+
+	// grid and refSolution (the solution at LambdaMin, N values) start
+	// the least-regularised solve of a later InvertFrom.
+	grid        *Grid
+	refSolution []float64
 }
 
 // Thresholds of the solver.
@@ -217,6 +222,19 @@ type problem struct {
 // doubts are Result.Warnings. Invert panics if g is nil. It is safe to call
 // concurrently with the same Grid.
 func Invert(g *Grid, y, sigma []float64, s *Settings) (*Result, error) {
+	return InvertFrom(g, y, sigma, s, nil)
+}
+
+// InvertFrom is Invert with the least-regularised solve started from that
+// of prev, an earlier inversion on the same grid of similar data (a first
+// pass with other weights, say), instead of from x = 0. The minimiser of
+// each strictly convex subproblem does not depend on where the active-set
+// iterations start, so neither does the result (to rounding) nor the
+// choice of λ; a good start saves most of that solve's iterations and the
+// Gram rows of the variables that a cold start tries on its way. A nil
+// prev, or one from another grid or baseline setting or from a Fixed
+// criterion, means a cold start.
+func InvertFrom(g *Grid, y, sigma []float64, s *Settings, prev *Result) (*Result, error) {
 	if g == nil {
 		panic("contin: nil grid")
 	}
@@ -276,6 +294,9 @@ func Invert(g *Grid, y, sigma []float64, s *Settings) (*Result, error) {
 		p.maxIter = 3 * p.N
 	}
 	p.prepare(sigma)
+	if prev != nil && prev.grid == g && len(prev.refSolution) == p.N {
+		p.warmFromSolution(prev.refSolution)
+	}
 	return p.run(sigma == nil)
 }
 
@@ -467,8 +488,13 @@ func (p *problem) solveAt(lambda, a2 float64, refined bool) int {
 
 // warmFrom sets the active set to the stored solution of row r.
 func (p *problem) warmFrom(r int) {
+	p.warmFromSolution(p.ws.sols[p.solIdx[r]*p.N : (p.solIdx[r]+1)*p.N])
+}
+
+// warmFromSolution sets the active set to the feasible point sol (N
+// values, non-negative on the rates).
+func (p *problem) warmFromSolution(sol []float64) {
 	as := p.ws.as
-	sol := p.ws.sols[p.solIdx[r]*p.N : (p.solIdx[r]+1)*p.N]
 	as.pas = as.pas[:0]
 	for j := 0; j < p.N; j++ {
 		as.x[j] = sol[j]
@@ -590,7 +616,12 @@ func (p *problem) run(estimateSigma bool) (*Result, error) {
 		warns = append(warns, fmt.Errorf("contin: active-set solver stopped after %d iterations at λ = %v: %w",
 			p.maxIter, limited, ErrIterationLimit))
 	}
-	return p.result(rows, chosen, solOf, picks, estimateSigma, warns), nil
+	res := p.result(rows, chosen, solOf, picks, estimateSigma, warns)
+	if s.Criterion != Fixed { // row 0 was solved at LambdaMin
+		k := p.solIdx[0]
+		res.refSolution = slices.Clone(p.ws.sols[k*p.N : (k+1)*p.N])
+	}
+	return res, nil
 }
 
 // fTest holds the reference of the probability to reject: V₀ (floored
@@ -862,6 +893,7 @@ func (p *problem) result(rows []ScanRow, chosen, sol int, picks Picks, estimateS
 	n := g.n
 	x := p.ws.sols[sol*p.N : (sol+1)*p.N]
 	res := &Result{
+		grid:      g,
 		GammaPerS: g.GammaPerS(),
 		Amplitude: slices.Clone(x[:n]),
 		Fitted:    make([]float64, g.m),

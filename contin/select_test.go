@@ -217,3 +217,64 @@ func TestSearchMatchesFullScan(t *testing.T) {
 	}
 	t.Logf("%d searches, %.1f solves each (full scan: %d + refinements)", runs, float64(solves)/float64(runs), DefaultNAlpha)
 }
+
+// TestInvertFromMatchesCold: a second inversion of the same data with other
+// weights (σ changed by up to ±30 % from point to point, as the pipeline's
+// second pass changes them), started from the first's least-regularised
+// solution, chooses the same λ as a cold start and its amplitudes agree to
+// 1e-9 of the norm: every subproblem is strictly convex, so only rounding
+// depends on the start. A start from another grid is ignored (same
+// result as cold, bit for bit). The warm starts must save active-set
+// iterations over the family (the point of InvertFrom).
+func TestInvertFromMatchesCold(t *testing.T) {
+	g, tau := testGrid(t)
+	other, err := NewGrid(tau[:len(tau)-3], nil)
+	if err != nil {
+		t.Fatal(err)
+	}
+	cases := append(append([]recoveryCase{}, unimodalCases...), bimodalCases...)
+	var coldIters, warmIters int
+	for _, c := range cases {
+		for seed := uint64(1); seed <= 3; seed++ {
+			y, sig := noisy(g1Of(c.pops, tau), 1e-3, 80+seed)
+			sig2 := make([]float64, len(sig))
+			for i := range sig {
+				sig2[i] = sig[i] * (1 + 0.3*math.Sin(0.7*float64(i)+float64(seed)))
+			}
+			first, err := Invert(g, y, sig, nil)
+			if err != nil {
+				t.Fatal(err)
+			}
+			cold, err := Invert(g, y, sig2, nil)
+			if err != nil {
+				t.Fatal(err)
+			}
+			warm, err := InvertFrom(g, y, sig2, nil, first)
+			if err != nil {
+				t.Fatal(err)
+			}
+			name := fmt.Sprintf("%s/seed=%d", c.name, seed)
+			coldIters += cold.Iterations
+			warmIters += warm.Iterations
+			if warm.Lambda != cold.Lambda {
+				t.Errorf("%s: warm start chose λ = %.6g, cold %.6g", name, warm.Lambda, cold.Lambda)
+				continue
+			}
+			d := make([]float64, len(cold.Amplitude))
+			floats.SubTo(d, warm.Amplitude, cold.Amplitude)
+			if e := floats.Norm(d, 2) / floats.Norm(cold.Amplitude, 2); !(e <= 1e-9) {
+				t.Errorf("%s: amplitudes differ by %.3g of the norm", name, e)
+			}
+			y2 := y[:len(y)-3]
+			a, err1 := Invert(other, y2, sig2[:len(y2)], nil)
+			b, err2 := InvertFrom(other, y2, sig2[:len(y2)], nil, first)
+			if err1 != nil || err2 != nil || a.Iterations != b.Iterations || !floats.Same(a.Amplitude, b.Amplitude) {
+				t.Errorf("%s: a start from another grid changed the result (%v, %v)", name, err1, err2)
+			}
+		}
+	}
+	t.Logf("active-set iterations: %d cold, %d warm", coldIters, warmIters)
+	if !(warmIters < coldIters) {
+		t.Errorf("warm starts took %d iterations, cold %d", warmIters, coldIters)
+	}
+}

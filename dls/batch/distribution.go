@@ -196,7 +196,9 @@ func distribution(m *dls.Measurement, fit *cumulants.Result, st state, meta dls.
 		sigma = cumulants.LocalSigma(correlogramResiduals(m, fit, first, inv.Fitted), first, len(m.TauS)-1, 1e-6*fit.Intercept)
 	}
 	g1, sg = fieldCorrelation(m, fit, first, sigma, inv.Fitted)
-	if inv2, err := contin.Invert(grid, g1, sg, &cs); err == nil {
+	// The first pass's least-regularised solution starts the second's
+	// (the same solution to rounding; far fewer active-set iterations).
+	if inv2, err := contin.InvertFrom(grid, g1, sg, &cs, inv); err == nil {
 		inv = inv2
 	}
 	d, err := sizedist.New(sizedist.Input{
