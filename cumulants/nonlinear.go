@@ -183,6 +183,9 @@ func (p *prepared) nonlinear(s *Settings, lin LinearEstimate, last int, r *Resul
 	if !p.fixBase {
 		p.finish(r, last, k)
 	}
+	if p.skipCov {
+		return nil // the caller needs no standard errors from this fit
+	}
 
 	// Covariance. With σ given: (JᵀWJ)⁻¹. With σ estimated from the
 	// residuals, the weights are themselves noisy and (JᵀWJ)⁻¹ overstates
