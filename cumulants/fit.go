@@ -202,6 +202,10 @@ type prepared struct {
 	// a fit whose standard errors nobody reads: the equal-weight first
 	// pass, and range-check refits whose shift is within rangeShiftLimit.
 	skipCov bool
+	// Scratch space of nonlinear: channel indices, and lags, values and
+	// weights of the points fitted (three blocks of cap(idxBuf)).
+	idxBuf []int
+	ptBuf  []float64
 }
 
 // pointErr ties err to point i; an index past the data (no channel at or

@@ -44,7 +44,12 @@ func (p *prepared) nonlinear(s *Settings, lin LinearEstimate, last int, r *Resul
 		lo = 1
 	}
 	k := np - lo
-	idx := make([]int, 0, last-p.first+1+p.tailN)
+	// The point lists live in scratch space shared by the fits of one Fit.
+	if c := len(p.tau); cap(p.idxBuf) < c { // distinct channels: at most all
+		p.idxBuf = make([]int, 0, c)
+		p.ptBuf = make([]float64, 3*c)
+	}
+	idx := p.idxBuf[:0]
 	for k := p.first; k <= last; k++ {
 		idx = append(idx, k)
 	}
@@ -54,9 +59,10 @@ func (p *prepared) nonlinear(s *Settings, lin LinearEstimate, last int, r *Resul
 		}
 	}
 	m := len(idx)
-	t := make([]float64, m)
-	y := make([]float64, m)
-	w := make([]float64, m)
+	c := cap(p.idxBuf)
+	t := p.ptBuf[:m:m]
+	y := p.ptBuf[c : c+m : c+m]
+	w := p.ptBuf[2*c : 2*c+m : 2*c+m]
 	for i, k := range idx {
 		t[i] = p.tau[k] * g0
 		y[i] = p.y[k]
