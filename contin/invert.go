@@ -203,7 +203,8 @@ type problem struct {
 	qrSolves   int
 	qrReady    bool // ws.qr holds this problem's data rows
 	ft         fTest
-	pDone      []bool // row → its ProbReject is set
+	pDone      []bool  // row → its ProbReject is set
+	prev       *Result // InvertFrom's earlier inversion (same grid and N), or nil
 }
 
 // Invert computes the regularised non-negative inverse Laplace transform of
@@ -225,15 +226,18 @@ func Invert(g *Grid, y, sigma []float64, s *Settings) (*Result, error) {
 	return InvertFrom(g, y, sigma, s, nil)
 }
 
-// InvertFrom is Invert with the least-regularised solve started from that
-// of prev, an earlier inversion on the same grid of similar data (a first
-// pass with other weights, say), instead of from x = 0. The minimiser of
-// each strictly convex subproblem does not depend on where the active-set
-// iterations start, so neither does the result (to rounding) nor the
-// choice of λ; a good start saves most of that solve's iterations and the
-// Gram rows of the variables that a cold start tries on its way. A nil
-// prev, or one from another grid or baseline setting or from a Fixed
-// criterion, means a cold start.
+// InvertFrom is Invert starting from prev, an earlier inversion on the
+// same grid of similar data (a first pass with other weights, say): the
+// least-regularised solve starts from prev's solution there instead of
+// from x = 0, and ProbReject's search probes the lattice strengths at and
+// above prev's choice first, starting from prev's chosen solution. The
+// minimiser of each strictly convex subproblem does not depend on where
+// the active-set iterations start, and any probe order ends with the same
+// bracket, so neither the result (to rounding) nor the choice of λ
+// depends on prev; a good prev saves most of the iterations, several
+// solves, and the Gram rows of the variables a cold start tries on its
+// way. A nil prev, or one from another grid or baseline setting, means a
+// cold start.
 func InvertFrom(g *Grid, y, sigma []float64, s *Settings, prev *Result) (*Result, error) {
 	if g == nil {
 		panic("contin: nil grid")
@@ -296,6 +300,7 @@ func InvertFrom(g *Grid, y, sigma []float64, s *Settings, prev *Result) (*Result
 	p.prepare(sigma)
 	if prev != nil && prev.grid == g && len(prev.refSolution) == p.N {
 		p.warmFromSolution(prev.refSolution)
+		p.prev = prev
 	}
 	return p.run(sigma == nil)
 }
@@ -679,6 +684,36 @@ func (p *problem) search() (lo, hi int) {
 	p.reference()
 	klo, khi := 0, s.NAlpha // lattice indices; khi = NAlpha: not reached
 	lo, hi = 0, -1
+	if prev := p.prev; prev != nil && prev.Criterion == ProbReject && prev.Lambda > s.LambdaMin && prev.Lambda < s.LambdaMax {
+		// An earlier inversion of similar data usually has its choice in
+		// the same lattice interval or the next one up: probe its upper
+		// end first (started from its solution), then the neighbour on
+		// the side of the target. Any probe inside the bracket keeps
+		// P(klo) < target ≤ P(khi), so the bisection below ends with the
+		// same bracket whatever was probed first.
+		k := 0
+		for k+1 < s.NAlpha-1 && s.latticeLambda(k+1) <= prev.Lambda {
+			k++
+		}
+		p.warmFromSolution(append(slices.Clone(prev.Amplitude), prev.Baseline)[:p.N])
+		r := p.solveAt(s.latticeLambda(k+1), p.a2Of(s.latticeLambda(k+1)), false)
+		p.rows[r].ProbReject, p.pDone[r] = p.probReject(p.rows[r].ChiSquare), true
+		next := k
+		if p.rows[r].ProbReject >= t {
+			khi, hi = k+1, r
+		} else {
+			klo, lo = k+1, r
+			next = k + 2
+		}
+		if next > klo && next < khi {
+			r := p.probe(next, lo, hi)
+			if p.rows[r].ProbReject >= t {
+				khi, hi = next, r
+			} else {
+				klo, lo = next, r
+			}
+		}
+	}
 	for khi-klo > 1 {
 		k := (klo + khi) / 2
 		r := p.probe(k, lo, hi)

@@ -220,8 +220,9 @@ func TestSearchMatchesFullScan(t *testing.T) {
 
 // TestInvertFromMatchesCold: a second inversion of the same data with other
 // weights (σ changed by up to ±30 % from point to point, as the pipeline's
-// second pass changes them), started from the first's least-regularised
-// solution, chooses the same λ as a cold start and its amplitudes agree to
+// second pass changes them), started from the first (its least-regularised
+// solution, its choice and its chosen solution), chooses the same λ as a
+// cold start and its amplitudes agree to
 // 1e-9 of the norm: every subproblem is strictly convex, so only rounding
 // depends on the start. A start from another grid is ignored (same
 // result as cold, bit for bit). The warm starts must save active-set
