@@ -52,7 +52,7 @@
 // values from 1e-10 to 1). GCV and LCurve, and ProbReject with
 // Settings.FullScan, solve every lattice strength from the smallest up,
 // each warm-started from the previous passive set; by default ProbReject
-// solves only the smallest and bisects the lattice for the bracket of its
+// solves the smallest and searches the lattice for the bracket of its
 // target (below). Every strength solved is a row (λ, α, V, N_DF, ||Lx||,
 // P_reject, GCV, curvature) of Result.Scan. V = Σ W_i r_i² is the weighted
 // residual sum of squares and
@@ -77,10 +77,12 @@
 // memory, not checked against the 1982 text.) V cannot fall as α grows
 // (the two optimality inequalities of the minimisers at α₁ < α₂ give
 // ||Lx₂|| ≤ ||Lx₁||, then V₁ ≤ V₂), so P_reject is monotone in λ and the
-// bracket can be found by bisection over the lattice: the reference and
-// about log₂ 21 ≈ 4–5 lattice strengths instead of 21, with the same
-// bracket, refinement and choice as the full scan (checked by
-// TestSearchMatchesFullScan). The search leaves Picks.GCV and
+// bracket can be searched for: from the middle of the lattice (or, with
+// InvertFrom, from an earlier choice) in steps of 1, 2, 4, … strengths
+// towards the target, then by bisection, each solve warm-started from the
+// nearest one solved. That takes the reference and typically 3–6 lattice
+// strengths instead of 21, with the same bracket, refinement and choice as
+// the full scan (checked by TestSearchMatchesFullScan). The search leaves Picks.GCV and
 // Picks.LCurve at −1; Settings.FullScan restores the complete scan for
 // audit. The other criteria:
 //

@@ -205,6 +205,7 @@ type problem struct {
 	ft         fTest
 	pDone      []bool  // row → its ProbReject is set
 	prev       *Result // InvertFrom's earlier inversion (same grid and N), or nil
+	refRow     int     // the row solved at LambdaMin (ProbReject's reference)
 }
 
 // Invert computes the regularised non-negative inverse Laplace transform of
@@ -623,7 +624,7 @@ func (p *problem) run(estimateSigma bool) (*Result, error) {
 	}
 	res := p.result(rows, chosen, solOf, picks, estimateSigma, warns)
 	if s.Criterion != Fixed { // row 0 was solved at LambdaMin
-		k := p.solIdx[0]
+		k := p.solIdx[p.refRow]
 		res.refSolution = slices.Clone(p.ws.sols[k*p.N : (k+1)*p.N])
 	}
 	return res, nil
@@ -640,7 +641,7 @@ type fTest struct {
 
 // reference sets p.ft from row 0, the least-regularised row.
 func (p *problem) reference() {
-	ref := p.rows[0]
+	ref := p.rows[p.refRow]
 	ny := float64(p.ny)
 	ft := fTest{v0: ref.ChiSquare}
 	if floor := 1e-14 * p.yWeightedSq(); ft.v0 < floor {
@@ -669,49 +670,85 @@ func (p *problem) probReject(v float64) float64 {
 
 // search finds, on the lattice of NAlpha strengths that the full scan
 // solves, the first strength whose probability to reject reaches the
-// target, by bisection over the lattice indices, and returns the rows lo
-// (below the target) and hi (at or above it; −1 when no strength reaches
-// it, lo is then the largest). It solves the reference row 0 and about
-// log₂(NAlpha) others. The bracket is the full scan's because V, and so
-// P_reject, does not decrease as α grows: with Φ = ||Lx/w||², the
-// minimisers x₁, x₂ at α₁ < α₂ satisfy V₁ + α₁²Φ₁ ≤ V₂ + α₁²Φ₂ and
-// V₂ + α₂²Φ₂ ≤ V₁ + α₂²Φ₁; adding the two gives Φ₂ ≤ Φ₁, and then the
-// first gives V₁ ≤ V₂ (the constraint x ≥ 0 does not enter).
+// target, and returns the rows lo (below the target) and hi (at or above
+// it; −1 when no strength reaches it, lo is then the largest).
+//
+// It starts at the middle of the lattice, or with InvertFrom at the
+// strength just above the earlier choice, and steps towards the target
+// by 1, 2, 4, … lattice strengths until the target is bracketed, then
+// bisects the bracket. Each solve starts from the nearest strength solved,
+// so that the steps stay short: a solve far from its start costs many
+// active-set iterations, and a broad solution at a large λ the Gram rows
+// of its many passive rates. The cold start solves the middle strength
+// first and the reference λ = LambdaMin from it (a regularised problem
+// from x = 0 takes fewer iterations than the nearly unregularised one).
+//
+// The bracket is the full scan's because V, and so P_reject, does not
+// decrease as α grows: with Φ = ||Lx/w||², the minimisers x₁, x₂ at
+// α₁ < α₂ satisfy V₁ + α₁²Φ₁ ≤ V₂ + α₁²Φ₂ and V₂ + α₂²Φ₂ ≤ V₁ + α₂²Φ₁;
+// adding the two gives Φ₂ ≤ Φ₁, and then the first gives V₁ ≤ V₂ (the
+// constraint x ≥ 0 does not enter). Every probe inside the bracket keeps
+// P(klo) < target ≤ P(khi), so the order of the probes does not change
+// the bracket found.
 func (p *problem) search() (lo, hi int) {
 	s := p.s
 	t := s.TargetProbReject
-	p.solveAt(s.LambdaMin, p.a2Of(s.LambdaMin), false)
-	p.reference()
-	klo, khi := 0, s.NAlpha // lattice indices; khi = NAlpha: not reached
-	lo, hi = 0, -1
-	if prev := p.prev; prev != nil && prev.Criterion == ProbReject && prev.Lambda > s.LambdaMin && prev.Lambda < s.LambdaMax {
-		// An earlier inversion of similar data usually has its choice in
-		// the same lattice interval or the next one up: probe its upper
-		// end first (started from its solution), then the neighbour on
-		// the side of the target. Any probe inside the bracket keeps
-		// P(klo) < target ≤ P(khi), so the bisection below ends with the
-		// same bracket whatever was probed first.
+	n := s.NAlpha
+	k0 := n / 2
+	prev := p.prev
+	if prev != nil && !(prev.Criterion == ProbReject && prev.Lambda > s.LambdaMin && prev.Lambda < s.LambdaMax) {
+		prev = nil
+	}
+	if prev != nil {
 		k := 0
-		for k+1 < s.NAlpha-1 && s.latticeLambda(k+1) <= prev.Lambda {
+		for k+1 < n-1 && s.latticeLambda(k+1) <= prev.Lambda {
 			k++
 		}
-		p.warmFromSolution(append(slices.Clone(prev.Amplitude), prev.Baseline)[:p.N])
-		r := p.solveAt(s.latticeLambda(k+1), p.a2Of(s.latticeLambda(k+1)), false)
-		p.rows[r].ProbReject, p.pDone[r] = p.probReject(p.rows[r].ChiSquare), true
-		next := k
-		if p.rows[r].ProbReject >= t {
-			khi, hi = k+1, r
+		k0 = k + 1
+	}
+	first := -1
+	if p.prev == nil {
+		first = p.solveAt(s.latticeLambda(k0), p.a2Of(s.latticeLambda(k0)), false)
+	}
+	// The reference: from the middle strength's solution (cold) or from
+	// the earlier inversion's reference (InvertFrom).
+	p.refRow = p.solveAt(s.LambdaMin, p.a2Of(s.LambdaMin), false)
+	p.reference()
+	if first < 0 {
+		if prev != nil {
+			p.warmFromSolution(append(slices.Clone(prev.Amplitude), prev.Baseline)[:p.N])
 		} else {
-			klo, lo = k+1, r
-			next = k + 2
+			p.warmFrom(p.refRow)
 		}
-		if next > klo && next < khi {
-			r := p.probe(next, lo, hi)
-			if p.rows[r].ProbReject >= t {
-				khi, hi = next, r
-			} else {
-				klo, lo = next, r
+		first = p.solveAt(s.latticeLambda(k0), p.a2Of(s.latticeLambda(k0)), false)
+	}
+	p.rows[first].ProbReject, p.pDone[first] = p.probReject(p.rows[first].ChiSquare), true
+	klo, khi := 0, n // lattice indices; khi = n: not reached
+	lo, hi = p.refRow, -1
+	up := p.rows[first].ProbReject < t
+	if up {
+		klo, lo = k0, first
+	} else {
+		khi, hi = k0, first
+	}
+	for step := 1; ; step *= 2 {
+		var k int
+		if up {
+			if khi < n || klo >= n-1 {
+				break
 			}
+			k = min(klo+step, n-1)
+		} else {
+			if klo > 0 || khi <= 1 {
+				break
+			}
+			k = max(khi-step, 1)
+		}
+		r := p.probe(k, lo, hi)
+		if p.rows[r].ProbReject >= t {
+			khi, hi = k, r
+		} else {
+			klo, lo = k, r
 		}
 	}
 	for khi-klo > 1 {
@@ -772,7 +809,7 @@ func (p *problem) statistics(nBase int, warns *[]error) {
 	}
 	p.reference()
 	if p.ft.exact && warns != nil {
-		*warns = append(*warns, fmt.Errorf("contin: least-regularised fit is exact (V = %.3g), F-test degenerate: %w", rows[0].ChiSquare, ErrIllConditioned))
+		*warns = append(*warns, fmt.Errorf("contin: least-regularised fit is exact (V = %.3g), F-test degenerate: %w", rows[p.refRow].ChiSquare, ErrIllConditioned))
 	}
 	for len(p.pDone) < len(rows) { // rows made without solveAt
 		p.pDone = append(p.pDone, false)

@@ -99,10 +99,10 @@ type Settings struct {
 	// FullScan makes ProbReject solve every one of the NAlpha strengths,
 	// as GCV and LCurve always do, so that the scan is complete for audit
 	// and Result.Picks holds the GCV and L-curve choices too. Without it
-	// ProbReject solves the least-regularised strength and bisects the
+	// ProbReject solves the least-regularised strength and searches the
 	// lattice of NAlpha strengths for the two that bracket the target
-	// (about log₂ NAlpha solves instead of NAlpha); P_reject grows with λ,
-	// so the bracket, the refinement and the choice are those of the full
+	// (typically 3–6 solves instead of NAlpha); P_reject grows with λ, so
+	// the bracket, the refinement and the choice are those of the full
 	// scan.
 	FullScan bool
 	// MaxIter bounds the active-set iterations (additions plus
