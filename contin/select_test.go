@@ -162,12 +162,12 @@ func TestParseCriterion(t *testing.T) {
 // (Settings.FullScan) must choose the same strength, because V, and with
 // it P_reject, grows monotonically with α for the minimiser of a convex
 // objective (for α₁ < α₂ the two optimality inequalities give
-// ||Lx₂|| ≤ ||Lx₁|| and then V₁ ≤ V₂), so bisection over the lattice finds
+// ||Lx₂|| ≤ ||Lx₁|| and then V₁ ≤ V₂), so the search of the lattice finds
 // the full scan's bracket. Checked over the recovery family at two noise
-// levels, with σ given and not, and with and without the baseline column. The solutions at the chosen
-// λ are the unique minimisers of the same strictly convex problem reached
-// from different warm starts: equal to 1e-9 of the norm (rounding, as in
-// TestQRMatchesNormalEquations).
+// levels, with σ given and not, and with and without the baseline column.
+// The solutions at the chosen λ are the unique minimisers of the same
+// strictly convex problem reached from different warm starts: equal to
+// 1e-9 of the norm (rounding, as in TestQRMatchesNormalEquations).
 func TestSearchMatchesFullScan(t *testing.T) {
 	g, tau := testGrid(t)
 	cases := append(append([]recoveryCase{}, unimodalCases...), bimodalCases...)
