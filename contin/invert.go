@@ -254,6 +254,9 @@ func InvertFrom(g *Grid, y, sigma []float64, s *Settings, prev *Result) (*Result
 	if len(y) != g.m {
 		return nil, fmt.Errorf("contin: %d data values for %d lags: %w", len(y), g.m, ErrLength)
 	}
+	if st.Start != nil && len(st.Start) != g.n {
+		return nil, fmt.Errorf("contin: %d start amplitudes for %d rates: %w", len(st.Start), g.n, ErrLength)
+	}
 	if sigma != nil && len(sigma) != g.m {
 		return nil, fmt.Errorf("contin: %d uncertainties for %d lags: %w", len(sigma), g.m, ErrLength)
 	}
@@ -302,6 +305,8 @@ func InvertFrom(g *Grid, y, sigma []float64, s *Settings, prev *Result) (*Result
 	if prev != nil && prev.grid == g && len(prev.refSolution) == p.N {
 		p.warmFromSolution(prev.refSolution)
 		p.prev = prev
+	} else if st.Start != nil {
+		p.warmFromSolution(append(slices.Clone(st.Start), 0)[:p.N])
 	}
 	return p.run(sigma == nil)
 }
@@ -680,8 +685,9 @@ func (p *problem) probReject(v float64) float64 {
 // so that the steps stay short: a solve far from its start costs many
 // active-set iterations, and a broad solution at a large λ the Gram rows
 // of its many passive rates. The cold start solves the middle strength
-// first and the reference λ = LambdaMin from it (a regularised problem
-// from x = 0 takes fewer iterations than the nearly unregularised one).
+// first (from Settings.Start or x = 0) and the reference λ = LambdaMin
+// from it: a regularised problem takes fewer iterations from there than
+// the nearly unregularised one.
 //
 // The bracket is the full scan's because V, and so P_reject, does not
 // decrease as α grows: with Φ = ||Lx/w||², the minimisers x₁, x₂ at

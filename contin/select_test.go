@@ -279,3 +279,73 @@ func TestInvertFromMatchesCold(t *testing.T) {
 		t.Errorf("warm starts took %d iterations, cold %d", warmIters, coldIters)
 	}
 }
+
+// TestStartMatchesCold: a first solve started from Settings.Start (a good
+// guess over the true rates, one far from them, and zeros) chooses the
+// same λ as from x = 0 and the amplitudes agree to 1e-9 of the norm
+// (strictly convex subproblems: only rounding depends on the start); the
+// good guess saves iterations over the family. Bad starts are refused.
+func TestStartMatchesCold(t *testing.T) {
+	g, tau := testGrid(t)
+	gam := g.GammaPerS()
+	bump := func(centre, width float64) []float64 {
+		x := make([]float64, len(gam))
+		for j, v := range gam {
+			if u := math.Log(v/centre) / width; math.Abs(u) < 2 {
+				x[j] = math.Exp(-u * u / 2)
+			}
+		}
+		return x
+	}
+	cases := append(append([]recoveryCase{}, unimodalCases...), bimodalCases...)
+	var coldIters, goodIters int
+	for _, c := range cases {
+		y, sig := noisy(g1Of(c.pops, tau), 1e-3, 70)
+		cold, err := Invert(g, y, sig, nil)
+		if err != nil {
+			t.Fatal(err)
+		}
+		coldIters += cold.Iterations
+		m := meanRate(c.pops)
+		for k, start := range [][]float64{bump(m, 0.4), bump(m*1e3, 0.2), make([]float64, len(gam))} {
+			s := DefaultSettings()
+			s.Start = start
+			r, err := Invert(g, y, sig, s)
+			if err != nil {
+				t.Fatal(err)
+			}
+			if k == 0 {
+				goodIters += r.Iterations
+			}
+			if r.Lambda != cold.Lambda {
+				t.Errorf("%s start %d: λ = %.6g, cold %.6g", c.name, k, r.Lambda, cold.Lambda)
+				continue
+			}
+			d := make([]float64, len(r.Amplitude))
+			floats.SubTo(d, r.Amplitude, cold.Amplitude)
+			if e := floats.Norm(d, 2) / floats.Norm(cold.Amplitude, 2); !(e <= 1e-9) {
+				t.Errorf("%s start %d: amplitudes differ by %.3g of the norm", c.name, k, e)
+			}
+		}
+	}
+	t.Logf("active-set iterations: %d cold, %d from a guess", coldIters, goodIters)
+	if !(goodIters < coldIters) {
+		t.Errorf("a good start took %d iterations, cold %d", goodIters, coldIters)
+	}
+	y, sig := noisy(g1Of(unimodalCases[0].pops, tau), 1e-3, 70)
+	for _, c := range []struct {
+		start []float64
+		want  error
+	}{
+		{make([]float64, len(gam)-1), ErrLength},
+		{append(make([]float64, len(gam)-1), -1), ErrBadSettings},
+		{append(make([]float64, len(gam)-1), math.NaN()), ErrBadSettings},
+		{append(make([]float64, len(gam)-1), math.Inf(1)), ErrBadSettings},
+	} {
+		s := DefaultSettings()
+		s.Start = c.start
+		if _, err := Invert(g, y, sig, s); !errors.Is(err, c.want) {
+			t.Errorf("start %v…: error %v, want %v", c.start[len(c.start)-1:], err, c.want)
+		}
+	}
+}

@@ -177,6 +177,7 @@ func distribution(m *dls.Measurement, fit *cumulants.Result, st state, meta dls.
 	// against the slowest component; it stays for data whose baseline the
 	// lag window did not reach.
 	cs.Baseline = cs.Baseline && !fit.BaselineReached
+	cs.Start = cumulantStart(grid.GammaPerS(), fit)
 	inv, err := contin.Invert(grid, g1, sg, &cs)
 	if err != nil {
 		return fail(err)
@@ -253,6 +254,32 @@ func distribution(m *dls.Measurement, fit *cumulants.Result, st state, meta dls.
 	}
 	r.Distribution = sd
 	return warn
+}
+
+// cumulantStart returns amplitudes for the inversion's first solve to
+// start from: a log-normal bump in ln Γ at the cumulant mean rate Γ̄ with
+// the width its PDI gives, σ_ln = √ln(1 + PDI) (PDI taken within
+// [0.01, 1]), cut at ±2σ_ln. The rates it covers form the first passive
+// set, which saves the iterations that would add them one by one from
+// x = 0; the solution does not depend on it (contin.Settings.Start). nil
+// when the fit gives no positive rate.
+func cumulantStart(gammaPerS []float64, fit *cumulants.Result) []float64 {
+	g := fit.GammaPerS
+	if !(g > 0) || math.IsInf(g, 1) {
+		return nil
+	}
+	pdi := fit.PDI
+	if !(pdi >= 0.01) {
+		pdi = 0.01
+	}
+	sl := math.Sqrt(math.Log(1 + math.Min(pdi, 1)))
+	x := make([]float64, len(gammaPerS))
+	for j, gj := range gammaPerS {
+		if u := math.Log(gj/g) / sl; math.Abs(u) < 2 {
+			x[j] = math.Exp(-u * u / 2)
+		}
+	}
+	return x
 }
 
 // Sizes the rate grid is allowed to reach (common practice): particles
