@@ -30,10 +30,13 @@ type linSolver interface {
 	remove(pas []int, k int)
 	// solve sets s[pas[i]] to the unconstrained minimiser on pas.
 	solve(pas []int, s []float64)
-	// grad sets w = g − Hx (minus the gradient) for every variable and
-	// tol to the rounding bound of each w_j: an entry w_j ≤ tol_j counts
-	// as zero.
-	grad(pas []int, x, w, tol []float64)
+	// grad sets w = g − Hx (minus the gradient) for every variable, and
+	// ru to the regulariser's part of the rounding bound (for tolAt).
+	grad(pas []int, x, w, ru []float64)
+	// tolAt returns the rounding bound of w_j after grad: an entry
+	// w_j ≤ tolAt counts as zero. Only the candidates for addition need
+	// it, so it is computed for them alone.
+	tolAt(pas []int, x, ru []float64, j int) float64
 	// lower returns the lower-triangular factor C (C·C' = H_PP, in pas
 	// order) and its row stride.
 	lower() ([]float64, int)
@@ -133,8 +136,10 @@ func (a *activeSet) run(lin linSolver, maxIter int) (iters int, st solveStatus) 
 	for {
 		lin.grad(a.pas, a.x, a.w, a.tol)
 		t, best := -1, 0.0
+		// The largest w_j above its rounding bound, the first of equal
+		// ones; the bound is computed only for entries that would win.
 		for j := 0; j < a.nc; j++ {
-			if a.pos[j] < 0 && !a.skip[j] && a.w[j] > a.tol[j] && a.w[j] > best {
+			if a.pos[j] < 0 && !a.skip[j] && a.w[j] > best && a.w[j] > lin.tolAt(a.pas, a.x, a.tol, j) {
 				t, best = j, a.w[j]
 			}
 		}
@@ -360,7 +365,8 @@ func (e *neSolver) solve(pas []int, s []float64) {
 	}
 }
 
-// grad computes w = g − Gx − α²Rx and the rounding bound
+// grad computes w = g − Gx − α²Rx, and ru_j = α²Σ_k |R_jk||x_k| for the
+// rounding bound that tolAt completes,
 //
 //	tol_j = tolFactor·(|g_j| + Σ_k G_jk|x_k| + α²Σ_k |R_jk||x_k|),
 //
@@ -374,17 +380,15 @@ func (e *neSolver) grad(pas []int, x, w, tol []float64) {
 	N, S := e.N, e.S
 	w, tol = w[:N], tol[:N]
 	copy(w, e.g[:N])
-	for j, v := range e.g[:N] {
-		tol[j] = math.Abs(v)
+	for j := range tol {
+		tol[j] = 0
 	}
 	for _, k := range pas {
 		xk := x[k]
 		if xk == 0 {
 			continue
 		}
-		gk := e.G[k*S : k*S+N]
-		floats.AddScaled(w, -xk, gk)
-		floats.AddScaled(tol, math.Abs(xk), gk)
+		floats.AddScaled(w, -xk, e.G[k*S:k*S+N])
 	}
 	if a2 := e.a2; a2 != 0 {
 		n, rb := e.n, e.rband
@@ -418,10 +422,19 @@ func (e *neSolver) grad(pas []int, x, w, tol []float64) {
 			band(j)
 		}
 	}
-	f := e.tolFactor
-	for j := range tol {
-		tol[j] *= f
+}
+
+// tolAt returns tol_j of grad's comment: the same terms added in the same
+// order as an elementwise sum over the passive rows would add them.
+func (e *neSolver) tolAt(pas []int, x, ru []float64, j int) float64 {
+	S := e.S
+	t := math.Abs(e.g[j])
+	for _, k := range pas {
+		if xk := x[k]; xk != 0 {
+			t += math.Abs(xk) * e.G[k*S+j]
+		}
 	}
+	return (t + ru[j]) * e.tolFactor
 }
 
 func (e *neSolver) lower() ([]float64, int) { return e.C, e.N }

@@ -194,7 +194,11 @@ func (q *qrSolver) solve(pas []int, s []float64) {
 // grad and tol use the normal equations: the gradient g − Hx is a forward
 // product, accurate to eps·(|g| + |H||x|) however ill-conditioned H is;
 // only solving with H_PP needs the QR factor.
-func (q *qrSolver) grad(pas []int, x, w, tol []float64) { q.ne.grad(pas, x, w, tol) }
+func (q *qrSolver) grad(pas []int, x, w, ru []float64) { q.ne.grad(pas, x, w, ru) }
+
+func (q *qrSolver) tolAt(pas []int, x, ru []float64, j int) float64 {
+	return q.ne.tolAt(pas, x, ru, j)
+}
 
 func (q *qrSolver) lower() ([]float64, int) {
 	N, rows := q.N, q.rows
