@@ -149,22 +149,22 @@ const (
 var neCondMax = 1e9
 
 type workspace struct {
-	sw, wy, fit []float64
-	B, G, gv    []float64
-	inv         []float64
-	as          *activeSet
-	ne          neSolver
-	qr          *qrSolver
-	sols        []float64
+	sw, w, wy, fit []float64
+	G, gv          []float64
+	inv            []float64
+	as             *activeSet
+	ne             neSolver
+	qr             *qrSolver
+	sols           []float64
 }
 
 func newWorkspace(g *Grid) *workspace {
 	N := g.n + 1
 	ws := &workspace{
 		sw:  make([]float64, g.m),
+		w:   make([]float64, g.m),
 		wy:  make([]float64, g.m),
 		fit: make([]float64, g.m),
-		B:   make([]float64, N*g.m),
 		G:   make([]float64, N*N),
 		gv:  make([]float64, N),
 		inv: make([]float64, N*N),
@@ -180,9 +180,14 @@ func newWorkspace(g *Grid) *workspace {
 		z:      make([]float64, N),
 		depTol: neDepTol,
 		have:   make([]bool, N),
-		bw:     ws.B,
+		at:     g.at,
+		w:      ws.w,
+		ct:     make([]float64, g.m),
 		m:      g.m,
 		supp:   g.supp,
+		js:     make([]int, 0, N),
+		ls:     make([]int, 0, N),
+		dv:     make([]float64, N),
 	}
 	return ws
 }
@@ -366,8 +371,8 @@ func checkDecay(g *Grid, y, sigma []float64) error {
 	return nil
 }
 
-// prepare forms the square-root weights, the right-hand side [A 1]'Wy and
-// the diagonal of the Gram matrix G = [A 1]'W[A 1]. The rows of G are
+// prepare forms the weights, the right-hand side [A 1]'Wy and the
+// diagonal of the Gram matrix G = [A 1]'W[A 1]. The rows of G are
 // formed when their variable first enters a passive set (neSolver.ensure):
 // the gradient and the passive-set factor need only those, and typically
 // a third of the rates ever become passive.
@@ -381,6 +386,7 @@ func (p *problem) prepare(sigma []float64) {
 			sw = 1 / sigma[i] // 0 for +Inf
 		}
 		ws.sw[i] = sw
+		ws.w[i] = sw * sw
 		ws.wy[i] = sw * sw * p.y[i]
 		if sw != ws.sw[0] {
 			constant = false
@@ -396,21 +402,21 @@ func (p *problem) prepare(sigma []float64) {
 		for j := 0; j < S; j++ {
 			ws.G[j*S+j] = ne.c * ne.unit[j*S+j]
 		}
-	} else {
-		ne.unit = nil
-		for j := 0; j < S; j++ {
-			l := g.supp[j]
-			a := g.at[j*m : j*m+l]
-			b := ws.B[j*m : j*m+l]
-			for i, v := range a {
-				b[i] = ws.sw[i] * v
-			}
-			ws.G[j*S+j] = floats.Dot(b, b)
-		}
 	}
+	// A'Wy, and for per-point weights the diagonal G_jj = Σ_i W_i A_ij²:
+	// the rows of A and of A² against Wy and W, four at a time.
+	js, ls := ne.js[:0], ne.ls[:0]
 	for j := 0; j < S; j++ {
-		l := g.supp[j]
-		ws.gv[j] = floats.Dot(g.at[j*m:j*m+l], ws.wy[:l])
+		js, ls = append(js, j), append(ls, g.supp[j])
+	}
+	dots(ws.wy, g.at, m, js, ls, ws.gv)
+	if !constant {
+		ne.unit = nil
+		d := ne.dv[:S]
+		dots(ws.w, g.at2, m, js, ls, d)
+		for j, v := range d {
+			ws.G[j*S+j] = v
+		}
 	}
 	p.trG = 0
 	for j := 0; j < g.n; j++ {

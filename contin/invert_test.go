@@ -563,11 +563,12 @@ func TestConcurrentAndReproducible(t *testing.T) {
 	}
 }
 
-// TestLazyGramRows: rows of G formed on demand, in any order, equal the
-// full Gram matrix [A 1]'W[A 1] bit for bit (the same dot products over the
-// same supports), for per-point weights and for equal weights (then the
-// grid's unit matrix, scaled); and a sum over the kernel by a plain loop
-// agrees to rounding (1e-13 relative: sums of at most m positive terms).
+// TestLazyGramRows: rows of G formed on demand, in any order, hold
+// G_jk = Σ_i (W_i A_ij)·A_ik over the common support (j the row formed
+// first; the diagonal Σ_i W_i A_ij²), bit for bit as dot computes it, and
+// for equal weights the grid's unit matrix scaled; and a plain loop over
+// the kernel agrees to rounding (1e-13 relative: sums of at most m
+// positive terms).
 func TestLazyGramRows(t *testing.T) {
 	g, tau := testGrid(t)
 	y, sig := noisy(g1Of([]population{{3000, 0.2, 1}}, tau), 1e-3, 12)
@@ -576,6 +577,10 @@ func TestLazyGramRows(t *testing.T) {
 	}
 	S, m := g.stride, g.m
 	order := rand.New(rand.NewPCG(3, 4)).Perm(S)
+	pos := make([]int, S)
+	for k, j := range order {
+		pos[j] = k
+	}
 	equal := make([]float64, m)
 	for i := range equal {
 		equal[i] = 2e-3
@@ -587,33 +592,38 @@ func TestLazyGramRows(t *testing.T) {
 		for _, k := range order {
 			ws.ne.ensure(k)
 		}
-		full := make([]float64, S*S)
-		sw := make([]float64, m)
-		b := make([]float64, S*m)
-		for i := range sw {
-			sw[i] = 1 / sigma[i]
+		isEqual := &sigma[0] == &equal[0]
+		w := make([]float64, m)
+		for i := range w {
+			w[i] = (1 / sigma[i]) * (1 / sigma[i])
 		}
-		for j := 0; j < S; j++ {
-			for i := 0; i < m; i++ {
-				b[j*m+i] = sw[i] * g.at[j*m+i]
-			}
-		}
-		gram(full, S, b, m, g.supp)
-		if &sigma[0] == &equal[0] {
-			c := sw[0] * sw[0] // as prepare scales the unit matrix
-			for i, v := range g.unitGram() {
-				full[i] = c * v
-			}
-		}
+		c := w[0] // as prepare scales the unit matrix
 		for j := 0; j < S; j++ {
 			for k := 0; k < S; k++ {
-				got, want := ws.G[j*S+k], full[j*S+k]
+				var want float64
+				switch r, o := j, k; {
+				case isEqual:
+					want = c * g.unitGram()[j*S+k]
+				case j == k:
+					want = dot(w[:g.supp[j]], g.at2[j*m:])
+				default:
+					if pos[o] < pos[r] {
+						r, o = o, r
+					}
+					l := min(g.supp[r], g.supp[o])
+					cr := make([]float64, l)
+					for i := range cr {
+						cr[i] = w[i] * g.at[r*m+i]
+					}
+					want = dot(cr, g.at[o*m:])
+				}
+				got := ws.G[j*S+k]
 				if math.Float64bits(got) != math.Float64bits(want) {
-					t.Fatalf("equal weights %v: G[%d][%d] = %v, full matrix %v", &sigma[0] == &equal[0], j, k, got, want)
+					t.Fatalf("equal weights %v: G[%d][%d] = %v, want %v", isEqual, j, k, got, want)
 				}
 				var plain float64
 				for i := 0; i < m; i++ {
-					plain += sw[i] * sw[i] * g.at[j*m+i] * g.at[k*m+i]
+					plain += w[i] * g.at[j*m+i] * g.at[k*m+i]
 				}
 				if !withinAbs(got, plain, 1e-13*math.Abs(plain)) {
 					t.Fatalf("G[%d][%d] = %v, plain sum %v", j, k, got, plain)

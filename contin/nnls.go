@@ -247,15 +247,20 @@ type neSolver struct {
 	have []bool
 	unit []float64 // unit-weight Gram matrix (stride S) when all weights equal c, else nil
 	c    float64
-	bw   []float64 // weighted kernel rows W½A (stride m), when unit is nil
+	at   []float64 // kernel rows (the grid's, stride m), when unit is nil,
+	w    []float64 // the weights W_i,
+	ct   []float64 // and scratch for W·A_t
 	m    int
 	supp []int
+	js   []int     // scratch of ensure: rows still to form,
+	ls   []int     // their lengths,
+	dv   []float64 // and their dot products
 }
 
 // ensure forms row t of G (and, by symmetry, column t): from the scaled
-// unit-weight matrix, or as dot products of the weighted kernel rows,
-// with the same arithmetic (floats.Dot over the common support) as a
-// full Gram matrix, so the entries are bit for bit the same.
+// unit-weight matrix, or as G_tj = Σ_i (W_i A_it)·A_ij over the two
+// columns' common support (dots). An entry is formed once, by whichever
+// of its two rows comes first.
 func (e *neSolver) ensure(t int) {
 	if e.have[t] {
 		return
@@ -269,15 +274,22 @@ func (e *neSolver) ensure(t int) {
 		}
 	} else {
 		m, supp := e.m, e.supp
-		bt := e.bw[t*m : t*m+supp[t]]
+		js, ls := e.js[:0], e.ls[:0]
 		for j := 0; j < S; j++ {
 			if j == t || e.have[j] {
 				continue // the diagonal, or set when row j was formed
 			}
-			l := min(supp[t], supp[j])
-			v := floats.Dot(e.bw[j*m:j*m+l], bt[:l])
-			row[j] = v
-			e.G[j*S+t] = v
+			js, ls = append(js, j), append(ls, min(supp[t], supp[j]))
+		}
+		ct := e.ct[:supp[t]]
+		for i, a := range e.at[t*m : t*m+supp[t]] {
+			ct[i] = e.w[i] * a
+		}
+		v := e.dv[:len(js)]
+		dots(ct, e.at, m, js, ls, v)
+		for k, j := range js {
+			row[j] = v[k]
+			e.G[j*S+t] = v[k]
 		}
 	}
 	e.have[t] = true
