@@ -31,9 +31,9 @@ func benchProblem(m int) (tau, y, sigma []float64) {
 	return tau, y, sigma
 }
 
-// BenchmarkInvert times one inversion with the default settings (α scan,
-// ProbReject selection and its refinement) on a shared grid with the
-// default 100 rates. m=152 is 8 channels per octave from 0.5 µs to 1 s;
+// BenchmarkInvert times one inversion with the default settings (search
+// of the ProbReject bracket and its refinement; "full-scan" solves every
+// lattice strength instead) on a shared grid with the default 100 rates. m=152 is 8 channels per octave from 0.5 µs to 1 s;
 // m=200 continues the same correlator to 67 s. "sigma=nil" uses equal
 // weights, where the Gram matrix comes from the grid.
 func BenchmarkInvert(b *testing.B) {
@@ -47,14 +47,22 @@ func BenchmarkInvert(b *testing.B) {
 			name  string
 			sigma []float64
 		}{{"sigma=per-channel", sigma}, {"sigma=nil", nil}} {
-			b.Run(fmt.Sprintf("m=%d/%s", len(tau), c.name), func(b *testing.B) {
-				b.ReportAllocs()
-				for b.Loop() {
-					if _, err := Invert(g, y, c.sigma, nil); err != nil {
-						b.Fatal(err)
-					}
+			for _, full := range []bool{false, true} {
+				s := DefaultSettings()
+				s.FullScan = full
+				name := fmt.Sprintf("m=%d/%s", len(tau), c.name)
+				if full {
+					name += "/full-scan"
 				}
-			})
+				b.Run(name, func(b *testing.B) {
+					b.ReportAllocs()
+					for b.Loop() {
+						if _, err := Invert(g, y, c.sigma, s); err != nil {
+							b.Fatal(err)
+						}
+					}
+				})
+			}
 		}
 	}
 }
@@ -87,11 +95,17 @@ func TestBenchProblems(t *testing.T) {
 		if err != nil {
 			t.Fatal(err)
 		}
-		r, err := Invert(g, y, sigma, nil)
+		// The scipy script times the full scan (every lattice strength),
+		// the audit setting; the default search chooses the same λ.
+		s := DefaultSettings()
+		s.FullScan = true
+		r, err := Invert(g, y, sigma, s)
 		if err != nil {
 			t.Fatal(err)
 		}
-		s := DefaultSettings()
+		if d, err := Invert(g, y, sigma, nil); err != nil || d.Lambda != r.Lambda {
+			t.Errorf("m=%d: search chose λ = %v (%v), full scan %v", len(tau), d.Lambda, err, r.Lambda)
+		}
 		var lams []float64
 		for _, row := range r.Scan {
 			if !row.Refined {

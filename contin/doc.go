@@ -48,11 +48,14 @@
 //
 // # Choosing α
 //
-// Invert solves on NAlpha log-spaced λ (default 21 values from 1e-10 to
-// 1) from the smallest up, each solve warm-started from the previous
-// passive set, and records every row (λ, α, V, N_DF, ||Lx||, P_reject,
-// GCV, curvature) in Result.Scan. V = Σ W_i r_i² is the weighted residual
-// sum of squares and
+// The strengths tried lie on a lattice of NAlpha log-spaced λ (default 21
+// values from 1e-10 to 1). GCV and LCurve, and ProbReject with
+// Settings.FullScan, solve every lattice strength from the smallest up,
+// each warm-started from the previous passive set; by default ProbReject
+// solves the smallest and searches the lattice for the bracket of its
+// target (below). Every strength solved is a row (λ, α, V, N_DF, ||Lx||,
+// P_reject, GCV, curvature) of Result.Scan. V = Σ W_i r_i² is the weighted
+// residual sum of squares and
 //
 //	N_DF = tr[(G_PP + α²R_PP)⁻¹ G_PP] = p − α²·tr[(G_PP + α²R_PP)⁻¹ R_PP]
 //
@@ -69,9 +72,19 @@
 //
 // choosing the row whose P_reject is closest to 0.5: the smoothest solution
 // whose misfit is not significantly worse than the reference's. The choice
-// is refined by 4 bisection steps in log λ between the two rows that
-// bracket 0.5. (The formula is as generally quoted for CONTIN; from memory,
-// not checked against the 1982 text.) The other criteria:
+// is refined by 4 bisection steps in log λ between the two lattice rows
+// that bracket 0.5. (The formula is as generally quoted for CONTIN; from
+// memory, not checked against the 1982 text.) V cannot fall as α grows
+// (the two optimality inequalities of the minimisers at α₁ < α₂ give
+// ||Lx₂|| ≤ ||Lx₁||, then V₁ ≤ V₂), so P_reject is monotone in λ and the
+// bracket can be searched for: from the middle of the lattice (or, with
+// InvertFrom, from an earlier choice) in steps of 1, 2, 4, … strengths
+// towards the target, then by bisection, each solve warm-started from the
+// nearest one solved. That takes the reference and typically 3–6 lattice
+// strengths instead of 21, with the same bracket, refinement and choice as
+// the full scan (checked by TestSearchMatchesFullScan). The search leaves Picks.GCV and
+// Picks.LCurve at −1; Settings.FullScan restores the complete scan for
+// audit. The other criteria:
 //
 //   - GCV (Golub, Heath & Wahba 1979): minimise N_y·V/(N_y − N_DF)².
 //     It needs no noise level but tends to under-smooth, more so when the
@@ -87,8 +100,8 @@
 //
 //   - Fixed: Settings.Lambda (or Settings.Alpha) as given.
 //
-// Result.Picks records what each criterion would choose, so GCV and the
-// L-curve can serve as cross-checks of the default. The discrepancy
+// After a full scan, Result.Picks records what each criterion would
+// choose, so GCV and the L-curve can serve as cross-checks of the default. The discrepancy
 // principle (V ≈ N_y) is not offered: it trusts σ, which DLS rarely
 // allows.
 //
@@ -96,9 +109,14 @@
 //
 // The active-set method of Lawson & Hanson (1974, ch. 23) on the normal
 // equations (G + α²R) x = A'Wy, as in the fast NNLS of Bro & De Jong
-// (1997): G and A'Wy are formed once per correlogram, and the Cholesky
+// (1997): A'Wy and the diagonal of G are formed once per correlogram, a
+// row of G when its variable first enters a passive set (a third of the
+// rows or fewer are ever needed), and the Cholesky
 // factor of the passive-set matrix grows by one row per added variable and
-// shrinks by Givens rotations when one leaves, O(p²) each. Safeguards:
+// shrinks by Givens rotations when one leaves, O(p²) each. The smallest
+// strength starts from x = 0, or with InvertFrom from the solution of an
+// earlier inversion of similar data; each later one from the nearest
+// solved strength. Safeguards:
 //
 //   - a gradient entry w_j counts as positive only above its own rounding
 //     bound (m + N)·eps·(|g_j| + Σ_k G_jk|x_k| + α²Σ_k|R_jk||x_k|)
@@ -164,7 +182,8 @@
 //     the three outermost bins at either end.
 //   - λ from 1e-10 (the plateau of the practically unregularised
 //     non-negative fit on typical grids: the F-test reference) to 1 (a
-//     featureless hump), 21 values, 4 bisection steps.
+//     featureless hump), 21 values, 4 bisection steps; the lattice
+//     searched, not scanned, for ProbReject.
 //   - ProbReject at 0.5, as Provencher recommends; the free baseline on.
 //
 // Result.MeanRatePerS is the first moment over the whole grid; because of
@@ -189,8 +208,9 @@
 // its supports, R, its trace, and on first use the unit-weight Gram
 // matrix, reused whenever all σ are equal) and is safe for concurrent use.
 // Cache shares grids across a batch keyed by a hash of the lags and
-// settings. Per call, Invert forms G = A'WA (skipped for equal σ), then
-// does O(p²) work per active-set step; scratch space comes from a pool
+// settings. Per call, Invert forms the rows of G = A'WA that the passive
+// sets need (copied from the unit-weight matrix for equal σ), then does
+// O(p²) work per active-set step; scratch space comes from a pool
 // owned by the grid, so a call allocates little beyond its Result.
 //
 // # References

@@ -5,7 +5,6 @@ import (
 	"math"
 	"sync"
 
-	"gonum.org/v1/gonum/floats"
 	"gonum.org/v1/gonum/mat"
 )
 
@@ -63,6 +62,7 @@ type Grid struct {
 	m, n          int
 	stride        int       // n+1: the Gram matrices carry the baseline column
 	at            []float64 // (n+1)×m row-major: row j<n is column j of A, row n is all ones
+	at2           []float64 // the same, squared (the diagonal of A'WA is W against it)
 	supp          []int     // column j of A is zero from lag supp[j] on
 	rband         []float64 // n×5: R[j][j+d] at rband[5j+d+2], d = −2..2
 	trR           float64
@@ -221,6 +221,10 @@ func buildGrid(tau []float64, gs GridSettings) (*Grid, error) {
 		}
 		g.supp[j] = k
 	}
+	g.at2 = make([]float64, len(g.at))
+	for i, v := range g.at {
+		g.at2[i] = v * v
+	}
 
 	// Regulariser: rows of L are second differences of Gt = x/w at the
 	// points −1 … n, with Gt = 0 at the two points beyond each end.
@@ -291,15 +295,19 @@ func (g *Grid) unitGram() []float64 {
 }
 
 // gram sets dst (N×N, full) to b·b' for the N×m row-major b whose row j
-// is zero from column supp[j] on.
+// is zero from column supp[j] on, each entry the dot product (dot.go) of
+// the two rows over their common support.
 func gram(dst []float64, N int, b []float64, m int, supp []int) {
+	js, ls, v := make([]int, 0, N), make([]int, 0, N), make([]float64, N)
 	for j := 0; j < N; j++ {
-		bj := b[j*m : j*m+supp[j]]
+		js, ls = js[:0], ls[:0]
 		for k := j; k < N; k++ {
-			l := min(supp[j], supp[k])
-			v := floats.Dot(bj[:l], b[k*m:k*m+l])
-			dst[j*N+k] = v
-			dst[k*N+j] = v
+			js, ls = append(js, k), append(ls, min(supp[j], supp[k]))
+		}
+		dots(b[j*m:j*m+supp[j]], b, m, js, ls, v)
+		for i, k := range js {
+			dst[j*N+k] = v[i]
+			dst[k*N+j] = v[i]
 		}
 	}
 }

@@ -1,6 +1,7 @@
 package contin
 
 import (
+	"cmp"
 	"fmt"
 	"math"
 	"slices"
@@ -67,9 +68,11 @@ type ScanRow struct {
 }
 
 // Picks holds, for each criterion, the index into Result.Scan of the row
-// that criterion chooses, or −1 when it was not evaluated (a fixed α, or
-// a scan too short for the L-curve). ProbReject includes the bisection
-// rows only when ProbReject is the selected criterion.
+// that criterion chooses, or −1 when it was not evaluated (a fixed α, a
+// scan too short for the L-curve, or GCV and L-curve after ProbReject's
+// search, which solves only part of the lattice: see Settings.FullScan).
+// ProbReject includes the bisection rows only when ProbReject is the
+// selected criterion.
 type Picks struct {
 	ProbReject, GCV, LCurve int
 }
@@ -107,8 +110,9 @@ type Result struct {
 	// solution is zero).
 	SumAmplitude, MeanRatePerS float64
 
-	// Scan lists every strength solved, by increasing α; Chosen indexes
-	// the row the criterion selected.
+	// Scan lists every strength solved, by increasing α (all NAlpha of
+	// them, plus refinements, for a full scan); Chosen indexes the row the
+	// criterion selected.
 	Scan   []ScanRow
 	Chosen int
 	Picks  Picks
@@ -119,6 +123,11 @@ type Result struct {
 	// Warnings lists doubts that did not stop the inversion; each wraps one
 	// of the warning sentinels (ErrIterationLimit, ErrScanEdge, ...).
 	Warnings []error
+
+	// grid and refSolution (the solution at LambdaMin, N values) start
+	// the least-regularised solve of a later InvertFrom.
+	grid        *Grid
+	refSolution []float64
 }
 
 // Thresholds of the solver.
@@ -140,22 +149,22 @@ const (
 var neCondMax = 1e9
 
 type workspace struct {
-	sw, wy, fit []float64
-	B, G, gv    []float64
-	inv         []float64
-	as          *activeSet
-	ne          neSolver
-	qr          *qrSolver
-	sols        []float64
+	sw, w, wy, fit []float64
+	G, gv          []float64
+	inv            []float64
+	as             *activeSet
+	ne             neSolver
+	qr             *qrSolver
+	sols           []float64
 }
 
 func newWorkspace(g *Grid) *workspace {
 	N := g.n + 1
 	ws := &workspace{
 		sw:  make([]float64, g.m),
+		w:   make([]float64, g.m),
 		wy:  make([]float64, g.m),
 		fit: make([]float64, g.m),
-		B:   make([]float64, N*g.m),
 		G:   make([]float64, N*N),
 		gv:  make([]float64, N),
 		inv: make([]float64, N*N),
@@ -170,6 +179,15 @@ func newWorkspace(g *Grid) *workspace {
 		C:      make([]float64, N*N),
 		z:      make([]float64, N),
 		depTol: neDepTol,
+		have:   make([]bool, N),
+		at:     g.at,
+		w:      ws.w,
+		ct:     make([]float64, g.m),
+		m:      g.m,
+		supp:   g.supp,
+		js:     make([]int, 0, N),
+		ls:     make([]int, 0, N),
+		dv:     make([]float64, N),
 	}
 	return ws
 }
@@ -189,6 +207,10 @@ type problem struct {
 	totalIters int
 	qrSolves   int
 	qrReady    bool // ws.qr holds this problem's data rows
+	ft         fTest
+	pDone      []bool  // row → its ProbReject is set
+	prev       *Result // InvertFrom's earlier inversion (same grid and N), or nil
+	refRow     int     // the row solved at LambdaMin (ProbReject's reference)
 }
 
 // Invert computes the regularised non-negative inverse Laplace transform of
@@ -207,6 +229,22 @@ type problem struct {
 // doubts are Result.Warnings. Invert panics if g is nil. It is safe to call
 // concurrently with the same Grid.
 func Invert(g *Grid, y, sigma []float64, s *Settings) (*Result, error) {
+	return InvertFrom(g, y, sigma, s, nil)
+}
+
+// InvertFrom is Invert starting from prev, an earlier inversion on the
+// same grid of similar data (a first pass with other weights, say): the
+// least-regularised solve starts from prev's solution there instead of
+// from x = 0, and ProbReject's search probes the lattice strengths at and
+// above prev's choice first, starting from prev's chosen solution. The
+// minimiser of each strictly convex subproblem does not depend on where
+// the active-set iterations start, and any probe order ends with the same
+// bracket, so neither the result (to rounding) nor the choice of λ
+// depends on prev; a good prev saves most of the iterations, several
+// solves, and the Gram rows of the variables a cold start tries on its
+// way. A nil prev, or one from another grid or baseline setting, means a
+// cold start.
+func InvertFrom(g *Grid, y, sigma []float64, s *Settings, prev *Result) (*Result, error) {
 	if g == nil {
 		panic("contin: nil grid")
 	}
@@ -220,6 +258,9 @@ func Invert(g *Grid, y, sigma []float64, s *Settings) (*Result, error) {
 	}
 	if len(y) != g.m {
 		return nil, fmt.Errorf("contin: %d data values for %d lags: %w", len(y), g.m, ErrLength)
+	}
+	if st.Start != nil && len(st.Start) != g.n {
+		return nil, fmt.Errorf("contin: %d start amplitudes for %d rates: %w", len(st.Start), g.n, ErrLength)
 	}
 	if sigma != nil && len(sigma) != g.m {
 		return nil, fmt.Errorf("contin: %d uncertainties for %d lags: %w", len(sigma), g.m, ErrLength)
@@ -250,6 +291,13 @@ func Invert(g *Grid, y, sigma []float64, s *Settings) (*Result, error) {
 	ws := g.pool.Get().(*workspace)
 	defer g.pool.Put(ws)
 	p := &problem{g: g, ws: ws, y: y, s: st, ny: ny}
+	nr := 1
+	if st.Criterion != Fixed {
+		nr = st.NAlpha + st.Refine
+	}
+	p.rows = make([]ScanRow, 0, nr)
+	p.solIdx = make([]int, 0, nr)
+	p.pDone = make([]bool, 0, nr)
 	p.N = g.n
 	if st.Baseline {
 		p.N = g.n + 1
@@ -259,6 +307,12 @@ func Invert(g *Grid, y, sigma []float64, s *Settings) (*Result, error) {
 		p.maxIter = 3 * p.N
 	}
 	p.prepare(sigma)
+	if prev != nil && prev.grid == g && len(prev.refSolution) == p.N {
+		p.warmFromSolution(prev.refSolution)
+		p.prev = prev
+	} else if st.Start != nil {
+		p.warmFromSolution(append(slices.Clone(st.Start), 0)[:p.N])
+	}
 	return p.run(sigma == nil)
 }
 
@@ -317,8 +371,11 @@ func checkDecay(g *Grid, y, sigma []float64) error {
 	return nil
 }
 
-// prepare forms the square-root weights, the Gram matrix G = [A 1]'W[A 1]
-// and the right-hand side [A 1]'Wy.
+// prepare forms the weights, the right-hand side [A 1]'Wy and the
+// diagonal of the Gram matrix G = [A 1]'W[A 1]. The rows of G are
+// formed when their variable first enters a passive set (neSolver.ensure):
+// the gradient and the passive-set factor need only those, and typically
+// a third of the rates ever become passive.
 func (p *problem) prepare(sigma []float64) {
 	g, ws := p.g, p.ws
 	m, S := g.m, g.stride
@@ -329,38 +386,44 @@ func (p *problem) prepare(sigma []float64) {
 			sw = 1 / sigma[i] // 0 for +Inf
 		}
 		ws.sw[i] = sw
+		ws.w[i] = sw * sw
 		ws.wy[i] = sw * sw * p.y[i]
 		if sw != ws.sw[0] {
 			constant = false
 		}
 	}
-	if constant {
-		// Shared weights: scale the grid's unit Gram matrix.
-		c := ws.sw[0] * ws.sw[0]
-		u := g.unitGram()
-		for i, v := range u {
-			ws.G[i] = c * v
-		}
-	} else {
-		for j := 0; j < S; j++ {
-			a := g.at[j*m : (j+1)*m]
-			b := ws.B[j*m : (j+1)*m]
-			for i, v := range a {
-				b[i] = ws.sw[i] * v
-			}
-		}
-		gram(ws.G, S, ws.B, m, g.supp)
+	ne := &ws.ne
+	for j := range ne.have {
+		ne.have[j] = false
 	}
+	if constant {
+		// Shared weights: rows are the grid's unit Gram matrix, scaled.
+		ne.unit, ne.c = g.unitGram(), ws.sw[0]*ws.sw[0]
+		for j := 0; j < S; j++ {
+			ws.G[j*S+j] = ne.c * ne.unit[j*S+j]
+		}
+	}
+	// A'Wy, and for per-point weights the diagonal G_jj = Σ_i W_i A_ij²:
+	// the rows of A and of A² against Wy and W, four at a time.
+	js, ls := ne.js[:0], ne.ls[:0]
 	for j := 0; j < S; j++ {
-		l := g.supp[j]
-		ws.gv[j] = floats.Dot(g.at[j*m:j*m+l], ws.wy[:l])
+		js, ls = append(js, j), append(ls, g.supp[j])
+	}
+	dots(ws.wy, g.at, m, js, ls, ws.gv)
+	if !constant {
+		ne.unit = nil
+		d := ne.dv[:S]
+		dots(ws.w, g.at2, m, js, ls, d)
+		for j, v := range d {
+			ws.G[j*S+j] = v
+		}
 	}
 	p.trG = 0
 	for j := 0; j < g.n; j++ {
 		p.trG += ws.G[j*S+j]
 	}
-	ws.ne.N = p.N
-	ws.ne.tolFactor = float64(g.m+p.N) * eps
+	ne.N = p.N
+	ne.tolFactor = float64(g.m+p.N) * eps
 	ws.as.init(p.N, g.n)
 }
 
@@ -436,13 +499,19 @@ func (p *problem) solveAt(lambda, a2 float64, refined bool) int {
 	p.nsol++
 	p.rows = append(p.rows, row)
 	p.solIdx = append(p.solIdx, k)
+	p.pDone = append(p.pDone, false)
 	return len(p.rows) - 1
 }
 
 // warmFrom sets the active set to the stored solution of row r.
 func (p *problem) warmFrom(r int) {
+	p.warmFromSolution(p.ws.sols[p.solIdx[r]*p.N : (p.solIdx[r]+1)*p.N])
+}
+
+// warmFromSolution sets the active set to the feasible point sol (N
+// values, non-negative on the rates).
+func (p *problem) warmFromSolution(sol []float64) {
 	as := p.ws.as
-	sol := p.ws.sols[p.solIdx[r]*p.N : (p.solIdx[r]+1)*p.N]
 	as.pas = as.pas[:0]
 	for j := 0; j < p.N; j++ {
 		as.x[j] = sol[j]
@@ -454,10 +523,26 @@ func (p *problem) warmFrom(r int) {
 	}
 }
 
+// latticeLambda returns strength k of the NAlpha log-spaced strengths
+// from LambdaMin to LambdaMax (the ends exact).
+func (s *Settings) latticeLambda(k int) float64 {
+	switch k {
+	case 0:
+		return s.LambdaMin
+	case s.NAlpha - 1:
+		return s.LambdaMax
+	}
+	lo, hi := math.Log(s.LambdaMin), math.Log(s.LambdaMax)
+	return math.Exp(lo + (hi-lo)*float64(k)/float64(s.NAlpha-1))
+}
+
 func (p *problem) run(estimateSigma bool) (*Result, error) {
 	s := p.s
 	nBase := 1
-	if s.Criterion == Fixed {
+	full := s.Criterion != ProbReject || s.FullScan
+	var lo, hi int // rows bracketing the target (search), hi < 0: none
+	switch {
+	case s.Criterion == Fixed:
 		a2 := s.Alpha * s.Alpha
 		lambda := a2 * p.g.trR / p.trG
 		if s.Lambda > 0 {
@@ -465,36 +550,38 @@ func (p *problem) run(estimateSigma bool) (*Result, error) {
 			a2 = p.a2Of(lambda)
 		}
 		p.solveAt(lambda, a2, false)
-	} else {
+	case full:
 		nBase = s.NAlpha
-		lo, hi := math.Log(s.LambdaMin), math.Log(s.LambdaMax)
 		for k := 0; k < nBase; k++ {
-			lambda := math.Exp(lo + (hi-lo)*float64(k)/float64(nBase-1))
-			if k == nBase-1 {
-				lambda = s.LambdaMax
-			}
-			if k == 0 {
-				lambda = s.LambdaMin
-			}
+			lambda := s.latticeLambda(k)
 			p.solveAt(lambda, p.a2Of(lambda), false)
 		}
+	default:
+		lo, hi = p.search()
 	}
 	var warns []error
 	warns = append(warns, p.g.warnings...)
+	if !full {
+		nBase = 0
+	}
 	p.statistics(nBase, &warns)
 
 	picks := Picks{ProbReject: -1, GCV: -1, LCurve: -1}
 	chosen := 0
 	if s.Criterion != Fixed {
-		picks.ProbReject = p.pickProbReject()
-		if s.Criterion == ProbReject && s.Refine > 0 {
-			p.refine()
-			p.statistics(nBase, nil)
-			picks.ProbReject = p.pickProbReject()
+		if full {
+			lo, hi = p.baseBracket()
 		}
-		picks.GCV = p.pickGCV()
-		if nBase >= 5 {
-			picks.LCurve = p.pickLCurve()
+		if s.Criterion == ProbReject && s.Refine > 0 && hi >= 0 {
+			p.refine(lo, hi)
+			p.statistics(0, nil)
+		}
+		picks.ProbReject = p.pickProbReject()
+		if full {
+			picks.GCV = p.pickGCV()
+			if s.NAlpha >= 5 {
+				picks.LCurve = p.pickLCurve()
+			}
 		}
 		switch s.Criterion {
 		case ProbReject:
@@ -509,12 +596,13 @@ func (p *problem) run(estimateSigma bool) (*Result, error) {
 			}
 		}
 	}
-	// Sort the rows by α (refinement rows were appended) and remap.
+	// Sort the rows by α (search and refinement rows were appended out of
+	// order) and remap.
 	order := make([]int, len(p.rows))
 	for i := range order {
 		order[i] = i
 	}
-	sort.SliceStable(order, func(a, b int) bool { return p.rows[order[a]].Lambda < p.rows[order[b]].Lambda })
+	slices.SortStableFunc(order, func(a, b int) int { return cmp.Compare(p.rows[a].Lambda, p.rows[b].Lambda) })
 	inv := make([]int, len(order))
 	rows := make([]ScanRow, len(order))
 	for newI, oldI := range order {
@@ -531,7 +619,7 @@ func (p *problem) run(estimateSigma bool) (*Result, error) {
 	solOf := p.solIdx[chosen]
 	chosen = inv[chosen]
 
-	if s.Criterion != Fixed && (chosen == 0 || chosen == len(rows)-1) {
+	if s.Criterion != Fixed && (rows[chosen].Lambda == s.LambdaMin || rows[chosen].Lambda == s.LambdaMax) {
 		warns = append(warns, fmt.Errorf("contin: %v chose λ = %.3g at the end of the scan [%g, %g]: %w",
 			s.Criterion, rows[chosen].Lambda, s.LambdaMin, s.LambdaMax, ErrScanEdge))
 	}
@@ -545,11 +633,178 @@ func (p *problem) run(estimateSigma bool) (*Result, error) {
 		warns = append(warns, fmt.Errorf("contin: active-set solver stopped after %d iterations at λ = %v: %w",
 			p.maxIter, limited, ErrIterationLimit))
 	}
-	return p.result(rows, chosen, solOf, picks, estimateSigma, warns), nil
+	res := p.result(rows, chosen, solOf, picks, estimateSigma, warns)
+	if s.Criterion != Fixed { // row 0 was solved at LambdaMin
+		k := p.solIdx[p.refRow]
+		res.refSolution = slices.Clone(p.ws.sols[k*p.N : (k+1)*p.N])
+	}
+	return res, nil
 }
 
-// statistics fills ProbReject, GCV and (on the first nBase rows) the
-// L-curve curvature; doubts are appended to warns unless it is nil.
+// fTest holds the reference of the probability to reject: V₀ (floored
+// when the least-regularised fit is exact) and the F distribution with
+// N_DF₀ and N_y − N_DF₀ degrees of freedom.
+type fTest struct {
+	v0, d1, d2 float64
+	exact      bool // V₀ was below the floor
+	fd         distuv.F
+}
+
+// reference sets p.ft from row 0, the least-regularised row.
+func (p *problem) reference() {
+	ref := p.rows[p.refRow]
+	ny := float64(p.ny)
+	ft := fTest{v0: ref.ChiSquare}
+	if floor := 1e-14 * p.yWeightedSq(); ft.v0 < floor {
+		ft.v0, ft.exact = floor, true
+	}
+	ft.d1 = math.Max(ref.DegreesOfFreedom, 1)
+	ft.d2 = math.Max(ny-ref.DegreesOfFreedom, 1)
+	ft.fd = distuv.F{D1: ft.d1, D2: ft.d2}
+	p.ft = ft
+}
+
+// probReject returns the probability to reject of a row with weighted
+// residual sum of squares v against the reference.
+func (p *problem) probReject(v float64) float64 {
+	ft := &p.ft
+	f := (v - ft.v0) / ft.v0 * ft.d2 / ft.d1
+	if !(f > 0) {
+		return 0
+	}
+	pr := ft.fd.CDF(f)
+	if math.IsNaN(pr) {
+		return 1
+	}
+	return math.Min(math.Max(pr, 0), 1)
+}
+
+// search finds, on the lattice of NAlpha strengths that the full scan
+// solves, the first strength whose probability to reject reaches the
+// target, and returns the rows lo (below the target) and hi (at or above
+// it; −1 when no strength reaches it, lo is then the largest).
+//
+// It starts at the middle of the lattice, or with InvertFrom at the
+// strength just above the earlier choice, and steps towards the target
+// by 1, 2, 4, … lattice strengths until the target is bracketed, then
+// bisects the bracket. Each solve starts from the nearest strength solved,
+// so that the steps stay short: a solve far from its start costs many
+// active-set iterations, and a broad solution at a large λ the Gram rows
+// of its many passive rates. The cold start solves the middle strength
+// first (from Settings.Start or x = 0) and the reference λ = LambdaMin
+// from it: a regularised problem takes fewer iterations from there than
+// the nearly unregularised one.
+//
+// The bracket is the full scan's because V, and so P_reject, does not
+// decrease as α grows: with Φ = ||Lx/w||², the minimisers x₁, x₂ at
+// α₁ < α₂ satisfy V₁ + α₁²Φ₁ ≤ V₂ + α₁²Φ₂ and V₂ + α₂²Φ₂ ≤ V₁ + α₂²Φ₁;
+// adding the two gives Φ₂ ≤ Φ₁, and then the first gives V₁ ≤ V₂ (the
+// constraint x ≥ 0 does not enter). Every probe inside the bracket keeps
+// P(klo) < target ≤ P(khi), so the order of the probes does not change
+// the bracket found.
+func (p *problem) search() (lo, hi int) {
+	s := p.s
+	t := s.TargetProbReject
+	n := s.NAlpha
+	k0 := n / 2
+	prev := p.prev
+	if prev != nil && !(prev.Criterion == ProbReject && prev.Lambda > s.LambdaMin && prev.Lambda < s.LambdaMax) {
+		prev = nil
+	}
+	if prev != nil {
+		k := 0
+		for k+1 < n-1 && s.latticeLambda(k+1) <= prev.Lambda {
+			k++
+		}
+		k0 = k + 1
+	}
+	first := -1
+	if p.prev == nil {
+		first = p.solveAt(s.latticeLambda(k0), p.a2Of(s.latticeLambda(k0)), false)
+	}
+	// The reference: from the middle strength's solution (cold) or from
+	// the earlier inversion's reference (InvertFrom).
+	p.refRow = p.solveAt(s.LambdaMin, p.a2Of(s.LambdaMin), false)
+	p.reference()
+	if first < 0 {
+		if prev != nil {
+			p.warmFromSolution(append(slices.Clone(prev.Amplitude), prev.Baseline)[:p.N])
+		} else {
+			p.warmFrom(p.refRow)
+		}
+		first = p.solveAt(s.latticeLambda(k0), p.a2Of(s.latticeLambda(k0)), false)
+	}
+	p.rows[first].ProbReject, p.pDone[first] = p.probReject(p.rows[first].ChiSquare), true
+	klo, khi := 0, n // lattice indices; khi = n: not reached
+	lo, hi = p.refRow, -1
+	up := p.rows[first].ProbReject < t
+	if up {
+		klo, lo = k0, first
+	} else {
+		khi, hi = k0, first
+	}
+	for step := 1; ; step *= 2 {
+		var k int
+		if up {
+			if khi < n || klo >= n-1 {
+				break
+			}
+			k = min(klo+step, n-1)
+		} else {
+			if klo > 0 || khi <= 1 {
+				break
+			}
+			k = max(khi-step, 1)
+		}
+		r := p.probe(k, lo, hi)
+		if p.rows[r].ProbReject >= t {
+			khi, hi = k, r
+		} else {
+			klo, lo = k, r
+		}
+	}
+	for khi-klo > 1 {
+		k := (klo + khi) / 2
+		r := p.probe(k, lo, hi)
+		if p.rows[r].ProbReject >= t {
+			khi, hi = k, r
+		} else {
+			klo, lo = k, r
+		}
+	}
+	return lo, hi
+}
+
+// probe solves lattice strength k, warm-started from whichever of the rows
+// lo and hi (hi < 0: none) is nearer in log λ, and sets its P_reject.
+func (p *problem) probe(k, lo, hi int) int {
+	lambda := p.s.latticeLambda(k)
+	from := lo
+	if hi >= 0 && math.Log(p.rows[hi].Lambda/lambda) < math.Log(lambda/p.rows[lo].Lambda) {
+		from = hi
+	}
+	p.warmFrom(from)
+	r := p.solveAt(lambda, p.a2Of(lambda), false)
+	p.rows[r].ProbReject, p.pDone[r] = p.probReject(p.rows[r].ChiSquare), true
+	return r
+}
+
+// baseBracket returns, for a full scan, the first base row whose
+// probability to reject reaches the target and the row before it (hi < 0
+// when none does).
+func (p *problem) baseBracket() (lo, hi int) {
+	for i := 1; i < p.s.NAlpha; i++ {
+		if p.rows[i].ProbReject >= p.s.TargetProbReject {
+			return i - 1, i
+		}
+	}
+	return 0, -1
+}
+
+// statistics fills GCV and, unless the criterion is Fixed, ProbReject of
+// every row and the L-curve curvature of the first nBase rows (the base
+// scan of a full scan; 0 for a search); doubts are appended to warns
+// unless it is nil.
 func (p *problem) statistics(nBase int, warns *[]error) {
 	rows := p.rows
 	ny := float64(p.ny)
@@ -564,31 +819,28 @@ func (p *problem) statistics(nBase int, warns *[]error) {
 	if p.s.Criterion == Fixed {
 		return
 	}
-	ref := rows[0] // smallest λ of the base scan
-	v0 := ref.ChiSquare
-	floor := 1e-14 * p.yWeightedSq()
-	if v0 < floor {
-		if warns != nil {
-			*warns = append(*warns, fmt.Errorf("contin: least-regularised fit is exact (V = %.3g), F-test degenerate: %w", v0, ErrIllConditioned))
-		}
-		v0 = floor
+	p.reference()
+	if p.ft.exact && warns != nil {
+		*warns = append(*warns, fmt.Errorf("contin: least-regularised fit is exact (V = %.3g), F-test degenerate: %w", rows[p.refRow].ChiSquare, ErrIllConditioned))
 	}
-	d1 := math.Max(ref.DegreesOfFreedom, 1)
-	d2 := math.Max(ny-ref.DegreesOfFreedom, 1)
-	fd := distuv.F{D1: d1, D2: d2}
+	for len(p.pDone) < len(rows) { // rows made without solveAt
+		p.pDone = append(p.pDone, false)
+	}
 	for i := range rows {
-		r := &rows[i]
-		f := (r.ChiSquare - v0) / v0 * d2 / d1
-		if !(f > 0) {
-			r.ProbReject = 0
-			continue
+		if !p.pDone[i] {
+			rows[i].ProbReject = p.probReject(rows[i].ChiSquare)
+			p.pDone[i] = true
 		}
-		pr := fd.CDF(f)
-		if math.IsNaN(pr) {
-			pr = 1
-		}
-		r.ProbReject = math.Min(math.Max(pr, 0), 1)
 	}
+	if nBase > 0 {
+		p.lcurve(nBase)
+	}
+}
+
+// lcurve fills the L-curve curvature of the first nBase rows (the base
+// scan, in increasing α).
+func (p *problem) lcurve(nBase int) {
+	rows := p.rows
 	// L-curve on the base rows, which are in increasing α. Points closer
 	// than lcurveMinStep of the (scaled) curve's diagonal to the last kept
 	// point are pruned first: on the plateau of the nearly unregularised solutions
@@ -703,37 +955,16 @@ func (p *problem) pickLCurve() int {
 	return best
 }
 
-// refine bisects log λ between the base rows that bracket the target
-// probability to reject, warm-starting each solve from the nearer end.
-func (p *problem) refine() {
+// refine bisects log λ between the rows lo and hi that bracket the target
+// probability to reject, warm-starting each solve from the lower end.
+func (p *problem) refine(lo, hi int) {
 	t := p.s.TargetProbReject
-	hi := -1
-	for i := 1; i < p.s.NAlpha; i++ {
-		if p.rows[i].ProbReject >= t {
-			hi = i
-			break
-		}
-	}
-	if hi < 0 {
-		return
-	}
-	lo := hi - 1
-	ny := float64(p.ny)
-	ref := p.rows[0]
-	v0 := math.Max(ref.ChiSquare, 1e-14*p.yWeightedSq())
-	d1 := math.Max(ref.DegreesOfFreedom, 1)
-	d2 := math.Max(ny-ref.DegreesOfFreedom, 1)
-	fd := distuv.F{D1: d1, D2: d2}
 	for step := 0; step < p.s.Refine; step++ {
 		lambda := math.Sqrt(p.rows[lo].Lambda * p.rows[hi].Lambda)
 		p.warmFrom(lo)
 		r := p.solveAt(lambda, p.a2Of(lambda), true)
-		f := (p.rows[r].ChiSquare - v0) / v0 * d2 / d1
-		pr := 0.0
-		if f > 0 {
-			pr = fd.CDF(f)
-		}
-		if pr >= t {
+		p.rows[r].ProbReject, p.pDone[r] = p.probReject(p.rows[r].ChiSquare), true
+		if p.rows[r].ProbReject >= t {
 			hi = r
 		} else {
 			lo = r
@@ -746,6 +977,7 @@ func (p *problem) result(rows []ScanRow, chosen, sol int, picks Picks, estimateS
 	n := g.n
 	x := p.ws.sols[sol*p.N : (sol+1)*p.N]
 	res := &Result{
+		grid:      g,
 		GammaPerS: g.GammaPerS(),
 		Amplitude: slices.Clone(x[:n]),
 		Fitted:    make([]float64, g.m),
@@ -761,14 +993,23 @@ func (p *problem) result(rows []ScanRow, chosen, sol int, picks Picks, estimateS
 	if p.N > n {
 		res.Baseline = x[n]
 	}
-	for i := range res.Fitted {
-		f := res.Baseline
-		for j := 0; j < n; j++ {
-			if x[j] != 0 {
-				f += x[j] * g.at[j*g.m+i]
-			}
+	// Fitted_i = B + Σ_j x_j A_ij over the non-zero x_j, added column by
+	// column in increasing j: the same additions in the same order as a
+	// row-by-row sum, without visiting the zeros.
+	fit := res.Fitted
+	for i := range fit {
+		fit[i] = res.Baseline
+	}
+	for j, xj := range x[:n] {
+		if xj == 0 {
+			continue
 		}
-		res.Fitted[i] = f
+		col := g.at[j*g.m : j*g.m+g.supp[j]]
+		for i, a := range col {
+			fit[i] += xj * a
+		}
+	}
+	for i, f := range fit {
 		res.Residuals[i] = p.y[i] - f
 	}
 	var sx, sxg float64

@@ -314,49 +314,80 @@ func TestNegativeTail(t *testing.T) {
 
 func withinAbs(a, b, tol float64) bool { return math.Abs(a-b) <= tol }
 
-// TestScanConsistency checks invariants of the audit trail: rows sorted by
-// α, α²/λ the same ratio tr(G)/tr(R) on every row, the chosen row and the
-// picks inside the scan, and the result fields equal to the chosen row.
+// TestScanConsistency checks invariants of the audit trail, for the full
+// scan and for the default search: rows sorted by α, α²/λ the same ratio
+// tr(G)/tr(R) on every row, the chosen row and the picks inside the scan,
+// and the result fields equal to the chosen row. The full scan holds every
+// lattice strength; the search holds lattice strengths (the least
+// regularised first) and at most DefaultRefine refinements, at most 8
+// lattice rows (the reference, the middle, at most 4 steps of 1, 2, 4, …
+// to an end of the lattice and 2 bisections of the last step's 4), and no
+// GCV or L-curve pick.
 func TestScanConsistency(t *testing.T) {
 	g, tau := testGrid(t)
 	y, sig := noisy(g1Of([]population{{1000, 0.1, 0.4}, {4000, 0.1, 0.6}}, tau), 1e-3, 9)
-	r, err := Invert(g, y, sig, nil)
-	if err != nil {
-		t.Fatal(err)
+	lattice := map[float64]bool{}
+	ds := DefaultSettings()
+	for k := 0; k < DefaultNAlpha; k++ {
+		lattice[ds.latticeLambda(k)] = true
 	}
-	checkFinite(t, r)
-	ratio := r.Scan[0].Alpha * r.Scan[0].Alpha / r.Scan[0].Lambda
-	nRefined := 0
-	for i, s := range r.Scan {
-		if i > 0 && !(s.Alpha > r.Scan[i-1].Alpha) {
-			t.Fatalf("rows %d, %d not increasing in α", i-1, i)
+	for _, full := range []bool{true, false} {
+		s := DefaultSettings()
+		s.FullScan = full
+		r, err := Invert(g, y, sig, s)
+		if err != nil {
+			t.Fatal(err)
 		}
-		if q := s.Alpha * s.Alpha / s.Lambda; !within(q, ratio, 1e-12) {
-			t.Fatalf("row %d: α²/λ = %g, row 0 %g", i, q, ratio)
+		checkFinite(t, r)
+		ratio := r.Scan[0].Alpha * r.Scan[0].Alpha / r.Scan[0].Lambda
+		nRefined := 0
+		for i, s := range r.Scan {
+			if i > 0 && !(s.Alpha > r.Scan[i-1].Alpha) {
+				t.Fatalf("full=%v: rows %d, %d not increasing in α", full, i-1, i)
+			}
+			if q := s.Alpha * s.Alpha / s.Lambda; !within(q, ratio, 1e-12) {
+				t.Fatalf("full=%v: row %d: α²/λ = %g, row 0 %g", full, i, q, ratio)
+			}
+			if s.Refined {
+				nRefined++
+			} else if !lattice[s.Lambda] {
+				t.Errorf("full=%v: row %d: λ = %v is not a lattice strength", full, i, s.Lambda)
+			}
 		}
-		if s.Refined {
-			nRefined++
+		if r.Scan[0].Lambda != DefaultLambdaMin || nRefined > DefaultRefine {
+			t.Errorf("full=%v: first λ %g, %d refined", full, r.Scan[0].Lambda, nRefined)
 		}
-	}
-	if len(r.Scan) != DefaultNAlpha+nRefined || nRefined > DefaultRefine {
-		t.Errorf("%d rows, %d refined", len(r.Scan), nRefined)
-	}
-	for _, k := range []int{r.Chosen, r.Picks.ProbReject, r.Picks.GCV, r.Picks.LCurve} {
-		if k < 0 || k >= len(r.Scan) {
-			t.Fatalf("index %d outside the scan", k)
+		picks := []int{r.Chosen, r.Picks.ProbReject}
+		if full {
+			if len(r.Scan) != DefaultNAlpha+nRefined {
+				t.Errorf("full scan: %d rows, %d refined", len(r.Scan), nRefined)
+			}
+			picks = append(picks, r.Picks.GCV, r.Picks.LCurve)
+		} else {
+			if n := len(r.Scan) - nRefined; n > 8 {
+				t.Errorf("search: %d lattice rows", n)
+			}
+			if r.Picks.GCV != -1 || r.Picks.LCurve != -1 {
+				t.Errorf("search: picks %+v, want −1 for GCV and L-curve", r.Picks)
+			}
 		}
-	}
-	c := r.Scan[r.Chosen]
-	if r.Chosen != r.Picks.ProbReject || r.Alpha != c.Alpha || r.ChiSquare != c.ChiSquare || r.DegreesOfFreedom != c.DegreesOfFreedom {
-		t.Errorf("result fields differ from the chosen row")
-	}
-	var sx, sxg float64
-	for j, x := range r.Amplitude {
-		sx += x
-		sxg += x * r.GammaPerS[j]
-	}
-	if !within(r.SumAmplitude, sx, 1e-12) || !within(r.MeanRatePerS, sxg/sx, 1e-12) {
-		t.Errorf("SumAmplitude %g MeanRatePerS %g, recomputed %g %g", r.SumAmplitude, r.MeanRatePerS, sx, sxg/sx)
+		for _, k := range picks {
+			if k < 0 || k >= len(r.Scan) {
+				t.Fatalf("full=%v: index %d outside the scan", full, k)
+			}
+		}
+		c := r.Scan[r.Chosen]
+		if r.Chosen != r.Picks.ProbReject || r.Alpha != c.Alpha || r.ChiSquare != c.ChiSquare || r.DegreesOfFreedom != c.DegreesOfFreedom {
+			t.Errorf("full=%v: result fields differ from the chosen row", full)
+		}
+		var sx, sxg float64
+		for j, x := range r.Amplitude {
+			sx += x
+			sxg += x * r.GammaPerS[j]
+		}
+		if !within(r.SumAmplitude, sx, 1e-12) || !within(r.MeanRatePerS, sxg/sx, 1e-12) {
+			t.Errorf("full=%v: SumAmplitude %g MeanRatePerS %g, recomputed %g %g", full, r.SumAmplitude, r.MeanRatePerS, sx, sxg/sx)
+		}
 	}
 }
 
@@ -528,6 +559,76 @@ func TestConcurrentAndReproducible(t *testing.T) {
 		r, _ := Invert(g, ys[k], sigs[k], nil)
 		if enc(r) != serial[k] {
 			t.Errorf("correlogram %d: second serial run differs", k)
+		}
+	}
+}
+
+// TestLazyGramRows: rows of G formed on demand, in any order, hold
+// G_jk = Σ_i (W_i A_ij)·A_ik over the common support (j the row formed
+// first; the diagonal Σ_i W_i A_ij²), bit for bit as dot computes it, and
+// for equal weights the grid's unit matrix scaled; and a plain loop over
+// the kernel agrees to rounding (1e-13 relative: sums of at most m
+// positive terms).
+func TestLazyGramRows(t *testing.T) {
+	g, tau := testGrid(t)
+	y, sig := noisy(g1Of([]population{{3000, 0.2, 1}}, tau), 1e-3, 12)
+	for i := range sig {
+		sig[i] *= 1 + 0.5*math.Sin(float64(i)) // unequal weights
+	}
+	S, m := g.stride, g.m
+	order := rand.New(rand.NewPCG(3, 4)).Perm(S)
+	pos := make([]int, S)
+	for k, j := range order {
+		pos[j] = k
+	}
+	equal := make([]float64, m)
+	for i := range equal {
+		equal[i] = 2e-3
+	}
+	for _, sigma := range [][]float64{sig, equal} {
+		ws := newWorkspace(g)
+		p := &problem{g: g, ws: ws, y: y, s: *DefaultSettings(), ny: m, N: S}
+		p.prepare(sigma)
+		for _, k := range order {
+			ws.ne.ensure(k)
+		}
+		isEqual := &sigma[0] == &equal[0]
+		w := make([]float64, m)
+		for i := range w {
+			w[i] = (1 / sigma[i]) * (1 / sigma[i])
+		}
+		c := w[0] // as prepare scales the unit matrix
+		for j := 0; j < S; j++ {
+			for k := 0; k < S; k++ {
+				var want float64
+				switch r, o := j, k; {
+				case isEqual:
+					want = c * g.unitGram()[j*S+k]
+				case j == k:
+					want = dot(w[:g.supp[j]], g.at2[j*m:])
+				default:
+					if pos[o] < pos[r] {
+						r, o = o, r
+					}
+					l := min(g.supp[r], g.supp[o])
+					cr := make([]float64, l)
+					for i := range cr {
+						cr[i] = w[i] * g.at[r*m+i]
+					}
+					want = dot(cr, g.at[o*m:])
+				}
+				got := ws.G[j*S+k]
+				if math.Float64bits(got) != math.Float64bits(want) {
+					t.Fatalf("equal weights %v: G[%d][%d] = %v, want %v", isEqual, j, k, got, want)
+				}
+				var plain float64
+				for i := 0; i < m; i++ {
+					plain += w[i] * g.at[j*m+i] * g.at[k*m+i]
+				}
+				if !withinAbs(got, plain, 1e-13*math.Abs(plain)) {
+					t.Fatalf("G[%d][%d] = %v, plain sum %v", j, k, got, plain)
+				}
+			}
 		}
 	}
 }

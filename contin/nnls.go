@@ -30,10 +30,13 @@ type linSolver interface {
 	remove(pas []int, k int)
 	// solve sets s[pas[i]] to the unconstrained minimiser on pas.
 	solve(pas []int, s []float64)
-	// grad sets w = g − Hx (minus the gradient) for every variable and
-	// tol to the rounding bound of each w_j: an entry w_j ≤ tol_j counts
-	// as zero.
-	grad(pas []int, x, w, tol []float64)
+	// grad sets w = g − Hx (minus the gradient) for every variable, and
+	// ru to the regulariser's part of the rounding bound (for tolAt).
+	grad(pas []int, x, w, ru []float64)
+	// tolAt returns the rounding bound of w_j after grad: an entry
+	// w_j ≤ tolAt counts as zero. Only the candidates for addition need
+	// it, so it is computed for them alone.
+	tolAt(pas []int, x, ru []float64, j int) float64
 	// lower returns the lower-triangular factor C (C·C' = H_PP, in pas
 	// order) and its row stride.
 	lower() ([]float64, int)
@@ -133,8 +136,10 @@ func (a *activeSet) run(lin linSolver, maxIter int) (iters int, st solveStatus) 
 	for {
 		lin.grad(a.pas, a.x, a.w, a.tol)
 		t, best := -1, 0.0
+		// The largest w_j above its rounding bound, the first of equal
+		// ones; the bound is computed only for entries that would win.
 		for j := 0; j < a.nc; j++ {
-			if a.pos[j] < 0 && !a.skip[j] && a.w[j] > a.tol[j] && a.w[j] > best {
+			if a.pos[j] < 0 && !a.skip[j] && a.w[j] > best && a.w[j] > lin.tolAt(a.pas, a.x, a.tol, j) {
 				t, best = j, a.w[j]
 			}
 		}
@@ -235,6 +240,59 @@ type neSolver struct {
 	p         int
 	tolFactor float64 // relative rounding bound of the gradient entries
 	depTol    float64 // relative pivot below which a variable counts as dependent
+
+	// Rows of G are formed on first use (ensure); the diagonal is always
+	// there. have marks the rows formed; a formed row k has also written
+	// column k, so a later row copies nothing and recomputes nothing.
+	have []bool
+	unit []float64 // unit-weight Gram matrix (stride S) when all weights equal c, else nil
+	c    float64
+	at   []float64 // kernel rows (the grid's, stride m), when unit is nil,
+	w    []float64 // the weights W_i,
+	ct   []float64 // and scratch for W·A_t
+	m    int
+	supp []int
+	js   []int     // scratch of ensure: rows still to form,
+	ls   []int     // their lengths,
+	dv   []float64 // and their dot products
+}
+
+// ensure forms row t of G (and, by symmetry, column t): from the scaled
+// unit-weight matrix, or as G_tj = Σ_i (W_i A_it)·A_ij over the two
+// columns' common support (dots). An entry is formed once, by whichever
+// of its two rows comes first.
+func (e *neSolver) ensure(t int) {
+	if e.have[t] {
+		return
+	}
+	S := e.S
+	row := e.G[t*S : (t+1)*S]
+	if e.unit != nil {
+		u := e.unit[t*S : (t+1)*S]
+		for j, v := range u {
+			row[j] = e.c * v
+		}
+	} else {
+		m, supp := e.m, e.supp
+		js, ls := e.js[:0], e.ls[:0]
+		for j := 0; j < S; j++ {
+			if j == t || e.have[j] {
+				continue // the diagonal, or set when row j was formed
+			}
+			js, ls = append(js, j), append(ls, min(supp[t], supp[j]))
+		}
+		ct := e.ct[:supp[t]]
+		for i, a := range e.at[t*m : t*m+supp[t]] {
+			ct[i] = e.w[i] * a
+		}
+		v := e.dv[:len(js)]
+		dots(ct, e.at, m, js, ls, v)
+		for k, j := range js {
+			row[j] = v[k]
+			e.G[j*S+t] = v[k]
+		}
+	}
+	e.have[t] = true
 }
 
 func (e *neSolver) hAt(j, k int) float64 {
@@ -248,6 +306,7 @@ func (e *neSolver) hAt(j, k int) float64 {
 func (e *neSolver) reset() { e.p = 0 }
 
 func (e *neSolver) add(pas []int, t int) bool {
+	e.ensure(t)
 	p, N := e.p, e.N
 	row := e.C[p*N : p*N+p+1]
 	for i, j := range pas[:p] {
@@ -318,7 +377,8 @@ func (e *neSolver) solve(pas []int, s []float64) {
 	}
 }
 
-// grad computes w = g − Gx − α²Rx and the rounding bound
+// grad computes w = g − Gx − α²Rx, and ru_j = α²Σ_k |R_jk||x_k| for the
+// rounding bound that tolAt completes,
 //
 //	tol_j = tolFactor·(|g_j| + Σ_k G_jk|x_k| + α²Σ_k |R_jk||x_k|),
 //
@@ -332,22 +392,20 @@ func (e *neSolver) grad(pas []int, x, w, tol []float64) {
 	N, S := e.N, e.S
 	w, tol = w[:N], tol[:N]
 	copy(w, e.g[:N])
-	for j, v := range e.g[:N] {
-		tol[j] = math.Abs(v)
+	for j := range tol {
+		tol[j] = 0
 	}
 	for _, k := range pas {
 		xk := x[k]
 		if xk == 0 {
 			continue
 		}
-		gk := e.G[k*S : k*S+N]
-		floats.AddScaled(w, -xk, gk)
-		floats.AddScaled(tol, math.Abs(xk), gk)
+		floats.AddScaled(w, -xk, e.G[k*S:k*S+N])
 	}
 	if a2 := e.a2; a2 != 0 {
 		n, rb := e.n, e.rband
 		x := x[:n]
-		for j := 0; j < n; j++ {
+		band := func(j int) {
 			var v, u float64
 			b := rb[5*j : 5*j+5]
 			for d := max(-2, -j); d <= min(2, n-1-j); d++ {
@@ -358,11 +416,37 @@ func (e *neSolver) grad(pas []int, x, w, tol []float64) {
 			w[j] -= a2 * v
 			tol[j] += a2 * u
 		}
+		// The rows away from both ends have all five band entries; the
+		// same terms in the same order as band, without the bounds.
+		for j := 0; j < min(2, n); j++ {
+			band(j)
+		}
+		for j := 2; j < n-2; j++ {
+			b := rb[5*j : 5*j+5 : 5*j+5]
+			xs := x[j-2 : j+3 : j+3]
+			r0, r1, r2, r3, r4 := b[0]*xs[0], b[1]*xs[1], b[2]*xs[2], b[3]*xs[3], b[4]*xs[4]
+			v := r0 + r1 + r2 + r3 + r4
+			u := math.Abs(r0) + math.Abs(r1) + math.Abs(r2) + math.Abs(r3) + math.Abs(r4)
+			w[j] -= a2 * v
+			tol[j] += a2 * u
+		}
+		for j := max(2, n-2); j < n; j++ {
+			band(j)
+		}
 	}
-	f := e.tolFactor
-	for j := range tol {
-		tol[j] *= f
+}
+
+// tolAt returns tol_j of grad's comment: the same terms added in the same
+// order as an elementwise sum over the passive rows would add them.
+func (e *neSolver) tolAt(pas []int, x, ru []float64, j int) float64 {
+	S := e.S
+	t := math.Abs(e.g[j])
+	for _, k := range pas {
+		if xk := x[k]; xk != 0 {
+			t += math.Abs(xk) * e.G[k*S+j]
+		}
 	}
+	return (t + ru[j]) * e.tolFactor
 }
 
 func (e *neSolver) lower() ([]float64, int) { return e.C, e.N }

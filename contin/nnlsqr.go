@@ -128,7 +128,10 @@ func (q *qrSolver) applyReflector(c int, x []float64) {
 	}
 }
 
-func (q *qrSolver) add(_ []int, t int) bool { return q.addCol(t, false) }
+func (q *qrSolver) add(_ []int, t int) bool {
+	q.ne.ensure(t) // grad works on the normal equations' rows
+	return q.addCol(t, false)
+}
 
 func (q *qrSolver) addCol(t int, force bool) bool {
 	p, rows := q.p, q.rows
@@ -191,7 +194,11 @@ func (q *qrSolver) solve(pas []int, s []float64) {
 // grad and tol use the normal equations: the gradient g − Hx is a forward
 // product, accurate to eps·(|g| + |H||x|) however ill-conditioned H is;
 // only solving with H_PP needs the QR factor.
-func (q *qrSolver) grad(pas []int, x, w, tol []float64) { q.ne.grad(pas, x, w, tol) }
+func (q *qrSolver) grad(pas []int, x, w, ru []float64) { q.ne.grad(pas, x, w, ru) }
+
+func (q *qrSolver) tolAt(pas []int, x, ru []float64, j int) float64 {
+	return q.ne.tolAt(pas, x, ru, j)
+}
 
 func (q *qrSolver) lower() ([]float64, int) {
 	N, rows := q.N, q.rows

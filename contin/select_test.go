@@ -5,6 +5,8 @@ import (
 	"fmt"
 	"math"
 	"testing"
+
+	"gonum.org/v1/gonum/floats"
 )
 
 // TestSelectionFamily: on a family of simulated correlograms (helpers_test
@@ -153,5 +155,197 @@ func TestParseCriterion(t *testing.T) {
 	}
 	if s := Criterion(7).String(); s != "Criterion(7)" {
 		t.Errorf("%q", s)
+	}
+}
+
+// TestSearchMatchesFullScan: the default search and the full scan
+// (Settings.FullScan) must choose the same strength, because V, and with
+// it P_reject, grows monotonically with α for the minimiser of a convex
+// objective (for α₁ < α₂ the two optimality inequalities give
+// ||Lx₂|| ≤ ||Lx₁|| and then V₁ ≤ V₂), so the search of the lattice finds
+// the full scan's bracket. Checked over the recovery family at two noise
+// levels, with σ given and not, and with and without the baseline column.
+// The solutions at the chosen λ are the unique minimisers of the same
+// strictly convex problem reached from different warm starts: equal to
+// 1e-9 of the norm (rounding, as in TestQRMatchesNormalEquations).
+func TestSearchMatchesFullScan(t *testing.T) {
+	g, tau := testGrid(t)
+	cases := append(append([]recoveryCase{}, unimodalCases...), bimodalCases...)
+	solves := 0
+	runs := 0
+	for _, c := range cases {
+		for _, noise := range []float64{1e-4, 3e-3} {
+			for seed := uint64(1); seed <= 2; seed++ {
+				y, sig := noisy(g1Of(c.pops, tau), noise, 60+seed)
+				for _, withSigma := range []bool{true, false} {
+					sg := sig
+					if !withSigma {
+						sg = nil
+					}
+					for _, base := range []bool{true, false} {
+						fs := DefaultSettings()
+						fs.Baseline, fs.FullScan = base, true
+						full, err := Invert(g, y, sg, fs)
+						if err != nil {
+							t.Fatal(err)
+						}
+						s := DefaultSettings()
+						s.Baseline = base
+						name := fmt.Sprintf("%s/noise=%g/seed=%d/sigma=%v/baseline=%v", c.name, noise, seed, withSigma, base)
+						r, err := Invert(g, y, sg, s)
+						if err != nil {
+							t.Fatalf("%s: %v", name, err)
+						}
+						runs++
+						solves += len(r.Scan)
+						if r.Lambda != full.Lambda {
+							t.Errorf("%s: search chose λ = %.6g (P %.4f), full scan %.6g (P %.4f)", name, r.Lambda, r.ProbReject, full.Lambda, full.ProbReject)
+							continue
+						}
+						d := make([]float64, len(r.Amplitude))
+						floats.SubTo(d, r.Amplitude, full.Amplitude)
+						if e := floats.Norm(d, 2); !(e <= 1e-9*floats.Norm(full.Amplitude, 2)) {
+							t.Errorf("%s: amplitudes differ by %.3g of the norm", name, e/floats.Norm(full.Amplitude, 2))
+						}
+						if math.Abs(r.ProbReject-full.ProbReject) > 1e-9 {
+							t.Errorf("%s: P_reject %.12f, full scan %.12f", name, r.ProbReject, full.ProbReject)
+						}
+					}
+				}
+			}
+		}
+	}
+	t.Logf("%d searches, %.1f solves each (full scan: %d + refinements)", runs, float64(solves)/float64(runs), DefaultNAlpha)
+}
+
+// TestInvertFromMatchesCold: a second inversion of the same data with other
+// weights (σ changed by up to ±30 % from point to point, as the pipeline's
+// second pass changes them), started from the first (its least-regularised
+// solution, its choice and its chosen solution), chooses the same λ as a
+// cold start and its amplitudes agree to
+// 1e-9 of the norm: every subproblem is strictly convex, so only rounding
+// depends on the start. A start from another grid is ignored (same
+// result as cold, bit for bit). The warm starts must save active-set
+// iterations over the family (the point of InvertFrom).
+func TestInvertFromMatchesCold(t *testing.T) {
+	g, tau := testGrid(t)
+	other, err := NewGrid(tau[:len(tau)-3], nil)
+	if err != nil {
+		t.Fatal(err)
+	}
+	cases := append(append([]recoveryCase{}, unimodalCases...), bimodalCases...)
+	var coldIters, warmIters int
+	for _, c := range cases {
+		for seed := uint64(1); seed <= 3; seed++ {
+			y, sig := noisy(g1Of(c.pops, tau), 1e-3, 80+seed)
+			sig2 := make([]float64, len(sig))
+			for i := range sig {
+				sig2[i] = sig[i] * (1 + 0.3*math.Sin(0.7*float64(i)+float64(seed)))
+			}
+			first, err := Invert(g, y, sig, nil)
+			if err != nil {
+				t.Fatal(err)
+			}
+			cold, err := Invert(g, y, sig2, nil)
+			if err != nil {
+				t.Fatal(err)
+			}
+			warm, err := InvertFrom(g, y, sig2, nil, first)
+			if err != nil {
+				t.Fatal(err)
+			}
+			name := fmt.Sprintf("%s/seed=%d", c.name, seed)
+			coldIters += cold.Iterations
+			warmIters += warm.Iterations
+			if warm.Lambda != cold.Lambda {
+				t.Errorf("%s: warm start chose λ = %.6g, cold %.6g", name, warm.Lambda, cold.Lambda)
+				continue
+			}
+			d := make([]float64, len(cold.Amplitude))
+			floats.SubTo(d, warm.Amplitude, cold.Amplitude)
+			if e := floats.Norm(d, 2) / floats.Norm(cold.Amplitude, 2); !(e <= 1e-9) {
+				t.Errorf("%s: amplitudes differ by %.3g of the norm", name, e)
+			}
+			y2 := y[:len(y)-3]
+			a, err1 := Invert(other, y2, sig2[:len(y2)], nil)
+			b, err2 := InvertFrom(other, y2, sig2[:len(y2)], nil, first)
+			if err1 != nil || err2 != nil || a.Iterations != b.Iterations || !floats.Same(a.Amplitude, b.Amplitude) {
+				t.Errorf("%s: a start from another grid changed the result (%v, %v)", name, err1, err2)
+			}
+		}
+	}
+	t.Logf("active-set iterations: %d cold, %d warm", coldIters, warmIters)
+	if !(warmIters < coldIters) {
+		t.Errorf("warm starts took %d iterations, cold %d", warmIters, coldIters)
+	}
+}
+
+// TestStartMatchesCold: a first solve started from Settings.Start (a good
+// guess over the true rates, one far from them, and zeros) chooses the
+// same λ as from x = 0 and the amplitudes agree to 1e-9 of the norm
+// (strictly convex subproblems: only rounding depends on the start); the
+// good guess saves iterations over the family. Bad starts are refused.
+func TestStartMatchesCold(t *testing.T) {
+	g, tau := testGrid(t)
+	gam := g.GammaPerS()
+	bump := func(centre, width float64) []float64 {
+		x := make([]float64, len(gam))
+		for j, v := range gam {
+			if u := math.Log(v/centre) / width; math.Abs(u) < 2 {
+				x[j] = math.Exp(-u * u / 2)
+			}
+		}
+		return x
+	}
+	cases := append(append([]recoveryCase{}, unimodalCases...), bimodalCases...)
+	var coldIters, goodIters int
+	for _, c := range cases {
+		y, sig := noisy(g1Of(c.pops, tau), 1e-3, 70)
+		cold, err := Invert(g, y, sig, nil)
+		if err != nil {
+			t.Fatal(err)
+		}
+		coldIters += cold.Iterations
+		m := meanRate(c.pops)
+		for k, start := range [][]float64{bump(m, 0.4), bump(m*1e3, 0.2), make([]float64, len(gam))} {
+			s := DefaultSettings()
+			s.Start = start
+			r, err := Invert(g, y, sig, s)
+			if err != nil {
+				t.Fatal(err)
+			}
+			if k == 0 {
+				goodIters += r.Iterations
+			}
+			if r.Lambda != cold.Lambda {
+				t.Errorf("%s start %d: λ = %.6g, cold %.6g", c.name, k, r.Lambda, cold.Lambda)
+				continue
+			}
+			d := make([]float64, len(r.Amplitude))
+			floats.SubTo(d, r.Amplitude, cold.Amplitude)
+			if e := floats.Norm(d, 2) / floats.Norm(cold.Amplitude, 2); !(e <= 1e-9) {
+				t.Errorf("%s start %d: amplitudes differ by %.3g of the norm", c.name, k, e)
+			}
+		}
+	}
+	t.Logf("active-set iterations: %d cold, %d from a guess", coldIters, goodIters)
+	if !(goodIters < coldIters) {
+		t.Errorf("a good start took %d iterations, cold %d", goodIters, coldIters)
+	}
+	y, sig := noisy(g1Of(unimodalCases[0].pops, tau), 1e-3, 70)
+	for _, c := range []struct {
+		start []float64
+		want  error
+	}{
+		{make([]float64, len(gam)-1), ErrLength},
+		{append(make([]float64, len(gam)-1), -1), ErrBadSettings},
+		{append(make([]float64, len(gam)-1), math.NaN()), ErrBadSettings},
+		{append(make([]float64, len(gam)-1), math.Inf(1)), ErrBadSettings},
+	} {
+		s := DefaultSettings()
+		s.Start = c.start
+		if _, err := Invert(g, y, sig, s); !errors.Is(err, c.want) {
+			t.Errorf("start %v…: error %v, want %v", c.start[len(c.start)-1:], err, c.want)
+		}
 	}
 }

@@ -96,6 +96,23 @@ type Settings struct {
 	// Baseline adds a free (sign-unconstrained, unregularised) constant
 	// column to the model, absorbing a residual baseline error of g1.
 	Baseline bool
+	// FullScan makes ProbReject solve every one of the NAlpha strengths,
+	// as GCV and LCurve always do, so that the scan is complete for audit
+	// and Result.Picks holds the GCV and L-curve choices too. Without it
+	// ProbReject solves the least-regularised strength and searches the
+	// lattice of NAlpha strengths for the two that bracket the target
+	// (typically 3–6 solves instead of NAlpha); P_reject grows with λ, so
+	// the bracket, the refinement and the choice are those of the full
+	// scan.
+	FullScan bool
+	// Start, when not nil, holds NGamma non-negative amplitudes from which
+	// the first solve of a cold inversion starts instead of x = 0: a guess
+	// of where the spectrum lies (from a cumulant fit, say) saves the
+	// iterations that add its rates one by one. The minimiser of each
+	// subproblem does not depend on the start, so the result does not
+	// either (to rounding). InvertFrom's earlier inversion takes
+	// precedence.
+	Start []float64
 	// MaxIter bounds the active-set iterations (additions plus
 	// interpolation steps) per strength; 0 means 3·(number of unknowns).
 	// A solve that hits the bound keeps its last feasible iterate and is
@@ -175,6 +192,11 @@ func (s Settings) normalise() (Settings, error) {
 	}
 	if s.MaxIter < 0 {
 		return bad("MaxIter %d is negative", s.MaxIter)
+	}
+	for j, v := range s.Start {
+		if !(v >= 0) || math.IsInf(v, 1) {
+			return bad("start amplitude %d is %v, want a finite value ≥ 0", j, v)
+		}
 	}
 	return s, nil
 }

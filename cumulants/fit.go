@@ -92,6 +92,11 @@ type Result struct {
 	Warnings []error
 }
 
+// skipUnreadCov leaves out the covariance of fits whose standard errors
+// are not read (prepared.skipCov). A variable only so that tests can
+// compare with computing every covariance.
+var skipUnreadCov = true
+
 // rangeShiftLimit is the relative change of Γ̄ under the range check above
 // which a warning is given (common practice: about 2 %).
 const rangeShiftLimit = 0.02
@@ -125,7 +130,11 @@ func Fit(tau, y, sigma []float64, kind Kind, s *Settings) (*Result, error) {
 	if err != nil {
 		return nil, err
 	}
+	// Without σ the first fit only sets up the second: its standard
+	// errors are wanted only if the second fails.
+	p.skipCov = p.sigmaEstimated && skipUnreadCov
 	res, err := p.fit(s, p.last)
+	p.skipCov = false
 	if err != nil {
 		return nil, p.pointErr(p.first, err)
 	}
@@ -135,12 +144,23 @@ func Fit(tau, y, sigma []float64, kind Kind, s *Settings) (*Result, error) {
 		// axis (short sample times carry shot noise, long ones average it
 		// away), so estimate σ locally from the first fit's residuals and fit
 		// again with those weights, starting from the first fit.
+		sigma0 := p.sigma
 		p.sigma = LocalSigma(res.Residuals, p.first, res.FitLast, 1e-6*p.amp)
 		p.start = res
 		res2, err := p.fit(s, p.last)
 		p.start = nil
 		if err == nil {
 			res = res2
+		} else {
+			// Keep the first fit, now with its standard errors (the same
+			// fit again: same weights, same start). The range check
+			// below then weights with the local σ, as it always has.
+			local := p.sigma
+			p.sigma = sigma0
+			if res1, err1 := p.fit(s, p.last); err1 == nil {
+				res = res1
+			}
+			p.sigma = local
 		}
 		res.SigmaEstimated = true
 	}
@@ -178,6 +198,14 @@ type prepared struct {
 	tailN          int     // number of far channels
 	start          *Result // warm start of a refit
 	fixBase        bool    // hold the baseline at start.Baseline
+	// skipCov leaves out the covariance (GammaSEPerS and PDISE stay 0) of
+	// a fit whose standard errors nobody reads: the equal-weight first
+	// pass, and range-check refits whose shift is within rangeShiftLimit.
+	skipCov bool
+	// Scratch space of nonlinear: channel indices, and lags, values and
+	// weights of the points fitted (three blocks of cap(idxBuf)).
+	idxBuf []int
+	ptBuf  []float64
 }
 
 // pointErr ties err to point i; an index past the data (no channel at or
@@ -376,13 +404,24 @@ func (p *prepared) rangeCheck(s *Settings, r *Result) {
 		if end == r.FitLast || end-p.first+1 < s.MinPoints {
 			continue
 		}
+		// The refit's standard error enters only the test of a shift above
+		// rangeShiftLimit: fit without it first, and again with it (the
+		// same fit, now with its covariance) when the shift is that large.
+		p.skipCov = skipUnreadCov
 		alt, err := p.fit(s, end)
+		p.skipCov = false
 		if err != nil || !(alt.GammaPerS > 0) {
 			continue
 		}
 		ran = true
 		d := math.Abs(alt.GammaPerS - r.GammaPerS)
 		shift = math.Max(shift, d/r.GammaPerS)
+		if !(d/r.GammaPerS > rangeShiftLimit) {
+			continue
+		}
+		if alt, err = p.fit(s, end); err != nil {
+			continue
+		}
 		// The two fits share their data, so the variance of their
 		// difference is about the difference of their variances; a shift
 		// beyond 3 such standard deviations is not noise.

@@ -5,6 +5,9 @@ import (
 	"fmt"
 	"math"
 	"math/rand/v2"
+	"os"
+	"strconv"
+	"strings"
 	"testing"
 
 	"gonum.org/v1/gonum/floats/scalar"
@@ -365,4 +368,131 @@ func meanOf(v []float64) float64 {
 		s += x
 	}
 	return s / float64(len(v))
+}
+
+// TestSkippedCovariancesChangeNothing: leaving out the covariance of the
+// fits whose standard errors are not read (the equal-weight first pass,
+// range-check refits with a shift within 2 %) must give the same Result,
+// bit for bit, as computing all of them: on unimodal and bimodal
+// correlograms (the bimodal one shifts by more than 2 %, so its refits are
+// repeated with their covariance), with σ given and estimated, and on one
+// whose second pass fails (the first-pass fit is then kept with its
+// standard errors).
+func TestSkippedCovariancesChangeNothing(t *testing.T) {
+	tau := multiTau(0.5e-6, 8, 200)
+	a, _, _ := logNormalG1(tau, 4000, 0.05)
+	b, _, _ := logNormalG1(tau, 200, 0.05)
+	mono, _, _ := logNormalG1(tau, 2000, 0.15)
+	bi := make([]float64, len(tau))
+	for i := range bi {
+		bi[i] = 0.3*a[i] + 0.7*b[i]
+	}
+	rng := rand.New(rand.NewPCG(5, 6))
+	type input struct {
+		name  string
+		y     []float64
+		sigma []float64
+	}
+	var inputs []input
+	for _, c := range []struct {
+		name string
+		g1   []float64
+	}{{"mono", mono}, {"bimodal", bi}} {
+		y := correlogram(c.g1, cumulants.G2, 0.9, 1, 1e-3, rng)
+		inputs = append(inputs, input{c.name + "/sigma-nil", y, nil}, input{c.name + "/sigma", y, constant(len(tau), 1e-3)})
+	}
+	// A demo correlogram with dust whose baseline is not reached; its
+	// second pass fails.
+	dustyTau, dustyY := readTwoColumns(t, "../testdata/demo/20_pmma50-P0301-3-dusty.csv")
+	defer func() { *cumulants.SkipUnreadCov = true }()
+	for _, in := range inputs {
+		var got [2]string
+		for k, skip := range []bool{true, false} {
+			*cumulants.SkipUnreadCov = skip
+			r, err := cumulants.Fit(tau, in.y, in.sigma, cumulants.G2, nil)
+			if err != nil {
+				t.Fatalf("%s: %v", in.name, err)
+			}
+			var ws []string
+			for _, w := range r.Warnings {
+				ws = append(ws, w.Error())
+			}
+			c := *r
+			c.Warnings = nil
+			got[k] = fmt.Sprintf("%#v %q", c, ws)
+		}
+		if got[0] != got[1] {
+			t.Errorf("%s: results differ\nskipping: %s\nall:      %s", in.name, got[0], got[1])
+		}
+	}
+	var got [2]string
+	for k, skip := range []bool{true, false} {
+		*cumulants.SkipUnreadCov = skip
+		r, err := cumulants.Fit(dustyTau, dustyY, nil, cumulants.G2, nil)
+		if err != nil {
+			t.Fatal(err)
+		}
+		got[k] = fmt.Sprintf("%v %v %v %v %v", r.GammaPerS, r.GammaSEPerS, r.PDISE, r.RangeShift, r.Warnings)
+	}
+	if got[0] != got[1] {
+		t.Errorf("dusty: results differ\nskipping: %s\nall:      %s", got[0], got[1])
+	}
+}
+
+// readTwoColumns reads the lag and correlation columns of a correlogram
+// CSV file (lines starting with # and the header skipped).
+func readTwoColumns(t *testing.T, path string) (tau, y []float64) {
+	t.Helper()
+	b, err := os.ReadFile(path)
+	if err != nil {
+		t.Fatal(err)
+	}
+	for _, line := range strings.Split(string(b), "\n")[1:] {
+		f := strings.Split(strings.TrimSpace(line), ",")
+		if len(f) != 2 || strings.HasPrefix(f[0], "#") {
+			continue
+		}
+		a, err1 := strconv.ParseFloat(f[0], 64)
+		c, err2 := strconv.ParseFloat(f[1], 64)
+		if err1 != nil || err2 != nil {
+			continue // the header
+		}
+		tau, y = append(tau, a), append(y, c)
+	}
+	return tau, y
+}
+
+// TestUnrolledOrder2MatchesGeneral: the unrolled χ² and normal-equation
+// sums of the second-order model must give the same fits, bit for bit, as
+// the general loop over any order: g2, g2−1 and g1 data (the square or
+// not), σ given and estimated (which also exercises the held baseline of
+// the range-check refits).
+func TestUnrolledOrder2MatchesGeneral(t *testing.T) {
+	tau := multiTau(0.5e-6, 8, 200)
+	g1, _, _ := logNormalG1(tau, 2000, 0.3)
+	rng := rand.New(rand.NewPCG(7, 8))
+	defer func() { *cumulants.UnrolledOrder2 = true }()
+	for _, kind := range []cumulants.Kind{cumulants.G2, cumulants.G2Minus1, cumulants.G1} {
+		base := 1.0
+		if kind != cumulants.G2 {
+			base = 0
+		}
+		y := correlogram(g1, kind, 0.9, base, 1e-3, rng)
+		for _, sigma := range [][]float64{nil, constant(len(tau), 1e-3)} {
+			var got [2]string
+			for k, unrolled := range []bool{true, false} {
+				*cumulants.UnrolledOrder2 = unrolled
+				r, err := cumulants.Fit(tau, y, sigma, kind, nil)
+				if err != nil {
+					t.Fatalf("%v: %v", kind, err)
+				}
+				c := *r
+				c.Warnings = nil
+				got[k] = fmt.Sprintf("%#v %v", c, r.Warnings)
+			}
+			if got[0] != got[1] {
+				t.Errorf("%v, σ given %v: unrolled and general fits differ", kind, sigma != nil)
+			}
+		}
+	}
 }

@@ -21,9 +21,11 @@ type linCov struct {
 func (p *prepared) linear(order, last int) (LinearEstimate, linCov, error) {
 	nc := order + 1
 	ts := p.tau[last]
-	a := mat.NewSymDense(nc, nil)
-	b := mat.NewVecDense(nc, nil)
-	row := make([]float64, nc)
+	// Sums in plain arrays (at most 4×4), copied into gonum's types for
+	// the solve: the same sums as accumulating in them directly.
+	var as [4][4]float64
+	var bs [4]float64
+	var row [4]float64
 	pts := 0
 	e := float64(p.e)
 	for i := p.first; i <= last; i++ {
@@ -39,12 +41,20 @@ func (p *prepared) linear(order, last int) (LinearEstimate, linCov, error) {
 			row[k] = row[k-1] * t
 		}
 		for j := 0; j < nc; j++ {
-			b.SetVec(j, b.AtVec(j)+w*row[j]*z)
+			bs[j] += w * row[j] * z
 			for k := j; k < nc; k++ {
-				a.SetSym(j, k, a.At(j, k)+w*row[j]*row[k])
+				as[j][k] += w * row[j] * row[k]
 			}
 		}
 		pts++
+	}
+	a := mat.NewSymDense(nc, nil)
+	b := mat.NewVecDense(nc, nil)
+	for j := 0; j < nc; j++ {
+		b.SetVec(j, bs[j])
+		for k := j; k < nc; k++ {
+			a.SetSym(j, k, as[j][k])
+		}
 	}
 	if pts < nc+2 {
 		return LinearEstimate{}, linCov{}, fmt.Errorf("%w: %d channels above 3σ of the baseline in the fit range, need %d", ErrTooFewPoints, pts, nc+2)

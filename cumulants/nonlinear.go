@@ -44,7 +44,12 @@ func (p *prepared) nonlinear(s *Settings, lin LinearEstimate, last int, r *Resul
 		lo = 1
 	}
 	k := np - lo
-	idx := make([]int, 0, last-p.first+1+p.tailN)
+	// The point lists live in scratch space shared by the fits of one Fit.
+	if c := len(p.tau); cap(p.idxBuf) < c { // distinct channels: at most all
+		p.idxBuf = make([]int, 0, c)
+		p.ptBuf = make([]float64, 3*c)
+	}
+	idx := p.idxBuf[:0]
 	for k := p.first; k <= last; k++ {
 		idx = append(idx, k)
 	}
@@ -54,9 +59,10 @@ func (p *prepared) nonlinear(s *Settings, lin LinearEstimate, last int, r *Resul
 		}
 	}
 	m := len(idx)
-	t := make([]float64, m)
-	y := make([]float64, m)
-	w := make([]float64, m)
+	c := cap(p.idxBuf)
+	t := p.ptBuf[:m:m]
+	y := p.ptBuf[c : c+m : c+m]
+	w := p.ptBuf[2*c : 2*c+m : 2*c+m]
 	for i, k := range idx {
 		t[i] = p.tau[k] * g0
 		y[i] = p.y[k]
@@ -86,6 +92,9 @@ func (p *prepared) nonlinear(s *Settings, lin LinearEstimate, last int, r *Resul
 	eval := func(q *[5]float64, jtj *[5][5]float64, jtr *[5]float64) float64 {
 		*jtj = [5][5]float64{}
 		*jtr = [5]float64{}
+		if np == 4 && unrolledOrder2 {
+			return evalOrder2(q, jtj, jtr, t, y, w, p.e == 2, lo == 0)
+		}
 		var chi float64
 		for i := range t {
 			res, jac := point(q, i)
@@ -183,6 +192,9 @@ func (p *prepared) nonlinear(s *Settings, lin LinearEstimate, last int, r *Resul
 	if !p.fixBase {
 		p.finish(r, last, k)
 	}
+	if p.skipCov {
+		return nil // the caller needs no standard errors from this fit
+	}
 
 	// Covariance. With σ given: (JᵀWJ)⁻¹. With σ estimated from the
 	// residuals, the weights are themselves noisy and (JᵀWJ)⁻¹ overstates
@@ -239,4 +251,55 @@ func (p *prepared) nonlinear(s *Settings, lin LinearEstimate, last int, r *Resul
 		r.Warnings = append(r.Warnings, errors.New("cumulant fit covariance is singular: standard errors not available"))
 	}
 	return nil
+}
+
+// unrolledOrder2 selects evalOrder2 for second-order fits. A variable only
+// so that tests can compare it with the general loop.
+var unrolledOrder2 = true
+
+// evalOrder2 is eval of the second-order model (parameters B, β, g, v;
+// with fit0 false B is held): the same residuals, gradients and sums as
+// point and the general loop, term by term in the same order, unrolled.
+func evalOrder2(q *[5]float64, jtj *[5][5]float64, jtr *[5]float64, t, y, w []float64, square, fit0 bool) float64 {
+	q0, q1, q2, q3, q4 := q[0], q[1], q[2], q[3], q[4]
+	y, w = y[:len(t)], w[:len(t)]
+	var chi float64
+	for i, ti := range t {
+		ex := math.Exp(-q2 * ti)
+		poly := 1 + q3*ti*ti/2 - q4*ti*ti*ti/6
+		f := ex * poly
+		fe, dfe := f, 1.0
+		if square {
+			fe, dfe = f*f, 2*f
+		}
+		res := y[i] - (q0 + q1*fe)
+		bd := q1 * dfe
+		j0 := 1.0
+		j1 := fe
+		j2 := bd * (-ti * f)
+		j3 := bd * ex * ti * ti / 2
+		wi := w[i]
+		chi += wi * res * res
+		if fit0 {
+			wa := wi * j0
+			jtr[0] += wa * res
+			jtj[0][0] += wa * j0
+			jtj[0][1] += wa * j1
+			jtj[0][2] += wa * j2
+			jtj[0][3] += wa * j3
+		}
+		wa := wi * j1
+		jtr[1] += wa * res
+		jtj[1][1] += wa * j1
+		jtj[1][2] += wa * j2
+		jtj[1][3] += wa * j3
+		wa = wi * j2
+		jtr[2] += wa * res
+		jtj[2][2] += wa * j2
+		jtj[2][3] += wa * j3
+		wa = wi * j3
+		jtr[3] += wa * res
+		jtj[3][3] += wa * j3
+	}
+	return chi
 }

@@ -8,7 +8,9 @@ import (
 	"math"
 	"os"
 	"path/filepath"
+	"syscall"
 	"testing"
+	"time"
 
 	"dlsbatch/dls"
 	"dlsbatch/dls/batch"
@@ -35,9 +37,47 @@ func BenchmarkReadAndAnalyze(b *testing.B) {
 	}
 }
 
+// BenchmarkAnalyze runs the per-measurement pipeline with the default
+// settings of a run (shared kernel cache) on 50 simulated correlograms
+// (writeSimulated: 20–500 nm, no σ column), read once beforehand; one op
+// is one correlogram. cpu-ns/op is the process's CPU time per op, which
+// other work on a shared machine inflates less than the wall time.
+func BenchmarkAnalyze(b *testing.B) {
+	dir := b.TempDir()
+	writeSimulated(b, dir, 50)
+	var ms []*dls.Measurement
+	for i := 0; i < 50; i++ {
+		es := csvdata.ReadFile(filepath.Join(dir, fmt.Sprintf("m%04d.csv", i)), nil)
+		if es[0].Err != nil {
+			b.Fatal(es[0].Err)
+		}
+		ms = append(ms, es[0].M)
+	}
+	s := batch.DefaultSettings()
+	b.ReportAllocs()
+	i := 0
+	c0 := cpuTime()
+	for b.Loop() {
+		if r := batch.Analyze(ms[i%len(ms)], &s); r.Status == dls.StatusError {
+			b.Fatal(r.Message)
+		}
+		i++
+	}
+	b.ReportMetric(float64(cpuTime()-c0)/float64(b.N), "cpu-ns/op")
+}
+
+// cpuTime returns the CPU time (user and system) the process has used.
+func cpuTime() time.Duration {
+	var ru syscall.Rusage
+	if err := syscall.Getrusage(syscall.RUSAGE_SELF, &ru); err != nil {
+		return 0
+	}
+	return time.Duration(ru.Utime.Nano() + ru.Stime.Nano())
+}
+
 // writeSimulated writes n correlogram files of 200 channels (lognormal
 // populations of 20–500 nm, water, 25 °C, 173°, 200 kcps, 100 s) into dir.
-func writeSimulated(b *testing.B, dir string, n int) {
+func writeSimulated(b testing.TB, dir string, n int) {
 	grid, err := sim.NewGrid(sim.DefaultGridSpec())
 	if err != nil {
 		b.Fatal(err)

@@ -29,12 +29,16 @@ type DistributionSettings struct {
 	// Cache shares kernels between measurements with the same lag grid; it
 	// is safe for concurrent use. nil builds a grid per measurement.
 	Cache *contin.Cache
+	// MieCache shares the Mie intensities of the size grid between
+	// measurements with the same rate grid, temperature, medium and optics
+	// (safe for concurrent use); nil computes them per measurement.
+	MieCache *sizedist.WeightCache
 }
 
 // DefaultDistributionSettings returns the documented defaults: the
 // inversion on, contin.DefaultSettings (probability to reject 0.5, free
 // baseline column), the default grid and peak rule, particle index
-// 1.59+0i, vertical polarisation, a fresh kernel cache.
+// 1.59+0i, vertical polarisation, a fresh kernel cache and Mie cache.
 func DefaultDistributionSettings() DistributionSettings {
 	return DistributionSettings{
 		Enabled:           true,
@@ -42,6 +46,7 @@ func DefaultDistributionSettings() DistributionSettings {
 		DefaultParticleRI: complex(1.59, 0),
 		Polarization:      mie.Vertical,
 		Cache:             &contin.Cache{},
+		MieCache:          &sizedist.WeightCache{},
 	}
 }
 
@@ -172,6 +177,7 @@ func distribution(m *dls.Measurement, fit *cumulants.Result, st state, meta dls.
 	// against the slowest component; it stays for data whose baseline the
 	// lag window did not reach.
 	cs.Baseline = cs.Baseline && !fit.BaselineReached
+	cs.Start = cumulantStart(grid.GammaPerS(), fit)
 	inv, err := contin.Invert(grid, g1, sg, &cs)
 	if err != nil {
 		return fail(err)
@@ -191,12 +197,14 @@ func distribution(m *dls.Measurement, fit *cumulants.Result, st state, meta dls.
 		sigma = cumulants.LocalSigma(correlogramResiduals(m, fit, first, inv.Fitted), first, len(m.TauS)-1, 1e-6*fit.Intercept)
 	}
 	g1, sg = fieldCorrelation(m, fit, first, sigma, inv.Fitted)
-	if inv2, err := contin.Invert(grid, g1, sg, &cs); err == nil {
+	// The first pass's least-regularised solution starts the second's
+	// (the same solution to rounding; far fewer active-set iterations).
+	if inv2, err := contin.InvertFrom(grid, g1, sg, &cs, inv); err == nil {
 		inv = inv2
 	}
 	d, err := sizedist.New(sizedist.Input{
 		GammaPerS: inv.GammaPerS, Amplitude: inv.Amplitude, TempK: tK, ViscosityPaS: st.etaPaS,
-		Optics: st.optics, ParticleIndex: mPart, Polarization: s.Polarization,
+		Optics: st.optics, ParticleIndex: mPart, Polarization: s.Polarization, Cache: s.MieCache,
 	})
 	if err != nil {
 		return fail(err)
@@ -246,6 +254,32 @@ func distribution(m *dls.Measurement, fit *cumulants.Result, st state, meta dls.
 	}
 	r.Distribution = sd
 	return warn
+}
+
+// cumulantStart returns amplitudes for the inversion's first solve to
+// start from: a log-normal bump in ln Γ at the cumulant mean rate Γ̄ with
+// the width its PDI gives, σ_ln = √ln(1 + PDI) (PDI taken within
+// [0.01, 1]), cut at ±2σ_ln. The rates it covers form the first passive
+// set, which saves the iterations that would add them one by one from
+// x = 0; the solution does not depend on it (contin.Settings.Start). nil
+// when the fit gives no positive rate.
+func cumulantStart(gammaPerS []float64, fit *cumulants.Result) []float64 {
+	g := fit.GammaPerS
+	if !(g > 0) || math.IsInf(g, 1) {
+		return nil
+	}
+	pdi := fit.PDI
+	if !(pdi >= 0.01) {
+		pdi = 0.01
+	}
+	sl := math.Sqrt(math.Log(1 + math.Min(pdi, 1)))
+	x := make([]float64, len(gammaPerS))
+	for j, gj := range gammaPerS {
+		if u := math.Log(gj/g) / sl; math.Abs(u) < 2 {
+			x[j] = math.Exp(-u * u / 2)
+		}
+	}
+	return x
 }
 
 // Sizes the rate grid is allowed to reach (common practice): particles

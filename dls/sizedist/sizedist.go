@@ -24,6 +24,9 @@ type Input struct {
 	// Huffman convention, imaginary part ≥ 0).
 	ParticleIndex complex128
 	Polarization  mie.Polarization
+	// Cache, when not nil, supplies the Mie intensities of grids and
+	// optics seen before (shared by a batch; safe for concurrent use).
+	Cache *WeightCache
 }
 
 // Distribution holds intensity-, volume- and number-weighted size
@@ -105,7 +108,13 @@ func New(in Input) (*Distribution, error) {
 	if !(total > 0) {
 		return nil, ErrEmpty
 	}
-	c, err := mie.IntensityGrid(diam, in.Optics.WavelengthM, in.Optics.RefractiveIndex, in.ParticleIndex, in.Optics.AngleRad, in.Polarization)
+	var c []float64 // read only: may be shared through the cache
+	var err error
+	if in.Cache != nil {
+		c, err = in.Cache.intensities(diam, in.Optics.WavelengthM, in.Optics.RefractiveIndex, in.ParticleIndex, in.Optics.AngleRad, in.Polarization)
+	} else {
+		c, err = mie.IntensityGrid(diam, in.Optics.WavelengthM, in.Optics.RefractiveIndex, in.ParticleIndex, in.Optics.AngleRad, in.Polarization)
+	}
 	if err != nil {
 		return nil, fmt.Errorf("size distribution: Mie weights: %w", err)
 	}

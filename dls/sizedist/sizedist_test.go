@@ -2,7 +2,9 @@ package sizedist
 
 import (
 	"errors"
+	"fmt"
 	"math"
+	"sync"
 	"testing"
 
 	"gonum.org/v1/gonum/floats/scalar"
@@ -136,5 +138,78 @@ func TestDistributionBadInput(t *testing.T) {
 	in.Amplitude = []float64{0, 0}
 	if _, err := New(in); !errors.Is(err, ErrEmpty) {
 		t.Errorf("all-zero amplitudes: %v", err)
+	}
+}
+
+// TestWeightCache: distributions computed through a WeightCache equal those
+// computed without it bit for bit (the cache returns mie.IntensityGrid of
+// the same arguments), for repeated and for changed optics, from many
+// goroutines at once; a change of any optical input is a different entry,
+// and the cache holds at most WeightCacheSize entries.
+func TestWeightCache(t *testing.T) {
+	gam := logGrid(20, 2e5, 60)
+	amp := make([]float64, len(gam))
+	for i := range amp {
+		amp[i] = math.Exp(-math.Pow(math.Log(gam[i]/3000), 2))
+	}
+	base := Input{GammaPerS: gam, Amplitude: amp, TempK: 298.15, ViscosityPaS: 0.890022e-3,
+		Optics: workedOptics, ParticleIndex: complex(1.5875, 0)}
+	variants := []func(*Input){
+		func(*Input) {},
+		func(in *Input) { in.ParticleIndex = complex(0.1838, 3.4313) },
+		func(in *Input) { in.Optics.AngleRad = math.Pi / 2 },
+		func(in *Input) { in.Optics.WavelengthM = 532e-9 },
+		func(in *Input) { in.Optics.RefractiveIndex = 1.40 },
+		func(in *Input) { in.TempK = 310.15 },
+	}
+	var wc WeightCache
+	var wg sync.WaitGroup
+	errs := make(chan error, 4*len(variants))
+	for rep := 0; rep < 4; rep++ {
+		for k, v := range variants {
+			wg.Add(1)
+			go func() {
+				defer wg.Done()
+				in := base
+				v(&in)
+				want, err := New(in)
+				if err != nil {
+					errs <- err
+					return
+				}
+				in.Cache = &wc
+				got, err := New(in)
+				if err != nil {
+					errs <- err
+					return
+				}
+				for j := range want.Number {
+					if math.Float64bits(got.Number[j]) != math.Float64bits(want.Number[j]) ||
+						math.Float64bits(got.Scatter[j]) != math.Float64bits(want.Scatter[j]) || got.Masked[j] != want.Masked[j] {
+						errs <- fmt.Errorf("variant %d bin %d: cached %v, direct %v", k, j, got.Number[j], want.Number[j])
+						return
+					}
+				}
+			}()
+		}
+	}
+	wg.Wait()
+	close(errs)
+	for err := range errs {
+		t.Error(err)
+	}
+	if n := wc.Len(); n != len(variants) {
+		t.Errorf("%d entries for %d distinct grids and optics", n, len(variants))
+	}
+	for k := 0; k < WeightCacheSize+5; k++ {
+		in := base
+		in.TempK = 290 + float64(k)
+		in.Cache = &wc
+		if _, err := New(in); err != nil {
+			t.Fatal(err)
+		}
+	}
+	if n := wc.Len(); n != WeightCacheSize {
+		t.Errorf("%d entries, want the bound %d", n, WeightCacheSize)
 	}
 }

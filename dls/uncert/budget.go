@@ -5,8 +5,6 @@ import (
 	"fmt"
 	"math"
 
-	"gonum.org/v1/gonum/stat/distuv"
-
 	"dlsbatch/dls"
 	"dlsbatch/dls/medium"
 )
@@ -224,13 +222,13 @@ func ZAverage(in *Inputs) (*Budget, error) {
 	}
 	b := &Budget{
 		ZAvgNm: dNm, CombinedUNm: math.Sqrt(uc2), CoverageFactor: k, Components: comps,
-		CoverageFactorT95: distuv.UnitNormal.Quantile(0.975),
+		CoverageFactorT95: z975,
 	}
 	b.RelativeUPct = 100 * b.CombinedUNm / dNm
 	b.ExpandedUNm = k * b.CombinedUNm
 	if wsDen > 0 {
 		b.EffectiveDOF = uc2 * uc2 / wsDen
-		b.CoverageFactorT95 = distuv.StudentsT{Mu: 0, Sigma: 1, Nu: b.EffectiveDOF}.Quantile(0.975)
+		b.CoverageFactorT95 = t975(b.EffectiveDOF)
 	}
 	vals := []float64{b.ZAvgNm, b.CombinedUNm, b.RelativeUPct, b.ExpandedUNm, b.EffectiveDOF, b.CoverageFactorT95}
 	for _, c := range comps {

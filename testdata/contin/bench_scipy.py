@@ -3,7 +3,9 @@
 benchmark correlograms bench_m*.json written by the Go tests
 (go test ./contin -run TestBenchProblems -update):
 
-  for every strength lambda of the default scan (smallest first):
+  for every strength lambda of the full scan (smallest first; what
+  contin.Invert does with Settings.FullScan, the audit setting; by default
+  it solves the smallest and typically 3-6 others, found by a search):
     alpha^2 = lambda*tr(G)/tr(R); scipy.optimize.nnls on the augmented
     matrix [W^1/2 A, W^1/2 1, -W^1/2 1; alpha L, 0, 0]; chi^2, ||Lx||,
     N_DF on the passive set (thin QR), GCV;
