@@ -148,6 +148,7 @@ func Run(ctx context.Context, cfg *Config) (*Outcome, error) {
 	rels := csvdata.RelativePaths(files, cfg.Paths)
 	var match *sheet.MatchReport
 	if cfg.Sheet != nil {
+		cfg.Sheet.Rename(csvdata.Rel(root, cfg.SheetFile))
 		match = cfg.Sheet.Check(csvdata.Rel(root, cfg.SheetFile), files, rels)
 		for i, f := range match.UnmatchedFiles {
 			match.UnmatchedFiles[i] = csvdata.Rel(root, f)
@@ -295,7 +296,7 @@ func publish(ctx context.Context, cfg *Config, out *resultset.Set, p *publishing
 		Groups: &groups, Samples: o.Samples, Results: o.Results,
 	}
 	set := &report.Set{Doc: doc, HTMLReport: cfg.HTMLReport && o.Complete, Root: p.root, Inputs: p.inputs, Stream: p.stream,
-		Shard: p.shard, Progress: cfg.Progress, Hashes: p.hashes}
+		Shard: p.shard, Progress: cfg.Progress, Hashes: p.hashes, Workers: cfg.Workers}
 	for _, t := range []string{cfg.SheetFile, cfg.SpecFile, cfg.SolventFile, cfg.QCFile} {
 		if t != "" {
 			set.Tables = append(set.Tables, t)

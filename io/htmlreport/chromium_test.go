@@ -5,6 +5,7 @@ import (
 	"os"
 	"os/exec"
 	"path/filepath"
+	"regexp"
 	"strings"
 	"testing"
 	"time"
@@ -72,5 +73,58 @@ func TestChromiumRender(t *testing.T) {
 				t.Errorf("failure message lacks %q:\n%s", tc.want, out)
 			}
 		})
+	}
+}
+
+// printPages prints page to PDF in headless Chromium (A4, the report's
+// print stylesheet) and returns the number of pages.
+func printPages(t *testing.T, page string) int {
+	t.Helper()
+	pdf := filepath.Join(t.TempDir(), "page.pdf")
+	ctx, cancel := context.WithTimeout(context.Background(), 3*time.Minute)
+	defer cancel()
+	cmd := exec.CommandContext(ctx, "/usr/bin/chromium", "--headless", "--no-sandbox", "--disable-gpu", "--no-first-run",
+		"--disable-background-networking", "--disable-component-update", "--disable-sync", "--user-data-dir="+t.TempDir(),
+		"--no-pdf-header-footer", "--virtual-time-budget=10000", "--print-to-pdf="+pdf, "file://"+page)
+	if out, err := cmd.CombinedOutput(); err != nil {
+		t.Fatalf("chromium: %v\n%s", err, out)
+	}
+	b, err := os.ReadFile(pdf)
+	if err != nil {
+		t.Fatal(err)
+	}
+	// Each page is a /Type /Page object (ISO 32000-1, 7.7.3.3); /Pages
+	// is the tree's root.
+	return len(regexp.MustCompile(`/Type\s*/Page[^s]`).FindAll(b, -1))
+}
+
+// Printed, a sample page takes about one A4 page per two runs, plus its
+// head (verdict, summary, runs table): a sample of six runs prints on two
+// to four pages (before the print stylesheet it took 14 pages for three).
+// The index of the demo fits on one or two.
+func TestPrintPages(t *testing.T) {
+	if _, err := os.Stat("/usr/bin/chromium"); err != nil {
+		t.Skip("/usr/bin/chromium is missing")
+	}
+	if testing.Short() {
+		t.Skip("starts a browser: slow")
+	}
+	dir := filepath.Join(t.TempDir(), "report")
+	if _, err := Write(dir, synthReport(1, 6)); err != nil {
+		t.Fatal(err)
+	}
+	n := printPages(t, filepath.Join(dir, SamplePageName(0)))
+	t.Logf("a sample of six runs: %d pages", n)
+	if n < 2 || n > 4 {
+		t.Errorf("a sample of six runs prints on %d pages, want 2 to 4", n)
+	}
+	demo := filepath.Join(t.TempDir(), "demo")
+	if _, err := Write(demo, demoReport(t)); err != nil {
+		t.Fatal(err)
+	}
+	n = printPages(t, filepath.Join(demo, "index.html"))
+	t.Logf("the demo index: %d pages", n)
+	if n < 1 || n > 2 {
+		t.Errorf("the demo index prints on %d pages, want 1 or 2", n)
 	}
 }

@@ -2,6 +2,7 @@ package htmlreport
 
 import (
 	"math"
+	"strings"
 	"testing"
 )
 
@@ -34,6 +35,25 @@ func TestFormats(t *testing.T) {
 		{"no run: dash", meanSD(0, 0, 0, 1), "—"},
 		{"RSD needs two runs", spread(0.4, 1, 1), "—"},
 		{"temperatures", temperatures([]float64{25, 37.04}), "25.0, 37.0"},
+		// Numbers by meaning (issue: the particle index to 4 decimals,
+		// counts as integers).
+		{"particle index: 4 decimals", particleIndex("1.4607063448921334+0i"), "1.4607+0i"},
+		{"particle index with absorption", particleIndex("0.18+3.0835i"), "0.1800+3.0835i"},
+		{"particle index, negative imaginary part", particleIndex("1.5-0.00123i"), "1.5000-0.0012i"},
+		{"particle index: no negative zero", particleIndex("1.5-0.00004i"), "1.5000+0.0000i"},
+		{"particle index, real only", particleIndex("1.59"), "1.5900+0i"},
+		{"particle index that is not a number", particleIndex("rayleigh"), "rayleigh"},
+		{"count of runs", checkValue("runs", 3), "3"},
+		{"count of runs used", checkValue("n_used", 6), "6"},
+		{"PDI check", checkValue("pdi", -0.002039), "-0.0020"},
+		{"RSD check", checkValue("z_avg_rsd_pct", 0.4123), "0.41"},
+		{"intensity above a size", checkValue("intensity_pct_above", 12.0787), "12.08"},
+		{"size check", checkValue("z_avg_nm", 100.95187), "101.0"},
+		{"integral value of an unknown quantity", checkValue("references", 1), "1"},
+		{"other value of an unknown quantity", checkValue("drift_pct", 1.23456), "1.235"},
+		{"count of NaN", count(math.NaN()), "—"},
+		{"tick label with a true minus", tickNumber(-0.005, 3), "−0.005"},
+		{"tick label without negative zero", tickNumber(-1e-18, 3), "0.000"},
 	} {
 		if tc.got != tc.want {
 			t.Errorf("%s: got %q, want %q", tc.name, tc.got, tc.want)
@@ -74,5 +94,29 @@ func TestSettingsRows(t *testing.T) {
 	}
 	if settingsRows(nil) != nil {
 		t.Error("nil settings gave rows")
+	}
+}
+
+// Linear ticks: a round step (1, 2 or 5 × 10^n) with three to six ticks
+// inside the range, labelled with the step's decimals (common practice
+// for plot axes; expected lists worked by hand).
+func TestLinearTicks(t *testing.T) {
+	for _, tc := range []struct {
+		lo, hi float64
+		want   string
+	}{
+		{0.99, 1.93, "1.0 1.2 1.4 1.6 1.8"},
+		{-0.0105, 0.0105, "−0.010 −0.005 0.000 0.005 0.010"},
+		{0, 31.5, "0 10 20 30"},
+		{0, 1.05, "0.0 0.2 0.4 0.6 0.8 1.0"},
+	} {
+		ticks := linearTicks(tc.lo, tc.hi)
+		var got []string
+		for _, tk := range ticks {
+			got = append(got, tk.Label)
+		}
+		if g := strings.Join(got, " "); g != tc.want {
+			t.Errorf("ticks of [%g, %g]: %q, want %q", tc.lo, tc.hi, g, tc.want)
+		}
 	}
 }

@@ -6,14 +6,24 @@ import (
 )
 
 // Run is what a finished run hands to the report: its results, samples,
-// batch outcome and settings.
+// batch outcome and settings, what the batch was made from, and how to
+// write the pages (the fields of Report of the same names).
 type Run struct {
 	Tool, Version, Caution string
 	Settings               any // see Report.Settings
 	Results                []*dls.Result
 	Samples                []*dls.Sample
 	Batch                  spec.Batch
-	Load                   func(i int) (*dls.Result, error) // see Report.Load
+	Load                   func(i int) (*dls.Result, error)        // see Report.Load
+	LoadRecord             func(i int, dst []byte) ([]byte, error) // see Report.LoadRecord
+
+	InputRoot                   string
+	Tables                      []TableFile
+	MeasuredFirst, MeasuredLast string
+
+	Workers  int
+	Progress func(done, total int)
+	Staged   bool
 }
 
 // FromRun builds the report model of a run: the batch banner says whether
@@ -35,5 +45,7 @@ func FromRun(run Run) *Report {
 		}
 	}
 	return &Report{Tool: run.Tool, Version: run.Version, Caution: run.Caution, Settings: run.Settings,
-		Results: run.Results, Samples: run.Samples, Batch: b, Load: run.Load}
+		Results: run.Results, Samples: run.Samples, Batch: b, Load: run.Load, LoadRecord: run.LoadRecord,
+		InputRoot: run.InputRoot, Tables: run.Tables, MeasuredFirst: run.MeasuredFirst, MeasuredLast: run.MeasuredLast,
+		Workers: run.Workers, Progress: run.Progress, Staged: run.Staged}
 }

@@ -37,11 +37,11 @@ func FuzzSampleStrings(f *testing.F) {
 		if err := validate(r); err != nil {
 			t.Fatal(err)
 		}
-		var b bytes.Buffer
-		if err := renderSample(&b, r, 0); err != nil {
+		page, _, err := renderSample(&writer{}, r, 0)
+		if err != nil {
 			t.Fatal(err)
 		}
-		doc := parsePage(t, b.Bytes())
+		doc := parsePage(t, page)
 		if got, want := doc.one(t, "h1", elem("h1")).text(), asText(name); got != want {
 			t.Errorf("h1 %q, want %q", got, want)
 		}
@@ -50,8 +50,8 @@ func FuzzSampleStrings(f *testing.F) {
 				t.Errorf("a <%s> element appeared", el)
 			}
 		}
-		b.Reset()
-		if err := renderIndex(&b, r); err != nil {
+		var b bytes.Buffer
+		if err := renderIndex(&b, r, timeRange{}); err != nil {
 			t.Fatal(err)
 		}
 		idx := parsePage(t, b.Bytes())

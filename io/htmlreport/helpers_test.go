@@ -9,6 +9,7 @@ import (
 	"math"
 	"math/rand/v2"
 	"os"
+	"slices"
 	"strings"
 	"testing"
 
@@ -71,6 +72,7 @@ func demoReport(t testing.TB) *Report {
 	h.Warnings = []string{hostileMessage}
 	h.Assumptions = []string{hostileProduct}
 	h.Params = []dls.Param{{Key: "sample", Value: hostileName, Origin: dls.OriginFile, Where: hostileFile + ":1"}}
+	h.TemperatureC = 37
 	res = append(res, &h)
 
 	z := func(i int) float64 { return res[i].ZAvgNm }
@@ -113,6 +115,15 @@ func demoReport(t testing.TB) *Report {
 				{Quantity: hostileName, Limit: hostileProduct, Value: 1, Pass: true},
 			}},
 		},
+	}
+	// Each sample's temperatures, as qc.Aggregate lists them: the
+	// distinct temperatures of its runs.
+	for _, s := range samples {
+		for _, k := range s.Runs {
+			if !slices.Contains(s.TemperaturesC, res[k].TemperatureC) {
+				s.TemperaturesC = append(s.TemperaturesC, res[k].TemperatureC)
+			}
+		}
 	}
 	return &Report{
 		Title:    "dlsbatch report",
@@ -207,6 +218,22 @@ func synthResult(rng *rand.Rand, tau, diam []float64, dNm float64) *dls.Result {
 	sd.Intensity = lognormal(diam, dNm, 0.15)
 	sd.Volume = lognormal(diam, dNm*0.95, 0.15)
 	sd.Number = lognormal(diam, dNm*0.9, 0.15)
+	// The inversion's audit, as the pipeline records it: g1 with its σ,
+	// model and residuals at every lag, and a scan of 25 strengths.
+	sd.G1 = make([]float64, len(tau))
+	sd.G1Sigma = make([]float64, len(tau))
+	sd.G1Fitted = make([]float64, len(tau))
+	sd.G1Residuals = make([]float64, len(tau))
+	for i, t := range tau {
+		sd.G1Fitted[i] = math.Exp(-gamma * t)
+		sd.G1Sigma[i] = 0.002
+		sd.G1[i] = sd.G1Fitted[i] + 0.002*rng.NormFloat64()
+		sd.G1Residuals[i] = sd.G1[i] - sd.G1Fitted[i]
+	}
+	for k := range 25 {
+		l := math.Pow(10, -10+10*float64(k)/24)
+		sd.Scan = append(sd.Scan, dls.AlphaRow{Lambda: l, Alpha: l / (1 + l), ChiSquare: 190 + rng.Float64(), DegreesOfFreedom: 12.5, NormLx: 0.1 / (l + 1e-3), ProbReject: rng.Float64(), GCV: 1e-5 * rng.Float64(), Chosen: k == 12})
+	}
 	pk := dls.Peak{ModeNm: dNm, MeanNm: dNm, SDNm: 0.15 * dNm, AreaPct: 100, LowNm: dNm / 1.5, HighNm: dNm * 1.5}
 	sum := &dls.WeightSummary{Peaks: []dls.Peak{pk}, MeanNm: dNm, D10Nm: dNm * 0.8, D50Nm: dNm, D90Nm: dNm * 1.2}
 	return &dls.Result{Identity: dls.Identity{Status: dls.StatusOK}, Conditions: dls.Conditions{HasConditions: true, TemperatureC: 25, Solvent: "water", ViscosityMPaS: 0.89, RefractiveIndex: 1.332, WavelengthNm: 633, AngleDeg: 173, QPerM: q}, Cumulants: dls.Cumulants{HasCumulants: true, Method: "nonlinear", Order: 2, GammaMeanPerS: gamma, DiffusionM2PerS: D, ZAvgNm: dNm, ZAvgSENm: 0.3, PDI: 0.05, Intercept: beta, Baseline: 1, BaselineReached: true, FitRMS: 0.003, ReducedChi2: 1, FitPoints: len(tau), FitFirstTauS: tau[0], FitLastTauS: tau[len(tau)/2]}, DistSummary: dls.DistSummary{HasDistribution: true, AlphaCriterion: "prob-reject", Alpha: 0.5, Intensity: sum, Volume: sum, Number: sum, Distribution: sd}, Curves: c, Params: []dls.Param{
@@ -219,13 +246,16 @@ func synthResult(rng *rand.Rand, tau, diam []float64, dNm float64) *dls.Result {
 }
 
 // lognormal returns weights of a log-normal in d (width s in ln d) that
-// sum to 1.
+// sum to 1, zero below 1e-9 of the peak (as a non-negative least-squares
+// solution leaves most bins at exactly zero).
 func lognormal(d []float64, mode, s float64) []float64 {
 	w := make([]float64, len(d))
 	sum := 0.0
 	for i, x := range d {
 		u := math.Log(x/mode) / s
-		w[i] = math.Exp(-u * u / 2)
+		if w[i] = math.Exp(-u * u / 2); w[i] < 1e-9 {
+			w[i] = 0
+		}
 		sum += w[i]
 	}
 	for i := range w {

@@ -56,6 +56,22 @@ type mark struct {
 	Word  string // the word shown
 }
 
+// Shape is the mark's shape as inline SVG: a circle with a tick for pass
+// and ok, a crossed square for fail and error, a triangle with a bar for
+// invalid and warn, a diamond with a bar for anything else.
+func (m mark) Shape() template.HTML {
+	const open = `<svg class="shape" viewBox="0 0 12 12" width="12" height="12" aria-hidden="true" focusable="false">`
+	switch m.Class {
+	case "pass", "ok":
+		return open + `<circle cx="6" cy="6" r="5"/><path d="M3.4 6.3 5.2 8.1 8.7 4.2"/></svg>`
+	case "fail", "error":
+		return open + `<rect x="1.2" y="1.2" width="9.6" height="9.6"/><path d="M3.8 3.8 8.2 8.2M8.2 3.8 3.8 8.2"/></svg>`
+	case "invalid", "warn":
+		return open + `<path d="M6 1.1 11.2 10.6H.8Z"/><path d="M6 4.6V7.4M6 8.6V9"/></svg>`
+	}
+	return open + `<path d="M6 1 11 6 6 11 1 6Z"/><path d="M3.8 6H8.2"/></svg>`
+}
+
 func verdictMark(s *dls.Sample) mark {
 	switch v := verdictOf(s); v {
 	case "":
@@ -91,12 +107,25 @@ type keyValue struct{ Key, Value string }
 
 type indexPage struct {
 	page
+	Record      batchRecord
 	Suitability mark
 	Reason      string
 	Checks      []suitCheck
 	Counts      Counts
 	Rows        []indexRow
+	Problems    int // rows with a problem, listed first
 	Settings    []keyValue
+}
+
+// batchRecord names what the batch was made from: input root, tables
+// with their SHA-256, the tool and version, and when the data were
+// measured.
+type batchRecord struct {
+	Root     string
+	Tables   []TableFile
+	Measured string // "first … last", or "" when no measurement states it
+	Stated   int    // measurements that state a readable measured_at
+	Of       int
 }
 
 type suitCheck struct {
@@ -114,25 +143,39 @@ type checkRow struct {
 }
 
 type indexRow struct {
-	Href    string
-	Verdict mark
-	Name    string
-	Lot     string
-	Product string
-	Role    string
-	Used    int
-	Total   int
-	ZAvg    string
-	PDI     string
-	Flags   []dls.Flag
+	Href         string
+	Verdict      mark
+	Name         string
+	Lot          string
+	Product      string
+	Role         string
+	Temperatures string
+	Used         int
+	Total        int
+	ZAvg         string
+	PDI          string
+	Flags        []dls.Flag
+	Problem      bool   // listed first
+	Why          string // the worst status of its runs, when that puts the row first
 }
 
-func buildIndex(r *Report) indexPage {
+// buildIndex makes the index page; measured is the measured_at range of
+// the batch's runs (see timeRange).
+func buildIndex(r *Report, measured timeRange) indexPage {
 	p := indexPage{
 		page:        newPage(r),
 		Suitability: suitabilityMark(r.Batch.Suitability),
 		Reason:      r.Batch.Reason,
 		Counts:      Count(r.Samples, r.Results),
+		Record:      batchRecord{Root: r.InputRoot, Tables: r.Tables, Of: len(r.Results)},
+	}
+	switch {
+	case r.MeasuredFirst != "" || r.MeasuredLast != "":
+		p.Record.Measured = r.MeasuredFirst + " … " + r.MeasuredLast
+		p.Record.Stated = -1 // given by the caller
+	case measured.n > 0:
+		p.Record.Measured = measured.first + " … " + measured.last
+		p.Record.Stated = measured.n
 	}
 	for _, c := range r.Batch.Checks {
 		sc := suitCheck{checkRow: newCheckRow(c.Check)}
@@ -142,23 +185,74 @@ func buildIndex(r *Report) indexPage {
 		}
 		p.Checks = append(p.Checks, sc)
 	}
-	for i, s := range r.Samples {
-		p.Rows = append(p.Rows, indexRow{
-			Href:    SamplePageName(i),
-			Verdict: verdictMark(s),
-			Name:    s.Name,
-			Lot:     s.Lot,
-			Product: s.Product,
-			Role:    string(s.Role),
-			Used:    len(s.Used),
-			Total:   len(s.Runs),
-			ZAvg:    meanSD(s.ZAvgMeanNm, s.ZAvgSDNm, len(s.Used), 1),
-			PDI:     meanOnly(s.PDIMean, len(s.Used), 3),
-			Flags:   mergeFlags(s.Flags),
-		})
+	for _, i := range problemsFirst(r) {
+		s := r.Samples[i]
+		row := indexRow{
+			Href:         SamplePageName(i),
+			Verdict:      verdictMark(s),
+			Name:         s.Name,
+			Lot:          s.Lot,
+			Product:      s.Product,
+			Role:         string(s.Role),
+			Temperatures: temperatures(s.TemperaturesC),
+			Used:         len(s.Used),
+			Total:        len(s.Runs),
+			ZAvg:         meanSD(s.ZAvgMeanNm, s.ZAvgSDNm, len(s.Used), 1),
+			PDI:          meanOnly(s.PDIMean, len(s.Used), 3),
+			Flags:        mergeFlags(s.Flags),
+		}
+		if rank, what := problem(r, s); rank < 3 {
+			p.Problems++
+			row.Problem = true
+			if rank > 0 { // the verdict column already names a verdict
+				row.Why = what
+			}
+		}
+		p.Rows = append(p.Rows, row)
 	}
 	p.Settings = settingsRows(r.Settings)
 	return p
+}
+
+// problem ranks a sample for the index: 0 for a fail or invalid verdict,
+// 1 when a run has status error, 2 when a run has status warn, 3
+// otherwise; what names the problem ("" for rank 3).
+func problem(r *Report, s *dls.Sample) (rank int, what string) {
+	switch v := verdictOf(s); v {
+	case dls.VerdictFail, dls.VerdictInvalid:
+		return 0, "verdict " + string(v)
+	}
+	worst := 3
+	for _, k := range s.Runs {
+		switch r.Results[k].Status {
+		case dls.StatusOK:
+		case dls.StatusWarn:
+			worst = min(worst, 2)
+		default:
+			worst = 1
+		}
+	}
+	switch worst {
+	case 1:
+		return 1, "a run with status error"
+	case 2:
+		return 2, "a run with status warn"
+	}
+	return 3, ""
+}
+
+// problemsFirst returns the sample indices in index order: samples with
+// a problem first, worst first (see problem), and batch order within
+// each rank.
+func problemsFirst(r *Report) []int {
+	order := make([]int, len(r.Samples))
+	rank := make([]int, len(r.Samples))
+	for i, s := range r.Samples {
+		order[i] = i
+		rank[i], _ = problem(r, s)
+	}
+	sort.SliceStable(order, func(a, b int) bool { return rank[order[a]] < rank[order[b]] })
+	return order
 }
 
 // settingsRows lists settings sorted by key: strings as they are, other
@@ -211,36 +305,58 @@ type samplePage struct {
 	Summary    []keyValue
 	Flags      []dls.Flag
 	Runs       []runRow
-	Details    []runDetail
 	Plotted    int
 	Excluded   bool // outliers excluded from the statistics
+	// measured is the measured_at range of the page's runs.
+	measured timeRange
 }
 
 type runRow struct {
-	No      int // 1-based index in the batch (results.csv row)
-	Anchor  string
-	File    string
-	Run     string
-	Status  mark
-	ZAvg    string
-	PDI     string
-	Peaks   string
-	Message string
-	Used    bool
-	Outlier string
+	No          int // 1-based index in the batch (results.csv row)
+	Anchor      string
+	File        string
+	Run         string
+	Status      mark
+	Temperature string
+	ZAvg        string
+	PDI         string
+	Peaks       string
+	Message     string
+	Used        bool
+	Outlier     string
 }
 
 type runDetail struct {
 	runRow
-	Plots       runPlots
-	HasPlots    bool
 	Conditions  []keyValue
-	Params      []dls.Param
+	Params      []paramRow
 	Warnings    []string
 	Assumptions []string
 }
 
-func buildSample(r *Report, i int) (samplePage, error) {
+// paramRow is a parameter as shown: Value formatted by its meaning, Raw
+// the text as given when that differs (shown on hover).
+type paramRow struct {
+	Key, Value, Raw, Origin, Where string
+}
+
+func paramRows(ps []dls.Param) []paramRow {
+	out := make([]paramRow, len(ps))
+	for i, p := range ps {
+		out[i] = paramRow{Key: p.Key, Value: p.Value, Origin: string(p.Origin), Where: p.Where}
+		if p.Key == dls.KeyParticleRI {
+			if v := particleIndex(p.Value); v != p.Value {
+				out[i].Value, out[i].Raw = v, p.Value
+			}
+		}
+	}
+	return out
+}
+
+// buildSample makes the model of the page of sample i, loading each run
+// whole through Report.LoadRecord or Report.Load when set, and writes its
+// run sections into w.b.
+func buildSample(r *Report, i int, w *writer) (samplePage, error) {
 	s := r.Samples[i]
 	p := samplePage{
 		page:    newPage(r),
@@ -286,14 +402,11 @@ func buildSample(r *Report, i int) (samplePage, error) {
 		limit = DefaultMaxPlotRuns
 	}
 	for k, idx := range s.Runs {
-		res := r.Results[idx]
-		if r.Load != nil {
-			full, err := r.Load(idx)
-			if err != nil {
-				return p, err
-			}
-			res = full
+		res, err := r.result(idx, w)
+		if err != nil {
+			return p, err
 		}
+		p.measured.add(res.Params)
 		row := newRunRow(idx, res)
 		row.Used = used[idx]
 		if outl[idx] {
@@ -307,31 +420,51 @@ func buildSample(r *Report, i int) (samplePage, error) {
 		d := runDetail{
 			runRow:      row,
 			Conditions:  conditions(res),
-			Params:      res.Params,
+			Params:      paramRows(res.Params),
 			Warnings:    res.Warnings,
 			Assumptions: res.Assumptions,
 		}
-		if limit < 0 || k < limit {
-			d.Plots = plotRun(res)
-			d.HasPlots = true
+		plot := limit < 0 || k < limit
+		if plot {
 			p.Plotted++
 		}
-		p.Details = append(p.Details, d)
+		w.section(&d, w.plotters(res), plot)
 	}
 	return p, nil
 }
 
+// result returns result idx whole: from its record (read into w's
+// buffer), through Load, or as Results holds it.
+func (r *Report) result(idx int, w *writer) (*dls.Result, error) {
+	switch {
+	case r.LoadRecord != nil:
+		raw, err := r.LoadRecord(idx, w.rec[:0])
+		if err != nil {
+			return nil, err
+		}
+		w.rec = raw
+		return pageResult(r.Results[idx], raw, &w.arena)
+	case r.Load != nil:
+		return r.Load(idx)
+	}
+	return r.Results[idx], nil
+}
+
 func newRunRow(idx int, res *dls.Result) runRow {
 	row := runRow{
-		No:      idx + 1,
-		Anchor:  fmt.Sprintf("m%d", idx+1),
-		File:    res.File,
-		Run:     res.Run,
-		Status:  statusMark(res.Status),
-		ZAvg:    "—",
-		PDI:     "—",
-		Peaks:   "—",
-		Message: res.Message,
+		No:          idx + 1,
+		Anchor:      "m" + strconv.Itoa(idx+1),
+		File:        res.File,
+		Run:         res.Run,
+		Status:      statusMark(res.Status),
+		Temperature: dash,
+		ZAvg:        dash,
+		PDI:         dash,
+		Peaks:       dash,
+		Message:     res.Message,
+	}
+	if res.HasConditions {
+		row.Temperature = fixed(res.TemperatureC, 1)
 	}
 	if res.HasCumulants {
 		row.ZAvg = fixed(res.ZAvgNm, 1)
@@ -389,7 +522,7 @@ func conditions(r *dls.Result) []keyValue {
 	if r.HasDistribution {
 		out = append(out,
 			keyValue{"regularisation", fmt.Sprintf("%s, α = %s", r.AlphaCriterion, sig(r.Alpha, 3))},
-			keyValue{"particle refractive index", r.ParticleRI},
+			keyValue{"particle refractive index", particleIndex(r.ParticleRI)},
 		)
 	}
 	return out
@@ -403,7 +536,54 @@ func source(s string) string {
 }
 
 func newCheckRow(c dls.Check) checkRow {
-	return checkRow{Quantity: c.Quantity, Label: quantityLabel(c.Quantity), Limit: c.Limit, Value: sig(c.Value, 4), Pass: c.Pass}
+	return checkRow{Quantity: c.Quantity, Label: quantityLabel(c.Quantity), Limit: c.Limit, Value: checkValue(c.Quantity, c.Value), Pass: c.Pass}
+}
+
+// checkValue formats the value of a checked quantity by its meaning:
+// counts as integers, the PDI with four decimals, percentages with two,
+// sizes and anything else with four significant digits (an integral value
+// of an unknown quantity as an integer).
+func checkValue(q string, v float64) string {
+	switch q {
+	case "runs", "n_used":
+		return count(v)
+	case "pdi":
+		return fixed(v, 4)
+	case "z_avg_rsd_pct", "pdi_rsd_pct", "intensity_pct_above":
+		return fixed(v, 2)
+	case "z_avg_nm", "d10_nm", "d50_nm", "d90_nm", "d90_mean_nm", "peak1_nm", "peak1_mean_nm":
+		return sig(v, 4)
+	}
+	if v == math.Trunc(v) && math.Abs(v) < 1e9 {
+		return count(v)
+	}
+	return sig(v, 4)
+}
+
+// count formats a count: an integer, or a dash when v is not finite.
+func count(v float64) string {
+	if !stats.IsFinite(v) {
+		return dash
+	}
+	return strconv.FormatFloat(math.Round(v), 'f', 0, 64)
+}
+
+// particleIndex shows a complex particle index with four decimals in each
+// part ("1.4607+0i", "0.1800+3.0800i"; an imaginary part of zero as 0);
+// text that is not a complex number is shown as it is.
+func particleIndex(s string) string {
+	z, err := dls.ParseComplexNumber(s)
+	if err != nil || !stats.IsFinite(real(z)) || !stats.IsFinite(imag(z)) {
+		return s
+	}
+	im := "+0"
+	if imag(z) != 0 {
+		im = fixed(imag(z), 4)
+		if im[0] != '-' {
+			im = "+" + im
+		}
+	}
+	return fixed(real(z), 4) + im + "i"
 }
 
 // quantityLabel is a readable name for the quantities a specification
@@ -426,8 +606,10 @@ func quantityLabel(q string) string {
 		return "D50 intensity (nm)"
 	case "d90_nm", "d90_mean_nm":
 		return "D90 intensity (nm)"
-	case "n_used":
+	case "n_used", "runs":
 		return "runs used"
+	case "intensity_pct_above":
+		return "intensity above a size (%)"
 	}
 	return ""
 }

@@ -1,6 +1,7 @@
 package htmlreport
 
 import (
+	"fmt"
 	"math"
 	"regexp"
 	"strings"
@@ -9,8 +10,8 @@ import (
 	"dlsbatch/dls"
 )
 
-// gonum/plot's SVG output must be the same bytes for the same data: no
-// random ids, no timestamps. The SVG is also checked to be well-formed
+// The SVG output must be the same bytes for the same data: no random ids,
+// no timestamps. The SVG is also checked to be well-formed
 // and free of the XML prolog (it is inlined in HTML).
 func TestPlotDeterministic(t *testing.T) {
 	_, res := loadDemo(t)
@@ -67,6 +68,9 @@ func TestPlotDegenerate(t *testing.T) {
 		{"short fitted and residual arrays", &dls.Result{Curves: &dls.Curves{
 			TauS: []float64{1e-6, 1e-5, 1e-4}, Data: []float64{1.9, 1.5, 1}, Fitted: []float64{1.9}, Residuals: nil,
 		}}, true, false},
+		{"values whose range overflows", &dls.Result{Curves: &dls.Curves{
+			TauS: []float64{1e-6, 1e-5, 1e-4}, Data: []float64{1e308, -1e308, 0}, Fitted: []float64{1, 1, 1}, Residuals: []float64{0, 1, 0},
+		}}, false, false},
 		{"zero distribution", &dls.Result{DistSummary: dls.DistSummary{Distribution: &dls.SizeDistribution{
 			DiameterNm: []float64{1, 10, 100}, Intensity: []float64{0, 0, 0},
 		}}}, false, false},
@@ -114,7 +118,7 @@ func TestLagLabels(t *testing.T) {
 // Decade ticks: a label at each power of ten inside the range and minor
 // ticks at 2…9 times it (the usual log-axis layout, common practice).
 func TestDecadeTicks(t *testing.T) {
-	ticks := sizeTicks{}.Ticks(0.5, 200)
+	ticks := decadeTicks(0.5, 200, sizeLabel)
 	var labels []string
 	minor := 0
 	for _, tk := range ticks {
@@ -135,7 +139,7 @@ func TestDecadeTicks(t *testing.T) {
 	if minor != 22 {
 		t.Errorf("%d minor ticks, want 22", minor)
 	}
-	if got := (sizeTicks{}).Ticks(0.01, 0.1); len(got) == 0 || got[0].Label != "0.01" {
+	if got := decadeTicks(0.01, 0.1, sizeLabel); len(got) == 0 || got[0].Label != "0.01" {
 		t.Errorf("sub-nanometre labels: %v", got)
 	}
 	if got := decadeTicks(0, 10, lagLabel); got != nil {
@@ -167,5 +171,114 @@ func TestCropRange(t *testing.T) {
 				t.Errorf("range %g…%g, want %g…%g", lo, hi, tc.lo, tc.hi)
 			}
 		})
+	}
+}
+
+// textWidth is the advance width of Liberation Sans (units per em 2048:
+// digits 1139, space and full stop 569, hyphen 682, minus 1196, µ 1180,
+// s 1024, m 1706; the font's hmtx table, as gonum/plot's copy of the font
+// reported them) with its stated 15 % margin. Tolerance: the widths per
+// 1000 em are rounded (0.5/1000 em a glyph).
+func TestTextWidth(t *testing.T) {
+	const upem = 2048.0
+	for _, tc := range []struct {
+		s     string
+		units float64 // sum of advance widths in font units
+	}{
+		{"100 µs", 3*1139 + 569 + 1180 + 1024},
+		{"10 ms", 2*1139 + 569 + 1706 + 1024},
+		{"−0.005", 1196 + 4*1139 + 569},
+		{"0.01", 3*1139 + 569},
+	} {
+		want := 1.15 * tc.units / upem * 7
+		if got := textWidth(tc.s, 7); math.Abs(got-want) > 1.15*0.5e-3*7*float64(len([]rune(tc.s))) {
+			t.Errorf("textWidth(%q) = %.3f, want %.3f", tc.s, got, want)
+		}
+	}
+}
+
+// Tick labels never overlap and stay inside the plot, whatever the
+// range: every lag range of one to twelve decades starting anywhere from
+// 1 ns to 1 ms, every diameter range of one to six decades, with y labels
+// of any width (the left margin). At least one label is kept, and every
+// decade is labelled when there is room (a range of at most four decades
+// on the lag axis).
+func TestTickLabelsNeverOverlap(t *testing.T) {
+	var w writer
+	check := func(name string, f frame, decades float64) {
+		t.Helper()
+		prev := math.Inf(-1)
+		n, majors := 0, 0
+		for _, tk := range f.xt {
+			if tk.Major {
+				majors++
+			}
+			if tk.Label == "" {
+				continue
+			}
+			n++
+			half := textWidth(tk.Label, tickFont) / 2
+			x := f.px(tk.Value)
+			if x-half < prev+labelGap {
+				t.Errorf("%s: label %q at %.1f overlaps the one before (ends %.1f)", name, tk.Label, x, prev)
+			}
+			if x-half < 0 || x+half > plotW {
+				t.Errorf("%s: label %q at %.1f leaves the plot", name, tk.Label, x)
+			}
+			prev = x + half
+		}
+		if majors > 0 && n == 0 {
+			t.Errorf("%s: no label kept of %d decades", name, majors)
+		}
+		if decades <= 4 && n != majors {
+			t.Errorf("%s: %d of %d decades labelled", name, n, majors)
+		}
+	}
+	for e0 := -9.0; e0 <= -3; e0 += 0.25 {
+		for span := 1.0; span <= 12; span += 0.5 {
+			for _, yr := range [][2]float64{{0.99, 1.93}, {-0.00105, 0.00105}, {-1.2e5, 1.2e5}} {
+				f, ok := w.frame(math.Pow(10, e0), math.Pow(10, e0+span), yr[0], yr[1], lagAxis)
+				if !ok {
+					t.Fatalf("no frame for 1e%g…1e%g", e0, e0+span)
+				}
+				check(fmt.Sprintf("lags 1e%g…1e%g, y %g…%g", e0, e0+span, yr[0], yr[1]), f, span)
+			}
+		}
+	}
+	for e0 := -1.0; e0 <= 3; e0++ {
+		for span := 1.0; span <= 6; span++ {
+			f, ok := w.frame(math.Pow(10, e0), math.Pow(10, e0+span), 0, 31.5, sizeAxis)
+			if !ok {
+				t.Fatal("no frame")
+			}
+			check(fmt.Sprintf("diameters 1e%g…1e%g", e0, e0+span), f, span)
+		}
+	}
+	// The lag range of a demo correlogram (25 ns … 3.4 s), whose labels
+	// overlapped before ("10 ms100 ms").
+	f, _ := w.frame(2.5e-8, 3.355443, 0.99, 1.93, lagAxis)
+	check("demo lags", f, 8)
+}
+
+// Every plot is an SVG image with an accessible name (aria-label and a
+// title), no script, and no size fixed in absolute units (the page sets
+// its width; print scales it).
+func TestPlotAccessible(t *testing.T) {
+	p := plotRun(synthReport(1, 1).Results[0])
+	for i, svg := range []string{string(p.Correlogram), string(p.Residuals), string(p.Distribution)} {
+		doc := parsePage(t, []byte(svg))
+		root := doc.one(t, "svg", elem("svg"))
+		if root.Attr["role"] != "img" || root.Attr["aria-label"] == "" || root.Attr["viewBox"] != "0 0 230 150" {
+			t.Errorf("plot %d: role %q, aria-label %q, viewBox %q", i, root.Attr["role"], root.Attr["aria-label"], root.Attr["viewBox"])
+		}
+		if title := root.one(t, "title", elem("title")); title.text() != root.Attr["aria-label"] {
+			t.Errorf("plot %d: title %q", i, title.text())
+		}
+		if _, ok := root.Attr["width"]; ok {
+			t.Errorf("plot %d has a fixed width", i)
+		}
+		if len(root.all(elem("script"))) != 0 || strings.Contains(svg, "href") {
+			t.Errorf("plot %d has a script or a link", i)
+		}
 	}
 }

@@ -3,16 +3,19 @@ package htmlreport
 import (
 	"bytes"
 	"context"
-	"dlsbatch/io/atomicfile"
+	"crypto/sha256"
+	"encoding/hex"
 	"fmt"
 	"os"
 	"path/filepath"
 	"runtime"
 	"sort"
 	"sync"
+	"sync/atomic"
 	"unicode/utf8"
 
 	"dlsbatch/dls"
+	"dlsbatch/io/atomicfile"
 )
 
 // DefaultCaution is shown when Report.Caution is empty: the report
@@ -44,9 +47,34 @@ type Report struct {
 	// distributions, parameters), so that Results may hold compact copies
 	// and memory need not hold every curve of a large batch.
 	Load func(i int) (*dls.Result, error)
-	// Progress, when set, is called after each page is written (from the
-	// goroutines that write them).
-	Progress func()
+	// LoadRecord, when set, is used instead of Load: it appends result
+	// i's JSON record (a dls.Result as results.json holds it) to dst and
+	// returns the extended slice, from which the page takes what the
+	// compact copy in Results lacks (curves, distributions, parameters,
+	// warnings, assumptions, the medium note) without decoding the rest.
+	// Each worker passes a buffer of its own; nothing is kept of it. The
+	// index uses Results only.
+	LoadRecord func(i int, dst []byte) ([]byte, error)
+	// Workers is the number of pages rendered at once; 0 means
+	// GOMAXPROCS. The bytes do not depend on it.
+	Workers int
+	// Progress, when set, is called after each sample page is written
+	// with the number of pages done and the number of sample pages; calls
+	// come one at a time, done counting up.
+	Progress func(done, total int)
+	// Staged says that dir is a staging folder which the caller flushes to
+	// disk before publishing it (io/resultset): pages are then written in
+	// place, without a temporary name and an fsync each.
+	Staged bool
+
+	// The batch record on the index: the input root, the tables read with
+	// their SHA-256, and the first and last measurement time. When
+	// MeasuredFirst and MeasuredLast are empty they are taken from the
+	// measured_at parameters (ISO 8601, KeyMeasuredAt) of the runs on the
+	// sample pages.
+	InputRoot                   string
+	Tables                      []TableFile
+	MeasuredFirst, MeasuredLast string
 	// Batch is the batch-level outcome shown in the index banner.
 	Batch BatchStatus
 	// MaxPlotRuns is the largest number of runs plotted on one sample page
@@ -141,11 +169,11 @@ func SamplePageName(i int) string { return fmt.Sprintf("sample-%04d.html", i+1) 
 
 // Write renders the report into dir (created when missing): index.html and
 // one SamplePageName(i) page per sample. Each file is written to a
-// temporary name and renamed into place. Other files in dir are left
-// alone. The output depends only on r: the same report gives the same
-// bytes. It returns the names of the files written, sorted, or an error
-// when a sample indexes a result that does not exist, or when a file
-// cannot be written.
+// temporary name and renamed into place (unless Report.Staged). Other
+// files in dir are left alone. The output depends only on r: the same
+// report gives the same bytes. It returns the names of the files written,
+// sorted, or an error when a sample indexes a result that does not exist,
+// or when a file cannot be written.
 func Write(dir string, r *Report) ([]string, error) {
 	return WriteContext(context.Background(), dir, r)
 }
@@ -153,6 +181,29 @@ func Write(dir string, r *Report) ([]string, error) {
 // WriteContext is Write that stops, with ctx's error, soon after ctx is
 // done (between pages).
 func WriteContext(ctx context.Context, dir string, r *Report) ([]string, error) {
+	files, err := WriteFiles(ctx, dir, r)
+	if err != nil {
+		return nil, err
+	}
+	names := make([]string, len(files))
+	for i, f := range files {
+		names[i] = f.Name
+	}
+	return names, nil
+}
+
+// PageFile is a page written: its file name in the report folder, its
+// size and its SHA-256 (hex), computed from the bytes as they were
+// written.
+type PageFile struct {
+	Name   string
+	Bytes  int64
+	SHA256 string
+}
+
+// WriteFiles is WriteContext that also returns the size and SHA-256 of
+// every page, sorted by name, so that a manifest need not read them back.
+func WriteFiles(ctx context.Context, dir string, r *Report) ([]PageFile, error) {
 	if r == nil {
 		return nil, fmt.Errorf("htmlreport: nil report")
 	}
@@ -162,79 +213,102 @@ func WriteContext(ctx context.Context, dir string, r *Report) ([]string, error) 
 	if err := os.MkdirAll(dir, 0o755); err != nil {
 		return nil, fmt.Errorf("htmlreport: %w", err)
 	}
-	var buf bytes.Buffer
-	if err := renderIndex(&buf, r); err != nil {
-		return nil, err
-	}
-	if err := writeFile(dir, "index.html", buf.Bytes()); err != nil {
-		return nil, err
-	}
 
-	// Sample pages are independent: render them on all cores. Each page's
-	// bytes depend only on its own data, so the order of work does not
-	// matter for the output.
+	// Sample pages are independent: render them on Workers goroutines.
+	// Each page's bytes depend only on its own data, so the order of work
+	// does not matter for the output; the index, written last, gathers
+	// what the pages saw (the measured_at range) in page order.
 	n := len(r.Samples)
-	workers := min(runtime.GOMAXPROCS(0), n)
+	workers := r.Workers
+	if workers <= 0 {
+		workers = runtime.GOMAXPROCS(0)
+	}
+	workers = max(1, min(workers, n))
 	errs := make([]error, n)
-	next := make(chan int)
+	ranges := make([]timeRange, n)
+	files := make([]PageFile, n+1)
+	var next atomic.Int64
+	var mu sync.Mutex
+	done := 0
 	var wg sync.WaitGroup
 	for range workers {
 		wg.Add(1)
 		go func() {
 			defer wg.Done()
-			var b bytes.Buffer
-			for i := range next {
+			var w writer
+			for {
+				i := int(next.Add(1) - 1)
+				if i >= n {
+					return
+				}
 				if errs[i] = ctx.Err(); errs[i] != nil {
 					continue
 				}
-				b.Reset()
-				if errs[i] = renderSample(&b, r, i); errs[i] == nil {
-					errs[i] = writeFile(dir, SamplePageName(i), b.Bytes())
+				var page []byte
+				if page, ranges[i], errs[i] = renderSample(&w, r, i); errs[i] == nil {
+					files[i+1], errs[i] = r.writeFile(dir, SamplePageName(i), page)
 				}
-				if r.Progress != nil {
-					r.Progress()
+				if r.Progress != nil && errs[i] == nil {
+					mu.Lock()
+					done++
+					r.Progress(done, n)
+					mu.Unlock()
 				}
 			}
 		}()
 	}
-	for i := range n {
-		next <- i
-	}
-	close(next)
 	wg.Wait()
 	for _, err := range errs {
 		if err != nil {
 			return nil, err
 		}
 	}
-	names := []string{"index.html"}
-	for i := range n {
-		names = append(names, SamplePageName(i))
+	var measured timeRange
+	for _, tr := range ranges {
+		measured.merge(tr)
 	}
-	sort.Strings(names)
-	return names, nil
+	if r.Load == nil && r.LoadRecord == nil {
+		// Results are whole: runs on no sample's page count too.
+		measured = timeRange{}
+		for _, res := range r.Results {
+			measured.add(res.Params)
+		}
+	}
+	var buf bytes.Buffer
+	if err := renderIndex(&buf, r, measured); err != nil {
+		return nil, err
+	}
+	var err error
+	if files[0], err = r.writeFile(dir, "index.html", buf.Bytes()); err != nil {
+		return nil, err
+	}
+	sort.Slice(files, func(a, b int) bool { return files[a].Name < files[b].Name })
+	return files, nil
 }
 
 // renderIndex writes the index page of a validated report.
-func renderIndex(w *bytes.Buffer, r *Report) error {
-	if err := tmpl.ExecuteTemplate(w, "index", buildIndex(r)); err != nil {
+func renderIndex(w *bytes.Buffer, r *Report, measured timeRange) error {
+	if err := tmpl.ExecuteTemplate(w, "index", buildIndex(r, measured)); err != nil {
 		return fmt.Errorf("htmlreport: index: %w", err)
 	}
 	cleanText(w)
 	return nil
 }
 
-// renderSample writes the page of sample i of a validated report.
-func renderSample(w *bytes.Buffer, r *Report, i int) error {
-	page, err := buildSample(r, i)
+// renderSample renders the page of sample i of a validated report with w
+// and returns it (valid until w's next use) and the measured_at range of
+// its runs.
+func renderSample(w *writer, r *Report, i int) ([]byte, timeRange, error) {
+	w.b = w.b[:0]
+	page, err := buildSample(r, i, w)
 	if err != nil {
-		return fmt.Errorf("htmlreport: %s: %w", SamplePageName(i), err)
+		return nil, timeRange{}, fmt.Errorf("htmlreport: %s: %w", SamplePageName(i), err)
 	}
-	if err := tmpl.ExecuteTemplate(w, "sample", page); err != nil {
-		return fmt.Errorf("htmlreport: %s: %w", SamplePageName(i), err)
-	}
-	cleanText(w)
-	return nil
+	sections := w.b
+	w.b = w.page[:0]
+	w.samplePage(&page, sections)
+	w.page, w.b = w.b, sections
+	return w.page, page.measured, nil
 }
 
 // cleanText replaces, in a rendered page, invalid UTF-8 and the control
@@ -245,11 +319,23 @@ func renderSample(w *bytes.Buffer, r *Report, i int) error {
 // through.
 func cleanText(b *bytes.Buffer) {
 	p := b.Bytes()
-	ok := utf8.Valid(p) && !bytes.Contains(p, []byte("\uFFFE")) && !bytes.Contains(p, []byte("\uFFFF"))
-	for i := 0; ok && i < len(p); i++ {
-		if c := p[i]; (c < 0x20 && c != '\t' && c != '\n' && c != '\r') || c == 0x7f {
-			ok = false
+	ok := true
+	for i := 0; i < len(p); {
+		c := p[i]
+		if c >= 0x20 && c < 0x7f || c == '\n' || c == '\t' || c == '\r' {
+			i++
+			continue
 		}
+		if c < 0x80 {
+			ok = false
+			break
+		}
+		r, n := utf8.DecodeRune(p[i:])
+		if r == utf8.RuneError && n <= 1 || r == 0xFFFE || r == 0xFFFF {
+			ok = false
+			break
+		}
+		i += n
 	}
 	if ok {
 		return
@@ -302,10 +388,18 @@ func validate(r *Report) error {
 }
 
 // writeFile writes data to dir/name atomically, so that a reader never
-// sees a half-written page.
-func writeFile(dir, name string, data []byte) error {
-	if err := atomicfile.Write(filepath.Join(dir, name), data); err != nil {
-		return fmt.Errorf("htmlreport: %w", err)
+// sees a half-written page; in a staging folder (Report.Staged), which
+// nobody reads before it is flushed and published, in place.
+func (r *Report) writeFile(dir, name string, data []byte) (PageFile, error) {
+	var err error
+	if r.Staged {
+		err = os.WriteFile(filepath.Join(dir, name), data, 0o644)
+	} else {
+		err = atomicfile.Write(filepath.Join(dir, name), data)
 	}
-	return nil
+	if err != nil {
+		return PageFile{}, fmt.Errorf("htmlreport: %w", err)
+	}
+	sum := sha256.Sum256(data)
+	return PageFile{Name: name, Bytes: int64(len(data)), SHA256: hex.EncodeToString(sum[:])}, nil
 }

@@ -2,6 +2,10 @@ package htmlreport
 
 import (
 	"bytes"
+	"context"
+	"crypto/sha256"
+	"encoding/hex"
+	"encoding/json"
 	"os"
 	"path/filepath"
 	"regexp"
@@ -33,9 +37,9 @@ func readPage(t *testing.T, dir, name string) (*node, []byte) {
 	return parsePage(t, b), b
 }
 
-// The index lists each sample once, in order, with its verdict word, a
-// link to its page named from its position, and its flags with their
-// messages as title text.
+// The index lists each sample once, problems first, with its verdict
+// word, a link to its page named from its position, its temperatures, and
+// its flags with their messages as title text.
 func TestIndexRows(t *testing.T) {
 	r := demoReport(t)
 	dir := writeDemo(t, r)
@@ -46,16 +50,31 @@ func TestIndexRows(t *testing.T) {
 	if len(rows) != len(r.Samples) {
 		t.Fatalf("index has %d sample rows, want %d (one per sample)", len(rows), len(r.Samples))
 	}
+	// Expected order, worked by hand from the fixture: the fail (sample
+	// 1) and invalid (2) verdicts first, then the samples whose run warns
+	// (3: the unfiltered sample; 4: the hostile copy), in batch order;
+	// then the passing reference (0), whose run is ok.
+	order := []int{1, 2, 3, 4, 0}
 	// Expected verdict words: the outcomes set in demoReport; a nil
 	// verdict shows "none".
-	want := []string{"pass", "fail", "invalid", "none", "pass"}
-	for i, tr := range rows {
+	want := []string{"fail", "invalid", "none", "pass", "pass"}
+	for row, tr := range rows {
+		i := order[row]
 		c := cells(tr)
-		if len(c) != 9 {
-			t.Fatalf("row %d has %d cells, want 9", i, len(c))
+		if len(c) != 10 {
+			t.Fatalf("row %d has %d cells, want 10", row, len(c))
 		}
-		if got := c[0].text(); got != want[i] {
-			t.Errorf("row %d verdict %q, want %q", i, got, want[i])
+		if got := c[0].text(); got != want[row] {
+			t.Errorf("row %d verdict %q, want %q", row, got, want[row])
+		}
+		if got := tr.hasClass("problem"); got != (row < 4) {
+			t.Errorf("row %d marked as a problem: %v, want %v", row, got, row < 4)
+		}
+		// Temperatures: the demo runs were measured at 25 °C, the
+		// hostile copy (sample 4) is set to 37 °C.
+		wantT := map[bool]string{true: "37.0", false: "25.0"}[i == 4]
+		if got := c[5].text(); got != wantT {
+			t.Errorf("row %d temperatures %q, want %q", row, got, wantT)
 		}
 		// The shape is drawn beside the word (not colour alone).
 		if len(c[0].all(elemClass("svg", "shape"))) != 1 {
@@ -68,10 +87,10 @@ func TestIndexRows(t *testing.T) {
 		if a.text() != r.Samples[i].Name {
 			t.Errorf("row %d name %q, want %q", i, a.text(), r.Samples[i].Name)
 		}
-		if got, want := c[5].text(), strings.Join([]string{strconv.Itoa(len(r.Samples[i].Used)), "/", strconv.Itoa(len(r.Samples[i].Runs))}, " "); got != want {
+		if got, want := c[6].text(), strings.Join([]string{strconv.Itoa(len(r.Samples[i].Used)), "/", strconv.Itoa(len(r.Samples[i].Runs))}, " "); got != want {
 			t.Errorf("row %d runs %q, want %q", i, got, want)
 		}
-		flags := c[8].all(elemClass("span", "flag"))
+		flags := c[9].all(elemClass("span", "flag"))
 		if len(flags) != len(r.Samples[i].Flags) {
 			t.Errorf("row %d shows %d flags, want %d", i, len(flags), len(r.Samples[i].Flags))
 		}
@@ -84,11 +103,11 @@ func TestIndexRows(t *testing.T) {
 	// Sample 2 (gold): two runs, mean ± SD with one decimal; the values
 	// are the fixture's own, formatted as documented (%.1f).
 	s := r.Samples[1]
-	if got, want := cells(rows[1])[6].text(), fixed(s.ZAvgMeanNm, 1)+" ± "+fixed(s.ZAvgSDNm, 1); got != want {
+	if got, want := cells(rows[0])[7].text(), fixed(s.ZAvgMeanNm, 1)+" ± "+fixed(s.ZAvgSDNm, 1); got != want {
 		t.Errorf("gold z-average %q, want %q", got, want)
 	}
-	// A single run has no SD.
-	if got := cells(rows[0])[6].text(); strings.Contains(got, "±") {
+	// A single run (the reference, last row) has no SD.
+	if got := cells(rows[4])[7].text(); strings.Contains(got, "±") {
 		t.Errorf("single-run sample shows an SD: %q", got)
 	}
 
@@ -110,7 +129,7 @@ func TestIndexRows(t *testing.T) {
 		t.Errorf("banner has %d suitability checks, want 3", got)
 	}
 
-	settings := doc.one(t, "settings", elemClass("table", "kv"))
+	settings := doc.one(t, "settings", elemClass("table", "settings"))
 	if got := len(bodyRows(t, settings)); got != len(settingsRows(r.Settings)) || got == 0 {
 		t.Errorf("%d settings rows, want %d", got, len(settingsRows(r.Settings)))
 	}
@@ -135,7 +154,7 @@ func TestSamplePage(t *testing.T) {
 			for k, tr := range rows {
 				c := cells(tr)
 				ck := s.Verdict.Checks[k]
-				if !strings.Contains(c[0].text(), ck.Quantity) || c[1].text() != ck.Limit || c[2].text() != sig(ck.Value, 4) {
+				if !strings.Contains(c[0].text(), ck.Quantity) || c[1].text() != ck.Limit || c[2].text() != checkValue(ck.Quantity, ck.Value) {
 					t.Errorf("page %d check %d: %q %q %q", i, k, c[0].text(), c[1].text(), c[2].text())
 				}
 				want := map[bool]string{true: "pass", false: "fail"}[ck.Pass]
@@ -187,7 +206,17 @@ func TestSamplePage(t *testing.T) {
 			for j, tr := range rows {
 				p := res.Params[j]
 				c := cells(tr)
-				if c[0].text() != p.Key || c[1].text() != p.Value || c[2].text() != string(p.Origin) || c[3].text() != p.Where {
+				// The particle index is shown to four decimals (the
+				// format is checked in TestFormats), the text as given
+				// on hover.
+				value, title := p.Value, ""
+				if p.Key == dls.KeyParticleRI && particleIndex(p.Value) != p.Value {
+					value, title = particleIndex(p.Value), "as given: "+p.Value
+				}
+				if c[1].Attr["title"] != title {
+					t.Errorf("page %d run %d param %d: title %q, want %q", i, k, j, c[1].Attr["title"], title)
+				}
+				if c[0].text() != p.Key || c[1].text() != value || c[2].text() != string(p.Origin) || c[3].text() != p.Where {
 					t.Errorf("page %d run %d param %d: %q %q %q %q, want %+v", i, k, j, c[0].text(), c[1].text(), c[2].text(), c[3].text(), p)
 				}
 			}
@@ -304,28 +333,120 @@ func TestCautionOnEveryPage(t *testing.T) {
 	}
 }
 
-// The same report gives the same bytes, whatever the number of workers.
-func TestDeterministic(t *testing.T) {
-	r := demoReport(t)
-	a := writeDemo(t, r)
-	prev := runtime.GOMAXPROCS(1)
-	b := writeDemo(t, r)
-	runtime.GOMAXPROCS(prev)
-	entries, err := os.ReadDir(a)
+// writeWith writes r into a fresh folder and returns every file's bytes.
+func writeWith(t *testing.T, r *Report) map[string][]byte {
+	t.Helper()
+	dir := writeDemo(t, r)
+	entries, err := os.ReadDir(dir)
 	if err != nil {
 		t.Fatal(err)
 	}
-	if len(entries) != len(r.Samples)+1 {
-		t.Fatalf("%d files, want %d", len(entries), len(r.Samples)+1)
-	}
+	out := map[string][]byte{}
 	for _, e := range entries {
-		x, _ := os.ReadFile(filepath.Join(a, e.Name()))
-		y, err := os.ReadFile(filepath.Join(b, e.Name()))
+		if out[e.Name()], err = os.ReadFile(filepath.Join(dir, e.Name())); err != nil {
+			t.Fatal(err)
+		}
+	}
+	return out
+}
+
+// withRecords makes r's pages read every run back from its JSON record
+// while Results hold compact copies, as a run hands them over.
+func withRecords(t *testing.T, r *Report) *Report {
+	t.Helper()
+	c := *r
+	c.Results = make([]*dls.Result, len(r.Results))
+	raw := make([][]byte, len(r.Results))
+	for i, res := range r.Results {
+		var err error
+		if raw[i], err = json.Marshal(res); err != nil {
+			t.Fatal(err)
+		}
+		c.Results[i] = compactOf(res)
+	}
+	c.LoadRecord = func(i int, dst []byte) ([]byte, error) { return append(dst, raw[i]...), nil }
+	return &c
+}
+
+// The same report gives the same bytes whatever the number of workers
+// (Workers, and GOMAXPROCS for the default), whether pages read the runs
+// from memory or back from their records, and whether it is written in
+// place (Staged) or file by file through temporary names.
+func TestDeterministic(t *testing.T) {
+	for _, base := range []struct {
+		name string
+		r    *Report
+	}{{"demo", demoReport(t)}, {"synthetic", synthReport(7, 3)}} {
+		want := writeWith(t, base.r)
+		if len(want) != len(base.r.Samples)+1 {
+			t.Fatalf("%s: %d files, want %d", base.name, len(want), len(base.r.Samples)+1)
+		}
+		variants := map[string]func() *Report{
+			"one worker":   func() *Report { c := *base.r; c.Workers = 1; return &c },
+			"five workers": func() *Report { c := *base.r; c.Workers = 5; return &c },
+			"records":      func() *Report { c := withRecords(t, base.r); c.Workers = 2; return c },
+			"staged":       func() *Report { c := *base.r; c.Staged = true; return &c },
+		}
+		for _, name := range []string{"one worker", "five workers", "records", "staged"} {
+			got := writeWith(t, variants[name]())
+			for f, b := range want {
+				if !bytes.Equal(got[f], b) {
+					t.Errorf("%s, %s: %s differs", base.name, name, f)
+				}
+			}
+			if len(got) != len(want) {
+				t.Errorf("%s, %s: %d files, want %d", base.name, name, len(got), len(want))
+			}
+		}
+		prev := runtime.GOMAXPROCS(1)
+		got := writeWith(t, base.r)
+		runtime.GOMAXPROCS(prev)
+		for f, b := range want {
+			if !bytes.Equal(got[f], b) {
+				t.Errorf("%s, GOMAXPROCS 1: %s differs", base.name, f)
+			}
+		}
+	}
+}
+
+// Progress is called once per sample page, one call at a time, counting
+// up to the number of sample pages; WriteFiles reports every page with
+// its size and SHA-256, which match the files (crypto/sha256 of the bytes
+// read back).
+func TestProgressAndHashes(t *testing.T) {
+	r := synthReport(9, 2)
+	r.Workers = 3
+	var calls []int
+	r.Progress = func(done, total int) {
+		if total != 9 {
+			t.Errorf("total %d, want 9", total)
+		}
+		calls = append(calls, done) // calls come one at a time
+	}
+	dir := filepath.Join(t.TempDir(), "report")
+	files, err := WriteFiles(context.Background(), dir, r)
+	if err != nil {
+		t.Fatal(err)
+	}
+	for k, d := range calls {
+		if d != k+1 {
+			t.Fatalf("progress calls %v, want 1 … 9", calls)
+		}
+	}
+	if len(calls) != 9 {
+		t.Errorf("%d progress calls, want 9", len(calls))
+	}
+	if len(files) != 10 || files[0].Name != "index.html" {
+		t.Fatalf("files %+v", files)
+	}
+	for _, f := range files {
+		b, err := os.ReadFile(filepath.Join(dir, f.Name))
 		if err != nil {
 			t.Fatal(err)
 		}
-		if !bytes.Equal(x, y) {
-			t.Errorf("%s differs between two writes", e.Name())
+		sum := sha256.Sum256(b)
+		if f.Bytes != int64(len(b)) || f.SHA256 != hex.EncodeToString(sum[:]) {
+			t.Errorf("%s: %d bytes %s, file has %d bytes %x", f.Name, f.Bytes, f.SHA256, len(b), sum)
 		}
 	}
 }

@@ -11,7 +11,7 @@ import (
 	"io"
 	"os"
 	"path/filepath"
-	"sync"
+	"slices"
 
 	"dlsbatch/dls"
 	"dlsbatch/io/atomicfile"
@@ -31,6 +31,9 @@ type Set struct {
 	// for an incomplete document, only the inputs with results.
 	Root           string
 	Inputs, Tables []string
+	// Stream, when set, holds the full records of Doc.Results (which are
+	// then its compact copies); see Stream.
+	Stream *Stream
 	// Progress, when set, hears of report pages and hashed inputs.
 	Progress func(phase string, done, total int)
 	// Hashes, where set, give inputs' hashes already taken (by path), so
@@ -38,9 +41,12 @@ type Set struct {
 	Hashes map[string]FileHash
 	// Shard is recorded in the manifest of one shard's set.
 	Shard *ShardInfo
-	// Stream, when set, holds the full records of Doc.Results (which are
-	// then its compact copies); see Stream.
-	Stream *Stream
+	// Workers is the number of report pages rendered at once (run's -j);
+	// 0 means GOMAXPROCS.
+	Workers int
+	// ReportProgress, when set, is called after each report page with
+	// the pages done and the pages in all (see htmlreport.Report.Progress).
+	ReportProgress func(done, total int)
 }
 
 // Names of the files of a result set.
@@ -71,9 +77,9 @@ func WriteSet(ctx context.Context, dir string, s *Set) error {
 		Files: FileCounts{Found: len(s.Inputs), Analysed: len(inputs)}, Inputs: []FileHash{}, Tables: []FileHash{}}
 	result := func(i int) ([]byte, error) { return json.Marshal(d.Results[i]) }
 	row := func(i int) ([]byte, error) { return csvRow(d.Results[i]) }
-	var load func(int) (*dls.Result, error)
+	var record func(int, []byte) ([]byte, error)
 	if s.Stream != nil {
-		result, row, load = s.Stream.raw, s.Stream.row, s.Stream.Full
+		result, row, record = s.Stream.raw, s.Stream.row, s.Stream.appendRaw
 	} else {
 		for _, r := range d.Results {
 			if err := checkFinite(r); err != nil {
@@ -97,35 +103,6 @@ func WriteSet(ctx context.Context, dir string, s *Set) error {
 		h.Path = f.name
 		m.Outputs = append(m.Outputs, h)
 	}
-	if err := ctx.Err(); err != nil {
-		return err
-	}
-	if s.HTMLReport {
-		rep := htmlreport.FromRun(htmlreport.Run{Tool: d.Tool, Version: d.Version, Caution: d.Caution,
-			Settings: d.Settings, Results: d.Results, Samples: d.Samples, Batch: d.Batch, Load: load})
-		if s.Progress != nil {
-			var mu sync.Mutex
-			n := 0
-			rep.Progress = func() {
-				mu.Lock()
-				n++
-				s.Progress("report", n, len(d.Samples)+1)
-				mu.Unlock()
-			}
-		}
-		names, err := htmlreport.WriteContext(ctx, filepath.Join(dir, ReportDir), rep)
-		if err != nil {
-			return fmt.Errorf("report: %w", err)
-		}
-		for _, n := range names {
-			h, err := HashFile(filepath.Join(dir, ReportDir, n))
-			if err != nil {
-				return err
-			}
-			h.Path = ReportDir + "/" + n
-			m.Outputs = append(m.Outputs, h)
-		}
-	}
 	for _, list := range []struct {
 		paths []string
 		dst   *[]FileHash
@@ -148,6 +125,23 @@ func WriteSet(ctx context.Context, dir string, s *Set) error {
 			*list.dst = append(*list.dst, h)
 		}
 	}
+	if err := ctx.Err(); err != nil {
+		return err
+	}
+	if s.HTMLReport {
+		// dir is a staging folder, flushed before it is published
+		// (resultset.Commit): the pages need no fsync each.
+		rep := htmlreport.FromRun(htmlreport.Run{Tool: d.Tool, Version: d.Version, Caution: d.Caution,
+			Settings: d.Settings, Results: d.Results, Samples: d.Samples, Batch: d.Batch, LoadRecord: record,
+			Workers: s.Workers, Progress: reportProgress(s), Staged: true, InputRoot: s.Root, Tables: tableFiles(d.Settings, m.Tables)})
+		pages, err := htmlreport.WriteFiles(ctx, filepath.Join(dir, ReportDir), rep)
+		if err != nil {
+			return fmt.Errorf("report: %w", err)
+		}
+		for _, p := range pages {
+			m.Outputs = append(m.Outputs, FileHash{Path: ReportDir + "/" + p.Name, Bytes: p.Bytes, SHA256: p.SHA256})
+		}
+	}
 	if s.Stream != nil {
 		if err := s.Stream.Close(); err != nil {
 			return fmt.Errorf("results: %w", err)
@@ -158,6 +152,51 @@ func WriteSet(ctx context.Context, dir string, s *Set) error {
 		return err
 	}
 	return atomicfile.Write(filepath.Join(dir, ManifestJSON), b.Bytes())
+}
+
+// appendRaw appends the stored JSON record of result i to dst, for the
+// report's pages, which read every record once: into a buffer of their
+// own, so that reading them back allocates nothing. Safe for concurrent
+// use once every record is added (the scratch file is then flushed and
+// only read).
+func (s *Stream) appendRaw(i int, dst []byte) ([]byte, error) {
+	if r, ok := s.full[i]; ok {
+		b, err := json.Marshal(r)
+		return append(dst, b...), err
+	}
+	if err := s.w.Flush(); err != nil {
+		return dst, err
+	}
+	sp := s.spans[i]
+	n := len(dst)
+	dst = slices.Grow(dst, int(sp.n))[:n+int(sp.n)]
+	if _, err := s.f.ReadAt(dst[n:], sp.off); err != nil && err != io.EOF {
+		return dst[:n], err
+	}
+	return dst, nil
+}
+
+// tableFiles names the tables of the manifest for the report's batch
+// record by the setting that gave them.
+func tableFiles(st *Settings, tables []FileHash) []htmlreport.TableFile {
+	out := make([]htmlreport.TableFile, 0, len(tables))
+	for _, t := range tables {
+		role := "table"
+		if st != nil {
+			switch t.Path {
+			case st.Sheet:
+				role = "sample sheet"
+			case st.Spec:
+				role = "specification"
+			case st.SolventFile:
+				role = "solvent file"
+			case st.QCThresholdsFile:
+				role = "QC thresholds"
+			}
+		}
+		out = append(out, htmlreport.TableFile{Role: role, Path: t.Path, SHA256: t.SHA256})
+	}
+	return out
 }
 
 // writeHashed writes a file through write and returns its size and
@@ -203,6 +242,15 @@ func analysed(root string, inputs []string, results []*dls.Result) []string {
 		}
 	}
 	return out
+}
+
+// reportProgress is the report's page counter: ReportProgress, or the
+// set's Progress under the phase "report".
+func reportProgress(s *Set) func(done, total int) {
+	if s.ReportProgress != nil || s.Progress == nil {
+		return s.ReportProgress
+	}
+	return func(done, total int) { s.Progress("report", done, total) }
 }
 
 // writeSummaryFile writes summary.txt: the morning summary as the command

@@ -280,3 +280,18 @@ func (s *Sheet) Ranks(rels []string) []int {
 	}
 	return rank
 }
+
+// Rename names the sheet name in its rows' provenance (Where) and in
+// messages, e.g. by its path relative to the run's input root, so that
+// outputs do not depend on how the sheet's path was typed.
+func (s *Sheet) Rename(name string) {
+	for i := range s.Rows {
+		for j := range s.Rows[i].Params {
+			p := &s.Rows[i].Params[j]
+			if rest, ok := strings.CutPrefix(p.Where, s.File+":"); ok {
+				p.Where = name + ":" + rest
+			}
+		}
+	}
+	s.File = name
+}

@@ -249,3 +249,15 @@ func TestRanks(t *testing.T) {
 		}
 	}
 }
+
+// TestRename: provenance names the sheet as renamed, positions kept.
+func TestRename(t *testing.T) {
+	s, err := Parse(strings.NewReader("file,temperature_c\na.csv,25\n"), "/abs/path/sheet.csv")
+	if err != nil {
+		t.Fatal(err)
+	}
+	s.Rename("../sheet.csv")
+	if w := s.Rows[0].Params[0].Where; w != "../sheet.csv:2:7" || s.File != "../sheet.csv" {
+		t.Errorf("where %q, file %q", w, s.File)
+	}
+}

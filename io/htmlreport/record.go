@@ -1,0 +1,608 @@
+package htmlreport
+
+import (
+	"bytes"
+	"encoding/json"
+	"errors"
+	"fmt"
+	"strconv"
+	"unicode/utf8"
+
+	"dlsbatch/dls"
+)
+
+// A sample page needs, of each run, what the compact copies in
+// Report.Results lack: the curves, the size distributions, the parameters,
+// warnings, assumptions and the medium note. Report.LoadRecord hands over
+// the run's JSON record (a dls.Result as results.json holds it), and
+// pageResult takes these parts from it without decoding the rest (the
+// inversion's audit, the uncertainty budget: most of a record's numbers),
+// which it skips at the speed of a byte scan. Anything it does not expect
+// sends it to encoding/json for the whole record instead.
+
+// pageParts are the parts of a record that a page takes from it; the
+// field tags are dls.Result's.
+type pageParts struct {
+	Params       []dls.Param     `json:"params"`
+	Warnings     []string        `json:"warnings"`
+	Assumptions  []string        `json:"assumptions"`
+	Medium       *dls.MediumNote `json:"medium"`
+	Curves       *dls.Curves     `json:"curves"`
+	Distribution *distParts      `json:"distribution"`
+}
+
+type distParts struct {
+	DiameterNm []float64 `json:"diameter_nm"`
+	Intensity  []float64 `json:"intensity"`
+	Volume     []float64 `json:"volume"`
+	Number     []float64 `json:"number"`
+}
+
+// pageResult returns the compact result c completed from its record raw:
+// a copy of c with the page's parts set from raw. Its curves and
+// distributions are kept in *arena, which the next call reuses.
+func pageResult(c *dls.Result, raw []byte, arena *[]float64) (*dls.Result, error) {
+	var p pageParts
+	*arena = (*arena)[:0]
+	err := p.decode(raw, arena)
+	if err != nil {
+		// The fast path met something it does not handle: decode the
+		// record whole, with the parts' validity from the compact copy.
+		var full dls.Result
+		if err := json.Unmarshal(raw, &full); err != nil {
+			return nil, fmt.Errorf("reading back %s: %w", c.File, err)
+		}
+		full.HasConditions, full.HasCumulants, full.HasDistribution = c.HasConditions, c.HasCumulants, c.HasDistribution
+		full.HasCountRate, full.HasDuration = c.HasCountRate, c.HasDuration
+		return &full, nil
+	}
+	r := *c
+	r.Params, r.Warnings, r.Assumptions, r.Medium, r.Curves = p.Params, p.Warnings, p.Assumptions, p.Medium, p.Curves
+	if d := p.Distribution; d != nil {
+		sd := &dls.SizeDistribution{DiameterNm: d.DiameterNm, Intensity: d.Intensity, Volume: d.Volume, Number: d.Number}
+		if c.Distribution != nil {
+			// The audit fields the page does not show stay as the compact
+			// copy has them.
+			sd.MieMasked = c.Distribution.MieMasked
+		}
+		r.Distribution = sd
+	} else {
+		r.Distribution = nil
+	}
+	return &r, nil
+}
+
+// errRecord says that a record holds something the fast path does not
+// read; the caller falls back to encoding/json.
+var errRecord = errors.New("record not in the expected form")
+
+// decode reads the parts from a JSON object. Keys match their field's tag
+// as encoding/json matches them (exact or case-folded); other values are
+// skipped. A key given twice (which encoding/json's writer never does)
+// may decode differently from encoding/json. Numbers are read with
+// strconv.ParseFloat after a check of JSON's number syntax.
+func (p *pageParts) decode(b []byte, arena *[]float64) error {
+	s := scanner{b: b, arena: arena}
+	err := s.object(func(key []byte) error {
+		switch {
+		case keyIs(key, "curves"):
+			if s.null() {
+				p.Curves = nil
+				return nil
+			}
+			if p.Curves == nil {
+				p.Curves = &dls.Curves{}
+			}
+			c := p.Curves
+			return s.object(func(k []byte) error {
+				switch {
+				case keyIs(k, "tau_s"):
+					return s.floats(&c.TauS)
+				case keyIs(k, "data"):
+					return s.floats(&c.Data)
+				case keyIs(k, "fitted"):
+					return s.floats(&c.Fitted)
+				case keyIs(k, "residuals"):
+					return s.floats(&c.Residuals)
+				case keyIs(k, "kind"):
+					return s.str(&c.Kind)
+				}
+				return s.skip()
+			})
+		case keyIs(key, "distribution"):
+			if s.null() {
+				p.Distribution = nil
+				return nil
+			}
+			if p.Distribution == nil {
+				p.Distribution = &distParts{}
+			}
+			d := p.Distribution
+			return s.object(func(k []byte) error {
+				switch {
+				case keyIs(k, "diameter_nm"):
+					return s.floats(&d.DiameterNm)
+				case keyIs(k, "intensity"):
+					return s.floats(&d.Intensity)
+				case keyIs(k, "volume"):
+					return s.floats(&d.Volume)
+				case keyIs(k, "number"):
+					return s.floats(&d.Number)
+				}
+				return s.skip()
+			})
+		case keyIs(key, "params"):
+			return s.params(&p.Params)
+		case keyIs(key, "warnings"):
+			return s.strings(&p.Warnings)
+		case keyIs(key, "assumptions"):
+			return s.strings(&p.Assumptions)
+		case keyIs(key, "medium"):
+			return s.unmarshal(&p.Medium)
+		}
+		return s.skip()
+	})
+	if err != nil {
+		return err
+	}
+	s.ws()
+	if s.i != len(s.b) {
+		return errRecord
+	}
+	return nil
+}
+
+// keyIs reports whether a JSON key (its raw text between the quotes)
+// names the field with tag name, as encoding/json matches: exactly or
+// case-folded. A key with an escape is unquoted first.
+func keyIs(key []byte, name string) bool {
+	if bytes.IndexByte(key, '\\') >= 0 {
+		var k string
+		if json.Unmarshal(append(append([]byte{'"'}, key...), '"'), &k) != nil {
+			return false
+		}
+		return bytes.EqualFold([]byte(k), []byte(name))
+	}
+	return bytes.EqualFold(key, []byte(name))
+}
+
+// scanner reads JSON text from b at i; arrays of numbers go into arena.
+type scanner struct {
+	b     []byte
+	i     int
+	arena *[]float64
+}
+
+func (s *scanner) ws() {
+	for s.i < len(s.b) {
+		switch s.b[s.i] {
+		case ' ', '\t', '\n', '\r':
+			s.i++
+		default:
+			return
+		}
+	}
+}
+
+// peek returns the next byte after white space, or 0 at the end.
+func (s *scanner) peek() byte {
+	s.ws()
+	if s.i < len(s.b) {
+		return s.b[s.i]
+	}
+	return 0
+}
+
+// null consumes a null literal if one comes next.
+func (s *scanner) null() bool {
+	if s.peek() == 'n' && bytes.HasPrefix(s.b[s.i:], []byte("null")) {
+		s.i += 4
+		return true
+	}
+	return false
+}
+
+// object reads an object, calling f with each key's raw text; f must
+// consume the value.
+func (s *scanner) object(f func(key []byte) error) error {
+	if s.peek() != '{' {
+		return errRecord
+	}
+	s.i++
+	if s.peek() == '}' {
+		s.i++
+		return nil
+	}
+	for {
+		if s.peek() != '"' {
+			return errRecord
+		}
+		start := s.i + 1
+		if err := s.skipString(); err != nil {
+			return err
+		}
+		key := s.b[start : s.i-1]
+		if s.peek() != ':' {
+			return errRecord
+		}
+		s.i++
+		if err := f(key); err != nil {
+			return err
+		}
+		switch s.peek() {
+		case ',':
+			s.i++
+		case '}':
+			s.i++
+			return nil
+		default:
+			return errRecord
+		}
+	}
+}
+
+// skipString moves past a string that starts at i.
+func (s *scanner) skipString() error {
+	s.i++ // opening quote
+	for s.i < len(s.b) {
+		switch c := s.b[s.i]; {
+		case c == '"':
+			s.i++
+			return nil
+		case c == '\\':
+			s.i += 2
+		case c < 0x20:
+			return errRecord
+		default:
+			s.i++
+		}
+	}
+	return errRecord
+}
+
+// skip moves past one value of any kind. Inside arrays and objects it
+// only tracks strings and nesting: the value is not validated.
+func (s *scanner) skip() error {
+	switch c := s.peek(); c {
+	case '"':
+		return s.skipString()
+	case '{', '[':
+		if c == '[' {
+			// An array of numbers (most of a record's bytes) ends at
+			// the first ']' when nothing that nests or quotes comes
+			// before it: found with a few fast byte searches.
+			rest := s.b[s.i+1:]
+			if end := bytes.IndexByte(rest, ']'); end >= 0 {
+				span := rest[:end]
+				if bytes.IndexByte(span, '[') < 0 && bytes.IndexByte(span, '{') < 0 && bytes.IndexByte(span, '"') < 0 {
+					s.i += end + 2
+					return nil
+				}
+			}
+		}
+		depth := 0
+		for s.i < len(s.b) {
+			if !structural[s.b[s.i]] {
+				s.i++
+				continue
+			}
+			switch s.b[s.i] {
+			case '"':
+				if err := s.skipString(); err != nil {
+					return err
+				}
+				continue
+			case '{', '[':
+				depth++
+			case '}', ']':
+				depth--
+				if depth == 0 {
+					s.i++
+					return nil
+				}
+			}
+			s.i++
+		}
+		return errRecord
+	case 0:
+		return errRecord
+	default:
+		start := s.i
+		for s.i < len(s.b) && !delimiter(s.b[s.i]) {
+			s.i++
+		}
+		if s.i == start {
+			return errRecord
+		}
+		return nil
+	}
+}
+
+// structural marks the bytes that skip must look at inside an array or
+// object.
+var structural = [256]bool{'"': true, '[': true, ']': true, '{': true, '}': true}
+
+func delimiter(c byte) bool {
+	switch c {
+	case ',', '}', ']', ' ', '\t', '\n', '\r', ':':
+		return true
+	}
+	return false
+}
+
+// unmarshal decodes the next value with encoding/json (for the small,
+// structured parts).
+func (s *scanner) unmarshal(v any) error {
+	start := s.peekStart()
+	if err := s.skip(); err != nil {
+		return err
+	}
+	if err := json.Unmarshal(s.b[start:s.i], v); err != nil {
+		return errRecord
+	}
+	return nil
+}
+
+func (s *scanner) peekStart() int {
+	s.ws()
+	return s.i
+}
+
+// floats reads an array of numbers (null elements read as 0, as
+// encoding/json leaves them) or null (a nil slice) into dst.
+func (s *scanner) floats(dst *[]float64) error {
+	if s.null() {
+		*dst = nil
+		return nil
+	}
+	if s.peek() != '[' {
+		return errRecord
+	}
+	s.i++
+	out := *s.arena
+	start := len(out)
+	defer func() {
+		*s.arena = out
+		if *dst = out[start:len(out):len(out)]; *dst == nil {
+			*dst = []float64{} // [] is an empty slice, not nil
+		}
+	}()
+	if s.peek() == ']' {
+		s.i++
+		return nil
+	}
+	for {
+		if s.null() {
+			out = append(out, 0)
+		} else {
+			s.ws()
+			v, end, ok := plotNumber(s.b, s.i)
+			if !ok {
+				return errRecord
+			}
+			s.i = end
+			out = append(out, v)
+		}
+		switch s.peek() {
+		case ',':
+			s.i++
+		case ']':
+			s.i++
+			return nil
+		default:
+			return errRecord
+		}
+	}
+}
+
+// str reads a string (null leaves *dst as it is, as encoding/json does).
+// A string without escapes is taken as it is; one with escapes goes to
+// encoding/json.
+func (s *scanner) str(dst *string) error {
+	if s.null() {
+		return nil
+	}
+	if s.peek() != '"' {
+		return errRecord
+	}
+	start := s.i
+	if err := s.skipString(); err != nil {
+		return err
+	}
+	raw := s.b[start:s.i]
+	if bytes.IndexByte(raw, '\\') < 0 && utf8.Valid(raw) {
+		*dst = string(raw[1 : len(raw)-1])
+		return nil
+	}
+	if json.Unmarshal(raw, dst) != nil {
+		return errRecord
+	}
+	return nil
+}
+
+// array reads an array, calling f for each element; f must consume it.
+// null reports false.
+func (s *scanner) array(f func() error) (bool, error) {
+	if s.null() {
+		return false, nil
+	}
+	if s.peek() != '[' {
+		return false, errRecord
+	}
+	s.i++
+	if s.peek() == ']' {
+		s.i++
+		return true, nil
+	}
+	for {
+		if err := f(); err != nil {
+			return true, err
+		}
+		switch s.peek() {
+		case ',':
+			s.i++
+		case ']':
+			s.i++
+			return true, nil
+		default:
+			return true, errRecord
+		}
+	}
+}
+
+// strings reads an array of strings: null gives nil, [] an empty slice,
+// as encoding/json does.
+func (s *scanner) strings(dst *[]string) error {
+	var out []string
+	isArray, err := s.array(func() error {
+		var v string
+		err := s.str(&v)
+		out = append(out, v)
+		return err
+	})
+	if isArray && out == nil {
+		out = []string{}
+	}
+	*dst = out
+	return err
+}
+
+// params reads the parameter list: null gives nil, [] an empty slice, as
+// encoding/json does.
+func (s *scanner) params(dst *[]dls.Param) error {
+	var out []dls.Param
+	isArray, err := s.array(func() error {
+		var p dls.Param
+		if s.null() {
+			out = append(out, p)
+			return nil
+		}
+		err := s.object(func(key []byte) error {
+			switch {
+			case keyIs(key, "key"):
+				return s.str(&p.Key)
+			case keyIs(key, "value"):
+				return s.str(&p.Value)
+			case keyIs(key, "origin"):
+				o := string(p.Origin)
+				err := s.str(&o)
+				p.Origin = dls.Origin(o)
+				return err
+			case keyIs(key, "where"):
+				return s.str(&p.Where)
+			}
+			return s.skip()
+		})
+		out = append(out, p)
+		return err
+	})
+	if isArray && out == nil {
+		out = []dls.Param{}
+	}
+	*dst = out
+	return err
+}
+
+// pow10 holds the powers of ten that float64 holds exactly.
+var pow10 = [...]float64{1e0, 1e1, 1e2, 1e3, 1e4, 1e5, 1e6, 1e7, 1e8, 1e9, 1e10, 1e11,
+	1e12, 1e13, 1e14, 1e15, 1e16, 1e17, 1e18, 1e19, 1e20, 1e21, 1e22}
+
+// plotNumber reads a number in JSON's grammar (RFC 8259, section 6:
+// -?(0|[1-9][0-9]*)(\.[0-9]+)?([eE][+-]?[0-9]+)?) to within 3 units in the
+// last place, which is all that a plotted coordinate needs (the plots
+// resolve about 1e-4 of their range): the significant digits (at most 19,
+// more than the 17 encoding/json writes) as an integer, scaled by exact
+// powers of ten (Clinger's fast path, without its exactness condition).
+// Decimal exponents outside −44 … 22 go to strconv.ParseFloat.
+//
+// The number starts at t[i]; end is the index of the byte after it. ok is
+// false when no number starts there, when it is followed by a byte other
+// than a delimiter (, ] } : or white space), or when it is beyond float64.
+func plotNumber(t []byte, i int) (v float64, end int, ok bool) {
+	n := len(t)
+	start := i
+	neg := false
+	if i < n && t[i] == '-' {
+		neg = true
+		i++
+	}
+	var mant uint64
+	nd, exp := 0, 0 // significant digits taken; decimal exponent of mant
+	switch {
+	case i < n && t[i] == '0':
+		i++
+	case i < n && t[i] >= '1' && t[i] <= '9':
+		for ; i < n && t[i] >= '0' && t[i] <= '9'; i++ {
+			if nd < 19 {
+				mant = 10*mant + uint64(t[i]-'0')
+				nd++
+			} else {
+				exp++ // a dropped digit before the point
+			}
+		}
+	default:
+		return 0, i, false
+	}
+	if i < n && t[i] == '.' {
+		i++
+		from := i
+		for ; i < n && t[i] >= '0' && t[i] <= '9'; i++ {
+			switch {
+			case nd >= 19: // dropped
+			case mant == 0 && t[i] == '0':
+				exp-- // a leading zero
+			default:
+				mant = 10*mant + uint64(t[i]-'0')
+				nd++
+				exp--
+			}
+		}
+		if i == from {
+			return 0, i, false
+		}
+	}
+	if i < n && (t[i] == 'e' || t[i] == 'E') {
+		i++
+		eneg := false
+		if i < n && (t[i] == '+' || t[i] == '-') {
+			eneg = t[i] == '-'
+			i++
+		}
+		from, e := i, 0
+		for ; i < n && t[i] >= '0' && t[i] <= '9'; i++ {
+			if e < 100000 {
+				e = 10*e + int(t[i]-'0')
+			}
+		}
+		if i == from {
+			return 0, i, false
+		}
+		if eneg {
+			e = -e
+		}
+		exp += e
+	}
+	if i < n && !delimiter(t[i]) {
+		return 0, i, false
+	}
+	switch {
+	case mant == 0:
+		v = 0
+	case exp >= 0 && exp <= 22:
+		v = float64(mant) * pow10[exp]
+	case exp < 0 && exp >= -22:
+		v = float64(mant) / pow10[-exp]
+	case exp < -22 && exp >= -44:
+		v = float64(mant) / 1e22 / pow10[-exp-22]
+	default:
+		f, err := strconv.ParseFloat(string(t[start:i]), 64)
+		if err != nil {
+			return 0, i, false
+		}
+		return f, i, true
+	}
+	if neg {
+		v = -v
+	}
+	return v, i, true
+}

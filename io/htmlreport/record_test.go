@@ -1,0 +1,257 @@
+package htmlreport
+
+import (
+	"bytes"
+	"encoding/json"
+	"math"
+	"reflect"
+	"strconv"
+	"strings"
+	"testing"
+
+	"dlsbatch/dls"
+)
+
+// compactOf keeps what io/report's compact copies keep (the page must
+// not need more): no curves, parameters, warnings, assumptions, medium
+// note or budget; the intensity distribution only.
+func compactOf(r *dls.Result) *dls.Result {
+	c := *r
+	c.Curves, c.Params, c.Budget, c.Volume, c.Number = nil, nil, nil, nil, nil
+	c.Assumptions, c.Warnings, c.Medium = nil, nil, nil
+	if d := r.Distribution; d != nil {
+		c.Distribution = &dls.SizeDistribution{DiameterNm: d.DiameterNm, Intensity: d.Intensity}
+	}
+	return &c
+}
+
+// closeFloats reports whether a and b have the same length and agree to
+// 3 units in the last place (plotNumber's stated bound).
+func closeFloats(a, b []float64) bool {
+	if len(a) != len(b) || (a == nil) != (b == nil) {
+		return false
+	}
+	for i := range a {
+		if a[i] != b[i] && math.Abs(a[i]-b[i]) > 3*ulp(b[i]) {
+			return false
+		}
+	}
+	return true
+}
+
+func ulp(v float64) float64 {
+	v = math.Abs(v)
+	return math.Nextafter(v, math.Inf(1)) - v
+}
+
+// checkParts compares the page's parts of got with want, decoded by
+// encoding/json from the same record (the reference).
+func checkParts(t *testing.T, got *dls.Result, want *pageParts) {
+	t.Helper()
+	if !reflect.DeepEqual(got.Params, want.Params) || !reflect.DeepEqual(got.Warnings, want.Warnings) ||
+		!reflect.DeepEqual(got.Assumptions, want.Assumptions) || !reflect.DeepEqual(got.Medium, want.Medium) {
+		t.Errorf("params, warnings, assumptions or medium differ:\n got %+v %q %q %+v\nwant %+v %q %q %+v",
+			got.Params, got.Warnings, got.Assumptions, got.Medium, want.Params, want.Warnings, want.Assumptions, want.Medium)
+	}
+	switch gc, wc := got.Curves, want.Curves; {
+	case (gc == nil) != (wc == nil):
+		t.Errorf("curves %v, want %v", gc != nil, wc != nil)
+	case gc != nil:
+		if gc.Kind != wc.Kind || !closeFloats(gc.TauS, wc.TauS) || !closeFloats(gc.Data, wc.Data) ||
+			!closeFloats(gc.Fitted, wc.Fitted) || !closeFloats(gc.Residuals, wc.Residuals) {
+			t.Errorf("curves differ")
+		}
+	}
+	switch gd, wd := got.Distribution, want.Distribution; {
+	case (gd == nil) != (wd == nil):
+		t.Errorf("distribution %v, want %v", gd != nil, wd != nil)
+	case gd != nil:
+		if !closeFloats(gd.DiameterNm, wd.DiameterNm) || !closeFloats(gd.Intensity, wd.Intensity) ||
+			!closeFloats(gd.Volume, wd.Volume) || !closeFloats(gd.Number, wd.Number) {
+			t.Errorf("distribution differs")
+		}
+	}
+}
+
+// The parts a page takes from a record are what encoding/json reads from
+// it (the reference), for the demo measurements and for synthetic ones,
+// written compact (as results.json holds them) and indented; the rest is
+// the compact copy's.
+func TestPageResultMatchesJSON(t *testing.T) {
+	_, demo := loadDemo(t)
+	results := append(demo, synthReport(2, 2).Results...)
+	// One with a medium note, warnings with characters JSON escapes, and
+	// an empty parameter list.
+	m := *results[0]
+	m.Medium = &dls.MediumNote{Model: "einstein", VolumeFraction: 0.01, RelativeViscosity: 1.025}
+	m.Warnings = []string{`quote " backslash \ tab	newline` + "\n" + `<tag> é ∆ \u0041`}
+	m.Params = []dls.Param{}
+	results = append(results, &m)
+	var arena []float64
+	for i, full := range results {
+		for _, indent := range []bool{false, true} {
+			raw, err := json.Marshal(full)
+			if indent {
+				raw, err = json.MarshalIndent(full, "", "  ")
+			}
+			if err != nil {
+				t.Fatal(err)
+			}
+			var want pageParts
+			if err := json.Unmarshal(raw, &want); err != nil {
+				t.Fatal(err)
+			}
+			var fast pageParts
+			if err := fast.decode(raw, &arena); err != nil {
+				t.Errorf("result %d (indent %v): fast path failed: %v", i, indent, err)
+			}
+			c := compactOf(full)
+			got, err := pageResult(c, raw, &arena)
+			if err != nil {
+				t.Fatalf("result %d: %v", i, err)
+			}
+			checkParts(t, got, &want)
+			if got.ZAvgNm != c.ZAvgNm || got.File != c.File || got.HasCumulants != c.HasCumulants || got.Intensity != c.Intensity {
+				t.Errorf("result %d: the compact copy's fields were not kept", i)
+			}
+		}
+	}
+}
+
+// A record the fast path cannot read goes to encoding/json whole; one
+// that encoding/json cannot read either is an error naming the file.
+func TestPageResultFallback(t *testing.T) {
+	c := &dls.Result{Identity: dls.Identity{File: "a.csv"}, Cumulants: dls.Cumulants{HasCumulants: true, ZAvgNm: 50}}
+	var arena []float64
+	for _, tc := range []struct {
+		name, raw string
+		ok        bool
+	}{
+		{"both read it", `{"file":"a.csv","curves":{"tau_s":[1e-6,2e-6],"data":[1.5,1.4],"kind":"g2"}}`, true},
+		{"not JSON", `{"curves":{"tau_s":[1e-6,`, false},
+		{"wrong type", `{"curves":"none"}`, false},
+		{"trailing bytes", `{"curves":null} x`, false},
+	} {
+		t.Run(tc.name, func(t *testing.T) {
+			r, err := pageResult(c, []byte(tc.raw), &arena)
+			if (err == nil) != tc.ok {
+				t.Fatalf("error %v, want ok %v", err, tc.ok)
+			}
+			if err != nil && !strings.Contains(err.Error(), "a.csv") {
+				t.Errorf("error %q does not name the file", err)
+			}
+			if err == nil && (r.Curves == nil || len(r.Curves.TauS) != 2 || !r.HasCumulants) {
+				t.Errorf("got %+v", r)
+			}
+		})
+	}
+}
+
+// plotNumber reads JSON numbers to within 3 ulp of strconv.ParseFloat's
+// correctly rounded value (the reference) and refuses what JSON's grammar
+// (RFC 8259, section 6) does not allow.
+func TestPlotNumber(t *testing.T) {
+	for _, s := range []string{
+		"0", "-0", "1", "-1", "100", "0.5", "0.1", "0.9187643523498734", "2.5e-08", "2.5E-8",
+		"1.0000051520877085", "5.2087708368731e-08", "-0.0012", "1e22", "1e23", "1e-22", "1.2345678901234567e-40",
+		"123456789012345678901234", "0.000000000000000000001234", "1.7976931348623157e308", "5e-324",
+		"12.5e+3", "4.9406564584124654e-324", "9007199254740993", "1e-44", "1e-45",
+	} {
+		want, err := strconv.ParseFloat(s, 64)
+		if err != nil {
+			t.Fatal(err)
+		}
+		got, end, ok := plotNumber([]byte(s+","), 0)
+		if !ok || end != len(s) {
+			t.Errorf("%s: ok %v, end %d", s, ok, end)
+			continue
+		}
+		if got != want && math.Abs(got-want) > 3*ulp(want) {
+			t.Errorf("%s: %v, want %v", s, got, want)
+		}
+	}
+	for _, s := range []string{"", "-", "01", "1.", ".5", "+1", "1e", "1e+", "inf", "NaN", "0x10", "1_0", "1.5x", "--1", "1e999"} {
+		if _, _, ok := plotNumber([]byte(s), 0); ok {
+			t.Errorf("%q accepted", s)
+		}
+	}
+}
+
+// hasDuplicateKeys reports whether a JSON document repeats a key inside
+// one object, or fails to tokenise.
+func hasDuplicateKeys(b []byte) bool {
+	dec := json.NewDecoder(bytes.NewReader(b))
+	type frame struct {
+		object bool
+		keys   map[string]bool
+		expect bool // next string token is a key
+	}
+	var stack []*frame
+	for {
+		tok, err := dec.Token()
+		if err != nil {
+			return err.Error() != "EOF"
+		}
+		var top *frame
+		if len(stack) > 0 {
+			top = stack[len(stack)-1]
+		}
+		if s, ok := tok.(string); ok && top != nil && top.object && top.expect {
+			k := strings.ToLower(s)
+			if top.keys[k] {
+				return true
+			}
+			top.keys[k] = true
+			top.expect = false
+			continue
+		}
+		switch tok {
+		case json.Delim('{'):
+			stack = append(stack, &frame{object: true, keys: map[string]bool{}, expect: true})
+			continue
+		case json.Delim('['):
+			stack = append(stack, &frame{})
+			continue
+		case json.Delim('}'), json.Delim(']'):
+			stack = stack[:len(stack)-1]
+		}
+		if len(stack) > 0 && stack[len(stack)-1].object {
+			stack[len(stack)-1].expect = true
+		}
+	}
+}
+
+// Whatever the bytes, reading a record never panics, and when both the
+// fast path and encoding/json read it (and no key repeats), they agree.
+func FuzzPageRecord(f *testing.F) {
+	// A demo record cut to its first lags and bins (whole ones, 40 kB,
+	// leave the mutator too little room to reach the parts).
+	_, demo := loadDemo(f)
+	r := *demo[0]
+	c, d := *r.Curves, *r.Distribution
+	c.TauS, c.Data, c.Fitted, c.Residuals = c.TauS[:3], c.Data[:3], c.Fitted[:3], c.Residuals[:3]
+	d.DiameterNm, d.Intensity, d.Volume, d.Number = d.DiameterNm[:3], d.Intensity[:3], d.Volume[:3], d.Number[:3]
+	d.G1, d.G1Sigma, d.G1Fitted, d.G1Residuals, d.Scan, d.MieMasked = d.G1[:2], nil, nil, nil, d.Scan[:1], nil
+	r.Curves, r.Distribution, r.Budget = &c, &d, nil
+	raw, err := json.Marshal(&r)
+	if err != nil {
+		f.Fatal(err)
+	}
+	f.Add(raw)
+	f.Add([]byte(`{"curves":{"tau_s":[1e-6,null,3],"Data":[1,2,3]},"PARAMS":[{"key":"a\u0041","value":"\ud83d\ude00"}],"warnings":null}`))
+	f.Add([]byte(`{"distribution":{"volume":[],"number":null},"assumptions":[],"medium":{"model":"x"}}`))
+	f.Fuzz(func(t *testing.T, raw []byte) {
+		var arena []float64
+		var fast pageParts
+		fastErr := fast.decode(raw, &arena)
+		var want pageParts
+		if fastErr != nil || json.Unmarshal(raw, &want) != nil || hasDuplicateKeys(raw) {
+			return
+		}
+		got, err := pageResult(&dls.Result{}, raw, &arena)
+		if err != nil {
+			t.Fatal(err)
+		}
+		checkParts(t, got, &want)
+	})
+}

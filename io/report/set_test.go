@@ -1,0 +1,106 @@
+package report
+
+import (
+	"bytes"
+	"context"
+	"crypto/sha256"
+	"encoding/hex"
+	"encoding/json"
+	"os"
+	"path/filepath"
+	"strings"
+	"testing"
+
+	"dlsbatch/dls"
+)
+
+// appendRaw gives the same record as raw (the stream's stored JSON, or a
+// group member's encoding), after whatever dst held.
+func TestAppendRaw(t *testing.T) {
+	st, err := NewStream(t.TempDir())
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer st.Close()
+	rs := sampleResults()
+	grouped := *rs[0]
+	grouped.Group = "g1" // kept whole in memory
+	if err := st.Add([]*dls.Result{rs[0], rs[1], &grouped}); err != nil {
+		t.Fatal(err)
+	}
+	for i := range 3 {
+		want, err := st.raw(i)
+		if err != nil {
+			t.Fatal(err)
+		}
+		got, err := st.appendRaw(i, []byte("prefix"))
+		if err != nil {
+			t.Fatal(err)
+		}
+		if !bytes.Equal(got, append([]byte("prefix"), want...)) {
+			t.Errorf("record %d: %q, want prefix + %q", i, got, want)
+		}
+	}
+}
+
+// WriteSet writes the report from the stream's records, lists every page
+// in the manifest with the size and SHA-256 of its bytes on disk
+// (crypto/sha256 of the file read back), and names the sample sheet with
+// its SHA-256 on the index.
+func TestWriteSetReport(t *testing.T) {
+	root := t.TempDir()
+	sheet := filepath.Join(root, "sheet.csv")
+	if err := os.WriteFile(sheet, []byte("file,sample\na.csv,lot 7\n"), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	dir := filepath.Join(t.TempDir(), "out")
+	if err := os.MkdirAll(dir, 0o755); err != nil {
+		t.Fatal(err)
+	}
+	st, err := NewStream(dir)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if err := st.Add(sampleResults()); err != nil {
+		t.Fatal(err)
+	}
+	doc := &Document{Tool: "dlsbatch", Version: "test", Caution: Caution, Complete: true,
+		Settings: &Settings{Sheet: "sheet.csv"}, Results: st.Results(),
+		Samples: []*dls.Sample{{Name: "lot, 7", Runs: []int{0}, Used: []int{0}}, {Name: "", Runs: []int{1}}}}
+	if err := WriteSet(context.Background(), dir, &Set{Doc: doc, HTMLReport: true, Root: root, Tables: []string{sheet}, Stream: st, Workers: 1}); err != nil {
+		t.Fatal(err)
+	}
+	b, err := os.ReadFile(filepath.Join(dir, ManifestJSON))
+	if err != nil {
+		t.Fatal(err)
+	}
+	var m Manifest
+	if err := json.Unmarshal(b, &m); err != nil {
+		t.Fatal(err)
+	}
+	pages := 0
+	for _, o := range m.Outputs {
+		if !strings.HasPrefix(o.Path, ReportDir+"/") {
+			continue
+		}
+		pages++
+		data, err := os.ReadFile(filepath.Join(dir, o.Path))
+		if err != nil {
+			t.Fatal(err)
+		}
+		sum := sha256.Sum256(data)
+		if o.Bytes != int64(len(data)) || o.SHA256 != hex.EncodeToString(sum[:]) {
+			t.Errorf("%s: manifest %d bytes %s, file %d bytes %x", o.Path, o.Bytes, o.SHA256, len(data), sum)
+		}
+	}
+	if pages != 3 {
+		t.Errorf("%d report pages in the manifest, want 3 (index and two samples)", pages)
+	}
+	index, err := os.ReadFile(filepath.Join(dir, ReportDir, "index.html"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	if len(m.Tables) != 1 || !bytes.Contains(index, []byte("sample sheet")) || !bytes.Contains(index, []byte(m.Tables[0].SHA256)) {
+		t.Errorf("index does not name the sample sheet with its SHA-256 %v", m.Tables)
+	}
+}
