@@ -7,6 +7,7 @@ import (
 	"encoding/json"
 	"fmt"
 	"io"
+	"sort"
 	"strconv"
 	"strings"
 	"text/tabwriter"
@@ -160,7 +161,7 @@ func WriteSummary(w io.Writer, results []*dls.Result, samples []*dls.Sample, b s
 		head = "verdict\t" + head
 	}
 	fmt.Fprintln(tw, head)
-	for _, smp := range samples {
+	for _, smp := range problemsFirst(samples) {
 		name := smp.Name
 		if smp.Lot != "" {
 			name += " (" + smp.Lot + ")"
@@ -171,7 +172,9 @@ func WriteSummary(w io.Writer, results []*dls.Result, samples []*dls.Sample, b s
 			ts[i] = fixed(t, 1)
 		}
 		zs, sd, pd := "–", "–", "–"
-		if smp.NUsed > 0 {
+		if smp.Role == dls.RoleBlank {
+			zs = "(blank)" // the dispersant's signal, not a particle size
+		} else if smp.NUsed > 0 {
 			zs, pd = fixed(smp.ZAvgMeanNm, 1), fixed(smp.PDIMean, 3)
 			if smp.NUsed > 1 {
 				sd = fixed(smp.ZAvgSDNm, 1)
@@ -265,20 +268,23 @@ func WriteSamplesCSV(w io.Writer, samples []*dls.Sample, results []*dls.Result) 
 			}
 			out = append(out, id)
 		}
+		// A blank's fit describes the dispersant's signal, not particles:
+		// no size is reported for it (its count rate and verdict are).
+		blank := s.Role == dls.RoleBlank
 		stat := func(v float64, prec int) string {
-			if s.NUsed == 0 {
+			if s.NUsed == 0 || blank {
 				return ""
 			}
 			return fixed(v, prec)
 		}
 		sd := func(v float64, prec int) string {
-			if s.NUsed < 2 {
+			if s.NUsed < 2 || blank {
 				return ""
 			}
 			return fixed(v, prec)
 		}
 		opt := func(v float64) string {
-			if v == 0 {
+			if v == 0 || blank {
 				return ""
 			}
 			return fixed(v, 3)
@@ -302,4 +308,22 @@ func WriteSamplesCSV(w io.Writer, samples []*dls.Sample, results []*dls.Result) 
 		return fmt.Errorf("samples csv: %w", err)
 	}
 	return nil
+}
+
+// problemsFirst orders samples for a person reading the summary: failed or
+// invalid verdicts first, then samples with flags, then the rest, each in
+// the order given (stable).
+func problemsFirst(samples []*dls.Sample) []*dls.Sample {
+	rank := func(s *dls.Sample) int {
+		switch {
+		case s.Verdict != nil && s.Verdict.Outcome != dls.VerdictPass:
+			return 0
+		case len(s.Flags) > 0:
+			return 1
+		}
+		return 2
+	}
+	out := append([]*dls.Sample(nil), samples...)
+	sort.SliceStable(out, func(i, j int) bool { return rank(out[i]) < rank(out[j]) })
+	return out
 }

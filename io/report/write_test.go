@@ -103,3 +103,23 @@ func TestWriteSummary(t *testing.T) {
 		}
 	}
 }
+
+// TestSummaryProblemsFirst: failed and invalid verdicts lead the summary,
+// then flagged samples, then the rest, each group in batch order.
+func TestSummaryProblemsFirst(t *testing.T) {
+	pass := &dls.Verdict{Outcome: dls.VerdictPass}
+	samples := []*dls.Sample{
+		{Name: "a-clean", Verdict: pass},
+		{Name: "b-flagged", Verdict: pass, Flags: []dls.Flag{{Code: "HIGH-PDI"}}},
+		{Name: "c-failed", Verdict: &dls.Verdict{Outcome: dls.VerdictFail}},
+		{Name: "d-clean", Verdict: pass},
+		{Name: "e-invalid", Verdict: &dls.Verdict{Outcome: dls.VerdictInvalid}},
+	}
+	var got []string
+	for _, s := range problemsFirst(samples) {
+		got = append(got, s.Name)
+	}
+	if want := "c-failed e-invalid b-flagged a-clean d-clean"; strings.Join(got, " ") != want {
+		t.Errorf("order %v, want %s", got, want)
+	}
+}
