@@ -47,7 +47,7 @@ type runOptions struct {
 	cutoff, minLagS, lambda, target                          float64
 	uTempK, uViscRel, uIndex, uAngleDeg                      float64 // Type B uncertainties
 	quiet, force, resume, extrapolate, noCurves, implausible bool
-	exclude, noReport, noDist                                bool
+	exclude, noReport, noDist, fullScan                      bool
 }
 
 func newRunOptions() *runOptions {
@@ -103,6 +103,7 @@ func (o *runOptions) addFlags(fs *pflag.FlagSet) {
 	fs.BoolVar(&o.exclude, "exclude-outliers", false, "leave outlier runs out of each sample's statistics (they are flagged either way)")
 	fs.BoolVar(&o.noReport, "no-report", false, "do not write the HTML report (DIR/report/)")
 	fs.BoolVar(&o.noDist, "no-distribution", false, "cumulants only: skip the size distributions")
+	fs.BoolVar(&o.fullScan, "full-alpha-scan", false, "solve and record every regularisation strength of the lattice (audit), not only those the search needs")
 	fs.Var(o.criterion, "alpha-criterion", "choice of the regularisation strength: probability to reject (Provencher), gcv, l-curve, or fixed (with --alpha-lambda)")
 	fs.Float64Var(&o.lambda, "alpha-lambda", 0, "dimensionless strength λ (α² = λ·tr(A'WA)/tr(L'L)) for --alpha-criterion fixed")
 	fs.Float64Var(&o.target, "prob-reject-target", contin.DefaultTargetProbReject, "target probability to reject for the default criterion")
@@ -272,7 +273,7 @@ func (o *runOptions) settings() (batch.Settings, *csvdata.Options, error) {
 		u.ViscosityBasis = "stated with --u-viscosity-rel"
 	}
 	d := &s.Distribution
-	d.Enabled, d.Contin.Criterion, d.Contin.TargetProbReject = !o.noDist, crit, o.target
+	d.Enabled, d.Contin.Criterion, d.Contin.TargetProbReject, d.Contin.FullScan = !o.noDist, crit, o.target, o.fullScan
 	if crit == contin.Fixed {
 		d.Contin.Lambda = o.lambda
 	}

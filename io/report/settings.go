@@ -22,6 +22,7 @@ type Settings struct {
 	Exclude           []string      `json:"exclude"`                      // --exclude globs
 	ExcludeOutliers   bool          `json:"exclude_outliers"`             // outliers left out of sample statistics
 	Extrapolate       bool          `json:"extrapolate"`                  // correlations allowed outside their range
+	FullAlphaScan     bool          `json:"full_alpha_scan"`              // every strength of the lattice solved and recorded
 	G1Cutoff          float64       `json:"g1_cutoff"`                    // end of the cumulant fit window in g1
 	GridPoints        int           `json:"grid_points"`                  // decay-rate grid of the inversion
 	Include           []string      `json:"include"`                      // --include globs
