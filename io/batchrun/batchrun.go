@@ -205,11 +205,12 @@ func Run(ctx context.Context, cfg *Config) (*Outcome, error) {
 		Settings: cfg.Settings,
 		Workers:  cfg.Workers,
 		Emit: func(res []*dls.Result) error {
-			if err := jr.add(res); err != nil {
+			measuredAt = append(measuredAt, measuredAtOf(res)...)
+			recs, err := stream.AddRecords(res)
+			if err != nil {
 				return err
 			}
-			measuredAt = append(measuredAt, measuredAtOf(res)...)
-			return stream.Add(res)
+			return jr.add(res, recs)
 		},
 	}
 	if cfg.Progress != nil {

@@ -2,6 +2,7 @@ package batchrun
 
 import (
 	"bufio"
+	"bytes"
 	"crypto/sha256"
 	"encoding/hex"
 	"encoding/json"
@@ -119,21 +120,32 @@ func (j *journal) cached(rel, sum string) ([]*dls.Result, bool) {
 	return e.Results, true
 }
 
-// add records the results of one file (called in input order).
-func (j *journal) add(results []*dls.Result) error {
+// add records the results of one file (called in input order), given
+// their JSON records as results.json holds them.
+func (j *journal) add(results []*dls.Result, records [][]byte) error {
 	if len(results) == 0 {
 		return nil
 	}
 	rel := results[0].File
 	sum, _ := j.hashes.Load(rel)
 	s, _ := sum.(string)
-	b, err := json.Marshal(journalEntry{InputSHA256: s, SettingsSHA256: j.settings, Version: j.version, File: rel, Results: results})
+	head, err := json.Marshal(journalEntry{InputSHA256: s, SettingsSHA256: j.settings, Version: j.version, File: rel})
 	if err != nil {
 		return fmt.Errorf("journal: %w", err)
 	}
+	// The entry's encoding with the records spliced in for "results":null.
+	head = bytes.TrimSuffix(head, []byte(`"results":null}`))
 	j.mu.Lock()
 	defer j.mu.Unlock()
-	if _, err := j.w.Write(append(b, '\n')); err != nil {
+	j.w.Write(head)
+	j.w.WriteString(`"results":[`)
+	for i, r := range records {
+		if i > 0 {
+			j.w.WriteByte(',')
+		}
+		j.w.Write(r)
+	}
+	if _, err := j.w.WriteString("]}\n"); err != nil {
 		return fmt.Errorf("journal: %w", err)
 	}
 	return j.w.Flush() // each file's line reaches the file system as it is done

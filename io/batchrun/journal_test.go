@@ -1,6 +1,7 @@
 package batchrun
 
 import (
+	"encoding/json"
 	"path/filepath"
 	"testing"
 
@@ -18,7 +19,8 @@ func TestJournal(t *testing.T) {
 	}
 	for _, f := range []string{"a.csv", "b.csv"} {
 		j.cached(f, "sum-"+f)
-		if err := j.add([]*dls.Result{{Identity: dls.Identity{File: f, Run: "r1"}}}); err != nil {
+		r := &dls.Result{Identity: dls.Identity{File: f, Run: "r1"}}
+		if err := j.add([]*dls.Result{r}, [][]byte{mustJSON(t, r)}); err != nil {
 			t.Fatal(err)
 		}
 	}
@@ -36,11 +38,21 @@ func TestJournal(t *testing.T) {
 
 	j, _ = openJournal(p, []byte("settings A"), false)
 	j.cached("a.csv", "sum-a.csv")
-	j.add([]*dls.Result{{Identity: dls.Identity{File: "a.csv"}}})
+	r := &dls.Result{Identity: dls.Identity{File: "a.csv"}}
+	j.add([]*dls.Result{r}, [][]byte{mustJSON(t, r)})
 	j.close(false)
 	j, _ = openJournal(p, []byte("settings B"), true)
 	if _, ok := j.cached("a.csv", "sum-a.csv"); ok || j.ignored != 1 {
 		t.Errorf("other settings taken (ignored %d)", j.ignored)
 	}
 	j.close(true)
+}
+
+func mustJSON(t *testing.T, v any) []byte {
+	t.Helper()
+	b, err := json.Marshal(v)
+	if err != nil {
+		t.Fatal(err)
+	}
+	return b
 }

@@ -46,34 +46,44 @@ func NewStream(dir string) (*Stream, error) {
 // Add records the results of one file. A result holding NaN or Inf is
 // refused, as in WriteJSON.
 func (s *Stream) Add(results []*dls.Result) error {
+	_, err := s.AddRecords(results)
+	return err
+}
+
+// AddRecords is Add that also returns each result's JSON record as
+// results.json will hold it (for a journal to reuse; not to be kept: a
+// record of a group member is encoded afresh).
+func (s *Stream) AddRecords(results []*dls.Result) ([][]byte, error) {
+	recs := make([][]byte, 0, len(results))
 	for _, r := range results {
 		if err := checkFinite(r); err != nil {
-			return fmt.Errorf("results json: %s: %w", r.File, err)
+			return nil, fmt.Errorf("results json: %s: %w", r.File, err)
 		}
+		b, err := json.Marshal(r)
+		if err != nil {
+			return nil, fmt.Errorf("results json: %s: %w", r.File, err)
+		}
+		recs = append(recs, b)
 		if r.Group != "" {
 			s.full[len(s.compact)] = r
 			s.spans = append(s.spans, span{-1, 0, 0})
 			s.compact = append(s.compact, r)
 			continue
 		}
-		b, err := json.Marshal(r)
-		if err != nil {
-			return fmt.Errorf("results json: %s: %w", r.File, err)
-		}
 		row, err := csvRow(r)
 		if err != nil {
-			return fmt.Errorf("results csv: %s: %w", r.File, err)
+			return nil, fmt.Errorf("results csv: %s: %w", r.File, err)
 		}
 		for _, part := range [][]byte{b, row} {
 			if _, err := s.w.Write(part); err != nil {
-				return fmt.Errorf("results: %w", err)
+				return nil, fmt.Errorf("results: %w", err)
 			}
 		}
 		s.spans = append(s.spans, span{s.off, int64(len(b)), int64(len(row))})
 		s.off += int64(len(b) + len(row))
 		s.compact = append(s.compact, compactOf(r))
 	}
-	return nil
+	return recs, nil
 }
 
 // Results are the compact results in input order; the i-th has index i in
