@@ -33,6 +33,12 @@ type Runner struct {
 	// file before it are done; Run then returns no results. With it,
 	// memory holds at most a window of files' results, not the batch.
 	Emit func(results []*dls.Result) error
+	// Prepare, when set, is called with each file's results in the worker
+	// goroutine that analysed them, before they wait for their turn: work
+	// on them that may run in parallel (encoding, say) belongs here, not
+	// in Emit, which runs one file at a time. It must be safe for
+	// concurrent use.
+	Prepare func(path string, results []*dls.Result)
 	// Cached, when set, may give the results of a file already analysed
 	// (a resumed run's journal); the file is then not read or analysed.
 	Cached func(path string) ([]*dls.Result, bool)
@@ -67,6 +73,9 @@ func (rn *Runner) Run(ctx context.Context, paths []string) ([]*dls.Result, error
 			defer wg.Done()
 			for i := range jobs {
 				res := rn.analyzeFile(paths[i])
+				if rn.Prepare != nil {
+					rn.Prepare(paths[i], res)
+				}
 				if rn.Progress != nil {
 					rn.Progress(paths[i])
 				}

@@ -173,6 +173,7 @@ func Run(ctx context.Context, cfg *Config) (*Outcome, error) {
 	published := false
 	defer func() { jr.close(published) }()
 	var hashed sync.Map     // input path → its FileHash, taken at analysis
+	var encodings sync.Map  // a file's first result → its records, encoded
 	var measuredAt []string // of each result, in input order
 	sheetRel := map[string]string{}
 	for _, f := range files {
@@ -204,13 +205,41 @@ func Run(ctx context.Context, cfg *Config) (*Outcome, error) {
 		},
 		Settings: cfg.Settings,
 		Workers:  cfg.Workers,
+		// Records are encoded in the workers, in parallel; Emit only
+		// appends them, in input order.
+		Prepare: func(_ string, res []*dls.Result) {
+			if len(res) == 0 {
+				return
+			}
+			e := encoded{recs: make([][]byte, len(res)), rows: make([][]byte, len(res))}
+			for i, r := range res {
+				if e.recs[i], e.rows[i], e.err = report.Encode(r); e.err != nil {
+					break
+				}
+			}
+			encodings.Store(res[0], e)
+		},
 		Emit: func(res []*dls.Result) error {
 			measuredAt = append(measuredAt, measuredAtOf(res)...)
-			recs, err := stream.AddRecords(res)
-			if err != nil {
+			if len(res) == 0 {
+				return nil
+			}
+			v, ok := encodings.LoadAndDelete(res[0])
+			if !ok { // not prepared (cannot happen with the Runner): encode here
+				recs, err := stream.AddRecords(res)
+				if err != nil {
+					return err
+				}
+				return jr.add(res, recs)
+			}
+			e := v.(encoded)
+			if e.err != nil {
+				return e.err
+			}
+			if err := stream.AddEncoded(res, e.recs, e.rows); err != nil {
 				return err
 			}
-			return jr.add(res, recs)
+			return jr.add(res, e.recs)
 		},
 	}
 	if cfg.Progress != nil {
@@ -320,6 +349,12 @@ func publish(ctx context.Context, cfg *Config, out *resultset.Set, p *publishing
 		return nil, err
 	}
 	return o, nil
+}
+
+// encoded holds one file's results encoded by report.Encode.
+type encoded struct {
+	recs, rows [][]byte
+	err        error
 }
 
 // relative names the failed entries of input problems by their path

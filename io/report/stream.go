@@ -54,36 +54,54 @@ func (s *Stream) Add(results []*dls.Result) error {
 // results.json will hold it (for a journal to reuse; not to be kept: a
 // record of a group member is encoded afresh).
 func (s *Stream) AddRecords(results []*dls.Result) ([][]byte, error) {
-	recs := make([][]byte, 0, len(results))
-	for _, r := range results {
-		if err := checkFinite(r); err != nil {
-			return nil, fmt.Errorf("results json: %s: %w", r.File, err)
+	recs := make([][]byte, len(results))
+	rows := make([][]byte, len(results))
+	for i, r := range results {
+		var err error
+		if recs[i], rows[i], err = Encode(r); err != nil {
+			return nil, err
 		}
-		b, err := json.Marshal(r)
-		if err != nil {
-			return nil, fmt.Errorf("results json: %s: %w", r.File, err)
-		}
-		recs = append(recs, b)
+	}
+	return recs, s.AddEncoded(results, recs, rows)
+}
+
+// Encode is a result's JSON record (as results.json holds it) and its
+// results.csv row; a result holding NaN or Inf is refused. It may run in
+// parallel, ahead of AddEncoded, which takes results one file at a time.
+func Encode(r *dls.Result) (record, row []byte, err error) {
+	if err := checkFinite(r); err != nil {
+		return nil, nil, fmt.Errorf("results json: %s: %w", r.File, err)
+	}
+	if record, err = json.Marshal(r); err != nil {
+		return nil, nil, fmt.Errorf("results json: %s: %w", r.File, err)
+	}
+	if row, err = csvRow(r); err != nil {
+		return nil, nil, fmt.Errorf("results csv: %s: %w", r.File, err)
+	}
+	return record, row, nil
+}
+
+// AddEncoded records the results of one file with their encodings from
+// Encode.
+func (s *Stream) AddEncoded(results []*dls.Result, recs, rows [][]byte) error {
+	for i, r := range results {
+		b, row := recs[i], rows[i]
 		if r.Group != "" {
 			s.full[len(s.compact)] = r
 			s.spans = append(s.spans, span{-1, 0, 0})
 			s.compact = append(s.compact, r)
 			continue
 		}
-		row, err := csvRow(r)
-		if err != nil {
-			return nil, fmt.Errorf("results csv: %s: %w", r.File, err)
-		}
 		for _, part := range [][]byte{b, row} {
 			if _, err := s.w.Write(part); err != nil {
-				return nil, fmt.Errorf("results: %w", err)
+				return fmt.Errorf("results: %w", err)
 			}
 		}
 		s.spans = append(s.spans, span{s.off, int64(len(b)), int64(len(row))})
 		s.off += int64(len(b) + len(row))
 		s.compact = append(s.compact, compactOf(r))
 	}
-	return recs, nil
+	return nil
 }
 
 // Results are the compact results in input order; the i-th has index i in
