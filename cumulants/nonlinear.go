@@ -44,15 +44,7 @@ func (p *prepared) nonlinear(s *Settings, lin LinearEstimate, last int, r *Resul
 		lo = 1
 	}
 	k := np - lo
-	idx := make([]int, 0, last-p.first+1+p.tailN)
-	for k := p.first; k <= last; k++ {
-		idx = append(idx, k)
-	}
-	if useTail {
-		for k := max(last+1, len(p.tau)-p.tailN); k < len(p.tau); k++ {
-			idx = append(idx, k)
-		}
-	}
+	idx := fitChannels(p.first, last, len(p.tau), p.tailN, useTail)
 	m := len(idx)
 	t := make([]float64, m)
 	y := make([]float64, m)
@@ -168,6 +160,7 @@ func (p *prepared) nonlinear(s *Settings, lin LinearEstimate, last int, r *Resul
 		return fmt.Errorf("%w: the nonlinear cumulant fit gives a non-positive decay rate", ErrNoDecay)
 	}
 	r.Iterations = iter
+	r.farFitted = useTail
 	r.Converged = converged
 	if !converged {
 		r.Warnings = append(r.Warnings, fmt.Errorf("nonlinear cumulant fit stopped at the iteration bound (%d) before converging", s.MaxIter))
@@ -239,4 +232,19 @@ func (p *prepared) nonlinear(s *Settings, lin LinearEstimate, last int, r *Resul
 		r.Warnings = append(r.Warnings, errors.New("cumulant fit covariance is singular: standard errors not available"))
 	}
 	return nil
+}
+
+// fitChannels lists the channels of a nonlinear fit over first..last and,
+// with tail, the last tailN channels beyond last.
+func fitChannels(first, last, n, tailN int, tail bool) []int {
+	idx := make([]int, 0, last-first+1+tailN)
+	for k := first; k <= last; k++ {
+		idx = append(idx, k)
+	}
+	if tail {
+		for k := max(last+1, n-tailN); k < n; k++ {
+			idx = append(idx, k)
+		}
+	}
+	return idx
 }
