@@ -136,9 +136,12 @@ func budget(r *dls.Result, fit *cumulants.Result, st state, s *Settings) []strin
 			notes = append(notes, "viscosity uncertainty assumed 1 %")
 		}
 	}
-	dof := float64(fit.PointsUsed - 2 - fit.Order)
+	se, dof, basis := typeA(fit)
+	if fit.Correlated == nil {
+		notes = append(notes, "Type A of the z-average assumes independent channel noise, understated for correlator data (give duration_s and count_rate_kcps)")
+	}
 	b, err := uncert.ZAverage(&uncert.Inputs{
-		GammaPerS: fit.GammaPerS, GammaSEPerS: fit.GammaSEPerS, GammaDOF: dof,
+		GammaPerS: fit.GammaPerS, GammaSEPerS: se, GammaDOF: dof, GammaBasis: basis,
 		TemperatureK: dls.KelvinFromCelsius(st.tempC), Viscosity: st.etaLaw.ViscosityPaS,
 		RefractiveIndex: st.optics.RefractiveIndex, AngleRad: st.optics.AngleRad, WavelengthM: st.optics.WavelengthM,
 		U: u, CoverageFactor: s.CoverageFactor,
@@ -146,9 +149,10 @@ func budget(r *dls.Result, fit *cumulants.Result, st state, s *Settings) []strin
 	if err != nil {
 		return []string{"uncertainty not computed: " + err.Error()}
 	}
+	warn := truncationTerm(b, fit)
 	r.ZAvgUcNm, r.ZAvgExpandedNm, r.Budget = b.CombinedUNm, b.ExpandedUNm, b
 	if len(notes) > 0 {
 		r.Assumptions = append(r.Assumptions, notes...)
 	}
-	return nil
+	return warn
 }
