@@ -1,7 +1,6 @@
 package uncert_test
 
 import (
-	"fmt"
 	"math"
 	"os"
 	"sync"
@@ -247,8 +246,8 @@ func TestCoveragePhotonLong(t *testing.T) {
 	t.Log("| condition | runs | u(d)/d | k = 2 coverage (rms z) | fit's own SE | σ from 5 runs | mean of 5, k = 2 | mean of 5, k = t(4) |")
 	for i, c := range photonConditions {
 		r := results[i]
-		t.Log(fmt.Sprintf("| %s | %d | %.2f %% | %.1f %% (%.2f) | %.1f %% (%.2f) | %.1f %% (%.2f) | %.1f %% | %.1f %% |",
-			c.name, r.runs, 100*r.relUModel, 100*r.model, r.sdzModel, 100*r.hc3, r.sdzHC3, 100*r.sigma5, r.sdzSigma5, 100*r.mean5k2, 100*r.mean5t))
+		t.Logf("| %s | %d | %.2f %% | %.1f %% (%.2f) | %.1f %% (%.2f) | %.1f %% (%.2f) | %.1f %% | %.1f %% |",
+			c.name, r.runs, 100*r.relUModel, 100*r.model, r.sdzModel, 100*r.hc3, r.sdzHC3, 100*r.sigma5, r.sdzSigma5, 100*r.mean5k2, 100*r.mean5t)
 		if math.Abs(r.model-0.9545) > 0.02 {
 			t.Errorf("%s: coverage %.1f %%, want 95 ± 2 %%", c.name, 100*r.model)
 		}
