@@ -76,6 +76,11 @@
 //     A value that breaks its rule makes the file fail with an error
 //     wrapping dls.ErrBadMetadata, and the number's own sentinel, at that
 //     line; the range check is left to the analysis.
+//   - count_rate_kcps and duration_s set the noise model of the Type A
+//     uncertainty (the correlator's correlated channel noise): the mean
+//     count rate the detector recorded (not one normalised for an
+//     attenuator) and the duration of the run the column holds (not the
+//     total of several runs).
 //   - An empty value ("# viscosity_mpas:") gives no value, as if the line
 //     were absent.
 //   - A key that is not of the format is ignored, with a warning on the
