@@ -29,3 +29,37 @@ func BenchmarkFit(b *testing.B) {
 		})
 	}
 }
+
+// BenchmarkFitCorrelated is BenchmarkFit/default with the correlated-noise
+// standard errors: the model basis (duration and count rate given) and the
+// tail basis (neither), and the truncation estimate.
+func BenchmarkFitCorrelated(b *testing.B) {
+	tau := multiTau(0.5e-6, 8, 200)
+	g1, _, _ := logNormalG1(tau, 2000, 0.15)
+	y := correlogram(g1, cumulants.G2, 0.9, 1, 1e-3, rand.New(rand.NewPCG(1, 1)))
+	for _, c := range []struct {
+		name string
+		acq  cumulants.Acquisition
+	}{{"model", cumulants.Acquisition{DurationS: 10, CountRateHz: 2e5}}, {"tail", cumulants.Acquisition{}}} {
+		b.Run(c.name, func(b *testing.B) {
+			b.ReportAllocs()
+			for b.Loop() {
+				r, err := cumulants.FitCorrelated(tau, y, nil, cumulants.G2, nil, c.acq)
+				if err != nil || r.Correlated == nil {
+					b.Fatal(err, r.Warnings)
+				}
+			}
+		})
+	}
+	b.Run("truncation", func(b *testing.B) {
+		r, err := cumulants.Fit(tau, y, nil, cumulants.G2, nil)
+		if err != nil {
+			b.Fatal(err)
+		}
+		for b.Loop() {
+			if _, err := cumulants.TruncationBias(tau, cumulants.G2, nil, r); err != nil {
+				b.Fatal(err)
+			}
+		}
+	})
+}

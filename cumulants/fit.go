@@ -84,12 +84,26 @@ type Result struct {
 
 	Linear LinearEstimate
 
+	// Correlated holds the standard errors under the noise model of a
+	// photon correlator (FitCorrelated); nil from Fit, or when the model
+	// does not apply (see FitCorrelated).
+	Correlated *CorrelatedErrors
+	// Truncation is the estimate of the second-order truncation bias
+	// (FitCorrelated at order 2); nil otherwise.
+	Truncation *Truncation
+	// Unavailable says why Correlated or Truncation is nil after
+	// FitCorrelated. These are not warnings about the fit.
+	Unavailable []error
+
 	Fitted    []float64 // model at every lag
 	Residuals []float64 // data − model at every lag
 	// Sigma is the standard uncertainty of each data point used as weight:
 	// the σ given, or the local estimate (SigmaEstimated).
 	Sigma    []float64
 	Warnings []error
+
+	farFitted bool // the far channels joined the nonlinear fit
+	tailN     int  // number of far channels
 }
 
 // skipUnreadCov leaves out the covariance of fits whose standard errors
@@ -165,6 +179,7 @@ func Fit(tau, y, sigma []float64, kind Kind, s *Settings) (*Result, error) {
 		res.SigmaEstimated = true
 	}
 	res.FarBaseline = p.farBase
+	res.tailN = p.tailN
 	res.BaselineReached = p.baseReached
 	if !p.baseReached {
 		res.Warnings = append(res.Warnings, fmt.Errorf("baseline not reached: the correlation has not decayed by the last channels (g1 ≈ %.2g there)", p.g1Tail))

@@ -177,6 +177,7 @@ func (p *prepared) nonlinear(s *Settings, lin LinearEstimate, last int, r *Resul
 		return fmt.Errorf("%w: the nonlinear cumulant fit gives a non-positive decay rate", ErrNoDecay)
 	}
 	r.Iterations = iter
+	r.farFitted = useTail
 	r.Converged = converged
 	if !converged {
 		r.Warnings = append(r.Warnings, fmt.Errorf("nonlinear cumulant fit stopped at the iteration bound (%d) before converging", s.MaxIter))
@@ -302,4 +303,19 @@ func evalOrder2(q *[5]float64, jtj *[5][5]float64, jtr *[5]float64, t, y, w []fl
 		jtj[3][3] += wa * j3
 	}
 	return chi
+}
+
+// fitChannels lists the channels of a nonlinear fit over first..last and,
+// with tail, the last tailN channels beyond last.
+func fitChannels(first, last, n, tailN int, tail bool) []int {
+	idx := make([]int, 0, last-first+1+tailN)
+	for k := first; k <= last; k++ {
+		idx = append(idx, k)
+	}
+	if tail {
+		for k := max(last+1, n-tailN); k < n; k++ {
+			idx = append(idx, k)
+		}
+	}
+	return idx
 }

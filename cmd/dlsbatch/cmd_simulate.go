@@ -21,7 +21,7 @@ type simOptions struct {
 
 	plan, out, output, truth string
 	force, noNoise, extrap   bool
-	pol                      *enumFlag
+	pol, noise               *enumFlag
 
 	dtNs               float64
 	perStage, channels int
@@ -39,6 +39,7 @@ func newSimOptions() *simOptions {
 			Runs: 1, Seed: d.Seed,
 		},
 		pol:      newEnum("vertical", "vertical", "unpolarized"),
+		noise:    newEnum(sim.NoiseGaussian, sim.NoiseGaussian, sim.NoiseCorrelated, sim.NoisePhoton),
 		dtNs:     g.DtS * 1e9,
 		perStage: g.M,
 		channels: g.Channels,
@@ -73,6 +74,7 @@ func (o *simOptions) addFlags(fs *pflag.FlagSet) {
 	fs.IntVar(&j.Runs, "runs", j.Runs, "runs per file (columns g2_r1, g2_r2, …)")
 	fs.IntVar(&j.DustBursts, "dust-bursts", 0, "dust bursts per run (0: no dust)")
 	fs.BoolVar(&j.Sigma, "sigma", false, "write the noise model's standard deviation as sigma columns")
+	fs.Var(o.noise, "noise", "noise model: gaussian (fast, independent channels), correlated (fast, correlated along the lags) or photon (photon counts through a software correlator, one sub-run per run; needs --dt-ns 100 or more)")
 	fs.BoolVar(&o.noNoise, "no-noise", false, "write the exact curves (sigma columns still hold the model's noise level)")
 	fs.BoolVar(&o.extrap, "extrapolate", false, "allow solvent correlations outside their valid range")
 	fs.Float64Var(&o.dtNs, "dt-ns", o.dtNs, "lag grid: sample time of the first stage in ns")
@@ -88,13 +90,11 @@ func runSimulate(ctx context.Context, e env, args []string) int {
 	if code, done := parseFlags(fs, e, "simulate", help("simulate"), help("simulate.exits"), args); done {
 		return code
 	}
-	fail := func(code int, err any) int {
-		fmt.Fprintln(e.stderr, "dlsbatch simulate:", err)
-		return code
-	}
+	fail := func(code int, err any) int { fmt.Fprintln(e.stderr, "dlsbatch simulate:", err); return code }
 	if fs.NArg() > 0 {
 		return fail(exitUsage, fmt.Sprintf("unexpected argument %q", fs.Arg(0)))
 	}
+	o.job.Noise = o.noise.String()
 	grid, err := sim.NewGrid(o.gridSpec())
 	if err != nil {
 		return fail(exitUsage, err)

@@ -275,3 +275,66 @@ func TestDemoUpToDate(t *testing.T) {
 		}
 	}
 }
+
+// TestSimulateNoise runs the three noise models through the command: the
+// photon model refuses a first sample time below 100 ns and σ from one
+// run, writes σ as the standard deviation of its runs' g2 (its definition;
+// tolerance 1e-4 relative for the written digits) and names itself in the
+// truth record; the fast models need no more than the defaults; an
+// unknown model is a usage error. A plan's noise column is positioned.
+func TestSimulateNoise(t *testing.T) {
+	photon := []string{"--noise", "photon", "--dt-ns", "1000", "--tau-max-s", "0.02", "--duration-s", "0.2", "--runs", "3"}
+	for _, c := range []struct {
+		name string
+		args []string
+		code int
+		text string
+	}{
+		{"photon at the default 25 ns", []string{"--noise", "photon", "--duration-s", "1", "--tau-max-s", "0.05"}, exitUsage, "at least 100 ns"},
+		{"photon σ from one run", []string{"--noise", "photon", "--dt-ns", "1000", "--tau-max-s", "0.02", "--duration-s", "0.2", "--sigma"}, exitUsage, "at least 2 runs"},
+		{"unknown model", []string{"--noise", "pink"}, exitUsage, "gaussian, correlated, photon"},
+		{"correlated", []string{"--noise", "correlated"}, exitOK, ""},
+		{"photon", append(photon, "--sigma"), exitOK, ""},
+	} {
+		t.Run(c.name, func(t *testing.T) {
+			dir := t.TempDir()
+			truth := filepath.Join(dir, "truth.json")
+			code, out, errs := simCmd(t, append(c.args, "--truth", truth)...)
+			if code != c.code || !strings.Contains(errs, c.text) {
+				t.Fatalf("exit %d, stderr %q; want %d and %q", code, errs, c.code, c.text)
+			}
+			if code != exitOK {
+				return
+			}
+			entries := csvdata.Read(strings.NewReader(out), "stdout", nil)
+			tb, _ := os.ReadFile(truth)
+			if c.name != "photon" {
+				if len(entries) == 0 || entries[0].Err != nil || !strings.Contains(string(tb), `"noise": "correlated"`) {
+					t.Fatalf("correlated: %d runs, truth %s", len(entries), tb)
+				}
+				return
+			}
+			if len(entries) != 3 || !strings.Contains(string(tb), `"noise": "photon"`) {
+				t.Fatalf("%d runs, truth %s", len(entries), tb)
+			}
+			for k, s := range entries[0].M.Sigma {
+				var m, ss float64
+				for _, e := range entries {
+					m += e.M.Corr[k] / 3
+				}
+				for _, e := range entries {
+					ss += (e.M.Corr[k] - m) * (e.M.Corr[k] - m)
+				}
+				if sd := math.Sqrt(ss / 2); math.Abs(s-sd) > 1e-4*sd {
+					t.Fatalf("channel %d: σ %g, standard deviation of the runs %g", k, s, sd)
+				}
+			}
+		})
+	}
+	dir := t.TempDir()
+	plan := writePlan(t, dir, "file,noise\na.csv,photon\n")
+	code, _, errs := simCmd(t, "--plan", plan, "--out", filepath.Join(dir, "out"), "--duration-s", "1", "--tau-max-s", "0.05")
+	if code != exitUsage || !strings.Contains(errs, "plan.csv:2:7: noise") {
+		t.Errorf("plan at 25 ns: exit %d, stderr %q; want the noise cell", code, errs)
+	}
+}

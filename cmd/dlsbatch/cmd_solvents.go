@@ -35,10 +35,7 @@ func runSolvents(ctx context.Context, e env, args []string) int {
 	if code, done := parseFlags(fs, e, "solvents", help("solvents"), help("solvents.exits"), args); done {
 		return code
 	}
-	fail := func(code int, msg any) int {
-		fmt.Fprintln(e.stderr, "dlsbatch solvents:", msg)
-		return code
-	}
+	fail := func(code int, msg any) int { fmt.Fprintln(e.stderr, "dlsbatch solvents:", msg); return code }
 	atState := fs.Changed("temperature-c") || fs.Changed("wavelength-nm")
 
 	table := medium.NewDefaultTable()

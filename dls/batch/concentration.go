@@ -309,9 +309,12 @@ func budget(r *dls.Result, fit *cumulants.Result, st state, kdt *kdTerms, meta d
 			}
 		}
 	}
-	dof := float64(fit.PointsUsed - 2 - fit.Order)
+	se, dof, basis := typeA(fit)
+	if fit.Correlated == nil {
+		notes = append(notes, "Type A of the z-average assumes independent channel noise, understated for correlator data (give duration_s and count_rate_kcps)")
+	}
 	b, err := uncert.ZAverage(&uncert.Inputs{
-		GammaPerS: fit.GammaPerS, GammaSEPerS: fit.GammaSEPerS, GammaDOF: dof,
+		GammaPerS: fit.GammaPerS, GammaSEPerS: se, GammaDOF: dof, GammaBasis: basis,
 		TemperatureK: dls.KelvinFromCelsius(st.tempC), Viscosity: st.etaLaw.ViscosityPaS,
 		RefractiveIndex: st.optics.RefractiveIndex, AngleRad: st.optics.AngleRad, WavelengthM: st.optics.WavelengthM,
 		U: u, CoverageFactor: s.CoverageFactor,
@@ -330,6 +333,7 @@ func budget(r *dls.Result, fit *cumulants.Result, st state, kdt *kdTerms, meta d
 		}
 	}
 	b.Unstated = append(b.Unstated, unstated...)
+	warn = append(warn, truncationTerm(b, fit)...)
 	r.ZAvgUcNm, r.ZAvgExpandedNm, r.Budget = b.CombinedUNm, b.ExpandedUNm, b
 	if kdt != nil && r.ZAvgD0Nm > 0 {
 		d0, err := d0Budget(b, kdt, r.ZAvgD0Nm/r.ZAvgNm)

@@ -8,17 +8,19 @@ import (
 	"dlsbatch/dls"
 )
 
-// fitCumulants runs the cumulant fit of m. The fit knows points only by
+// fitCumulants runs the cumulant fit of m with the standard errors under
+// the correlator's noise (cumulants.FitCorrelated) for the acquisition
+// acq. The fit knows points only by
 // their index; an error about one point (a *cumulants.PointError) becomes a
 // *dls.PosError at that point's file line, wrapping the same sentinel, so
 // that the message reads "file:line: reason". Other errors are returned as
 // they are (Analyze positions them at the header line).
-func fitCumulants(m *dls.Measurement, s *cumulants.Settings) (*cumulants.Result, error) {
+func fitCumulants(m *dls.Measurement, s *cumulants.Settings, acq cumulants.Acquisition) (*cumulants.Result, error) {
 	kind, err := cumulantKind(m.Kind)
 	if err != nil {
 		return nil, err
 	}
-	fit, err := cumulants.Fit(m.TauS, m.Corr, m.Sigma, kind, s)
+	fit, err := cumulants.FitCorrelated(m.TauS, m.Corr, m.Sigma, kind, s, acq)
 	if err != nil {
 		var pe *cumulants.PointError
 		if errors.As(err, &pe) {

@@ -65,7 +65,7 @@ func TestFitErrorsCrossTheBoundary(t *testing.T) {
 			if c.s != nil {
 				s = *c.s
 			}
-			_, err := fitCumulants(c.m, &s)
+			_, err := fitCumulants(c.m, &s, cumulants.Acquisition{})
 			if !errors.Is(err, c.domain) || !errors.Is(err, c.library) {
 				t.Fatalf("error %v: want errors.Is %q (dls) and %q (cumulants)", err, c.domain, c.library)
 			}

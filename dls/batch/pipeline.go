@@ -160,7 +160,7 @@ func Analyze(m *dls.Measurement, s *Settings) *dls.Result {
 		m = nm
 		warn = append(warn, note)
 	}
-	fit, err := fitCumulants(m, &s.Cumulants)
+	fit, err := fitCumulants(m, &s.Cumulants, acquisition(r))
 	if err != nil {
 		return fail(err)
 	}
@@ -170,15 +170,14 @@ func Analyze(m *dls.Measurement, s *Settings) *dls.Result {
 	r.Method = fit.Method.String()
 	r.Order = fit.Order
 	r.GammaMeanPerS = fit.GammaPerS
-	r.GammaSEPerS = fit.GammaSEPerS
+	r.GammaSEPerS, r.PDISE = fitErrors(fit)
 	r.Mu2PerS2 = fit.Mu2PerS2
 	r.Mu3PerS3 = fit.Mu3PerS3
 	r.DiffusionM2PerS = dls.DiffusionFromRate(fit.GammaPerS, q)
 	r.ZAvgNm = dls.DiameterFromDiffusion(tK, cond.etaPaS, r.DiffusionM2PerS) * 1e9
 	// d ∝ 1/Γ̄, so its relative standard error is that of Γ̄.
-	r.ZAvgSENm = r.ZAvgNm * fit.GammaSEPerS / fit.GammaPerS
+	r.ZAvgSENm = r.ZAvgNm * r.GammaSEPerS / fit.GammaPerS
 	r.PDI = fit.PDI
-	r.PDISE = fit.PDISE
 	r.Intercept = fit.Intercept
 	r.Baseline = fit.Baseline
 	r.FarBaseline = fit.FarBaseline

@@ -2,9 +2,11 @@ package sim
 
 import (
 	"encoding/json"
+	"errors"
 	"fmt"
 	"math"
 	"strconv"
+	"strings"
 
 	"dlsbatch/dls"
 	"dlsbatch/dls/medium"
@@ -36,6 +38,38 @@ type Job struct {
 	DustBursts int    // dust bursts per run
 	Seed       uint64 // random seed
 	Sigma      bool   // write the noise model's σ beside each run
+	// Noise is the noise model, see ParseNoise ("" is NoiseGaussian).
+	Noise string
+}
+
+// Noise models of a Job.
+const (
+	// NoiseGaussian: Simulate, independent Gaussian noise per channel (the
+	// fast model).
+	NoiseGaussian = "gaussian"
+	// NoiseCorrelated: SimulateCorrelated, the same noise correlated along
+	// the lags.
+	NoiseCorrelated = "correlated"
+	// NoisePhoton: Photon, photon by photon with a software correlator;
+	// each run of the file is one sub-run of duration DurationS, and σ is
+	// the standard deviation over the runs.
+	NoisePhoton = "photon"
+)
+
+// PhotonMinDtS is the shortest first sample time a photon-level job takes:
+// the cost grows as 1/Δt (about 40 ns of computing per base bin).
+const PhotonMinDtS = 100e-9
+
+// ParseNoise returns the noise model named s (case-insensitive; "" is
+// NoiseGaussian).
+func ParseNoise(s string) (string, error) {
+	switch v := strings.ToLower(strings.TrimSpace(s)); v {
+	case "", NoiseGaussian:
+		return NoiseGaussian, nil
+	case NoiseCorrelated, NoisePhoton:
+		return v, nil
+	}
+	return "", fmt.Errorf("noise model %q: want %s, %s or %s", s, NoiseGaussian, NoiseCorrelated, NoisePhoton)
 }
 
 // JobOptions are the settings shared by every job of a simulation.
@@ -99,6 +133,7 @@ type TruthRecord struct {
 	Beta           json.Number `json:"beta"`
 	Baseline       json.Number `json:"baseline"`
 	DustBursts     int         `json:"dust_bursts"`
+	Noise          string      `json:"noise,omitempty"` // empty for the fast Gaussian model
 	Seed           uint64      `json:"seed"`
 	ViscositySrc   string      `json:"viscosity_source"`
 	RefractiveISrc string      `json:"refractive_index_source"`
@@ -199,9 +234,13 @@ func (j *Job) Run(grid *Grid, o JobOptions) (*JobResult, error) {
 	if j.DustBursts > 0 {
 		cfg.Dust = &Dust{Bursts: j.DustBursts}
 	}
-	out, err := Simulate(model, &cfg)
+	noise, err := ParseNoise(j.Noise)
 	if err != nil {
-		return nil, fieldErr("", err)
+		return nil, fieldErr("noise", err)
+	}
+	out, err := j.simulate(model, &cfg, noise)
+	if err != nil {
+		return nil, err
 	}
 	labels := make([]string, len(out.Runs))
 	res.Runs = make([]JobRun, len(out.Runs))
@@ -247,5 +286,53 @@ func (j *Job) Run(grid *Grid, o JobOptions) (*JobResult, error) {
 		CountRateKcps: num(j.CountRateKcps), DurationS: num(j.DurationS), Beta: num(j.Beta), Baseline: num(j.Baseline),
 		DustBursts: j.DustBursts, Seed: j.Seed, ViscositySrc: etaSrc, RefractiveISrc: nSrc,
 	}
+	if noise != NoiseGaussian {
+		res.Truth.Noise = noise
+	}
 	return res, nil
+}
+
+// simulate draws the job's runs with the noise model. Errors are
+// *FieldError.
+func (j *Job) simulate(model *Model, cfg *Config, noise string) (*Output, error) {
+	if cfg.NoNoise || noise == NoiseGaussian {
+		out, err := Simulate(model, cfg)
+		if err != nil {
+			return nil, fieldErr("", err)
+		}
+		return out, nil
+	}
+	if noise == NoiseCorrelated {
+		out, err := SimulateCorrelated(model, cfg)
+		if err != nil {
+			return nil, fieldErr("", err)
+		}
+		return out, nil
+	}
+	switch g := cfg.Grid; {
+	case g != nil && g.DtS < PhotonMinDtS:
+		return nil, fieldErr("noise", fmt.Errorf("photon-level noise needs a first sample time of at least %g ns (the lag grid has %g ns; set --dt-ns)", PhotonMinDtS*1e9, g.DtS*1e9))
+	case j.DustBursts > 0:
+		return nil, fieldErr("dust_bursts", errors.New("dust is not simulated at photon level; use the gaussian or correlated noise model"))
+	case j.Sigma && j.Runs < 2:
+		return nil, fieldErr("sigma", errors.New("with photon-level noise σ is the scatter of the runs: it needs at least 2 runs"))
+	}
+	pr, err := Photon(model, &PhotonConfig{Grid: cfg.Grid, Beta: cfg.Beta, CountRateHz: cfg.CountRateHz,
+		DurationS: cfg.DurationS * float64(j.Runs), SubRuns: j.Runs, Seed: cfg.Seed})
+	if err != nil {
+		return nil, fieldErr("", err)
+	}
+	out := pr.Output()
+	// The photon correlator's g2 has baseline 1; the job's baseline scales
+	// it as in Simulate (g2 = B·(1 + β·g1²)).
+	if b := cfg.Baseline; b != 1 {
+		for i := range out.Runs {
+			for _, v := range [][]float64{out.Runs[i].G2, out.Runs[i].Sigma, out.Runs[i].Exact} {
+				for k := range v {
+					v[k] *= b
+				}
+			}
+		}
+	}
+	return out, nil
 }

@@ -73,6 +73,9 @@ type Inputs struct {
 	GammaPerS   float64
 	GammaSEPerS float64
 	GammaDOF    float64
+	// GammaBasis says where GammaSEPerS comes from (shown in the budget);
+	// empty means the cumulant fit's standard error (see TypeABasis).
+	GammaBasis string
 
 	TemperatureK float64 // T, K
 	// Viscosity is η(T) of the continuous phase in Pa·s at tK kelvin, e.g.
@@ -188,9 +191,13 @@ func ZAverage(in *Inputs) (*Budget, error) {
 	if u.WavelengthM == 0 {
 		lBasis = "taken as exact"
 	}
+	gBasis := in.GammaBasis
+	if gBasis == "" {
+		gBasis = "standard error of the cumulant fit"
+	}
 	comps := []Component{
 		{Name: "decay_rate", Symbol: "Γ̄", Type: "A", Value: in.GammaPerS, StandardUncertainty: in.GammaSEPerS, Unit: "1/s",
-			Sensitivity: -dNm / in.GammaPerS, DOF: in.GammaDOF, Basis: "standard error of the cumulant fit"},
+			Sensitivity: -dNm / in.GammaPerS, DOF: in.GammaDOF, Basis: gBasis},
 		{Name: "temperature", Symbol: "T", Type: "B", Value: tK, StandardUncertainty: u.TemperatureK, Unit: "K",
 			Sensitivity: dNm * (1/tK - detaDT/eta), Basis: tBasis + "; sensitivity includes η(T)"},
 		{Name: "viscosity", Symbol: "η", Type: "B", Value: eta, StandardUncertainty: u.ViscosityRel * eta, Unit: "Pa·s",
@@ -202,42 +209,9 @@ func ZAverage(in *Inputs) (*Budget, error) {
 		{Name: "wavelength", Symbol: "λ0", Type: "B", Value: in.WavelengthM, StandardUncertainty: u.WavelengthM, Unit: "m",
 			Sensitivity: -2 * dNm / in.WavelengthM, Basis: lBasis},
 	}
-	var uc2, wsDen float64
-	for i := range comps {
-		c := &comps[i]
-		if c.StandardUncertainty != 0 { // no −0 for an exact input
-			c.ContributionNm = c.Sensitivity * c.StandardUncertainty
-		}
-		uc2 += c.ContributionNm * c.ContributionNm
-	}
-	for i := range comps {
-		c := &comps[i]
-		if uc2 > 0 {
-			c.VarianceSharePct = 100 * c.ContributionNm * c.ContributionNm / uc2
-		}
-		if c.DOF > 0 {
-			u2 := c.ContributionNm * c.ContributionNm
-			wsDen += u2 * u2 / c.DOF
-		}
-	}
-	b := &Budget{
-		ZAvgNm: dNm, CombinedUNm: math.Sqrt(uc2), CoverageFactor: k, Components: comps,
-		CoverageFactorT95: z975,
-	}
-	b.RelativeUPct = 100 * b.CombinedUNm / dNm
-	b.ExpandedUNm = k * b.CombinedUNm
-	if wsDen > 0 {
-		b.EffectiveDOF = uc2 * uc2 / wsDen
-		b.CoverageFactorT95 = t975(b.EffectiveDOF)
-	}
-	vals := []float64{b.ZAvgNm, b.CombinedUNm, b.RelativeUPct, b.ExpandedUNm, b.EffectiveDOF, b.CoverageFactorT95}
-	for _, c := range comps {
-		vals = append(vals, c.Sensitivity, c.ContributionNm, c.VarianceSharePct)
-	}
-	for _, v := range vals {
-		if math.IsNaN(v) || math.IsInf(v, 0) {
-			return nil, bad("inputs of extreme magnitude give a non-finite budget")
-		}
+	b := &Budget{ZAvgNm: dNm, CoverageFactor: k, Components: comps}
+	if err := recombine(b); err != nil {
+		return nil, err
 	}
 	b.Notes = append(b.Notes,
 		"inputs taken as uncorrelated",

@@ -35,6 +35,12 @@ import (
 // that the fit estimates its weights and standard error from the data.
 // Expected coverage 95.45 % (normal, k = 2); tolerance ±3 %, which is 3.2
 // binomial standard deviations at n = 500 (√(0.95·0.05/500) ≈ 0.97 %).
+//
+// The simulator here is the fast one, whose channel noise is independent,
+// and the Type A is the fit's own standard error (cumulants.Fit), which is
+// right for such noise. Real correlator noise is correlated along the lags;
+// the pipeline's Type A for it (cumulants.FitCorrelated) is checked on the
+// photon-level simulator in coverage_photon_test.go.
 func TestCoverage(t *testing.T) {
 	if testing.Short() {
 		t.Skip("simulates and fits 1000 correlograms (about 2 s)")

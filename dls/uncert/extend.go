@@ -4,8 +4,6 @@ import (
 	"fmt"
 	"math"
 	"slices"
-
-	"gonum.org/v1/gonum/stat/distuv"
 )
 
 // Extend returns a copy of the budget b with the components extra added
@@ -69,37 +67,7 @@ func Scaled(b *Budget, f float64) *Budget {
 // combine redoes u_c, the shares, U, ν_eff and the Student factor of b
 // from its components' contributions.
 func combine(b *Budget) {
-	var uc2, wsDen float64
-	for _, c := range b.Components {
-		uc2 += c.ContributionNm * c.ContributionNm
-	}
-	for i := range b.Components {
-		c := &b.Components[i]
-		c.VarianceSharePct = 0
-		if uc2 > 0 {
-			c.VarianceSharePct = 100 * c.ContributionNm * c.ContributionNm / uc2
-		}
-		if c.DOF > 0 {
-			u2 := c.ContributionNm * c.ContributionNm
-			wsDen += u2 * u2 / c.DOF
-		}
-	}
-	b.CombinedUNm = math.Sqrt(uc2)
-	b.RelativeUPct = 0
-	if b.ZAvgNm != 0 {
-		b.RelativeUPct = 100 * b.CombinedUNm / b.ZAvgNm
-	}
-	b.ExpandedUNm = b.CoverageFactor * b.CombinedUNm
-	b.EffectiveDOF, b.CoverageFactorT95 = 0, distuv.UnitNormal.Quantile(0.975)
-	if wsDen > 0 {
-		b.EffectiveDOF = uc2 * uc2 / wsDen
-		// Beyond 1e7 degrees of freedom t_0.975 equals the normal quantile
-		// to 1e-7, and the Student quantile loses its accuracy (it returns
-		// nonsense near 1e57, as a noise-free Type A term gives).
-		if b.EffectiveDOF < 1e7 {
-			b.CoverageFactorT95 = distuv.StudentsT{Mu: 0, Sigma: 1, Nu: b.EffectiveDOF}.Quantile(0.975)
-		}
-	}
+	_ = recombine(b) // Extend and Scaled check their inputs; a non-finite total stays visible in b
 }
 
 // SetBasis replaces the basis of the component named name in b (e.g. to

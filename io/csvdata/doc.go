@@ -101,6 +101,11 @@
 //     with ',' and no '.' is read with ',' as its decimal mark and stored
 //     with '.' ("# temperature_c: 25,0" is 25.0); errors quote the value as
 //     written.
+//   - count_rate_kcps and duration_s set the noise model of the Type A
+//     uncertainty (the correlator's correlated channel noise): the mean
+//     count rate the detector recorded (not one normalised for an
+//     attenuator) and the duration of the run the column holds (not the
+//     total of several runs).
 //   - An empty value ("# viscosity_mpas:") gives no value, as if the line
 //     were absent.
 //   - A key that is not of the format is ignored, with a warning on the

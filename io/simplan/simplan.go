@@ -8,7 +8,8 @@
 //	file (required; a plain name ending in .csv), sample, runs, population,
 //	solvent, temperature_c, wavelength_nm, angle_deg, viscosity_mpas,
 //	refractive_index, material, particle_ri, count_rate_kcps, duration_s,
-//	beta, baseline, seed, dust_bursts, sigma (yes or no)
+//	beta, baseline, seed, dust_bursts, sigma (yes or no),
+//	noise (gaussian, correlated or photon; see sim.ParseNoise)
 //
 // Numbers are decimal as dls.ParseNumber reads them (no hexadecimal, digit
 // separators, inf or nan); runs, dust_bursts and seed are whole numbers.
@@ -59,13 +60,14 @@ type row struct {
 	Seed            string `csv:"seed"`
 	DustBursts      string `csv:"dust_bursts"`
 	Sigma           string `csv:"sigma"`
+	Noise           string `csv:"noise"`
 }
 
 // Columns returns the plan columns, in the order documented.
 func Columns() []string {
 	return []string{"file", "sample", "runs", "population", "solvent", "temperature_c", "wavelength_nm",
 		"angle_deg", "viscosity_mpas", "refractive_index", "material", "particle_ri", "count_rate_kcps", "duration_s",
-		"beta", "baseline", "seed", "dust_bursts", "sigma"}
+		"beta", "baseline", "seed", "dust_bursts", "sigma", "noise"}
 }
 
 // Entry is a plan row turned into a job, with what is needed to point at
@@ -212,6 +214,13 @@ func fill(j *sim.Job, r row) error {
 		j.Sigma = false
 	default:
 		return bad("sigma", fmt.Errorf("%q: want yes or no", v))
+	}
+	if r.Noise != "" {
+		n, err := sim.ParseNoise(r.Noise)
+		if err != nil {
+			return bad("noise", err)
+		}
+		j.Noise = n
 	}
 	return nil
 }

@@ -111,3 +111,22 @@ func FuzzParse(f *testing.F) {
 		}
 	})
 }
+
+// TestNoiseColumn: the noise column names the job's noise model (any
+// case), an empty cell keeps the default, and an unknown model is an error
+// at its cell.
+func TestNoiseColumn(t *testing.T) {
+	got, err := Parse(strings.NewReader("file,noise\na.csv,Photon\nb.csv,\nc.csv,correlated\n"), "p.csv", def)
+	if err != nil {
+		t.Fatal(err)
+	}
+	for i, want := range []string{sim.NoisePhoton, "", sim.NoiseCorrelated} {
+		if got[i].Job.Noise != want {
+			t.Errorf("row %d: noise %q, want %q", i+1, got[i].Job.Noise, want)
+		}
+	}
+	_, err = Parse(strings.NewReader("file,noise\na.csv,pink\n"), "p.csv", def)
+	if err == nil || !strings.HasPrefix(err.Error(), "p.csv:2:7: noise") {
+		t.Errorf("unknown model: error %v, want one at p.csv:2:7", err)
+	}
+}
