@@ -132,7 +132,7 @@ func TestGlycerolWaterIndexAgainstHandbook(t *testing.T) {
 // TestGlycerolWaterDensity against the density table of the Glycerine
 // Producers' Association, Physical properties of glycerine and its
 // solutions (1963), in g/cm³ at 15, 20, 25 and 30 °C (one public
-// transcription of the table, as republished by a glycerine maker; grade
+// copy of the table, as republished by a glycerine producer; grade
 // B). Volk & Kähler's model with the Pátek water density reproduces it
 // within 0.042 % (largest at 70 wt %, 30 °C); tolerance 0.05 %. The ideal
 // mix (κ = 1) is more than 0.9 % light at 50 wt %, 20 °C: checked so that
