@@ -159,17 +159,3 @@ func (j *journal) close(remove bool) {
 		os.Remove(j.f.Name())
 	}
 }
-
-// fileSHA256 is the SHA-256 of a file's content ("" if it cannot be read).
-func fileSHA256(path string) string {
-	f, err := os.Open(path)
-	if err != nil {
-		return ""
-	}
-	defer f.Close()
-	h := sha256.New()
-	if _, err := io.Copy(h, f); err != nil {
-		return ""
-	}
-	return hex.EncodeToString(h.Sum(nil))
-}
