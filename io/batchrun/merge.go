@@ -90,10 +90,15 @@ func Merge(ctx context.Context, cfg *MergeConfig) (*Outcome, error) {
 	run := &Config{HTMLReport: cfg.HTMLReport, ExcludeOutliers: rec.ExcludeOutliers,
 		Record: func(string) *report.Settings { return rec }}
 	run.Settings.QC = rec.QCThresholds
+	// The inputs are recorded with the hashes the shards took when they
+	// analysed them: what the merged set attests is what was analysed,
+	// and no input is read again.
 	var inputs []string
+	known := map[string]report.FileHash{}
 	for _, m := range mans {
 		for _, h := range m.Inputs {
 			inputs = append(inputs, abs(h.Path))
+			known[abs(h.Path)] = h
 		}
 	}
 	sort.Slice(inputs, func(a, b int) bool { return inputs[a] < inputs[b] })
@@ -124,7 +129,8 @@ func Merge(ctx context.Context, cfg *MergeConfig) (*Outcome, error) {
 			return nil, fmt.Errorf("%w: specification: %w", ErrUsage, err)
 		}
 	}
-	return publish(ctx, run, out, &publishing{root: root, inputs: inputs, match: match, stream: stream, complete: true, measuredAt: measuredAt})
+	return publish(ctx, run, out, &publishing{root: root, inputs: inputs, match: match, stream: stream, complete: true, measuredAt: measuredAt,
+		hashes: known})
 }
 
 func readManifest(dir string) (*report.Manifest, error) {
