@@ -2,9 +2,11 @@ package main
 
 import (
 	"bytes"
+	"crypto/sha256"
 	"encoding/json"
 	"flag"
 	"fmt"
+	"html"
 	"os"
 	"path/filepath"
 	"regexp"
@@ -66,9 +68,13 @@ func TestDemoGolden(t *testing.T) {
 				}
 				got[f] = b
 			}
-			// The manifest's one absolute path is the input root: where the
-			// checkout lies is not part of the result.
-			got["manifest.json"] = bytes.Replace(got["manifest.json"], []byte(`"root": `+quote(filepath.Join(root, "testdata", c.name))), []byte(`"root": "ROOT"`), 1)
+			// The one absolute path in the outputs is the input root, named in
+			// the manifest and in the batch record of report/index.html:
+			// where the checkout lies is not part of the result. The index is
+			// compared with the root replaced, through its manifest entry.
+			inputRoot := filepath.Join(root, "testdata", c.name)
+			got["manifest.json"] = bytes.Replace(got["manifest.json"], []byte(`"root": `+quote(inputRoot)), []byte(`"root": "ROOT"`), 1)
+			got["manifest.json"] = normaliseIndex(t, got["manifest.json"], filepath.Join(out, "report", "index.html"), inputRoot)
 			if *update {
 				if err := os.MkdirAll(golden, 0o755); err != nil {
 					t.Fatal(err)
@@ -91,6 +97,30 @@ func TestDemoGolden(t *testing.T) {
 			}
 		})
 	}
+}
+
+// normaliseIndex checks that the manifest lists report/index.html with the
+// page's true size and SHA-256, then replaces that entry with the size and
+// SHA-256 of the page with the input root written as ROOT.
+func normaliseIndex(t *testing.T, manifest []byte, indexPath, inputRoot string) []byte {
+	t.Helper()
+	page, err := os.ReadFile(indexPath)
+	if err != nil {
+		t.Fatal(err)
+	}
+	entry := func(b []byte) []byte {
+		sum := sha256.Sum256(b)
+		return fmt.Appendf(nil, "\"bytes\": %d,\n   \"sha256\": \"%x\"", len(b), sum)
+	}
+	real := entry(page)
+	if !bytes.Contains(manifest, real) {
+		t.Fatalf("manifest.json does not list report/index.html with its size and SHA-256 (%s)", real)
+	}
+	if !bytes.Contains(page, []byte(html.EscapeString(inputRoot))) {
+		t.Fatalf("report/index.html does not name the input root %s", inputRoot)
+	}
+	norm := bytes.ReplaceAll(page, []byte(html.EscapeString(inputRoot)), []byte("ROOT"))
+	return bytes.Replace(manifest, real, entry(norm), 1)
 }
 
 var regexpResults = regexp.MustCompile(`(?m)^results: .*\n`)
