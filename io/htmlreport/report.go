@@ -18,6 +18,12 @@ import (
 	"dlsbatch/io/atomicfile"
 )
 
+// ResolutionLimit states, under every sample's runs, what the intensity
+// peaks can and cannot show: the measured resolution of the default
+// inversion on photon-level simulated correlator noise (DEVELOPERS.md,
+// "Resolution on correlator noise").
+const ResolutionLimit = "Intensity peaks come from a regularised inversion: two populations closer than a factor of about 3 in diameter are often shown as one broad peak (measured on simulated correlator noise, 30 s runs), so a single peak does not prove a single population."
+
 // DefaultCaution is shown when Report.Caution is empty: the report
 // supports, and does not replace, qualified review.
 const DefaultCaution = "Results support, and do not replace, review by qualified staff under the site's quality system and local regulations."

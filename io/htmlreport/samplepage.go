@@ -280,6 +280,7 @@ func (w *writer) samplePage(p *samplePage, sections []byte) {
 		w.int(len(p.Runs))
 		w.str(" runs; every run is in the table above and below.")
 	}
+	w.str(" " + ResolutionLimit)
 	w.str("</p>\n</section>\n")
 	w.b = append(w.b, sections...)
 	w.str("\n</main>")

@@ -333,6 +333,26 @@ func TestCautionOnEveryPage(t *testing.T) {
 	}
 }
 
+// Every sample page states the resolution limit of its intensity peaks
+// beside the runs table (the measured table is in DEVELOPERS.md).
+func TestResolutionLimitOnSamplePages(t *testing.T) {
+	r := demoReport(t)
+	dir := writeDemo(t, r)
+	for i := range r.Samples {
+		name := SamplePageName(i)
+		doc, _ := readPage(t, dir, name)
+		found := false
+		for _, n := range doc.all(elemClass("p", "note")) {
+			if strings.Contains(n.text(), "closer than a factor of about 3 in diameter") {
+				found = true
+			}
+		}
+		if !found {
+			t.Errorf("%s: no note states the resolution limit", name)
+		}
+	}
+}
+
 // writeWith writes r into a fresh folder and returns every file's bytes.
 func writeWith(t *testing.T, r *Report) map[string][]byte {
 	t.Helper()
