@@ -14,16 +14,28 @@ import (
 // once. A hit is confirmed by comparing the stored lags and settings, so a
 // hash collision can never return a wrong grid. The zero value is an empty
 // cache ready for use; a Cache is safe for concurrent use and builds each
-// grid once even when many goroutines ask for it at the same time. Entries
-// are never evicted: a batch normally has a handful of distinct lag grids.
+// grid once even when many goroutines ask for it at the same time. It
+// holds at most CacheSize grids and evicts the least recently used: the
+// rate grid of a measurement depends on its temperature and viscosity
+// (the size bounds), so a temperature series makes a new grid per
+// temperature, each about 0.3 MB for 136 lags and 100 rates. A grid is
+// the same whether it was cached or rebuilt, so eviction never changes a
+// result.
 type Cache struct {
 	mu      sync.Mutex
 	entries map[[32]byte][]*cacheEntry
+	n       int
+	tick    uint64
 }
+
+// CacheSize is the most grids a Cache holds.
+const CacheSize = 32
 
 type cacheEntry struct {
 	tau  []float64
 	gs   GridSettings
+	key  [32]byte
+	used uint64 // Cache.tick at the last request
 	once sync.Once
 	grid *Grid
 	err  error
@@ -49,23 +61,46 @@ func (c *Cache) Grid(tauS []float64, s *GridSettings) (*Grid, error) {
 		}
 	}
 	if e == nil {
-		e = &cacheEntry{tau: append([]float64(nil), tauS...), gs: gs}
+		if c.n >= CacheSize {
+			c.evict()
+		}
+		e = &cacheEntry{tau: append([]float64(nil), tauS...), gs: gs, key: key}
 		c.entries[key] = append(c.entries[key], e)
+		c.n++
 	}
+	c.tick++
+	e.used = c.tick
 	c.mu.Unlock()
 	e.once.Do(func() { e.grid, e.err = buildGrid(e.tau, e.gs) })
 	return e.grid, e.err
+}
+
+// evict removes the least recently requested entry (c.mu held). A
+// goroutine still building or using it keeps its own pointer.
+func (c *Cache) evict() {
+	var old *cacheEntry
+	for _, es := range c.entries {
+		for _, e := range es {
+			if old == nil || e.used < old.used {
+				old = e
+			}
+		}
+	}
+	es := c.entries[old.key]
+	es = slices.DeleteFunc(es, func(e *cacheEntry) bool { return e == old })
+	if len(es) == 0 {
+		delete(c.entries, old.key)
+	} else {
+		c.entries[old.key] = es
+	}
+	c.n--
 }
 
 // Len returns the number of distinct grids held.
 func (c *Cache) Len() int {
 	c.mu.Lock()
 	defer c.mu.Unlock()
-	n := 0
-	for _, es := range c.entries {
-		n += len(es)
-	}
-	return n
+	return c.n
 }
 
 func sameGrid(e *cacheEntry, tau []float64, gs *GridSettings) bool {

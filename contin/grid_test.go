@@ -4,6 +4,7 @@ import (
 	"errors"
 	"math"
 	"math/rand/v2"
+	"slices"
 	"sync"
 	"testing"
 
@@ -233,5 +234,48 @@ func TestCache(t *testing.T) {
 	}
 	if c2.Len() != 1 {
 		t.Fatalf("%d entries after concurrent requests", c2.Len())
+	}
+}
+
+// The cache holds at most CacheSize grids and evicts the least recently
+// requested one; a rebuilt grid equals the evicted one (same kernel), so
+// eviction cannot change an inversion.
+func TestCacheEvicts(t *testing.T) {
+	tau, _ := multiTau(1e-6, 8, 80)
+	var c Cache
+	first, err := c.Grid(tau, &GridSettings{NGamma: 20})
+	if err != nil {
+		t.Fatal(err)
+	}
+	// A temperature series: one grid per slowest rate.
+	for k := range 2 * CacheSize {
+		if _, err := c.Grid(tau, &GridSettings{NGamma: 20, GammaMinPerS: 10 + float64(k)}); err != nil {
+			t.Fatal(err)
+		}
+		if k == CacheSize/2 {
+			c.Grid(tau, &GridSettings{NGamma: 20}) // keep the first grid recent
+		}
+		if c.Len() > CacheSize {
+			t.Fatalf("%d grids held, at most %d", c.Len(), CacheSize)
+		}
+	}
+	if c.Len() != CacheSize {
+		t.Errorf("%d grids held after %d distinct ones, want %d", c.Len(), 2*CacheSize+1, CacheSize)
+	}
+	// The first grid was requested again halfway, then pushed out by the
+	// later CacheSize+… distinct ones; a new request rebuilds an equal grid.
+	again, _ := c.Grid(tau, &GridSettings{NGamma: 20})
+	if again == first {
+		t.Error("the least recently used grid was not evicted")
+	}
+	if !slices.Equal(again.at, first.at) || again.trR != first.trR {
+		t.Error("rebuilt grid differs from the evicted one")
+	}
+	// The most recent grid stays.
+	last := GridSettings{NGamma: 20, GammaMinPerS: 10 + float64(2*CacheSize-1)}
+	a, _ := c.Grid(tau, &last)
+	b, _ := c.Grid(tau, &last)
+	if a != b {
+		t.Error("a recent grid was rebuilt")
 	}
 }
