@@ -172,7 +172,8 @@ func Run(ctx context.Context, cfg *Config) (*Outcome, error) {
 	}
 	published := false
 	defer func() { jr.close(published) }()
-	var hashed sync.Map     // input path → its FileHash, taken at analysis
+	hashed := map[string]report.FileHash{} // input path → its FileHash, taken at analysis
+	var hashedMu sync.Mutex
 	var encodings sync.Map  // a file's first result → its records, encoded
 	var measuredAt []string // of each result, in input order
 	sheetRel := map[string]string{}
@@ -188,7 +189,9 @@ func Run(ctx context.Context, cfg *Config) (*Outcome, error) {
 			if err != nil {
 				return nil, false
 			}
-			hashed.Store(path, h) // the manifest takes it from here: each input is read for its hash once
+			hashedMu.Lock()
+			hashed[path] = h // the manifest takes it from here: each input is read for its hash once
+			hashedMu.Unlock()
 			return jr.cached(csvdata.Rel(root, path), h.SHA256)
 		},
 		Read: func(path string) []batch.Input {
@@ -264,10 +267,8 @@ func Run(ctx context.Context, cfg *Config) (*Outcome, error) {
 	if cfg.Shard.Count > 1 {
 		shard = cfg.Shard.Info(all, root)
 	}
-	known := map[string]report.FileHash{}
-	hashed.Range(func(k, v any) bool { known[k.(string)] = v.(report.FileHash); return true })
 	o, err := publish(ctx, cfg, out, &publishing{root: root, inputs: files, match: match, stream: stream,
-		complete: runErr == nil, shard: shard, hashes: known, measuredAt: measuredAt, sheetRel: sheetRel})
+		complete: runErr == nil, shard: shard, hashes: hashed, measuredAt: measuredAt, sheetRel: sheetRel})
 	published = err == nil && o.Complete && !cfg.KeepJournal
 	return o, err
 }

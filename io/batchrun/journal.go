@@ -127,7 +127,7 @@ func (j *journal) add(results []*dls.Result, records [][]byte) error {
 		return nil
 	}
 	rel := results[0].File
-	sum, _ := j.hashes.Load(rel)
+	sum, _ := j.hashes.LoadAndDelete(rel) // taken once: the map holds only the files in flight
 	s, _ := sum.(string)
 	head, err := json.Marshal(journalEntry{InputSHA256: s, SettingsSHA256: j.settings, Version: j.version, File: rel})
 	if err != nil {

@@ -75,11 +75,17 @@ func WriteSet(ctx context.Context, dir string, s *Set) error {
 	}
 	m := &Manifest{Tool: d.Tool, Version: d.Version, Complete: d.Complete, Root: s.Root, Shard: s.Shard, Settings: d.Settings,
 		Files: FileCounts{Found: len(s.Inputs), Analysed: len(inputs)}, Inputs: []FileHash{}, Tables: []FileHash{}}
-	result := func(i int) ([]byte, error) { return json.Marshal(d.Results[i]) }
-	row := func(i int) ([]byte, error) { return csvRow(d.Results[i]) }
+	result := func(i int, dst []byte) ([]byte, error) {
+		b, err := json.Marshal(d.Results[i])
+		return append(dst, b...), err
+	}
+	row := func(i int, dst []byte) ([]byte, error) {
+		b, err := csvRow(d.Results[i])
+		return append(dst, b...), err
+	}
 	var record func(int, []byte) ([]byte, error)
 	if s.Stream != nil {
-		result, row, record = s.Stream.raw, s.Stream.row, s.Stream.appendRaw
+		result, row, record = s.Stream.appendRaw, s.Stream.appendRow, s.Stream.appendRaw
 	} else {
 		for _, r := range d.Results {
 			if err := checkFinite(r); err != nil {
@@ -164,14 +170,30 @@ func (s *Stream) appendRaw(i int, dst []byte) ([]byte, error) {
 		b, err := json.Marshal(r)
 		return append(dst, b...), err
 	}
+	sp := s.spans[i]
+	return s.appendAt(dst, sp.off, sp.n)
+}
+
+// appendRow appends the results.csv row of result i to dst, as appendRaw
+// does its record.
+func (s *Stream) appendRow(i int, dst []byte) ([]byte, error) {
+	if r, ok := s.full[i]; ok {
+		b, err := csvRow(r)
+		return append(dst, b...), err
+	}
+	sp := s.spans[i]
+	return s.appendAt(dst, sp.off+sp.n, sp.csvN)
+}
+
+// appendAt appends the n bytes of the scratch file at off to dst.
+func (s *Stream) appendAt(dst []byte, off, n int64) ([]byte, error) {
 	if err := s.w.Flush(); err != nil {
 		return dst, err
 	}
-	sp := s.spans[i]
-	n := len(dst)
-	dst = slices.Grow(dst, int(sp.n))[:n+int(sp.n)]
-	if _, err := s.f.ReadAt(dst[n:], sp.off); err != nil && err != io.EOF {
-		return dst[:n], err
+	k := len(dst)
+	dst = slices.Grow(dst, int(n))[:k+int(n)]
+	if _, err := s.f.ReadAt(dst[k:], off); err != nil && err != io.EOF {
+		return dst[:k], err
 	}
 	return dst, nil
 }

@@ -1,6 +1,7 @@
 package report
 
 import (
+	"bufio"
 	"bytes"
 	"context"
 	"crypto/sha256"
@@ -39,6 +40,39 @@ func TestAppendRaw(t *testing.T) {
 		}
 		if !bytes.Equal(got, append([]byte("prefix"), want...)) {
 			t.Errorf("record %d: %q, want prefix + %q", i, got, want)
+		}
+		wantRow, err := st.row(i)
+		if err != nil {
+			t.Fatal(err)
+		}
+		gotRow, err := st.appendRow(i, []byte("prefix"))
+		if err != nil {
+			t.Fatal(err)
+		}
+		if !bytes.Equal(gotRow, append([]byte("prefix"), wantRow...)) {
+			t.Errorf("row %d: %q, want prefix + %q", i, gotRow, wantRow)
+		}
+	}
+}
+
+// marshalTo writes a slice of samples one at a time; the bytes must be
+// exactly encoding/json's for the whole value (the reference), for a nil,
+// an empty and a filled slice, and for any other value.
+func TestMarshalToEqualsMarshal(t *testing.T) {
+	for _, v := range []any{[]*dls.Sample(nil), []*dls.Sample{}, []*dls.Sample{{Name: "a <b>", Runs: []int{0, 2}}, nil, {Name: "c", Lot: "L1"}},
+		dls.Counts{Total: 3, OK: 2}, "plain"} {
+		want, err := json.Marshal(v)
+		if err != nil {
+			t.Fatal(err)
+		}
+		var b bytes.Buffer
+		w := bufio.NewWriter(&b)
+		if err := marshalTo(w, v); err != nil {
+			t.Fatal(err)
+		}
+		w.Flush()
+		if !bytes.Equal(b.Bytes(), want) {
+			t.Errorf("%T: %s, want %s", v, b.Bytes(), want)
 		}
 	}
 }

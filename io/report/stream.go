@@ -7,6 +7,7 @@ import (
 	"io"
 	"os"
 	"path/filepath"
+	"unique"
 
 	"dlsbatch/dls"
 )
@@ -114,11 +115,28 @@ func (s *Stream) Results() []*dls.Result { return s.compact }
 // (curves, parameters, budget, the distributions themselves, volume and
 // number summaries, notes) is in the scratch file with the record's
 // results.csv row; Full reads it back where it is needed.
+//
+// Texts that repeat from measurement to measurement (sample, lot, product,
+// solvent, the sources of η and n, the particle index, the column and
+// method names) are interned: a batch of thousands of runs of a few
+// samples holds each once.
 func compactOf(r *dls.Result) *dls.Result {
 	c := *r
 	c.Curves, c.Params, c.Budget, c.Volume, c.Number, c.Distribution = nil, nil, nil, nil, nil, nil
 	c.Assumptions, c.Warnings, c.Medium = nil, nil, nil
+	for _, p := range []*string{&c.Sample, &c.Lot, &c.Product, &c.Group, &c.Solvent, &c.ViscositySource, &c.IndexSource,
+		&c.Method, &c.CorrelationColumn, &c.CorrelationKind, &c.ParticleRI, &c.AlphaCriterion, &c.Correction} {
+		*p = intern(*p)
+	}
 	return &c
+}
+
+// intern returns the one copy of s the process keeps.
+func intern(s string) string {
+	if s == "" {
+		return s
+	}
+	return unique.Make(s).Value()
 }
 
 // raw returns the stored JSON record of result i.

@@ -3,6 +3,7 @@ package report
 import (
 	"reflect"
 	"testing"
+	"unsafe"
 
 	"dlsbatch/dls"
 	"dlsbatch/dls/batch"
@@ -53,5 +54,22 @@ func TestStreamRoundTrip(t *testing.T) {
 		if string(row) != string(want) {
 			t.Errorf("result %d: csv row differs", i)
 		}
+	}
+}
+
+// Texts that repeat from run to run are held once: two results whose
+// sample and solvent names were built apart (as two files' parses are)
+// keep compact copies pointing at the same bytes, with the text unchanged.
+func TestCompactInternsRepeatedText(t *testing.T) {
+	mk := func() *dls.Result {
+		return &dls.Result{Identity: dls.Identity{Sample: string([]byte("silica silica silica ")), File: "x.csv"},
+			Conditions: dls.Conditions{Solvent: string([]byte("water"))}}
+	}
+	a, b := compactOf(mk()), compactOf(mk())
+	if a.Sample != "silica silica silica " || a.Solvent != "water" {
+		t.Fatalf("texts changed: %q, %q", a.Sample, a.Solvent)
+	}
+	if unsafe.StringData(a.Sample) != unsafe.StringData(b.Sample) || unsafe.StringData(a.Solvent) != unsafe.StringData(b.Solvent) {
+		t.Error("repeated sample and solvent names are held twice")
 	}
 }

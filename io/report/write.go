@@ -26,18 +26,25 @@ const Caution = "Results support, and do not replace, review by qualified staff 
 // WriteCSV writes results.csv: a header and one row per result, in the
 // order given.
 func WriteCSV(w io.Writer, results []*dls.Result) error {
-	return writeCSV(w, len(results), func(i int) ([]byte, error) { return csvRow(results[i]) })
+	return writeCSV(w, len(results), func(i int, dst []byte) ([]byte, error) {
+		b, err := csvRow(results[i])
+		return append(dst, b...), err
+	})
 }
 
-// writeCSV writes results.csv with n rows, the i-th encoded by row.
-func writeCSV(w io.Writer, n int, row func(i int) ([]byte, error)) error {
+// writeCSV writes results.csv with n rows, the i-th appended by row to a
+// buffer that is reused from row to row (so that a long batch read back
+// from the scratch file allocates one buffer, not one per row).
+func writeCSV(w io.Writer, n int, row func(i int, dst []byte) ([]byte, error)) error {
 	cw := csv.NewWriter(w)
 	if err := cw.Write(ColumnNames()); err != nil {
 		return fmt.Errorf("results csv: %w", err)
 	}
 	cw.Flush()
+	var b []byte
 	for i := range n {
-		b, err := row(i)
+		var err error
+		b, err = row(i, b[:0])
 		if err != nil {
 			return fmt.Errorf("results csv: %w", err)
 		}
@@ -91,19 +98,23 @@ func WriteJSON(w io.Writer, doc *Document) error {
 			return fmt.Errorf("results json: %s: %w", r.File, err)
 		}
 	}
-	return writeJSON(w, doc, func(i int) ([]byte, error) { return json.Marshal(doc.Results[i]) })
+	return writeJSON(w, doc, func(i int, dst []byte) ([]byte, error) {
+		b, err := json.Marshal(doc.Results[i])
+		return append(dst, b...), err
+	})
 }
 
-// writeJSON writes results.json with the i-th result's encoding from
-// result.
-func writeJSON(w io.Writer, doc *Document, result func(i int) ([]byte, error)) error {
+// writeJSON writes results.json with the i-th result's encoding appended
+// by result to a buffer reused from result to result. The samples array is
+// encoded one sample at a time (the bytes json.Marshal gives for the whole
+// slice), so that a batch of thousands of samples is never one buffer.
+func writeJSON(w io.Writer, doc *Document, result func(i int, dst []byte) ([]byte, error)) error {
 	bw := bufio.NewWriter(w)
 	field := func(name string, v any, last bool) error {
-		b, err := json.Marshal(v)
-		if err != nil {
+		bw.WriteString(" " + strconv.Quote(name) + ": ")
+		if err := marshalTo(bw, v); err != nil {
 			return err
 		}
-		fmt.Fprintf(bw, " %q: %s", name, b)
 		if !last {
 			bw.WriteString(",")
 		}
@@ -121,8 +132,10 @@ func writeJSON(w io.Writer, doc *Document, result func(i int) ([]byte, error)) e
 		}
 	}
 	bw.WriteString(" \"results\": [")
+	var b []byte
 	for i, r := range doc.Results {
-		b, err := result(i)
+		var err error
+		b, err = result(i, b[:0])
 		if err != nil {
 			return fmt.Errorf("results json: %s: %w", r.File, err)
 		}
@@ -137,6 +150,29 @@ func writeJSON(w io.Writer, doc *Document, result func(i int) ([]byte, error)) e
 		return fmt.Errorf("results json: %w", err)
 	}
 	return nil
+}
+
+// marshalTo writes json.Marshal(v) to w; a slice of samples element by
+// element, with json.Marshal's brackets and commas (null when nil).
+func marshalTo(w *bufio.Writer, v any) error {
+	samples, ok := v.([]*dls.Sample)
+	if !ok || samples == nil {
+		b, err := json.Marshal(v)
+		w.Write(b)
+		return err
+	}
+	w.WriteByte('[')
+	for i, s := range samples {
+		if i > 0 {
+			w.WriteByte(',')
+		}
+		b, err := json.Marshal(s)
+		if err != nil {
+			return err
+		}
+		w.Write(b)
+	}
+	return w.WriteByte(']')
 }
 
 func checkFinite(r *dls.Result) error {
