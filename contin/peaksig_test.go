@@ -189,3 +189,36 @@ func TestSensitivityDense(t *testing.T) {
 		}
 	}
 }
+
+// BenchmarkSensitivity times what the peak rule costs per correlogram on
+// top of the inversion: the sensitivity of the chosen solution of
+// BenchmarkInvert's m=152 problem and four standard uncertainties (share
+// and mean of two peaks), the most a typical measurement asks for.
+func BenchmarkSensitivity(b *testing.B) {
+	tau, y, sigma := benchProblem(152)
+	g, err := NewGrid(tau, nil)
+	if err != nil {
+		b.Fatal(err)
+	}
+	s := DefaultSettings()
+	res, err := Invert(g, y, sigma, s)
+	if err != nil {
+		b.Fatal(err)
+	}
+	c := make([]float64, g.NGamma())
+	for j, x := range res.Amplitude {
+		if x > 0 {
+			c[j] = 1
+		}
+	}
+	b.ReportAllocs()
+	for b.Loop() {
+		sv, err := NewSensitivity(g, res, sigma, s)
+		if err != nil {
+			b.Fatal(err)
+		}
+		for range 4 {
+			sv.StdDev(c)
+		}
+	}
+}
