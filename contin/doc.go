@@ -210,6 +210,32 @@
 // one (a sum far from one suggests a wrong coherence factor or a decay
 // faster than the first lag).
 //
+// # Peaks you can believe
+//
+// Correlated correlator noise makes the regularised solution grow small
+// peaks that no population stands behind (on photon-level data of a
+// monodisperse 100 nm sample, 10 s at 173°, a second intensity peak of
+// 1–5 % at 0.5–20 µm in 6–11 % of runs). A caller that has the noise
+// (Sensitivity: the solution linearised on its passive set, the noise
+// covariance from the residuals by the Bartlett kernel, which is the
+// moving-block bootstrap's variance without random draws) reports a peak
+// only when its share is at least PeakSettings.MinZ = 4 times its standard
+// uncertainty (Significant). The residuals of a regularised fit hold less
+// of the noise's smooth part than the noise does, so the uncertainty leans
+// low, and the threshold 4 rather than 2 was set on photon-level runs
+// (dlsbatch simulate --noise photon, 1 µs, lags to 0.1 s, 200–300 kcps):
+//
+//	condition (runs)                       second peak without → with
+//	100 nm, 173°, 10 s (2 × 200)           10.5 → 2.5 %,  6.5 → 0.5 %
+//	200 nm, 90°, 10 s (2 × 200)            16.0 → 2.0 %, 20.5 → 2.0 %
+//
+// (the second set of each row was simulated after the threshold was
+// chosen). Real peaks of 50 + 250 nm and 50 + 500 nm pairs (50/50 and
+// 20/80 by intensity, 30 s, 300 kcps, 10 runs each) hold shares 9.5–500
+// times their uncertainty and stayed resolved as often as without the
+// test (8, 10, 10 and 10 of 10). Cost: about 16 µs per correlogram
+// (BenchmarkSensitivity).
+//
 // # Sharing work
 //
 // A Grid holds everything that depends only on the lags and rates (kernel,
@@ -244,6 +270,13 @@
 //   - J. G. McWhirter and E. R. Pike, On the numerical inversion of the
 //     Laplace transform and similar Fredholm integral equations of the
 //     first kind, J. Phys. A 11 (1978) 1729–1745.
+//   - W. K. Newey and K. D. West, A simple, positive semi-definite,
+//     heteroskedasticity and autocorrelation consistent covariance matrix,
+//     Econometrica 55 (1987) 703–708.
+//   - H. R. Künsch, The jackknife and the bootstrap for general stationary
+//     observations, Ann. Statist. 17 (1989) 1217–1241.
+//   - D. W. K. Andrews, Heteroskedasticity and autocorrelation consistent
+//     covariance matrix estimation, Econometrica 59 (1991) 817–858.
 //   - N. J. Higham, Accuracy and Stability of Numerical Algorithms, 2nd
 //     ed., SIAM, 2002.
 package contin

@@ -20,6 +20,11 @@ type PeakSettings struct {
 	// lowest density between them is below Valley times the lower of the
 	// two maxima; otherwise they are one peak. 0 means DefaultPeakValley.
 	Valley float64
+	// MinZ is the significance a peak needs to be reported: its share
+	// must be at least MinZ times its standard uncertainty (Significant);
+	// 0 means DefaultPeakMinZ, a negative value reports every peak that
+	// Peaks finds. Peaks itself does not apply it (it needs the noise).
+	MinZ float64
 }
 
 // Peak is one population of a rate spectrum.

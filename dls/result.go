@@ -196,15 +196,25 @@ type Peak struct {
 	AreaPct float64 `json:"area_pct"` // share of the weighting, %
 	LowNm   float64 `json:"low_nm"`   // first bin of the peak
 	HighNm  float64 `json:"high_nm"`  // last bin of the peak
+	// MeanUNm and AreaUPct are the standard uncertainties of MeanNm and
+	// AreaPct from the channel noise, propagated linearly through the
+	// inversion with the noise covariance estimated from its residuals
+	// (contin.Sensitivity); 0 when they could not be computed.
+	MeanUNm  float64 `json:"mean_u_nm"`
+	AreaUPct float64 `json:"area_u_pct"`
 }
 
 // WeightSummary summarises one weighting of a size distribution.
 type WeightSummary struct {
-	Peaks  []Peak  `json:"peaks"`
-	MeanNm float64 `json:"mean_nm"`
-	D10Nm  float64 `json:"d10_nm"`
-	D50Nm  float64 `json:"d50_nm"`
-	D90Nm  float64 `json:"d90_nm"`
+	Peaks []Peak `json:"peaks"`
+	// InsignificantPct is the share of the weighting, %, in peaks that the
+	// rule found but did not report because the noise could have made them
+	// (contin.Significant; intensity only).
+	InsignificantPct float64 `json:"insignificant_pct"`
+	MeanNm           float64 `json:"mean_nm"`
+	D10Nm            float64 `json:"d10_nm"`
+	D50Nm            float64 `json:"d50_nm"`
+	D90Nm            float64 `json:"d90_nm"`
 }
 
 // SizeDistribution is the full output of the inversion for one

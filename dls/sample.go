@@ -78,6 +78,9 @@ type Sample struct {
 	// peak's mean diameter (0 when no run has a distribution).
 	Peak1MeanNm float64 `json:"peak1_mean_nm"`
 	D90MeanNm   float64 `json:"d90_mean_nm"`
+	// IntensityPeaks are the intensity peaks of the used runs matched by
+	// position (MatchPeaks): how many of the runs show each.
+	IntensityPeaks []SamplePeak `json:"intensity_peaks"`
 
 	TemperaturesC []float64 `json:"temperatures_c"`
 

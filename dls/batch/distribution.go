@@ -4,7 +4,6 @@ import (
 	"errors"
 	"fmt"
 	"math"
-	"sort"
 	"strings"
 
 	"dlsbatch/contin"
@@ -240,10 +239,8 @@ func distribution(m *dls.Measurement, fit *cumulants.Result, st state, meta dls.
 	if r.DistMeanRatePerS > 0 {
 		r.DistZAvgNm = dls.DiameterFromDiffusion(tK, st.etaPaS, dls.DiffusionFromRate(r.DistMeanRatePerS, st.optics.Q())) * 1e9
 	}
-	r.Intensity = summarise(d, d.Intensity, &s.Peaks)
-	keepPeaks(d, r.Intensity)
-	r.Volume = summarise(d, d.Volume, &s.Peaks)
-	r.Number = summarise(d, d.Number, &s.Peaks)
+	sens, _ := contin.NewSensitivity(grid, inv, sg, &cs) // nil: peaks without uncertainties
+	r.Intensity, r.Volume, r.Number = summariseWeightings(d, inv.Amplitude, sens, &s.Peaks)
 	sd := &dls.SizeDistribution{
 		DiameterNm: d.DiameterNm, Intensity: d.Intensity, Volume: d.Volume, Number: d.Number, MieMasked: d.Masked,
 		G1: padFront(g1, first), G1Sigma: padFront(sg, first), G1Fitted: padFront(inv.Fitted, first), G1Residuals: padFront(inv.Residuals, first),
@@ -305,39 +302,6 @@ func sizeBoundedGrid(gs contin.GridSettings, tau []float64, tK, etaPaS, q float6
 	return gs
 }
 
-// keepPeaks confines the volume and number weights to the bins of the
-// intensity peaks. Outside them the intensity solution is ripple (below
-// the peak rule's minimum share), and the factors 1/d³ and 1/d⁶ of the
-// conversion would turn a ripple of 0.1 % at the small end of the grid into
-// most of the number distribution (Finsy 1994; Patty & Frisken 2006).
-func keepPeaks(d *sizedist.Distribution, in *dls.WeightSummary) {
-	if len(in.Peaks) == 0 {
-		return
-	}
-	keep := make([]bool, len(d.DiameterNm))
-	for _, p := range in.Peaks {
-		for j, x := range d.DiameterNm {
-			if x >= p.LowNm && x <= p.HighNm {
-				keep[j] = true
-			}
-		}
-	}
-	for _, w := range [][]float64{d.Volume, d.Number} {
-		var sum float64
-		for j := range w {
-			if !keep[j] {
-				w[j] = 0
-			}
-			sum += w[j]
-		}
-		if sum > 0 {
-			for j := range w {
-				w[j] /= sum
-			}
-		}
-	}
-}
-
 // padFront aligns an array over lags first.. with the full lag axis; the
 // channels before first (dropped by the minimum lag) are 0.
 func padFront(v []float64, first int) []float64 {
@@ -345,39 +309,4 @@ func padFront(v []float64, first int) []float64 {
 		return v
 	}
 	return append(make([]float64, first), v...)
-}
-
-// summarise finds the peaks of one weighting (largest area first), its
-// mean and its percentiles. The peak rule is contin.Peaks, which applies to
-// any ascending log-spaced grid: here the diameters.
-func summarise(d *sizedist.Distribution, w []float64, ps *contin.PeakSettings) *dls.WeightSummary {
-	ws := &dls.WeightSummary{
-		D10Nm: d.Percentile(w, 0.1),
-		D50Nm: d.Percentile(w, 0.5),
-		D90Nm: d.Percentile(w, 0.9),
-	}
-	var sw, swd float64
-	for j, v := range w {
-		sw += v
-		swd += v * d.DiameterNm[j]
-	}
-	if sw > 0 {
-		ws.MeanNm = swd / sw
-	}
-	for _, p := range contin.Peaks(d.DiameterNm, w, ps) {
-		var a, ad float64
-		for j := p.Lo; j <= p.Hi; j++ {
-			a += w[j]
-			ad += w[j] * d.DiameterNm[j]
-		}
-		mean := ad / a
-		var v float64
-		for j := p.Lo; j <= p.Hi; j++ {
-			v += w[j] * (d.DiameterNm[j] - mean) * (d.DiameterNm[j] - mean)
-		}
-		ws.Peaks = append(ws.Peaks, dls.Peak{ModeNm: p.ModePerS, MeanNm: mean, SDNm: math.Sqrt(v / a),
-			AreaPct: 100 * p.Fraction, LowNm: d.DiameterNm[p.Lo], HighNm: d.DiameterNm[p.Hi]})
-	}
-	sort.SliceStable(ws.Peaks, func(i, j int) bool { return ws.Peaks[i].AreaPct > ws.Peaks[j].AreaPct })
-	return ws
 }

@@ -329,8 +329,12 @@ func aggregate(s *dls.Sample, results []*dls.Result, o Options) {
 		return
 	}
 	var z, p, pk, d90 []float64
+	var runPeaks [][]dls.Peak
 	for _, i := range s.Used {
 		r := results[i]
+		if r.HasDistribution && r.Intensity != nil {
+			runPeaks = append(runPeaks, r.Intensity.Peaks)
+		}
 		z = append(z, r.ZAvgNm)
 		p = append(p, r.PDI)
 		if r.Intensity != nil && len(r.Intensity.Peaks) > 0 {
@@ -346,6 +350,7 @@ func aggregate(s *dls.Sample, results []*dls.Result, o Options) {
 	if s.PDIMean != 0 {
 		s.PDIRSDPct = 100 * s.PDISD / math.Abs(s.PDIMean)
 	}
+	s.IntensityPeaks = dls.MatchPeaks(runPeaks)
 	if len(pk) > 0 {
 		s.Peak1MeanNm, _ = stats.MeanSD(pk)
 		s.D90MeanNm, _ = stats.MeanSD(d90)

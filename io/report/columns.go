@@ -103,6 +103,9 @@ var columns = []column{
 	{"z_avg_expanded_nm", cum(func(r *dls.Result) string { return nonzero(r.ZAvgExpandedNm, 3) })},
 	{"correction", text(cum(func(r *dls.Result) string { return r.Correction }))},
 	{"z_avg_d0_nm", cum(func(r *dls.Result) string { return nonzero(r.ZAvgD0Nm, 3) })},
+	peakCol(0, "u_nm"), peakCol(0, "intensity_u_pct"),
+	peakCol(1, "u_nm"), peakCol(1, "intensity_u_pct"),
+	peakCol(2, "u_nm"), peakCol(2, "intensity_u_pct"),
 }
 
 // formulaStart lists the characters that make a spreadsheet read a cell as
@@ -151,7 +154,9 @@ func dist(f func(r *dls.Result) string) func(r *dls.Result) string {
 
 // peakCol is a column of the k-th intensity peak (by decreasing area):
 // peakN_nm is the peak's mean diameter, peakN_width_nm its standard
-// deviation, peakN_intensity_pct its share of the intensity.
+// deviation, peakN_intensity_pct its share of the intensity, and
+// peakN_u_nm and peakN_intensity_u_pct the standard uncertainties of the
+// mean diameter and of the share (empty when not computed).
 func peakCol(k int, what string) column {
 	return column{fmt.Sprintf("peak%d_%s", k+1, what), dist(func(r *dls.Result) string {
 		if k >= len(r.Intensity.Peaks) {
@@ -163,6 +168,10 @@ func peakCol(k int, what string) column {
 			return fixed(p.MeanNm, 2)
 		case "width_nm":
 			return fixed(p.SDNm, 2)
+		case "u_nm":
+			return nonzero(p.MeanUNm, 2)
+		case "intensity_u_pct":
+			return nonzero(p.AreaUPct, 2)
 		}
 		return fixed(p.AreaPct, 1)
 	})}
@@ -181,6 +190,12 @@ var sampleColumns = []struct {
 	{"z_avg_mean_nm", false}, {"z_avg_sd_nm", false}, {"z_avg_rsd_pct", false}, {"pdi_mean", false}, {"pdi_sd", false},
 	{"peak1_mean_nm", false}, {"d90_mean_nm", false},
 	{"outliers", true}, {"outliers_excluded", false}, {"flags", true}, {"verdict", true}, {"verdict_reason", true},
+	// The intensity peaks of the used runs matched by position
+	// (dls.MatchPeaks), most often seen first: mean diameter, mean share
+	// and the runs that show it, as "k/n".
+	{"matched1_nm", false}, {"matched1_intensity_pct", false}, {"matched1_runs", false},
+	{"matched2_nm", false}, {"matched2_intensity_pct", false}, {"matched2_runs", false},
+	{"matched3_nm", false}, {"matched3_intensity_pct", false}, {"matched3_runs", false},
 }
 
 // ColumnNames returns the results.csv header.

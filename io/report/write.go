@@ -332,6 +332,14 @@ func WriteSamplesCSV(w io.Writer, samples []*dls.Sample, results []*dls.Result) 
 		row := []string{s.Name, s.Lot, s.Product, string(s.Role), s.Group, strings.Join(ts, " "), strconv.Itoa(s.NRuns), strconv.Itoa(s.NUsed),
 			stat(s.ZAvgMeanNm, 3), sd(s.ZAvgSDNm, 3), sd(s.ZAvgRSDPct, 2), stat(s.PDIMean, 4), sd(s.PDISD, 4), opt(s.Peak1MeanNm), opt(s.D90MeanNm),
 			strings.Join(out, " "), strconv.FormatBool(s.OutliersExcluded), flagCodes(s.Flags), verdict, reason}
+		for k := range 3 {
+			if k >= len(s.IntensityPeaks) || blank {
+				row = append(row, "", "", "")
+				continue
+			}
+			p := s.IntensityPeaks[k]
+			row = append(row, fixed(p.MeanNm, 2), fixed(p.AreaPct, 1), fmt.Sprintf("%d/%d", p.NRuns, p.NOf))
+		}
 		for i, c := range sampleColumns {
 			if c.text {
 				row[i] = neutralise(row[i])

@@ -1,0 +1,195 @@
+package batch
+
+import (
+	"fmt"
+	"math"
+	"os"
+	"strconv"
+	"testing"
+
+	"dlsbatch/dls"
+	"dlsbatch/dls/sim"
+)
+
+// peakCondition is one simulated condition of the peak-significance checks:
+// water at 25 °C, 632.8 nm, β 0.9, lag grid of `dlsbatch simulate
+// --dt-ns 1000 --tau-max-s 0.1`, Rayleigh intensity weights (no particle
+// index, as the simulator's default).
+type peakCondition struct {
+	pop      string
+	angleDeg float64
+	durS     float64 // one run
+	rateHz   float64
+	runs     int
+	seed     uint64
+	photon   bool // photon-level (sim.Photon) rather than the fast correlated model
+}
+
+// peakRuns simulates the runs of c as measurements with the metadata a
+// simulated file carries.
+func peakRuns(t *testing.T, c peakCondition) []*dls.Measurement {
+	t.Helper()
+	const tK, eta, n, lambda = 298.15, 0.890022e-3, 1.33162, 632.8e-9
+	optics := dls.Optics{WavelengthM: lambda, AngleRad: c.angleDeg * math.Pi / 180, RefractiveIndex: n}
+	pop, err := sim.ParsePopulation(c.pop)
+	if err != nil {
+		t.Fatal(err)
+	}
+	model, err := sim.NewModel(pop, sim.Conditions{TemperatureK: tK, ViscosityPaS: eta, Optics: optics}, nil)
+	if err != nil {
+		t.Fatal(err)
+	}
+	grid, err := sim.NewGrid(sim.GridSpec{DtS: 1e-6, M: 8, TauMaxS: 0.1})
+	if err != nil {
+		t.Fatal(err)
+	}
+	var tau []float64
+	var g2 [][]float64
+	if c.photon {
+		pr, err := sim.Photon(model, &sim.PhotonConfig{Grid: grid, Beta: 0.9, CountRateHz: c.rateHz,
+			DurationS: c.durS * float64(c.runs), SubRuns: c.runs, Seed: c.seed})
+		if err != nil {
+			t.Fatal(err)
+		}
+		tau = pr.TauS
+		for _, r := range pr.SubRuns {
+			g2 = append(g2, r.G2)
+		}
+	} else {
+		out, err := sim.SimulateCorrelated(model, &sim.Config{Grid: grid, Beta: 0.9, CountRateHz: c.rateHz,
+			DurationS: c.durS, Runs: c.runs, Seed: c.seed})
+		if err != nil {
+			t.Fatal(err)
+		}
+		tau = out.TauS
+		for _, r := range out.Runs {
+			g2 = append(g2, r.G2)
+		}
+	}
+	ms := make([]*dls.Measurement, len(g2))
+	for i, y := range g2 {
+		m := &dls.Measurement{File: fmt.Sprintf("%s-%d-%d.csv", c.pop, c.seed, i), Kind: dls.KindG2, TauS: tau, Corr: y}
+		for k, v := range map[string]string{"temperature_c": "25", "wavelength_nm": "632.8", "angle_deg": strconv.FormatFloat(c.angleDeg, 'g', -1, 64),
+			"solvent": "water", "viscosity_mpas": "0.890022", "refractive_index": "1.33162",
+			"duration_s": strconv.FormatFloat(c.durS, 'g', -1, 64), "count_rate_kcps": strconv.FormatFloat(c.rateHz/1e3, 'g', -1, 64)} {
+			m.Meta.Set(dls.Param{Key: k, Value: v, Origin: dls.OriginFile, Where: m.File})
+		}
+		ms[i] = m
+	}
+	return ms
+}
+
+// peakCounts analyses ms with the significance test on (minZ 0: the
+// default) or off (minZ < 0) and returns the runs reporting more than one
+// intensity peak and the runs that resolve both of the sizes want (nm,
+// a peak's mean within a factor 1.5 of each; nil: not counted).
+func peakCounts(t *testing.T, ms []*dls.Measurement, minZ float64, want []float64) (multi, resolved int) {
+	t.Helper()
+	s := DefaultSettings()
+	s.Distribution.Peaks.MinZ = minZ
+	for _, m := range ms {
+		r := Analyze(m, &s)
+		if !r.HasDistribution {
+			t.Fatalf("%s: no distribution: %s", m.File, r.Message)
+		}
+		if len(r.Intensity.Peaks) > 1 {
+			multi++
+		}
+		if want == nil {
+			continue
+		}
+		all := true
+		for _, d := range want {
+			found := false
+			for _, p := range r.Intensity.Peaks {
+				if p.MeanNm > d/1.5 && p.MeanNm < d*1.5 {
+					found = true
+				}
+			}
+			all = all && found
+		}
+		if all {
+			resolved++
+		}
+	}
+	return multi, resolved
+}
+
+// TestPeakSignificanceShort: on the fast correlated noise model (calibrated
+// against the photon-level one, DEVELOPERS.md) 200 monodisperse runs of
+// 100 nm at 173°, 10 s, 250 kcps. On two such sets of 200 runs (this one,
+// and 200 files of `dlsbatch simulate --noise correlated` at 200–300 kcps)
+// 42 and 33 runs showed a second intensity peak without the significance
+// test and 16 and 8 with it: 18.8 % and 6.0 % pooled. At 200 runs the
+// binomial standard deviation is 2.8 % at 18.8 % and 1.7 % at 6 %: the
+// test asks for at most 20 runs with it (10 %, 2.4 standard deviations
+// above 6 %) and at least 25 without it (12.5 %, 2.2 below 18.8 %), so
+// that it fails if the test stops removing them. (On this model spurious
+// peaks stand out of their uncertainty more than on photon-level data,
+// where the rate with the test is 0.5–2.5 %: TestPeakSignificancePhotonLong.)
+// The bimodal 50 + 250 nm pair (50/50 by intensity, 30 s, 300 kcps) must
+// be resolved in as many of 10 runs with the test as without it: its real
+// peaks hold shares 10–100 times their uncertainty on photon-level data,
+// far above the threshold of 4.
+func TestPeakSignificanceShort(t *testing.T) {
+	ms := peakRuns(t, peakCondition{pop: "mono(100nm)", angleDeg: 173, durS: 10, rateHz: 2.5e5, runs: 200, seed: 71})
+	on, _ := peakCounts(t, ms, 0, nil)
+	off, _ := peakCounts(t, ms, -1, nil)
+	t.Logf("mono 100 nm: second peak in %d/200 runs with the test, %d/200 without", on, off)
+	if on > 20 {
+		t.Errorf("%d/200 runs with a spurious second peak, want at most 20", on)
+	}
+	if off < 25 {
+		t.Errorf("without the test %d/200 runs show a second peak, want at least 25: the check would not see the test fail", off)
+	}
+	bi := peakRuns(t, peakCondition{pop: "50%mono(50nm)+50%mono(250nm)@intensity", angleDeg: 173, durS: 30, rateHz: 3e5, runs: 10, seed: 72})
+	_, rOn := peakCounts(t, bi, 0, []float64{50, 250})
+	_, rOff := peakCounts(t, bi, -1, []float64{50, 250})
+	t.Logf("50 + 250 nm resolved in %d/10 with the test, %d/10 without", rOn, rOff)
+	if rOn < rOff || rOff < 5 {
+		t.Errorf("50 + 250 nm resolved in %d/10 runs with the test, %d/10 without: want as many, and at least 5", rOn, rOff)
+	}
+}
+
+// TestPeakSignificancePhotonLong is the measurement behind the table in
+// DEVELOPERS.md on photon-level data (set DLSBATCH_LONG=1; about ten
+// minutes on one core): 200 runs of 10 s each of 100 nm at 173° and of
+// 200 nm at 90°, 250 kcps, and 10 runs of 30 s at 300 kcps of four
+// bimodal pairs. The goal is at most 5 % spurious second peaks; at the
+// measured 2–2.5 % the binomial standard deviation at 200 runs is 1.1 %,
+// so 5 % is more than two of them above. The pairs must be resolved in as
+// many runs with the test as without it.
+func TestPeakSignificancePhotonLong(t *testing.T) {
+	if os.Getenv("DLSBATCH_LONG") == "" {
+		t.Skip("set DLSBATCH_LONG=1 for the long photon-level peak check")
+	}
+	for _, c := range []peakCondition{
+		{pop: "mono(100nm)", angleDeg: 173, durS: 10, rateHz: 2.5e5, runs: 200, seed: 81, photon: true},
+		{pop: "mono(200nm)", angleDeg: 90, durS: 10, rateHz: 2.5e5, runs: 200, seed: 82, photon: true},
+	} {
+		ms := peakRuns(t, c)
+		on, _ := peakCounts(t, ms, 0, nil)
+		off, _ := peakCounts(t, ms, -1, nil)
+		t.Logf("%s at %g°: second peak in %d/%d runs with the test, %d without", c.pop, c.angleDeg, on, c.runs, off)
+		if float64(on) > 0.05*float64(c.runs) {
+			t.Errorf("%s at %g°: %d/%d runs with a spurious peak, want at most 5 %%", c.pop, c.angleDeg, on, c.runs)
+		}
+	}
+	for i, c := range []struct {
+		pop  string
+		want []float64
+	}{
+		{"50%mono(50nm)+50%mono(500nm)@intensity", []float64{50, 500}},
+		{"20%mono(50nm)+80%mono(500nm)@intensity", []float64{50, 500}},
+		{"50%mono(50nm)+50%mono(250nm)@intensity", []float64{50, 250}},
+		{"20%mono(50nm)+80%mono(250nm)@intensity", []float64{50, 250}},
+	} {
+		ms := peakRuns(t, peakCondition{pop: c.pop, angleDeg: 173, durS: 30, rateHz: 3e5, runs: 10, seed: 90 + uint64(i), photon: true})
+		_, rOn := peakCounts(t, ms, 0, c.want)
+		_, rOff := peakCounts(t, ms, -1, c.want)
+		t.Logf("%s: resolved in %d/10 with the test, %d/10 without", c.pop, rOn, rOff)
+		if rOn < rOff {
+			t.Errorf("%s: resolved in %d/10 with the test, %d/10 without", c.pop, rOn, rOff)
+		}
+	}
+}
