@@ -391,6 +391,7 @@ func buildSample(r *Report, i int, w *writer) (samplePage, error) {
 		{"PDI mean ± SD", meanSD(s.PDIMean, s.PDISD, nUsed, 3)},
 		{"PDI RSD (%)", spread(s.PDIRSDPct, nUsed, 1)},
 		{"main intensity peak, mean (nm)", positive(s.Peak1MeanNm, nUsed)},
+		{"intensity peaks across the runs", samplePeaks(s.IntensityPeaks)},
 		{"D90 intensity, mean (nm)", positive(s.D90MeanNm, nUsed)},
 		{"temperatures (°C)", temperatures(s.TemperaturesC)},
 	}
@@ -476,11 +477,42 @@ func newRunRow(idx int, res *dls.Result) runRow {
 	if res.Intensity != nil && len(res.Intensity.Peaks) > 0 {
 		parts := make([]string, 0, len(res.Intensity.Peaks))
 		for _, pk := range res.Intensity.Peaks {
-			parts = append(parts, size(pk.MeanNm)+" nm ("+fixed(pk.AreaPct, 0)+" %)")
+			parts = append(parts, peakText(pk))
 		}
 		row.Peaks = strings.Join(parts, "; ")
+		if res.Intensity.InsignificantPct >= 0.05 {
+			row.Peaks += "; " + fixed(res.Intensity.InsignificantPct, 1) + " % in peaks within the noise, not reported"
+		}
 	}
 	return row
+}
+
+// peakText is one intensity peak of a run: its mean diameter and share,
+// each with its standard uncertainty from the channel noise where known.
+func peakText(pk dls.Peak) string {
+	t := size(pk.MeanNm)
+	if pk.MeanUNm > 0 {
+		t += " ± " + size(pk.MeanUNm)
+	}
+	t += " nm (" + fixed(pk.AreaPct, 0)
+	if pk.AreaUPct > 0 {
+		t += " ± " + fixed(pk.AreaUPct, 0)
+	}
+	return t + " %)"
+}
+
+// samplePeaks lists the intensity peaks matched across a sample's used
+// runs, each with the number of runs that show it.
+func samplePeaks(peaks []dls.SamplePeak) string {
+	if len(peaks) == 0 {
+		return dash
+	}
+	parts := make([]string, len(peaks))
+	for i, pk := range peaks {
+		parts[i] = size(pk.MeanNm) + " nm (" + fixed(pk.AreaPct, 0) + " %) in " +
+			strconv.Itoa(pk.NRuns) + " of " + strconv.Itoa(pk.NOf) + " runs"
+	}
+	return strings.Join(parts, "; ")
 }
 
 // conditions lists the measurement conditions the result was computed

@@ -6,6 +6,7 @@ import (
 	"crypto/sha256"
 	"encoding/hex"
 	"encoding/json"
+	"fmt"
 	"os"
 	"path/filepath"
 	"regexp"
@@ -575,5 +576,83 @@ func TestMergeFlags(t *testing.T) {
 	got := mergeFlags([]dls.Flag{{Code: "A", Message: "r1"}, {Code: "B", Message: "x"}, {Code: "A", Message: "r2"}})
 	if len(got) != 2 || got[0].Code != "A" || got[0].Message != "r1; r2" || got[1].Code != "B" {
 		t.Errorf("merged %+v", got)
+	}
+}
+
+// TestPeaksWithUncertainty checks that a sample page states each run's
+// intensity peaks with the standard uncertainties the inversion gave them,
+// and the peaks matched across the sample's runs with how many runs show
+// each: the page must say what results.csv and samples.csv say, in the
+// same rounding as the other sizes of the page.
+func TestPeaksWithUncertainty(t *testing.T) {
+	r := demoReport(t)
+	// The fixture predates the peaks' uncertainties: give every peak one
+	// (2 % of its mean, 2 points of area) and every sample its peaks
+	// matched across runs, as a run computes them.
+	for _, res := range r.Results {
+		if res.Intensity == nil {
+			continue
+		}
+		pks := slices.Clone(res.Intensity.Peaks)
+		for k := range pks {
+			pks[k].MeanUNm, pks[k].AreaUPct = 0.02*pks[k].MeanNm, 2
+		}
+		in := *res.Intensity
+		in.Peaks = pks
+		res.Intensity = &in
+	}
+	for _, s := range r.Samples {
+		var runs [][]dls.Peak
+		for _, idx := range s.Used {
+			if in := r.Results[idx].Intensity; in != nil {
+				runs = append(runs, in.Peaks)
+			}
+		}
+		s.IntensityPeaks = dls.MatchPeaks(runs)
+	}
+	dir := writeDemo(t, r)
+	withU, matched := 0, 0
+	for i, s := range r.Samples {
+		_, raw := readPage(t, dir, SamplePageName(i))
+		page := string(raw)
+		for _, idx := range s.Runs {
+			res := r.Results[idx]
+			if res.Intensity == nil {
+				continue
+			}
+			for _, pk := range res.Intensity.Peaks {
+				want := peakText(pk)
+				if !strings.Contains(page, want) {
+					t.Errorf("%s: run %s: peak %q missing", SamplePageName(i), res.File, want)
+				}
+				if pk.MeanUNm > 0 && strings.Contains(want, size(pk.MeanNm)+" ± "+size(pk.MeanUNm)+" nm") {
+					withU++
+				}
+			}
+		}
+		for _, pk := range s.IntensityPeaks {
+			matched++
+			want := fmt.Sprintf("in %d of %d runs", pk.NRuns, pk.NOf)
+			if !strings.Contains(page, size(pk.MeanNm)+" nm (") || !strings.Contains(page, want) {
+				t.Errorf("%s: matched peak at %s nm (%s) missing", SamplePageName(i), size(pk.MeanNm), want)
+			}
+		}
+	}
+	if withU == 0 || matched == 0 {
+		t.Errorf("%d peaks with an uncertainty, %d matched across runs: nothing was checked", withU, matched)
+	}
+}
+
+func TestPeakText(t *testing.T) {
+	for _, c := range []struct {
+		pk   dls.Peak
+		want string
+	}{
+		{dls.Peak{MeanNm: 52.14, AreaPct: 48.4, MeanUNm: 1.26, AreaUPct: 3.2}, "52.1 ± 1.26 nm (48 ± 3 %)"},
+		{dls.Peak{MeanNm: 151.2, AreaPct: 100}, "151 nm (100 %)"},
+	} {
+		if got := peakText(c.pk); got != c.want {
+			t.Errorf("peakText(%+v) = %q, want %q", c.pk, got, c.want)
+		}
 	}
 }
