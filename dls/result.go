@@ -314,14 +314,18 @@ type Counts struct {
 func CountResults(results []*Result) Counts {
 	c := Counts{Total: len(results)}
 	for _, r := range results {
-		switch r.Status {
-		case StatusOK:
-			c.OK++
-		case StatusWarn:
-			c.Warn++
-		default:
-			c.Error++
-		}
+		c.add(r.Status)
 	}
 	return c
+}
+
+func (c *Counts) add(s Status) {
+	switch s {
+	case StatusOK:
+		c.OK++
+	case StatusWarn:
+		c.Warn++
+	default:
+		c.Error++
+	}
 }

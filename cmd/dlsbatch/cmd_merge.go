@@ -36,7 +36,7 @@ func runMerge(ctx context.Context, e env, args []string) int {
 		return exitFatal
 	}
 	if !quiet {
-		report.WriteSummary(e.stdout, res.Results, res.Samples, res.Batch, 10)
+		report.WriteSummary(e.stdout, res.Results, res.Samples, res.Batch, res.Problems)
 	}
 	return exitCode(res.Counts, res.Batch)
 }

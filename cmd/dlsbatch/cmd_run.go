@@ -184,7 +184,7 @@ func runBatch(ctx context.Context, e env, args []string, name string) int {
 			len(res.Results), o.out))
 	}
 	if !o.quiet {
-		if err := report.WriteSummary(e.stdout, res.Results, res.Samples, res.Batch, 10); err != nil {
+		if err := report.WriteSummary(e.stdout, res.Results, res.Samples, res.Batch, res.Problems); err != nil {
 			say(err)
 		}
 		what := "results.csv, samples.csv, results.json, manifest.json"

@@ -52,7 +52,9 @@ type DilutionGroup struct {
 // done, e.g. a multi-angle group measured at fewer than three distinct
 // angles or a dilution series with fewer than three concentrations.
 // Groups spanning one angle and one concentration are left alone.
-// Measurements that could not be analysed take no part.
+// Measurements that could not be analysed take no part, nor do nil
+// entries (a caller that holds only the groups' members whole passes nil
+// for the rest, so that the indices stay those of results.csv).
 //
 // A group that spans several concentrations is a dilution series. Its D
 // values are brought to the temperature and viscosity of the group's
@@ -71,7 +73,7 @@ func Groups(results []*dls.Result) GroupReport {
 	byGroup := map[string][]int{}
 	var order []string
 	for i, r := range results {
-		if r.Group == "" || !r.HasCumulants {
+		if r == nil || r.Group == "" || !r.HasCumulants {
 			continue
 		}
 		if _, ok := byGroup[r.Group]; !ok {

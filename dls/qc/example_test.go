@@ -27,7 +27,7 @@ func ExampleAggregate() {
 	for i, z := range []float64{100, 101, 99, 130} {
 		results = append(results, &dls.Result{Identity: dls.Identity{File: "latex.csv", Run: fmt.Sprintf("r%d", i+1), Sample: "latex", Role: dls.RoleReference, Status: dls.StatusOK}, Cumulants: dls.Cumulants{HasCumulants: true, ZAvgNm: z, PDI: 0.02}})
 	}
-	s := qc.Aggregate(results, qc.Options{Thresholds: qc.DefaultThresholds(), ExcludeOutliers: true})[0]
+	s := qc.Aggregate(dls.Briefs(results), qc.Options{Thresholds: qc.DefaultThresholds(), ExcludeOutliers: true})[0]
 	fmt.Printf("%s (%s): %d runs, %d used, outliers %v\n", s.Name, s.Role, s.NRuns, s.NUsed, s.Outliers)
 	fmt.Printf("z-average %.1f ± %.1f nm (RSD %.2f %%)\n", s.ZAvgMeanNm, s.ZAvgSDNm, s.ZAvgRSDPct)
 	for _, f := range s.Flags {

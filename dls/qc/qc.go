@@ -236,7 +236,7 @@ type Options struct {
 // order of first appearance), flags outlier runs, and computes each
 // sample's statistics over its analysed runs (less the outliers when
 // ExcludeOutliers is set).
-func Aggregate(results []*dls.Result, o Options) []*dls.Sample {
+func Aggregate(results []*dls.Brief, o Options) []*dls.Sample {
 	var order []string
 	by := map[string]*dls.Sample{}
 	first := map[string]string{} // sample+lot → key of its first group
@@ -272,7 +272,7 @@ func Aggregate(results []*dls.Result, o Options) []*dls.Sample {
 // one sample named after the first: the statistics of a block of reference
 // measurements, judged on its own by the system suitability test (package
 // dls/spec).
-func Block(results []*dls.Result, runs []int, o Options) *dls.Sample {
+func Block(results []*dls.Brief, runs []int, o Options) *dls.Sample {
 	r := results[runs[0]]
 	s := &dls.Sample{Name: r.Sample, Lot: r.Lot, Product: r.Product, Role: r.Role, Group: r.Group,
 		OutliersExcluded: o.ExcludeOutliers, Runs: append([]int(nil), runs...)}
@@ -280,7 +280,7 @@ func Block(results []*dls.Result, runs []int, o Options) *dls.Sample {
 	return s
 }
 
-func aggregate(s *dls.Sample, results []*dls.Result, o Options) {
+func aggregate(s *dls.Sample, results []*dls.Brief, o Options) {
 	t := o.Thresholds
 	s.NRuns = len(s.Runs)
 	var ok []int
@@ -292,7 +292,7 @@ func aggregate(s *dls.Sample, results []*dls.Result, o Options) {
 			temps[math.Round(r.TemperatureC*100)/100] = true
 		}
 		for _, f := range r.Flags {
-			s.Flags = append(s.Flags, dls.Flag{Code: f.Code, Message: runID(r) + ": " + f.Message})
+			s.Flags = append(s.Flags, dls.Flag{Code: f.Code, Message: r.RunID() + ": " + f.Message})
 		}
 	}
 	for tc := range temps {
@@ -313,7 +313,7 @@ func aggregate(s *dls.Sample, results []*dls.Result, o Options) {
 		for k, i := range ok {
 			if dev[k] > t.OutlierK*sd {
 				s.Outliers = append(s.Outliers, i)
-				s.Flags = append(s.Flags, dls.Flag{Code: Outlier, Message: fmt.Sprintf("%s: z-average %.2f nm vs median %.2f nm (%.1f robust SD)", runID(results[i]), z[k], med, dev[k]/sd)})
+				s.Flags = append(s.Flags, dls.Flag{Code: Outlier, Message: fmt.Sprintf("%s: z-average %.2f nm vs median %.2f nm (%.1f robust SD)", results[i].RunID(), z[k], med, dev[k]/sd)})
 			}
 		}
 	}
@@ -361,13 +361,6 @@ func aggregate(s *dls.Sample, results []*dls.Result, o Options) {
 	if s.NUsed >= 2 && s.ZAvgRSDPct > t.MaxRSDPct {
 		s.Flags = append(s.Flags, dls.Flag{Code: HighRSD, Message: fmt.Sprintf("z-average RSD %.1f %% > %g %%", s.ZAvgRSDPct, t.MaxRSDPct)})
 	}
-}
-
-func runID(r *dls.Result) string {
-	if r.Run == "" {
-		return r.File
-	}
-	return r.File + "[" + r.Run + "]"
 }
 
 func contains(v []int, x int) bool {

@@ -119,7 +119,7 @@ func TestAggregateStatistics(t *testing.T) {
 	other := clean()
 	other.Sample = "gold"
 	rs = append(rs, other)
-	s := Aggregate(rs, Options{Thresholds: DefaultThresholds()})
+	s := Aggregate(dls.Briefs(rs), Options{Thresholds: DefaultThresholds()})
 	if len(s) != 2 || s[0].Name != "latex" || s[0].NUsed != 3 {
 		t.Fatalf("samples %+v", s)
 	}
@@ -152,7 +152,7 @@ func TestOutlierRule(t *testing.T) {
 		rs = append(rs, r)
 	}
 	for _, excl := range []bool{false, true} {
-		s := Aggregate(rs, Options{Thresholds: DefaultThresholds(), ExcludeOutliers: excl})[0]
+		s := Aggregate(dls.Briefs(rs), Options{Thresholds: DefaultThresholds(), ExcludeOutliers: excl})[0]
 		if len(s.Outliers) != 1 || s.Outliers[0] != 4 || s.OutliersExcluded != excl {
 			t.Fatalf("outliers %v (excluded %v)", s.Outliers, s.OutliersExcluded)
 		}
@@ -173,7 +173,7 @@ func TestAggregateSplitsTemperatures(t *testing.T) {
 	a, b := clean(), clean()
 	b.TemperatureC = 37
 	bad := &dls.Result{Identity: dls.Identity{File: "x.csv", Sample: "latex", Status: dls.StatusError, Message: "x.csv:1: empty", Flags: []dls.Flag{{Code: Failed, Message: "empty"}}}}
-	s := Aggregate([]*dls.Result{a, b, bad}, Options{Thresholds: DefaultThresholds()})
+	s := Aggregate(dls.Briefs([]*dls.Result{a, b, bad}), Options{Thresholds: DefaultThresholds()})
 	if len(s) != 2 || s[0].NRuns != 2 || s[1].NRuns != 1 {
 		t.Fatalf("groups %+v", s)
 	}

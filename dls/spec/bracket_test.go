@@ -77,8 +77,8 @@ func TestReferenceBlocks(t *testing.T) {
 		t.Run(c.name, func(t *testing.T) {
 			res := night(c.plan...)
 			o := qc.Options{Thresholds: qc.DefaultThresholds()}
-			samples := qc.Aggregate(res, o)
-			b := EvaluateRun(c.spec, samples, Run{Results: res, QC: o})
+			samples := qc.Aggregate(dls.Briefs(res), o)
+			b := EvaluateRun(c.spec, samples, Run{Results: dls.Briefs(res), QC: o})
 			var lot *dls.Sample
 			for _, s := range samples {
 				if s.Role == dls.RoleSample {
@@ -100,8 +100,8 @@ func TestReferenceBlocks(t *testing.T) {
 func TestPinnedDriftEndBlock(t *testing.T) {
 	res := night("R:60.5", "R:60.5", "R:60.5", "S:20", "R:66.4", "R:66.4", "R:66.4")
 	o := qc.Options{Thresholds: qc.DefaultThresholds()}
-	samples := qc.Aggregate(res, o)
-	b := EvaluateRun(nightSpec(), samples, Run{Results: res, QC: o})
+	samples := qc.Aggregate(dls.Briefs(res), o)
+	b := EvaluateRun(nightSpec(), samples, Run{Results: dls.Briefs(res), QC: o})
 	// Pooled mean (3·60.5 + 3·66.4)/6 = 63.45 nm, exact to float rounding.
 	if math.Abs(samples[0].ZAvgMeanNm-63.45) > 1e-9 {
 		t.Fatalf("pooled mean %.6f, want 63.45", samples[0].ZAvgMeanNm)
@@ -138,8 +138,8 @@ func TestCoverage(t *testing.T) {
 		t.Run(c.product, func(t *testing.T) {
 			res := night("R:62", "S:20", "R:62")
 			res[1].Product = c.product
-			samples := qc.Aggregate(res, qc.Options{Thresholds: qc.DefaultThresholds()})
-			b := EvaluateRun(nightSpec(Limit{Product: "user", Quantity: QuantityNone, Text: "none"}), samples, Run{Results: res})
+			samples := qc.Aggregate(dls.Briefs(res), qc.Options{Thresholds: qc.DefaultThresholds()})
+			b := EvaluateRun(nightSpec(Limit{Product: "user", Quantity: QuantityNone, Text: "none"}), samples, Run{Results: dls.Briefs(res)})
 			v := samples[1].Verdict
 			got := dls.Outcome("")
 			if v != nil {
@@ -194,8 +194,8 @@ func TestBlank(t *testing.T) {
 				res[0].Product = "water"
 				s.Limits = append(s.Limits, *c.limit)
 			}
-			samples := qc.Aggregate(res, qc.Options{Thresholds: qc.DefaultThresholds()})
-			b := EvaluateRun(s, samples, Run{Results: res})
+			samples := qc.Aggregate(dls.Briefs(res), qc.Options{Thresholds: qc.DefaultThresholds()})
+			b := EvaluateRun(s, samples, Run{Results: dls.Briefs(res)})
 			if v := samples[0].Verdict; v == nil || v.Outcome != c.want {
 				t.Errorf("blank verdict %+v, want %s", v, c.want)
 			}

@@ -170,14 +170,14 @@ type DriftCheck struct {
 	dls.Check
 }
 
-// Run is what a batch's evaluation reads besides the samples: the
-// per-measurement results that the samples index, load (nil: the results
-// are whole) to read a result whole where a limit needs its intensity
-// distribution (intensity_pct_above), the batch order (zero: path order)
-// and the aggregation settings for reference blocks (zero thresholds: the
-// defaults).
+// Run is what a batch's evaluation reads besides the samples: the briefs
+// of the per-measurement results that the samples index, load to read a
+// result whole where a limit needs its intensity distribution
+// (intensity_pct_above; nil: no such limit can be evaluated), the batch
+// order (zero: path order) and the aggregation settings for reference
+// blocks (zero thresholds: the defaults).
 type Run struct {
-	Results []*dls.Result
+	Results []*dls.Brief
 	Load    func(i int) (*dls.Result, error)
 	Order   Order
 	QC      qc.Options
@@ -188,15 +188,7 @@ type Run struct {
 // the default QC thresholds. results are the per-measurement results that
 // the samples index.
 func Evaluate(s *Spec, samples []*dls.Sample, results []*dls.Result) Batch {
-	return EvaluateRun(s, samples, Run{Results: results})
-}
-
-// EvaluateLoaded is Evaluate for results held as compact copies without
-// their distribution arrays: load gives result i whole where a limit needs
-// its intensity distribution (intensity_pct_above). A nil load uses the
-// results as they are.
-func EvaluateLoaded(s *Spec, samples []*dls.Sample, results []*dls.Result, load func(i int) (*dls.Result, error)) Batch {
-	return EvaluateRun(s, samples, Run{Results: results, Load: load})
+	return EvaluateRun(s, samples, Run{Results: dls.Briefs(results), Load: func(i int) (*dls.Result, error) { return results[i], nil }})
 }
 
 // EvaluateRun is Evaluate with the batch order and settings of run.
@@ -386,7 +378,7 @@ func EvaluateRun(s *Spec, samples []*dls.Sample, run Run) Batch {
 // bracketing returns why the sample is not bracketed by passing reference
 // blocks, or "" when it is: the nearest block before its first run and the
 // nearest after its last must both pass (free: any passing block will do).
-func bracketing(smp *dls.Sample, blocks []Block, pos []int, results []*dls.Result, free bool) string {
+func bracketing(smp *dls.Sample, blocks []Block, pos []int, results []*dls.Brief, free bool) string {
 	if free {
 		for _, blk := range blocks {
 			if blk.Verdict.Outcome == dls.VerdictPass {
@@ -431,15 +423,8 @@ func bracketing(smp *dls.Sample, blocks []Block, pos []int, results []*dls.Resul
 }
 
 // blockName names a block by its first and last measurement.
-func blockName(results []*dls.Result, blk Block) string {
-	id := func(i int) string {
-		r := results[i]
-		if r.Run == "" {
-			return r.File
-		}
-		return r.File + "[" + r.Run + "]"
-	}
-	a, z := id(blk.Runs[0]), id(blk.Runs[len(blk.Runs)-1])
+func blockName(results []*dls.Brief, blk Block) string {
+	a, z := results[blk.Runs[0]].RunID(), results[blk.Runs[len(blk.Runs)-1]].RunID()
 	if a == z {
 		return a
 	}
@@ -448,7 +433,7 @@ func blockName(results []*dls.Result, blk Block) string {
 
 // blankVerdict judges a blank: the limits of its product, and the count
 // rate against the QC threshold unless the product limits it.
-func blankVerdict(smp *dls.Sample, limits []Limit, results []*dls.Result, run Run) *dls.Verdict {
+func blankVerdict(smp *dls.Sample, limits []Limit, results []*dls.Brief, run Run) *dls.Verdict {
 	has := false
 	for _, l := range limits {
 		has = has || l.Quantity == "count_rate_kcps"
@@ -541,7 +526,7 @@ func sortedKeys[V any](m map[string]V) []string {
 	return slices.Sorted(maps.Keys(m))
 }
 
-func verdict(smp *dls.Sample, limits []Limit, results []*dls.Result, load func(int) (*dls.Result, error)) *dls.Verdict {
+func verdict(smp *dls.Sample, limits []Limit, results []*dls.Brief, load func(int) (*dls.Result, error)) *dls.Verdict {
 	v := &dls.Verdict{Outcome: dls.VerdictPass}
 	var failed []string
 	for _, l := range limits {
@@ -563,7 +548,7 @@ func verdict(smp *dls.Sample, limits []Limit, results []*dls.Result, load func(i
 
 // check evaluates one limit on the sample: the check, and why it failed
 // ("" when it passed).
-func check(smp *dls.Sample, l Limit, results []*dls.Result, load func(int) (*dls.Result, error)) (dls.Check, string) {
+func check(smp *dls.Sample, l Limit, results []*dls.Brief, load func(int) (*dls.Result, error)) (dls.Check, string) {
 	val, ok := value(smp, l, results, load)
 	c := dls.Check{Quantity: l.Quantity, Limit: l.Text, Value: val, Pass: ok}
 	if ok {
@@ -584,7 +569,7 @@ func trim(v float64) string {
 
 // value returns the sample's value of the limit's quantity, and whether it
 // exists.
-func value(smp *dls.Sample, l Limit, results []*dls.Result, load func(int) (*dls.Result, error)) (float64, bool) {
+func value(smp *dls.Sample, l Limit, results []*dls.Brief, load func(int) (*dls.Result, error)) (float64, bool) {
 	if l.Quantity == "count_rate_kcps" {
 		var sum float64
 		n := 0
@@ -619,15 +604,14 @@ func value(smp *dls.Sample, l Limit, results []*dls.Result, load func(int) (*dls
 		var sum float64
 		n := 0
 		for _, i := range smp.Used {
-			d := results[i].Distribution
-			if load != nil {
-				if full, err := load(i); err == nil {
-					d = full.Distribution
-				}
+			if load == nil {
+				break
 			}
-			if d == nil {
+			full, err := load(i)
+			if err != nil || full.Distribution == nil {
 				continue
 			}
+			d := full.Distribution
 			var above float64
 			for j, x := range d.DiameterNm {
 				if x > l.AtNm {

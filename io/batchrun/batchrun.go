@@ -75,7 +75,10 @@ type Config struct {
 
 // Outcome is what a finished (or interrupted) run produced.
 type Outcome struct {
-	Results  []*dls.Result // compact copies, in input order
+	Results  []*dls.Brief // in input order
+	// Problems are the measurements the summary lists (the first
+	// report.SummaryProblems that are not ok).
+	Problems []report.Problem
 	Samples  []*dls.Sample
 	Batch    spec.Batch
 	Counts   dls.Counts
@@ -214,9 +217,9 @@ func Run(ctx context.Context, cfg *Config) (*Outcome, error) {
 			if len(res) == 0 {
 				return
 			}
-			e := encoded{recs: make([][]byte, len(res)), rows: make([][]byte, len(res))}
+			e := encoded{enc: make([]report.Encoded, len(res))}
 			for i, r := range res {
-				if e.recs[i], e.rows[i], e.err = report.Encode(r); e.err != nil {
+				if e.enc[i], e.err = report.Encode(r); e.err != nil {
 					break
 				}
 			}
@@ -239,10 +242,14 @@ func Run(ctx context.Context, cfg *Config) (*Outcome, error) {
 			if e.err != nil {
 				return e.err
 			}
-			if err := stream.AddEncoded(res, e.recs, e.rows); err != nil {
+			if err := stream.AddEncoded(res, e.enc); err != nil {
 				return err
 			}
-			return jr.add(res, e.recs)
+			recs := make([][]byte, len(e.enc))
+			for i := range e.enc {
+				recs[i] = e.enc[i].Record
+			}
+			return jr.add(res, recs)
 		},
 	}
 	if cfg.Progress != nil {
@@ -313,7 +320,8 @@ func publish(ctx context.Context, cfg *Config, out *resultset.Set, p *publishing
 	// shards, and its records must reach the merge as analysed.
 	var groups batch.GroupReport
 	if p.shard == nil {
-		groups = batch.Groups(o.Results)
+		groups = batch.Groups(p.stream.Members())
+		p.stream.Rebrief()
 	}
 	o.Samples = qc.Aggregate(o.Results, qc.Options{Thresholds: cfg.Settings.QC, ExcludeOutliers: cfg.ExcludeOutliers})
 	o.Batch = spec.Batch{Specified: cfg.Spec != nil, Reason: "not evaluated: the run was interrupted"}
@@ -321,13 +329,17 @@ func publish(ctx context.Context, cfg *Config, out *resultset.Set, p *publishing
 		o.Batch = spec.EvaluateRun(cfg.Spec, o.Samples, spec.Run{Results: o.Results, Load: p.stream.Full,
 			Order: batchOrder(cfg.Sheet, o.Results, p), QC: qc.Options{Thresholds: cfg.Settings.QC, ExcludeOutliers: cfg.ExcludeOutliers}})
 	}
-	o.Counts = dls.CountResults(o.Results)
+	o.Counts = dls.CountBriefs(o.Results)
+	var err error
+	if o.Problems, err = report.Problems(o.Results, report.SummaryProblems, p.stream.Message); err != nil {
+		return nil, err
+	}
 	doc := &report.Document{
 		Tool: "dlsbatch", Version: report.Version(), Caution: report.Caution, Complete: o.Complete,
 		Settings: cfg.record(p.root), Counts: o.Counts, Batch: o.Batch, Sheet: p.match,
-		Groups: &groups, Samples: o.Samples, Results: o.Results,
+		Groups: &groups, Samples: o.Samples,
 	}
-	set := &report.Set{Doc: doc, HTMLReport: cfg.HTMLReport && o.Complete, Root: p.root, Inputs: p.inputs, Stream: p.stream,
+	set := &report.Set{Doc: doc, HTMLReport: cfg.HTMLReport && o.Complete, Root: p.root, Inputs: p.inputs, Stream: p.stream, Problems: o.Problems,
 		Shard: p.shard, Progress: cfg.Progress, Hashes: p.hashes, Workers: cfg.Workers}
 	for _, t := range []string{cfg.SheetFile, cfg.SpecFile, cfg.SolventFile, cfg.QCFile} {
 		if t != "" {
@@ -355,8 +367,8 @@ func publish(ctx context.Context, cfg *Config, out *resultset.Set, p *publishing
 
 // encoded holds one file's results encoded by report.Encode.
 type encoded struct {
-	recs, rows [][]byte
-	err        error
+	enc []report.Encoded
+	err error
 }
 
 // relative names the failed entries of input problems by their path
@@ -425,7 +437,7 @@ func measuredAtOf(res []*dls.Result) []string {
 
 // batchOrder is the order the measurements were taken in, as far as the
 // inputs tell (spec.BatchOrder).
-func batchOrder(sh *sheet.Sheet, results []*dls.Result, p *publishing) spec.Order {
+func batchOrder(sh *sheet.Sheet, results []*dls.Brief, p *publishing) spec.Order {
 	var ranks []int
 	if sh != nil {
 		rels := make([]string, len(results))

@@ -40,7 +40,7 @@ func ExampleWrite() {
 	for _, n := range names {
 		fmt.Println(n)
 	}
-	c := htmlreport.Count([]*dls.Sample{sample}, results)
+	c := htmlreport.Count([]*dls.Sample{sample}, dls.Briefs(results))
 	fmt.Printf("%d pass, %d ok\n", c.Pass, c.OK)
 	// Output:
 	// index.html

@@ -10,12 +10,14 @@ import (
 // write the pages (the fields of Report of the same names).
 type Run struct {
 	Tool, Version, Caution string
-	Settings               any // see Report.Settings
-	Results                []*dls.Result
+	Settings               any           // see Report.Settings
+	Results                []*dls.Result // see Report.Results
+	Briefs                 []*dls.Brief  // see Report.Briefs
 	Samples                []*dls.Sample
 	Batch                  spec.Batch
 	Load                   func(i int) (*dls.Result, error)        // see Report.Load
 	LoadRecord             func(i int, dst []byte) ([]byte, error) // see Report.LoadRecord
+	LoadBase               func(i int) (*dls.Result, error)        // see Report.LoadBase
 
 	InputRoot                   string
 	Tables                      []TableFile
@@ -45,7 +47,7 @@ func FromRun(run Run) *Report {
 		}
 	}
 	return &Report{Tool: run.Tool, Version: run.Version, Caution: run.Caution, Settings: run.Settings,
-		Results: run.Results, Samples: run.Samples, Batch: b, Load: run.Load, LoadRecord: run.LoadRecord,
+		Results: run.Results, Briefs: run.Briefs, Samples: run.Samples, Batch: b, Load: run.Load, LoadRecord: run.LoadRecord, LoadBase: run.LoadBase,
 		InputRoot: run.InputRoot, Tables: run.Tables, MeasuredFirst: run.MeasuredFirst, MeasuredLast: run.MeasuredLast,
 		Workers: run.Workers, Progress: run.Progress, Staged: run.Staged}
 }

@@ -34,7 +34,8 @@ func FuzzSampleStrings(f *testing.F) {
 				Flags:   []dls.Flag{{Code: dls.FlagCode(lot), Message: msg}},
 				Verdict: &dls.Verdict{Outcome: dls.VerdictFail, Reason: msg, Checks: []dls.Check{{Quantity: name, Limit: lot, Value: 1}}}}},
 		}
-		if err := validate(r); err != nil {
+		r, err := prepare(r)
+		if err != nil {
 			t.Fatal(err)
 		}
 		page, _, err := renderSample(&writer{}, r, 0)

@@ -166,8 +166,8 @@ func buildIndex(r *Report, measured timeRange) indexPage {
 		page:        newPage(r),
 		Suitability: suitabilityMark(r.Batch.Suitability),
 		Reason:      r.Batch.Reason,
-		Counts:      Count(r.Samples, r.Results),
-		Record:      batchRecord{Root: r.InputRoot, Tables: r.Tables, Of: len(r.Results)},
+		Counts:      Count(r.Samples, r.Briefs),
+		Record:      batchRecord{Root: r.InputRoot, Tables: r.Tables, Of: len(r.Briefs)},
 	}
 	switch {
 	case r.MeasuredFirst != "" || r.MeasuredLast != "":
@@ -224,7 +224,7 @@ func problem(r *Report, s *dls.Sample) (rank int, what string) {
 	}
 	worst := 3
 	for _, k := range s.Runs {
-		switch r.Results[k].Status {
+		switch r.Briefs[k].Status {
 		case dls.StatusOK:
 		case dls.StatusWarn:
 			worst = min(worst, 2)
@@ -444,7 +444,15 @@ func (r *Report) result(idx int, w *writer) (*dls.Result, error) {
 			return nil, err
 		}
 		w.rec = raw
-		return pageResult(r.Results[idx], raw, &w.arena)
+		var base *dls.Result
+		if r.LoadBase != nil {
+			if base, err = r.LoadBase(idx); err != nil {
+				return nil, err
+			}
+		} else {
+			base = r.Results[idx]
+		}
+		return pageResult(base, raw, &w.arena)
 	case r.Load != nil:
 		return r.Load(idx)
 	}

@@ -44,10 +44,16 @@ type Report struct {
 	// (anything encoding/json writes as an object), shown on the index
 	// sorted by key; strings as they are, other values as JSON.
 	Settings any
-	// Results are the measurements in results.csv order.
+	// Results are the measurements in results.csv order, whole or as
+	// compact copies (see Load and LoadRecord); nil when Briefs are given
+	// with LoadBase.
 	Results []*dls.Result
+	// Briefs, when set, are the briefs of the measurements in results.csv
+	// order, which the index reads (nil: taken from Results). A run of
+	// tens of thousands of measurements holds only these in memory.
+	Briefs []*dls.Brief
 	// Samples are the per-sample aggregates; Sample.Runs, Used and Outliers
-	// index Results.
+	// index the measurements.
 	Samples []*dls.Sample
 	// Load, when set, gives result i whole for its sample's page (curves,
 	// distributions, parameters), so that Results may hold compact copies
@@ -55,12 +61,16 @@ type Report struct {
 	Load func(i int) (*dls.Result, error)
 	// LoadRecord, when set, is used instead of Load: it appends result
 	// i's JSON record (a dls.Result as results.json holds it) to dst and
-	// returns the extended slice, from which the page takes what the
-	// compact copy in Results lacks (curves, distributions, parameters,
-	// warnings, assumptions, the medium note) without decoding the rest.
-	// Each worker passes a buffer of its own; nothing is kept of it. The
-	// index uses Results only.
+	// returns the extended slice, from which the page takes what its base
+	// (LoadBase, or the compact copy in Results) lacks: curves,
+	// distributions, parameters, warnings, assumptions, the medium note,
+	// without decoding the rest. Each worker passes a buffer of its own;
+	// nothing is kept of it.
 	LoadRecord func(i int, dst []byte) ([]byte, error)
+	// LoadBase, when set with LoadRecord, gives result i's base: its
+	// scalar fields and summaries without curves, distributions,
+	// parameters, budgets, warnings, assumptions or medium note.
+	LoadBase func(i int) (*dls.Result, error)
 	// Workers is the number of pages rendered at once; 0 means
 	// GOMAXPROCS. The bytes do not depend on it.
 	Workers int
@@ -134,8 +144,8 @@ type Counts struct {
 	Error   int // status error (or any other status)
 }
 
-// Count tallies samples by verdict and results by status.
-func Count(samples []*dls.Sample, results []*dls.Result) Counts {
+// Count tallies samples by verdict and measurements by status.
+func Count(samples []*dls.Sample, results []*dls.Brief) Counts {
 	c := Counts{Samples: len(samples), Results: len(results)}
 	for _, s := range samples {
 		switch verdictOf(s) {
@@ -149,7 +159,7 @@ func Count(samples []*dls.Sample, results []*dls.Result) Counts {
 			c.None++
 		}
 	}
-	rc := dls.CountResults(results)
+	rc := dls.CountBriefs(results)
 	c.OK, c.Warn, c.Error = rc.OK, rc.Warn, rc.Error
 	return c
 }
@@ -213,7 +223,8 @@ func WriteFiles(ctx context.Context, dir string, r *Report) ([]PageFile, error) 
 	if r == nil {
 		return nil, fmt.Errorf("htmlreport: nil report")
 	}
-	if err := validate(r); err != nil {
+	r, err := prepare(r)
+	if err != nil {
 		return nil, fmt.Errorf("htmlreport: %w", err)
 	}
 	if err := os.MkdirAll(dir, 0o755); err != nil {
@@ -284,7 +295,6 @@ func WriteFiles(ctx context.Context, dir string, r *Report) ([]PageFile, error) 
 	if err := renderIndex(&buf, r, measured); err != nil {
 		return nil, err
 	}
-	var err error
 	if files[0], err = r.writeFile(dir, "index.html", buf.Bytes()); err != nil {
 		return nil, err
 	}
@@ -363,12 +373,40 @@ func cleanText(b *bytes.Buffer) {
 	b.Write(out)
 }
 
+// briefsOf is dls.Briefs with a nil result left nil (validate names it).
+func briefsOf(results []*dls.Result) []*dls.Brief {
+	out := make([]*dls.Brief, len(results))
+	for i, res := range results {
+		if res != nil {
+			out[i] = res.Brief()
+		}
+	}
+	return out
+}
+
+// prepare returns r ready to write: a copy with its briefs taken from
+// its results when it has none, checked by validate.
+func prepare(r *Report) (*Report, error) {
+	if r.Briefs == nil {
+		c := *r
+		c.Briefs = briefsOf(r.Results)
+		r = &c
+	}
+	return r, validate(r)
+}
+
 // validate checks the indices that link samples to results.
 func validate(r *Report) error {
-	for i, res := range r.Results {
-		if res == nil {
+	for i, b := range r.Briefs {
+		if b == nil {
 			return fmt.Errorf("result %d is nil", i)
 		}
+	}
+	if r.Results != nil && len(r.Results) != len(r.Briefs) {
+		return fmt.Errorf("%d results but %d briefs", len(r.Results), len(r.Briefs))
+	}
+	if r.Results == nil && r.Load == nil && (r.LoadRecord == nil || r.LoadBase == nil) && len(r.Briefs) > 0 {
+		return fmt.Errorf("briefs without results need Load, or LoadRecord with LoadBase")
 	}
 	for i, s := range r.Samples {
 		if s == nil {
@@ -379,8 +417,8 @@ func validate(r *Report) error {
 			idx  []int
 		}{{"runs", s.Runs}, {"used", s.Used}, {"outliers", s.Outliers}} {
 			for _, k := range set.idx {
-				if k < 0 || k >= len(r.Results) {
-					return fmt.Errorf("sample %d (%q): %s index %d outside the %d results", i, s.Name, set.name, k, len(r.Results))
+				if k < 0 || k >= len(r.Briefs) {
+					return fmt.Errorf("sample %d (%q): %s index %d outside the %d results", i, s.Name, set.name, k, len(r.Briefs))
 				}
 			}
 		}

@@ -118,7 +118,7 @@ func TestIndexRows(t *testing.T) {
 	}
 	// Counts from the fixture: verdicts pass, fail, invalid, none, pass;
 	// statuses of the six demo results plus the hostile (warn) copy.
-	c := Count(r.Samples, r.Results)
+	c := Count(r.Samples, dls.Briefs(r.Results))
 	if c.Pass != 2 || c.Fail != 1 || c.Invalid != 1 || c.None != 1 {
 		t.Errorf("verdict counts %+v, want 2 pass, 1 fail, 1 invalid, 1 none", c)
 	}

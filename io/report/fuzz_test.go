@@ -56,7 +56,7 @@ func FuzzWriters(f *testing.F) {
 		}
 
 		b.Reset()
-		if err := WriteSamplesCSV(&b, []*dls.Sample{smp}, []*dls.Result{r}); err != nil {
+		if err := WriteSamplesCSV(&b, []*dls.Sample{smp}, []*dls.Brief{r.Brief()}); err != nil {
 			t.Fatal(err)
 		}
 		rows, err = csv.NewReader(&b).ReadAll()

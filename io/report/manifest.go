@@ -1,6 +1,8 @@
 package report
 
 import (
+	"bufio"
+	"bytes"
 	"crypto/sha256"
 	"encoding/hex"
 	"encoding/json"
@@ -81,11 +83,56 @@ func HashBytes(path string, data []byte) FileHash {
 	return FileHash{Path: path, Bytes: int64(len(data)), SHA256: hex.EncodeToString(s[:])}
 }
 
-// WriteManifest writes m as indented JSON.
+// WriteManifest writes m as indented JSON (one space per level), the
+// bytes json.Encoder with SetIndent("", " ") gives, with the lists of
+// files written one entry at a time: a batch of tens of thousands of
+// inputs is never one buffer.
 func WriteManifest(w io.Writer, m *Manifest) error {
-	enc := json.NewEncoder(w)
-	enc.SetIndent("", " ")
-	if err := enc.Encode(m); err != nil {
+	head := *m
+	head.Inputs, head.Tables, head.Outputs = nil, nil, nil
+	b, err := json.MarshalIndent(&head, "", " ")
+	if err != nil {
+		return fmt.Errorf("manifest: %w", err)
+	}
+	// The lists are the last three fields: cut the head before them.
+	cut := bytes.LastIndex(b, []byte("\n \"inputs\": null"))
+	if cut < 0 {
+		return fmt.Errorf("manifest: unexpected encoding of the head")
+	}
+	bw := bufio.NewWriterSize(w, 1<<16)
+	bw.Write(b[:cut])
+	for k, list := range []struct {
+		name  string
+		files []FileHash
+	}{{"inputs", m.Inputs}, {"tables", m.Tables}, {"outputs", m.Outputs}} {
+		if k > 0 {
+			bw.WriteString(",") // the head ends with the comma before inputs
+		}
+		bw.WriteString("\n \"" + list.name + "\": ")
+		switch {
+		case list.files == nil:
+			bw.WriteString("null")
+			continue
+		case len(list.files) == 0:
+			bw.WriteString("[]")
+			continue
+		}
+		bw.WriteString("[")
+		for i := range list.files {
+			e, err := json.MarshalIndent(&list.files[i], "  ", " ")
+			if err != nil {
+				return fmt.Errorf("manifest: %w", err)
+			}
+			if i > 0 {
+				bw.WriteString(",")
+			}
+			bw.WriteString("\n  ")
+			bw.Write(e)
+		}
+		bw.WriteString("\n ]")
+	}
+	bw.WriteString("\n}\n")
+	if err := bw.Flush(); err != nil {
 		return fmt.Errorf("manifest: %w", err)
 	}
 	return nil

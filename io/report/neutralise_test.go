@@ -96,7 +96,7 @@ func TestSamplesCSVNeutralisesTextCells(t *testing.T) {
 				NRuns: 1, NUsed: 1, ZAvgMeanNm: 100, TemperaturesC: []float64{-5, 20},
 				Verdict: &dls.Verdict{Outcome: dls.VerdictFail, Reason: h.raw}}
 			var b bytes.Buffer
-			if err := WriteSamplesCSV(&b, []*dls.Sample{s}, rs); err != nil {
+			if err := WriteSamplesCSV(&b, []*dls.Sample{s}, dls.Briefs(rs)); err != nil {
 				t.Fatal(err)
 			}
 			rows, err := csv.NewReader(&b).ReadAll()
@@ -143,7 +143,7 @@ func TestWriteSummaryStripsControls(t *testing.T) {
 		Message: "a" + evil + ".csv:3: cell " + evil}}}
 	smp := []*dls.Sample{{Name: "s" + evil, Lot: "l" + evil, NRuns: 1, Verdict: &dls.Verdict{Outcome: dls.VerdictFail, Reason: "why" + evil}}}
 	var b bytes.Buffer
-	if err := WriteSummary(&b, rs, smp, spec.Batch{Specified: true, Reason: "bad" + evil}, 10); err != nil {
+	if err := WriteSummary(&b, dls.Briefs(rs), smp, spec.Batch{Specified: true, Reason: "bad" + evil}, ProblemsOf(rs, SummaryProblems)); err != nil {
 		t.Fatal(err)
 	}
 	out := b.String()

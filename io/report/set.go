@@ -2,7 +2,6 @@ package report
 
 import (
 	"bufio"
-	"bytes"
 	"context"
 	"crypto/sha256"
 	"encoding/hex"
@@ -31,14 +30,17 @@ type Set struct {
 	// for an incomplete document, only the inputs with results.
 	Root           string
 	Inputs, Tables []string
-	// Stream, when set, holds the full records of Doc.Results (which are
-	// then its compact copies); see Stream.
+	// Stream, when set, holds the run's results (Doc.Results is then
+	// unused); see Stream.
 	Stream *Stream
 	// Progress, when set, hears of report pages and hashed inputs.
 	Progress func(phase string, done, total int)
 	// Hashes, where set, give inputs' hashes already taken (by path), so
 	// that a file is read once for them.
 	Hashes map[string]FileHash
+	// Problems are the measurements the summary lists (see Problems);
+	// nil: WriteSet finds them.
+	Problems []Problem
 	// Shard is recorded in the manifest of one shard's set.
 	Shard *ShardInfo
 	// Workers is the number of report pages rendered at once (run's -j);
@@ -69,9 +71,20 @@ func WriteSet(ctx context.Context, dir string, s *Set) error {
 		return fmt.Errorf("output folder: %w", err)
 	}
 	d := s.Doc
+	briefs := dls.Briefs(d.Results)
+	if s.Stream != nil {
+		briefs = s.Stream.Results()
+	}
 	inputs := s.Inputs
 	if !d.Complete {
-		inputs = analysed(s.Root, s.Inputs, d.Results)
+		inputs = analysed(s.Root, s.Inputs, briefs)
+	}
+	problems := s.Problems
+	if problems == nil {
+		var err error
+		if problems, err = s.problems(); err != nil {
+			return err
+		}
 	}
 	m := &Manifest{Tool: d.Tool, Version: d.Version, Complete: d.Complete, Root: s.Root, Shard: s.Shard, Settings: d.Settings,
 		Files: FileCounts{Found: len(s.Inputs), Analysed: len(inputs)}, Inputs: []FileHash{}, Tables: []FileHash{}}
@@ -84,8 +97,9 @@ func WriteSet(ctx context.Context, dir string, s *Set) error {
 		return append(dst, b...), err
 	}
 	var record func(int, []byte) ([]byte, error)
+	var base func(int) (*dls.Result, error)
 	if s.Stream != nil {
-		result, row, record = s.Stream.appendRaw, s.Stream.appendRow, s.Stream.appendRaw
+		result, row, record, base = s.Stream.appendRaw, s.Stream.appendRow, s.Stream.appendRaw, s.Stream.Base
 	} else {
 		for _, r := range d.Results {
 			if err := checkFinite(r); err != nil {
@@ -97,10 +111,10 @@ func WriteSet(ctx context.Context, dir string, s *Set) error {
 		name  string
 		write func(w io.Writer) error
 	}{
-		{SummaryTxt, func(w io.Writer) error { return writeSummaryFile(w, d) }},
-		{ResultsCSV, func(w io.Writer) error { return writeCSV(w, len(d.Results), row) }},
-		{SamplesCSV, func(w io.Writer) error { return WriteSamplesCSV(w, d.Samples, d.Results) }},
-		{ResultsJSON, func(w io.Writer) error { return writeJSON(w, d, result) }},
+		{SummaryTxt, func(w io.Writer) error { return writeSummaryFile(w, d, briefs, problems) }},
+		{ResultsCSV, func(w io.Writer) error { return writeCSV(w, len(briefs), row) }},
+		{SamplesCSV, func(w io.Writer) error { return WriteSamplesCSV(w, d.Samples, briefs) }},
+		{ResultsJSON, func(w io.Writer) error { return writeJSON(w, d, briefs, result) }},
 	} {
 		h, err := writeHashed(filepath.Join(dir, f.name), f.write)
 		if err != nil {
@@ -138,7 +152,7 @@ func WriteSet(ctx context.Context, dir string, s *Set) error {
 		// dir is a staging folder, flushed before it is published
 		// (resultset.Commit): the pages need no fsync each.
 		rep := htmlreport.FromRun(htmlreport.Run{Tool: d.Tool, Version: d.Version, Caution: d.Caution,
-			Settings: d.Settings, Results: d.Results, Samples: d.Samples, Batch: d.Batch, LoadRecord: record,
+			Settings: d.Settings, Results: d.Results, Briefs: briefs, Samples: d.Samples, Batch: d.Batch, LoadRecord: record, LoadBase: base,
 			Workers: s.Workers, Progress: reportProgress(s), Staged: true, InputRoot: s.Root, Tables: tableFiles(d.Settings, m.Tables)})
 		pages, err := htmlreport.WriteFiles(ctx, filepath.Join(dir, ReportDir), rep)
 		if err != nil {
@@ -153,11 +167,7 @@ func WriteSet(ctx context.Context, dir string, s *Set) error {
 			return fmt.Errorf("results: %w", err)
 		}
 	}
-	var b bytes.Buffer
-	if err := WriteManifest(&b, m); err != nil {
-		return err
-	}
-	return atomicfile.Write(filepath.Join(dir, ManifestJSON), b.Bytes())
+	return atomicfile.WriteFrom(filepath.Join(dir, ManifestJSON), func(w io.Writer) error { return WriteManifest(w, m) })
 }
 
 // appendRaw appends the stored JSON record of result i to dst, for the
@@ -196,6 +206,15 @@ func (s *Stream) appendAt(dst []byte, off, n int64) ([]byte, error) {
 		return dst[:k], err
 	}
 	return dst, nil
+}
+
+// problems finds the measurements the summary lists: in the stream's
+// base records, or in the document's results.
+func (s *Set) problems() ([]Problem, error) {
+	if s.Stream == nil {
+		return ProblemsOf(s.Doc.Results, SummaryProblems), nil
+	}
+	return Problems(s.Stream.Results(), SummaryProblems, s.Stream.Message)
 }
 
 // tableFiles names the tables of the manifest for the report's batch
@@ -252,7 +271,7 @@ func (c *countWriter) Write(p []byte) (int, error) {
 }
 
 // analysed lists, in input order, the inputs of which results exist.
-func analysed(root string, inputs []string, results []*dls.Result) []string {
+func analysed(root string, inputs []string, results []*dls.Brief) []string {
 	done := map[string]bool{}
 	for _, r := range results {
 		done[r.File] = true
@@ -277,11 +296,11 @@ func reportProgress(s *Set) func(done, total int) {
 
 // writeSummaryFile writes summary.txt: the morning summary as the command
 // prints it, with the caution, and a word when the set is incomplete.
-func writeSummaryFile(w io.Writer, d *Document) error {
+func writeSummaryFile(w io.Writer, d *Document, briefs []*dls.Brief, problems []Problem) error {
 	if !d.Complete {
-		fmt.Fprintf(w, "INCOMPLETE: the run was interrupted; %d measurements finished, no verdicts.\n\n", len(d.Results))
+		fmt.Fprintf(w, "INCOMPLETE: the run was interrupted; %d measurements finished, no verdicts.\n\n", len(briefs))
 	}
-	if err := WriteSummary(w, d.Results, d.Samples, d.Batch, 10); err != nil {
+	if err := WriteSummary(w, briefs, d.Samples, d.Batch, problems); err != nil {
 		return err
 	}
 	_, err := fmt.Fprintln(w, Caution)

@@ -99,7 +99,7 @@ func TestWriteSetReport(t *testing.T) {
 		t.Fatal(err)
 	}
 	doc := &Document{Tool: "dlsbatch", Version: "test", Caution: Caution, Complete: true,
-		Settings: &Settings{Sheet: "sheet.csv"}, Results: st.Results(),
+		Settings: &Settings{Sheet: "sheet.csv"}, Results: nil,
 		Samples: []*dls.Sample{{Name: "lot, 7", Runs: []int{0}, Used: []int{0}}, {Name: "", Runs: []int{1}}}}
 	if err := WriteSet(context.Background(), dir, &Set{Doc: doc, HTMLReport: true, Root: root, Tables: []string{sheet}, Stream: st, Workers: 1}); err != nil {
 		t.Fatal(err)

@@ -14,23 +14,25 @@ import (
 
 // Stream keeps a run's results out of memory: each full record (curves,
 // distributions, audit) goes to a scratch file in the staging folder as it
-// arrives, in input order, and only a compact copy stays in memory for the
-// per-sample statistics, groups, verdicts, tables and the report's index.
+// arrives, in input order, with its results.csv row and its base record
+// (the record less its arrays, budgets and parameters: what a report page
+// shows beside the curves), and only a brief (dls.Brief) stays in memory
+// for the per-sample statistics, verdicts, tables and the report's index.
 // Records of measurements in a group stay whole in memory, because the
 // group analyses annotate them after the fact. WriteSet then writes
 // results.json from the scratch file and the report's pages from records
 // read back one sample at a time, so memory grows with the number of
-// measurements only by the compact copies.
+// measurements only by the briefs.
 type Stream struct {
-	f       *os.File
-	w       *bufio.Writer
-	off     int64
-	spans   []span // of each result's JSON record, then its CSV row
-	compact []*dls.Result
-	full    map[int]*dls.Result
+	f      *os.File
+	w      *bufio.Writer
+	off    int64
+	spans  []span // of each result's JSON record, its CSV row, its base record
+	briefs []*dls.Brief
+	full   map[int]*dls.Result
 }
 
-type span struct{ off, n, csvN int64 }
+type span struct{ off, n, csvN, baseN int64 }
 
 // scratchName is the scratch file, removed before the set is published.
 const scratchName = ".results.part"
@@ -55,80 +57,110 @@ func (s *Stream) Add(results []*dls.Result) error {
 // results.json will hold it (for a journal to reuse; not to be kept: a
 // record of a group member is encoded afresh).
 func (s *Stream) AddRecords(results []*dls.Result) ([][]byte, error) {
+	enc := make([]Encoded, len(results))
 	recs := make([][]byte, len(results))
-	rows := make([][]byte, len(results))
 	for i, r := range results {
 		var err error
-		if recs[i], rows[i], err = Encode(r); err != nil {
+		if enc[i], err = Encode(r); err != nil {
 			return nil, err
 		}
+		recs[i] = enc[i].Record
 	}
-	return recs, s.AddEncoded(results, recs, rows)
+	return recs, s.AddEncoded(results, enc)
 }
 
-// Encode is a result's JSON record (as results.json holds it) and its
-// results.csv row; a result holding NaN or Inf is refused. It may run in
-// parallel, ahead of AddEncoded, which takes results one file at a time.
-func Encode(r *dls.Result) (record, row []byte, err error) {
+// Encoded is a result encoded for the stream: its JSON record (as
+// results.json holds it), its results.csv row and its base record.
+type Encoded struct {
+	Record, Row, Base []byte
+}
+
+// Encode encodes a result for the stream; a result holding NaN or Inf is
+// refused. It may run in parallel, ahead of AddEncoded, which takes
+// results one file at a time.
+func Encode(r *dls.Result) (Encoded, error) {
+	var e Encoded
 	if err := checkFinite(r); err != nil {
-		return nil, nil, fmt.Errorf("results json: %s: %w", r.File, err)
+		return e, fmt.Errorf("results json: %s: %w", r.File, err)
 	}
-	if record, err = json.Marshal(r); err != nil {
-		return nil, nil, fmt.Errorf("results json: %s: %w", r.File, err)
+	var err error
+	if e.Record, err = json.Marshal(r); err != nil {
+		return e, fmt.Errorf("results json: %s: %w", r.File, err)
 	}
-	if row, err = csvRow(r); err != nil {
-		return nil, nil, fmt.Errorf("results csv: %s: %w", r.File, err)
+	if e.Row, err = csvRow(r); err != nil {
+		return e, fmt.Errorf("results csv: %s: %w", r.File, err)
 	}
-	return record, row, nil
+	if e.Base, err = json.Marshal(baseOf(r)); err != nil {
+		return e, fmt.Errorf("results json: %s: %w", r.File, err)
+	}
+	return e, nil
 }
 
 // AddEncoded records the results of one file with their encodings from
 // Encode.
-func (s *Stream) AddEncoded(results []*dls.Result, recs, rows [][]byte) error {
+func (s *Stream) AddEncoded(results []*dls.Result, enc []Encoded) error {
 	for i, r := range results {
-		b, row := recs[i], rows[i]
 		if r.Group != "" {
-			s.full[len(s.compact)] = r
-			s.spans = append(s.spans, span{-1, 0, 0})
-			s.compact = append(s.compact, r)
+			s.full[len(s.briefs)] = r
+			s.spans = append(s.spans, span{-1, 0, 0, 0})
+			s.briefs = append(s.briefs, briefOf(r))
 			continue
 		}
-		for _, part := range [][]byte{b, row} {
+		e := enc[i]
+		for _, part := range [][]byte{e.Record, e.Row, e.Base} {
 			if _, err := s.w.Write(part); err != nil {
 				return fmt.Errorf("results: %w", err)
 			}
 		}
-		s.spans = append(s.spans, span{s.off, int64(len(b)), int64(len(row))})
-		s.off += int64(len(b) + len(row))
-		s.compact = append(s.compact, compactOf(r))
+		s.spans = append(s.spans, span{s.off, int64(len(e.Record)), int64(len(e.Row)), int64(len(e.Base))})
+		s.off += int64(len(e.Record) + len(e.Row) + len(e.Base))
+		s.briefs = append(s.briefs, briefOf(r))
 	}
 	return nil
 }
 
-// Results are the compact results in input order; the i-th has index i in
-// samples' run lists.
-func (s *Stream) Results() []*dls.Result { return s.compact }
+// Results are the briefs of the results in input order; the i-th has
+// index i in samples' run lists.
+func (s *Stream) Results() []*dls.Brief { return s.briefs }
 
-// compactOf keeps what the per-sample statistics, verdicts, summary,
-// samples.csv and the report's index need: identity, flags, conditions,
-// the cumulant fit and the intensity summary (peaks, percentiles). The rest
-// (curves, parameters, budget, the distributions themselves, volume and
-// number summaries, notes) is in the scratch file with the record's
-// results.csv row; Full reads it back where it is needed.
-//
-// Texts that repeat from measurement to measurement (sample, lot, product,
-// solvent, the sources of η and n, the particle index, the column and
-// method names) are interned: a batch of thousands of runs of a few
-// samples holds each once.
-func compactOf(r *dls.Result) *dls.Result {
+// Members returns, at the indices of Results, the results of the
+// measurements in a group, whole and held in memory, and nil for the rest:
+// what batch.Groups reads and annotates. Call Rebrief after annotating.
+func (s *Stream) Members() []*dls.Result {
+	out := make([]*dls.Result, len(s.briefs))
+	for i, r := range s.full {
+		out[i] = r
+	}
+	return out
+}
+
+// Rebrief takes the briefs of the group members afresh from their
+// results, after the group analyses changed them.
+func (s *Stream) Rebrief() {
+	for i, r := range s.full {
+		s.briefs[i] = briefOf(r)
+	}
+}
+
+// baseOf is the base record of r: r less what the report's pages take
+// from the full record (curves, distributions, parameters, warnings,
+// assumptions, the medium note) and what they do not show (the budgets).
+func baseOf(r *dls.Result) *dls.Result {
 	c := *r
-	c.Curves, c.Params, c.Budget, c.Volume, c.Number, c.Distribution = nil, nil, nil, nil, nil, nil
+	c.Curves, c.Params, c.Budget, c.ZAvgD0Budget, c.Volume, c.Number, c.Distribution = nil, nil, nil, nil, nil, nil, nil
 	c.Assumptions, c.Warnings, c.Medium = nil, nil, nil
-	for _, p := range []*string{&c.Sample, &c.Lot, &c.Product, &c.Group, &c.Solvent, &c.ViscositySource, &c.IndexSource,
-		&c.Method, &c.CorrelationColumn, &c.CorrelationKind, &c.ParticleRI, &c.AlphaCriterion, &c.Correction} {
+	return &c
+}
+
+// briefOf is r's brief. Texts that repeat from measurement to measurement
+// (sample, lot, product, group) are interned: a batch of thousands of runs
+// of a few samples holds each once.
+func briefOf(r *dls.Result) *dls.Brief {
+	b := r.Brief()
+	for _, p := range []*string{&b.Sample, &b.Lot, &b.Product, &b.Group} {
 		*p = intern(*p)
 	}
-	return &c
+	return b
 }
 
 // intern returns the one copy of s the process keeps.
@@ -180,9 +212,36 @@ func (s *Stream) Full(i int) (*dls.Result, error) {
 	}
 	var r dls.Result
 	if err := json.Unmarshal(b, &r); err != nil {
-		return nil, fmt.Errorf("results: reading back %s: %w", s.compact[i].File, err)
+		return nil, fmt.Errorf("results: reading back %s: %w", s.briefs[i].File, err)
 	}
 	return &r, nil
+}
+
+// Base returns result i as its base record holds it (see Encode; a group
+// member whole).
+func (s *Stream) Base(i int) (*dls.Result, error) {
+	if r, ok := s.full[i]; ok {
+		return r, nil
+	}
+	sp := s.spans[i]
+	b, err := s.read(sp.off+sp.n+sp.csvN, sp.baseN)
+	if err != nil {
+		return nil, err
+	}
+	var r dls.Result
+	if err := json.Unmarshal(b, &r); err != nil {
+		return nil, fmt.Errorf("results: reading back %s: %w", s.briefs[i].File, err)
+	}
+	return &r, nil
+}
+
+// Message returns result i's message, from its base record.
+func (s *Stream) Message(i int) (string, error) {
+	r, err := s.Base(i)
+	if err != nil {
+		return "", err
+	}
+	return r.Message, nil
 }
 
 // Close removes the scratch file.

@@ -54,22 +54,34 @@ func TestStreamRoundTrip(t *testing.T) {
 		if string(row) != string(want) {
 			t.Errorf("result %d: csv row differs", i)
 		}
+		base, err := st.Base(i)
+		if err != nil {
+			t.Fatal(err)
+		}
+		if !reflect.DeepEqual(base, baseOf(r)) {
+			t.Errorf("result %d (%s): base record differs after the round trip", i, r.File)
+		}
+		if base.ZAvgNm != r.ZAvgNm || base.Intensity == nil != (r.Intensity == nil) || base.Curves != nil || base.Params != nil {
+			t.Errorf("result %d (%s): base record keeps z %g (want %g), curves %v, params %v", i, r.File, base.ZAvgNm, r.ZAvgNm, base.Curves != nil, base.Params != nil)
+		}
+		if !reflect.DeepEqual(st.Results()[i], r.Brief()) {
+			t.Errorf("result %d (%s): brief %+v, want %+v", i, r.File, st.Results()[i], r.Brief())
+		}
 	}
 }
 
 // Texts that repeat from run to run are held once: two results whose
-// sample and solvent names were built apart (as two files' parses are)
-// keep compact copies pointing at the same bytes, with the text unchanged.
-func TestCompactInternsRepeatedText(t *testing.T) {
+// sample and lot names were built apart (as two files' parses are) keep
+// briefs pointing at the same bytes, with the text unchanged.
+func TestBriefInternsRepeatedText(t *testing.T) {
 	mk := func() *dls.Result {
-		return &dls.Result{Identity: dls.Identity{Sample: string([]byte("silica silica silica ")), File: "x.csv"},
-			Conditions: dls.Conditions{Solvent: string([]byte("water"))}}
+		return &dls.Result{Identity: dls.Identity{Sample: string([]byte("silica silica silica ")), Lot: string([]byte("L-7")), File: "x.csv"}}
 	}
-	a, b := compactOf(mk()), compactOf(mk())
-	if a.Sample != "silica silica silica " || a.Solvent != "water" {
-		t.Fatalf("texts changed: %q, %q", a.Sample, a.Solvent)
+	a, b := briefOf(mk()), briefOf(mk())
+	if a.Sample != "silica silica silica " || a.Lot != "L-7" {
+		t.Fatalf("texts changed: %q, %q", a.Sample, a.Lot)
 	}
-	if unsafe.StringData(a.Sample) != unsafe.StringData(b.Sample) || unsafe.StringData(a.Solvent) != unsafe.StringData(b.Solvent) {
-		t.Error("repeated sample and solvent names are held twice")
+	if unsafe.StringData(a.Sample) != unsafe.StringData(b.Sample) || unsafe.StringData(a.Lot) != unsafe.StringData(b.Lot) {
+		t.Error("repeated sample and lot names are held twice")
 	}
 }

@@ -98,7 +98,7 @@ func WriteJSON(w io.Writer, doc *Document) error {
 			return fmt.Errorf("results json: %s: %w", r.File, err)
 		}
 	}
-	return writeJSON(w, doc, func(i int, dst []byte) ([]byte, error) {
+	return writeJSON(w, doc, dls.Briefs(doc.Results), func(i int, dst []byte) ([]byte, error) {
 		b, err := json.Marshal(doc.Results[i])
 		return append(dst, b...), err
 	})
@@ -108,7 +108,7 @@ func WriteJSON(w io.Writer, doc *Document) error {
 // by result to a buffer reused from result to result. The samples array is
 // encoded one sample at a time (the bytes json.Marshal gives for the whole
 // slice), so that a batch of thousands of samples is never one buffer.
-func writeJSON(w io.Writer, doc *Document, result func(i int, dst []byte) ([]byte, error)) error {
+func writeJSON(w io.Writer, doc *Document, results []*dls.Brief, result func(i int, dst []byte) ([]byte, error)) error {
 	bw := bufio.NewWriter(w)
 	field := func(name string, v any, last bool) error {
 		bw.WriteString(" " + strconv.Quote(name) + ": ")
@@ -133,7 +133,7 @@ func writeJSON(w io.Writer, doc *Document, result func(i int, dst []byte) ([]byt
 	}
 	bw.WriteString(" \"results\": [")
 	var b []byte
-	for i, r := range doc.Results {
+	for i, r := range results {
 		var err error
 		b, err = result(i, b[:0])
 		if err != nil {
@@ -190,7 +190,7 @@ func checkFinite(r *dls.Result) error {
 // through safetext.Terminal: the summary is printed to a terminal, where
 // escape sequences or control characters in a file name or cell would act
 // instead of showing.
-func WriteSummary(w io.Writer, results []*dls.Result, samples []*dls.Sample, b spec.Batch, maxProblems int) error {
+func WriteSummary(w io.Writer, results []*dls.Brief, samples []*dls.Sample, b spec.Batch, problems []Problem) error {
 	tw := tabwriter.NewWriter(w, 0, 0, 2, ' ', 0)
 	head := "sample\tT °C\truns\tz-average nm\tSD nm\tPDI\tflags\t"
 	if b.Specified {
@@ -229,7 +229,7 @@ func WriteSummary(w io.Writer, results []*dls.Result, samples []*dls.Sample, b s
 	if err := tw.Flush(); err != nil {
 		return err
 	}
-	c := dls.CountResults(results)
+	c := dls.CountBriefs(results)
 	fmt.Fprintf(w, "\n%d measurements: %d ok, %d warn, %d error\n", c.Total, c.OK, c.Warn, c.Error)
 	if b.Specified {
 		if b.Valid {
@@ -243,30 +243,60 @@ func WriteSummary(w io.Writer, results []*dls.Result, samples []*dls.Sample, b s
 			}
 		}
 	}
-	shown := 0
-	for _, r := range results {
+	for _, p := range problems {
+		id := p.File
+		if p.Run != "" {
+			id += "[" + p.Run + "]"
+		}
+		if rest, ok := strings.CutPrefix(p.Message, p.File+":"); ok {
+			// Errors name file and line already: keep that, with the run.
+			fmt.Fprintf(w, "  %-5s %s:%s\n", p.Status, safetext.Terminal(id), safetext.Terminal(rest))
+			continue
+		}
+		fmt.Fprintf(w, "  %-5s %s: %s\n", p.Status, safetext.Terminal(id), safetext.Terminal(p.Message))
+	}
+	if more := c.Warn + c.Error - len(problems); more > 0 {
+		fmt.Fprintf(w, "  … %d more in results.csv\n", more)
+	}
+	return nil
+}
+
+// Problem is a measurement whose status is not ok, as the summary lists
+// it: its file, run, status and message.
+type Problem struct {
+	File, Run string
+	Status    dls.Status
+	Message   string
+}
+
+// SummaryProblems is how many problems the summary lists.
+const SummaryProblems = 10
+
+// Problems returns the first max measurements (in results order) whose
+// status is not ok, with the message that message gives for result i
+// (the briefs leave messages out).
+func Problems(results []*dls.Brief, max int, message func(i int) (string, error)) ([]Problem, error) {
+	var out []Problem
+	for i, r := range results {
+		if len(out) == max {
+			break
+		}
 		if r.Status == dls.StatusOK {
 			continue
 		}
-		if shown == maxProblems {
-			fmt.Fprintf(w, "  … %d more in results.csv\n", c.Warn+c.Error-shown)
-			break
+		msg, err := message(i)
+		if err != nil {
+			return nil, err
 		}
-		id := r.File
-		if r.Run != "" {
-			id += "[" + r.Run + "]"
-		}
-		msg := r.Message
-		if rest, ok := strings.CutPrefix(msg, r.File+":"); ok {
-			// Errors name file and line already: keep that, with the run.
-			fmt.Fprintf(w, "  %-5s %s:%s\n", r.Status, safetext.Terminal(id), safetext.Terminal(rest))
-			shown++
-			continue
-		}
-		fmt.Fprintf(w, "  %-5s %s: %s\n", r.Status, safetext.Terminal(id), safetext.Terminal(msg))
-		shown++
+		out = append(out, Problem{File: r.File, Run: r.Run, Status: r.Status, Message: msg})
 	}
-	return nil
+	return out, nil
+}
+
+// ProblemsOf is Problems for results held whole.
+func ProblemsOf(results []*dls.Result, max int) []Problem {
+	p, _ := Problems(dls.Briefs(results), max, func(i int) (string, error) { return results[i].Message, nil })
+	return p
 }
 
 // flagCodes lists the distinct codes of flags, in first-seen order.
@@ -284,7 +314,7 @@ func flagCodes(f []dls.Flag) string {
 
 // WriteSamplesCSV writes samples.csv: one row per sample with its
 // statistics, flags and verdict.
-func WriteSamplesCSV(w io.Writer, samples []*dls.Sample, results []*dls.Result) error {
+func WriteSamplesCSV(w io.Writer, samples []*dls.Sample, results []*dls.Brief) error {
 	cw := csv.NewWriter(w)
 	head := make([]string, len(sampleColumns))
 	for i, c := range sampleColumns {
@@ -298,11 +328,7 @@ func WriteSamplesCSV(w io.Writer, samples []*dls.Sample, results []*dls.Result) 
 		}
 		var out []string
 		for _, i := range s.Outliers {
-			id := results[i].File
-			if results[i].Run != "" {
-				id += "[" + results[i].Run + "]"
-			}
-			out = append(out, id)
+			out = append(out, results[i].RunID())
 		}
 		// A blank's fit describes the dispersant's signal, not particles:
 		// no size is reported for it (its count rate and verdict are).

@@ -4,6 +4,7 @@ import (
 	"bytes"
 	"encoding/csv"
 	"encoding/json"
+	"fmt"
 	"math"
 	"strings"
 	"testing"
@@ -93,7 +94,7 @@ func TestWriteSummary(t *testing.T) {
 	var b bytes.Buffer
 	rs := sampleResults()
 	smp := []*dls.Sample{{Name: "lot, 7", NRuns: 1, NUsed: 1, ZAvgMeanNm: 100.0004, TemperaturesC: []float64{25}}, {Name: "", NRuns: 1}}
-	if err := WriteSummary(&b, rs, smp, spec.Batch{}, 10); err != nil {
+	if err := WriteSummary(&b, dls.Briefs(rs), smp, spec.Batch{}, ProblemsOf(rs, SummaryProblems)); err != nil {
 		t.Fatal(err)
 	}
 	s := b.String()
@@ -121,5 +122,47 @@ func TestSummaryProblemsFirst(t *testing.T) {
 	}
 	if want := "c-failed e-invalid b-flagged a-clean d-clean"; strings.Join(got, " ") != want {
 		t.Errorf("order %v, want %s", got, want)
+	}
+}
+
+// The summary lists the first SummaryProblems measurements that are not
+// ok, in results order, with their messages from the full records, and
+// counts the rest.
+func TestSummaryProblems(t *testing.T) {
+	var rs []*dls.Result
+	for i := range 14 {
+		st, msg := dls.StatusWarn, fmt.Sprintf("remark %d", i)
+		switch {
+		case i%3 == 0:
+			st, msg = dls.StatusOK, ""
+		case i == 13:
+			st, msg = dls.StatusError, fmt.Sprintf("m%02d.csv:7: bad line", i)
+		}
+		rs = append(rs, &dls.Result{Identity: dls.Identity{File: fmt.Sprintf("m%02d.csv", i), Status: st, Message: msg}})
+	}
+	ps := ProblemsOf(rs, 4)
+	var ids []string
+	for _, p := range ps {
+		ids = append(ids, p.File+" "+p.Message)
+	}
+	if want := "m01.csv remark 1|m02.csv remark 2|m04.csv remark 4|m05.csv remark 5"; strings.Join(ids, "|") != want {
+		t.Errorf("problems %q, want %q", strings.Join(ids, "|"), want)
+	}
+	var b bytes.Buffer
+	if err := WriteSummary(&b, dls.Briefs(rs), nil, spec.Batch{}, ProblemsOf(rs, SummaryProblems)); err != nil {
+		t.Fatal(err)
+	}
+	out := b.String()
+	// 9 of the 14 are not ok (every third is): all 9 listed, none more;
+	// the error keeps its file:line form.
+	if strings.Contains(out, "more in results.csv") || !strings.Contains(out, "  error m13.csv:7: bad line\n") || strings.Count(out, "\n  warn ") != 8 {
+		t.Errorf("summary:\n%s", out)
+	}
+	b.Reset()
+	if err := WriteSummary(&b, dls.Briefs(rs), nil, spec.Batch{}, ps); err != nil {
+		t.Fatal(err)
+	}
+	if !strings.Contains(b.String(), "  … 5 more in results.csv\n") {
+		t.Errorf("summary with 4 of 9 problems does not count the other 5:\n%s", b.String())
 	}
 }
