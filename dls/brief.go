@@ -16,7 +16,7 @@ type Brief struct {
 	Group   string
 	Status  Status
 	Role    Role
-	Flags []Flag
+	Flags   []Flag
 
 	HasConditions, HasCumulants, HasDistribution, HasCountRate bool
 

@@ -75,7 +75,7 @@ type Config struct {
 
 // Outcome is what a finished (or interrupted) run produced.
 type Outcome struct {
-	Results  []*dls.Brief // in input order
+	Results []*dls.Brief // in input order
 	// Problems are the measurements the summary lists (the first
 	// report.SummaryProblems that are not ok).
 	Problems []report.Problem
