@@ -175,7 +175,7 @@ func Run(ctx context.Context, cfg *Config) (*Outcome, error) {
 	}
 	published := false
 	defer func() { jr.close(published) }()
-	hashed := map[string]report.FileHash{} // input path → its FileHash, taken at analysis
+	hashed := map[string]report.Digest{} // input path → its digest, taken at analysis
 	var hashedMu sync.Mutex
 	var encodings sync.Map  // a file's first result → its records, encoded
 	var measuredAt []string // of each result, in input order
@@ -188,14 +188,14 @@ func Run(ctx context.Context, cfg *Config) (*Outcome, error) {
 			if _, problem := found.Failed(path); problem {
 				return nil, false
 			}
-			h, err := report.HashFile(path)
+			d, err := report.DigestFile(path)
 			if err != nil {
 				return nil, false
 			}
 			hashedMu.Lock()
-			hashed[path] = h // the manifest takes it from here: each input is read for its hash once
+			hashed[path] = d // the manifest takes it from here: each input is read for its hash once
 			hashedMu.Unlock()
-			return jr.cached(csvdata.Rel(root, path), h.SHA256)
+			return jr.cached(csvdata.Rel(root, path), d.Hex())
 		},
 		Read: func(path string) []batch.Input {
 			if in, failed := found.Failed(path); failed {
@@ -305,7 +305,7 @@ type publishing struct {
 	stream   *report.Stream
 	complete bool
 	shard    *report.ShardInfo
-	hashes   map[string]report.FileHash // of inputs, by path, where already known
+	hashes   map[string]report.Digest // of inputs, by path, where already known
 	// measuredAt holds each result's measured_at ("" without), sheetRel
 	// each input's path as the sheet's patterns see it, by its name
 	// relative to the root (nil: that name): the batch order.

@@ -94,11 +94,15 @@ func Merge(ctx context.Context, cfg *MergeConfig) (*Outcome, error) {
 	// analysed them: what the merged set attests is what was analysed,
 	// and no input is read again.
 	var inputs []string
-	known := map[string]report.FileHash{}
-	for _, m := range mans {
+	known := map[string]report.Digest{}
+	for k, m := range mans {
 		for _, h := range m.Inputs {
+			d, err := report.DigestOf(h)
+			if err != nil {
+				return nil, fmt.Errorf("%w: %s: %w", ErrUsage, cfg.Dirs[k], err)
+			}
 			inputs = append(inputs, abs(h.Path))
-			known[abs(h.Path)] = h
+			known[abs(h.Path)] = d
 		}
 	}
 	sort.Slice(inputs, func(a, b int) bool { return inputs[a] < inputs[b] })

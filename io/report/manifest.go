@@ -62,19 +62,52 @@ type FileCounts struct {
 	Analysed int `json:"analysed"`
 }
 
-// HashFile returns the size and SHA-256 of the file at path.
-func HashFile(path string) (FileHash, error) {
+// Digest is a file's size and SHA-256, held as 32 bytes: what a run keeps
+// of each input until the manifest is written.
+type Digest struct {
+	Bytes  int64
+	SHA256 [sha256.Size]byte
+}
+
+// DigestFile returns the size and SHA-256 of the file at path.
+func DigestFile(path string) (Digest, error) {
 	f, err := os.Open(path)
 	if err != nil {
-		return FileHash{}, fmt.Errorf("manifest: %w", err)
+		return Digest{}, fmt.Errorf("manifest: %w", err)
 	}
 	defer f.Close()
 	h := sha256.New()
 	n, err := io.Copy(h, f)
 	if err != nil {
-		return FileHash{}, fmt.Errorf("manifest: %s: %w", path, err)
+		return Digest{}, fmt.Errorf("manifest: %s: %w", path, err)
 	}
-	return FileHash{Path: path, Bytes: n, SHA256: hex.EncodeToString(h.Sum(nil))}, nil
+	d := Digest{Bytes: n}
+	h.Sum(d.SHA256[:0])
+	return d, nil
+}
+
+// Hex is the digest in hex, as the manifest records it.
+func (d Digest) Hex() string { return hex.EncodeToString(d.SHA256[:]) }
+
+// DigestOf returns the digest a manifest entry records.
+func DigestOf(h FileHash) (Digest, error) {
+	d := Digest{Bytes: h.Bytes}
+	if len(h.SHA256) != 2*sha256.Size {
+		return Digest{}, fmt.Errorf("manifest: %s: sha256 %q is not 64 hex digits", h.Path, h.SHA256)
+	}
+	if _, err := hex.Decode(d.SHA256[:], []byte(h.SHA256)); err != nil {
+		return Digest{}, fmt.Errorf("manifest: %s: sha256 %q is not 64 hex digits", h.Path, h.SHA256)
+	}
+	return d, nil
+}
+
+// HashFile returns the size and SHA-256 of the file at path.
+func HashFile(path string) (FileHash, error) {
+	d, err := DigestFile(path)
+	if err != nil {
+		return FileHash{}, err
+	}
+	return FileHash{Path: path, Bytes: d.Bytes, SHA256: d.Hex()}, nil
 }
 
 // HashBytes returns the FileHash of data written under the name path.
@@ -88,6 +121,13 @@ func HashBytes(path string, data []byte) FileHash {
 // files written one entry at a time: a batch of tens of thousands of
 // inputs is never one buffer.
 func WriteManifest(w io.Writer, m *Manifest) error {
+	return writeManifest(w, m, len(m.Inputs), func(i int) FileHash { return m.Inputs[i] })
+}
+
+// writeManifest is WriteManifest with n inputs, the i-th given by input
+// (m.Inputs is not read; nil and empty write as for n = 0 and an empty
+// m.Inputs).
+func writeManifest(w io.Writer, m *Manifest, n int, input func(i int) FileHash) error {
 	head := *m
 	head.Inputs, head.Tables, head.Outputs = nil, nil, nil
 	b, err := json.MarshalIndent(&head, "", " ")
@@ -102,24 +142,31 @@ func WriteManifest(w io.Writer, m *Manifest) error {
 	bw := bufio.NewWriterSize(w, 1<<16)
 	bw.Write(b[:cut])
 	for k, list := range []struct {
-		name  string
-		files []FileHash
-	}{{"inputs", m.Inputs}, {"tables", m.Tables}, {"outputs", m.Outputs}} {
+		name string
+		null bool
+		n    int
+		file func(i int) FileHash
+	}{
+		{"inputs", m.Inputs == nil && n == 0, n, input},
+		{"tables", m.Tables == nil, len(m.Tables), func(i int) FileHash { return m.Tables[i] }},
+		{"outputs", m.Outputs == nil, len(m.Outputs), func(i int) FileHash { return m.Outputs[i] }},
+	} {
 		if k > 0 {
 			bw.WriteString(",") // the head ends with the comma before inputs
 		}
 		bw.WriteString("\n \"" + list.name + "\": ")
 		switch {
-		case list.files == nil:
+		case list.null:
 			bw.WriteString("null")
 			continue
-		case len(list.files) == 0:
+		case list.n == 0:
 			bw.WriteString("[]")
 			continue
 		}
 		bw.WriteString("[")
-		for i := range list.files {
-			e, err := json.MarshalIndent(&list.files[i], "  ", " ")
+		for i := range list.n {
+			f := list.file(i)
+			e, err := json.MarshalIndent(&f, "  ", " ")
 			if err != nil {
 				return fmt.Errorf("manifest: %w", err)
 			}

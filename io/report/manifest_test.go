@@ -38,3 +38,19 @@ func TestWriteManifestBytes(t *testing.T) {
 		}
 	}
 }
+
+// A digest read from a manifest is the one HashFile wrote (FIPS 180-4
+// SHA-256 of "abc", the standard's first example); anything but 64 hex
+// digits is refused.
+func TestDigestOf(t *testing.T) {
+	abc := "ba7816bf8f01cfea414140de5dae2223b00361a396177a9cb410ff61f20015ad"
+	d, err := DigestOf(FileHash{Path: "a", Bytes: 3, SHA256: abc})
+	if err != nil || d.Hex() != abc || d.Bytes != 3 || HashBytes("a", []byte("abc")).SHA256 != abc {
+		t.Fatalf("DigestOf: %v, %s", err, d.Hex())
+	}
+	for _, bad := range []string{"", abc[:62], abc + "00", "zz" + abc[2:]} {
+		if _, err := DigestOf(FileHash{Path: "a", SHA256: bad}); err == nil {
+			t.Errorf("DigestOf(%q) accepted", bad)
+		}
+	}
+}

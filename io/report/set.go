@@ -35,9 +35,9 @@ type Set struct {
 	Stream *Stream
 	// Progress, when set, hears of report pages and hashed inputs.
 	Progress func(phase string, done, total int)
-	// Hashes, where set, give inputs' hashes already taken (by path), so
+	// Hashes, where set, give inputs' digests already taken (by path), so
 	// that a file is read once for them.
-	Hashes map[string]FileHash
+	Hashes map[string]Digest
 	// Problems are the measurements the summary lists (see Problems);
 	// nil: WriteSet finds them.
 	Problems []Problem
@@ -123,27 +123,32 @@ func WriteSet(ctx context.Context, dir string, s *Set) error {
 		h.Path = f.name
 		m.Outputs = append(m.Outputs, h)
 	}
-	for _, list := range []struct {
-		paths []string
-		dst   *[]FileHash
-	}{{inputs, &m.Inputs}, {s.Tables, &m.Tables}} {
-		for i, f := range list.paths {
-			if err := ctx.Err(); err != nil {
+	// The inputs' digests are held as 32 bytes each and written out in
+	// hex only as the manifest is written.
+	digests := make([]Digest, len(inputs))
+	for i, f := range inputs {
+		if err := ctx.Err(); err != nil {
+			return err
+		}
+		if s.Progress != nil {
+			s.Progress("hashing", i+1, len(inputs))
+		}
+		d, ok := s.Hashes[f]
+		if !ok {
+			var err error
+			if d, err = DigestFile(f); err != nil {
 				return err
 			}
-			if s.Progress != nil && list.dst == &m.Inputs {
-				s.Progress("hashing", i+1, len(list.paths))
-			}
-			h, ok := s.Hashes[f]
-			if !ok || list.dst != &m.Inputs {
-				var err error
-				if h, err = HashFile(f); err != nil {
-					return err
-				}
-			}
-			h.Path = csvdata.Rel(s.Root, f)
-			*list.dst = append(*list.dst, h)
 		}
+		digests[i] = d
+	}
+	for _, f := range s.Tables {
+		h, err := HashFile(f)
+		if err != nil {
+			return err
+		}
+		h.Path = csvdata.Rel(s.Root, f)
+		m.Tables = append(m.Tables, h)
 	}
 	if err := ctx.Err(); err != nil {
 		return err
@@ -167,7 +172,10 @@ func WriteSet(ctx context.Context, dir string, s *Set) error {
 			return fmt.Errorf("results: %w", err)
 		}
 	}
-	return atomicfile.WriteFrom(filepath.Join(dir, ManifestJSON), func(w io.Writer) error { return WriteManifest(w, m) })
+	input := func(i int) FileHash {
+		return FileHash{Path: csvdata.Rel(s.Root, inputs[i]), Bytes: digests[i].Bytes, SHA256: digests[i].Hex()}
+	}
+	return atomicfile.WriteFrom(filepath.Join(dir, ManifestJSON), func(w io.Writer) error { return writeManifest(w, m, len(inputs), input) })
 }
 
 // appendRaw appends the stored JSON record of result i to dst, for the
