@@ -5,6 +5,7 @@ import (
 	"bytes"
 	"fmt"
 	"os"
+	"os/exec"
 	"path/filepath"
 	"syscall"
 	"testing"
@@ -91,4 +92,26 @@ func copyDemo(b *testing.B, n int) string {
 		}
 	}
 	return dir
+}
+
+// BenchmarkStartupOneFile builds the command and times a whole default run
+// (report included) on one demo file, as a person at a terminal starts
+// it: process start, flag parsing, the solvent tables, one analysis, every
+// output, the lock and the swap of the set. ns/op is the wall time of one
+// run.
+//
+//	go test ./cmd/dlsbatch -run XX -bench StartupOneFile -count 5
+func BenchmarkStartupOneFile(b *testing.B) {
+	bin := filepath.Join(b.TempDir(), "dlsbatch")
+	if out, err := exec.Command("go", "build", "-o", bin, ".").CombinedOutput(); err != nil {
+		b.Fatalf("go build: %v\n%s", err, out)
+	}
+	in := filepath.Join("..", "..", "testdata", "demo", "01_ref-latex100-start.csv")
+	out := filepath.Join(b.TempDir(), "out")
+	for b.Loop() {
+		cmd := exec.Command(bin, "run", in, "--out", out, "--force", "-q")
+		if msg, err := cmd.CombinedOutput(); err != nil && !isExit(err, exitOK, exitSomeFailed) {
+			b.Fatalf("%v\n%s", err, msg)
+		}
+	}
 }
