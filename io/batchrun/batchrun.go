@@ -339,7 +339,7 @@ func publish(ctx context.Context, cfg *Config, out *resultset.Set, p *publishing
 		Settings: cfg.record(p.root), Counts: o.Counts, Batch: o.Batch, Sheet: p.match,
 		Groups: &groups, Samples: o.Samples,
 	}
-	set := &report.Set{Doc: doc, HTMLReport: cfg.HTMLReport && o.Complete, Root: p.root, Inputs: p.inputs, Stream: p.stream, Problems: o.Problems,
+	set := &report.Set{Doc: doc, HTMLReport: cfg.HTMLReport && o.Complete, Root: p.root, Inputs: p.inputs, Stream: p.stream, Problems: o.Problems, Staged: true,
 		Shard: p.shard, Progress: cfg.Progress, Hashes: p.hashes, Workers: cfg.Workers}
 	for _, t := range []string{cfg.SheetFile, cfg.SpecFile, cfg.SolventFile, cfg.QCFile} {
 		if t != "" {

@@ -43,6 +43,11 @@ type Set struct {
 	Problems []Problem
 	// Shard is recorded in the manifest of one shard's set.
 	Shard *ShardInfo
+	// Staged says that dir is a staging folder that the caller flushes to
+	// disk before publishing it (io/resultset): the files are then written
+	// in place, without a temporary name and an fsync each. Otherwise each
+	// file is replaced atomically.
+	Staged bool
 	// Workers is the number of report pages rendered at once (run's -j);
 	// 0 means GOMAXPROCS.
 	Workers int
@@ -116,7 +121,7 @@ func WriteSet(ctx context.Context, dir string, s *Set) error {
 		{SamplesCSV, func(w io.Writer) error { return WriteSamplesCSV(w, d.Samples, briefs) }},
 		{ResultsJSON, func(w io.Writer) error { return writeJSON(w, d, briefs, result) }},
 	} {
-		h, err := writeHashed(filepath.Join(dir, f.name), f.write)
+		h, err := writeHashed(filepath.Join(dir, f.name), s.Staged, f.write)
 		if err != nil {
 			return err
 		}
@@ -154,11 +159,9 @@ func WriteSet(ctx context.Context, dir string, s *Set) error {
 		return err
 	}
 	if s.HTMLReport {
-		// dir is a staging folder, flushed before it is published
-		// (resultset.Commit): the pages need no fsync each.
 		rep := htmlreport.FromRun(htmlreport.Run{Tool: d.Tool, Version: d.Version, Caution: d.Caution,
 			Settings: d.Settings, Results: d.Results, Briefs: briefs, Samples: d.Samples, Batch: d.Batch, LoadRecord: record, LoadBase: base,
-			Workers: s.Workers, Progress: reportProgress(s), Staged: true, InputRoot: s.Root, Tables: tableFiles(d.Settings, m.Tables)})
+			Workers: s.Workers, Progress: reportProgress(s), Staged: s.Staged, InputRoot: s.Root, Tables: tableFiles(d.Settings, m.Tables)})
 		pages, err := htmlreport.WriteFiles(ctx, filepath.Join(dir, ReportDir), rep)
 		if err != nil {
 			return fmt.Errorf("report: %w", err)
@@ -175,7 +178,11 @@ func WriteSet(ctx context.Context, dir string, s *Set) error {
 	input := func(i int) FileHash {
 		return FileHash{Path: csvdata.Rel(s.Root, inputs[i]), Bytes: digests[i].Bytes, SHA256: digests[i].Hex()}
 	}
-	return atomicfile.WriteFrom(filepath.Join(dir, ManifestJSON), func(w io.Writer) error { return writeManifest(w, m, len(inputs), input) })
+	manifest := func(w io.Writer) error { return writeManifest(w, m, len(inputs), input) }
+	if s.Staged {
+		return writeInPlace(filepath.Join(dir, ManifestJSON), manifest)
+	}
+	return atomicfile.WriteFrom(filepath.Join(dir, ManifestJSON), manifest)
 }
 
 // appendRaw appends the stored JSON record of result i to dst, for the
@@ -249,22 +256,45 @@ func tableFiles(st *Settings, tables []FileHash) []htmlreport.TableFile {
 }
 
 // writeHashed writes a file through write and returns its size and
-// SHA-256, computed as the bytes go out.
-func writeHashed(path string, write func(w io.Writer) error) (FileHash, error) {
+// SHA-256, computed as the bytes go out: in place when staged (see
+// Set.Staged), else atomically.
+func writeHashed(path string, staged bool, write func(w io.Writer) error) (FileHash, error) {
 	h := sha256.New()
 	var n int64
-	err := atomicfile.WriteFrom(path, func(w io.Writer) error {
+	fill := func(w io.Writer) error {
 		cw := &countWriter{w: io.MultiWriter(w, h), n: &n}
 		bw := bufio.NewWriterSize(cw, 1<<16)
 		if err := write(bw); err != nil {
 			return err
 		}
 		return bw.Flush()
-	})
+	}
+	var err error
+	if staged {
+		err = writeInPlace(path, fill)
+	} else {
+		err = atomicfile.WriteFrom(path, fill)
+	}
 	if err != nil {
 		return FileHash{}, err
 	}
 	return FileHash{Path: path, Bytes: n, SHA256: hex.EncodeToString(h.Sum(nil))}, nil
+}
+
+// writeInPlace creates path (0644 under the umask) and fills it.
+func writeInPlace(path string, fill func(w io.Writer) error) error {
+	f, err := os.OpenFile(path, os.O_WRONLY|os.O_CREATE|os.O_TRUNC, 0o644)
+	if err != nil {
+		return fmt.Errorf("write %s: %w", path, err)
+	}
+	if err := fill(f); err != nil {
+		f.Close()
+		return fmt.Errorf("write %s: %w", path, err)
+	}
+	if err := f.Close(); err != nil {
+		return fmt.Errorf("write %s: %w", path, err)
+	}
+	return nil
 }
 
 type countWriter struct {
