@@ -398,7 +398,7 @@ func prepare(r *Report) (*Report, error) {
 // validate checks the indices that link samples to results.
 func validate(r *Report) error {
 	for i, b := range r.Briefs {
-		if b == nil {
+		if b == nil || (r.Results != nil && i < len(r.Results) && r.Results[i] == nil) {
 			return fmt.Errorf("result %d is nil", i)
 		}
 	}
