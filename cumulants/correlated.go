@@ -168,7 +168,7 @@ func (r *Result) correlated(tau []float64, kind Kind, acq Acquisition) (*Correla
 	}
 
 	// Jacobian in the fit's scaled parameters (B, β, Γ/Γ̄, μ2/Γ̄², μ3/Γ̄³)
-	// at the solution, and the weights.
+	// at the solution (rows of np), and the weights.
 	np := 4
 	if r.Order == 3 {
 		np = 5
@@ -176,7 +176,7 @@ func (r *Result) correlated(tau []float64, kind Kind, acq Acquisition) (*Correla
 	g0 := r.GammaPerS
 	v := r.Mu2PerS2 / (g0 * g0)
 	w3 := r.Mu3PerS3 / (g0 * g0 * g0)
-	J := mat.NewDense(m, np, nil)
+	J := make([]float64, m*np)
 	wt := make([]float64, m)
 	chi := 0.0
 	for i, c := range idx {
@@ -185,10 +185,8 @@ func (r *Result) correlated(tau []float64, kind Kind, acq Acquisition) (*Correla
 		f := ex * (1 + v*ti*ti/2 - w3*ti*ti*ti/6)
 		fe := f * f // g2 and g2 − 1: the model is B + β·f²
 		bd := r.Intercept * 2 * f
-		row := []float64{1, fe, bd * (-ti * f), bd * ex * ti * ti / 2, bd * ex * (-ti * ti * ti / 6)}
-		for a := range np {
-			J.Set(i, a, row[a])
-		}
+		row := [5]float64{1, fe, bd * (-ti * f), bd * ex * ti * ti / 2, bd * ex * (-ti * ti * ti / 6)}
+		copy(J[i*np:(i+1)*np], row[:np])
 		wt[i] = 1 / (r.Sigma[c] * r.Sigma[c])
 		chi += wt[i] * r.Residuals[c] * r.Residuals[c]
 	}
@@ -197,64 +195,106 @@ func (r *Result) correlated(tau []float64, kind Kind, acq Acquisition) (*Correla
 		for q := p; q < np; q++ {
 			s := 0.0
 			for i := range m {
-				s += wt[i] * J.At(i, p) * J.At(i, q)
+				s += wt[i] * J[i*np+p] * J[i*np+q]
 			}
 			a.SetSym(p, q, s)
 		}
 	}
 	var chol mat.Cholesky
-	var ainv mat.SymDense
-	if !chol.Factorize(a) || chol.InverseTo(&ainv) != nil {
+	var ainvS mat.SymDense
+	if !chol.Factorize(a) || chol.InverseTo(&ainvS) != nil {
 		return nil, fmt.Errorf("%w: singular normal matrix", ErrNoCorrelated)
 	}
+	var ainv [5][5]float64
+	for p := range np {
+		for q := range np {
+			ainv[p][q] = ainvS.At(p, q)
+		}
+	}
 
-	// Meat JᵀW·C·WJ with C_ij = D_i·D_j·R_ij, R from the continuous kernel.
+	// Meat JᵀW·C·WJ = Bᵀ·R̃·B with C_ij = D_i·D_j·R_ij, R from the
+	// continuous kernel: B holds the rows of W·J·D/√kd, and R̃·B is
+	// accumulated pair by pair (R̃ symmetric, its diagonal kd).
 	ch := make([]noiseChannel, m)
 	kd := make([]float64, m)
 	for i, c := range idx {
 		ch[i] = sp.channel(tau[c], dts[c])
 		kd[i] = sp.kernel(&ch[i], &ch[i]) + ch[i].shot
 	}
-	b := make([]float64, m*np) // rows of W·J·D/√kd
+	b := make([]float64, m*np)  // rows of W·J·D/√kd
+	kb := make([]float64, m*np) // rows of R̃·B
 	for i := range m {
 		f := 0.0
 		if kd[i] > 0 {
 			f = d[i] / math.Sqrt(kd[i])
 		}
 		for p := range np {
-			b[i*np+p] = wt[i] * J.At(i, p) * f
+			b[i*np+p] = wt[i] * J[i*np+p] * f
+			kb[i*np+p] = kd[i] * b[i*np+p]
 		}
 	}
-	meat := mat.NewSymDense(np, nil)
-	mt := make([]float64, np*np)
+	// E_|τj−τi| = exp(−Γ·(τj − τi)) for j > i is the product of the
+	// factors between neighbouring channels (m exponentials instead of one
+	// per pair; the lags increase). Every term of the kernel carries a
+	// factor of at most E_|τj−τi| (g_j ≤ E·g_i), and E only falls as j
+	// moves on, so the pairs beyond E < pairCut add below 1e-150 of the
+	// diagonal to the sums and are left out.
+	step := make([]float64, m)
+	for i := 1; i < m; i++ {
+		step[i] = math.Exp(-sp.gamma * (ch[i].tau - ch[i-1].tau))
+	}
+	const pairCut = 1e-150
+	kc := sp.consts()
 	for i := range m {
 		bi := b[i*np : (i+1)*np]
-		for p := range np {
-			for q := p; q < np; q++ {
-				mt[p*np+q] += kd[i] * bi[p] * bi[q]
-			}
-		}
+		ki := kb[i*np : (i+1)*np]
+		eu := 1.0
 		for j := i + 1; j < m; j++ {
-			k := sp.kernel(&ch[i], &ch[j])
+			eu *= step[j]
+			if eu < pairCut {
+				break
+			}
+			k := kc.kernel(&ch[i], &ch[j], eu)
 			bj := b[j*np : (j+1)*np]
+			kj := kb[j*np : (j+1)*np]
 			for p := range np {
-				for q := p; q < np; q++ {
-					mt[p*np+q] += k * (bi[p]*bj[q] + bj[p]*bi[q])
-				}
+				ki[p] += k * bj[p]
+				kj[p] += k * bi[p]
 			}
 		}
 	}
+	var meat [5][5]float64
 	for p := range np {
 		for q := p; q < np; q++ {
-			meat.SetSym(p, q, mt[p*np+q])
+			s := 0.0
+			for i := range m {
+				s += b[i*np+p] * kb[i*np+q]
+			}
+			meat[p][q], meat[q][p] = s, s
 		}
 	}
-	var left, cov mat.Dense
-	left.Mul(&ainv, meat)
-	cov.Mul(&left, &ainv)
-	var tr mat.Dense
-	tr.Mul(&ainv, meat)
-	pred := -mat.Trace(&tr)
+	// cov = A⁻¹·meat·A⁻¹; the prediction needs tr(A⁻¹·meat).
+	var left, cov [5][5]float64
+	pred := 0.0
+	for p := range np {
+		for q := range np {
+			s := 0.0
+			for k := range np {
+				s += ainv[p][k] * meat[k][q]
+			}
+			left[p][q] = s
+		}
+		pred -= left[p][p]
+	}
+	for p := range np {
+		for q := range np {
+			s := 0.0
+			for k := range np {
+				s += left[p][k] * ainv[k][q]
+			}
+			cov[p][q] = s
+		}
+	}
 	for i := range m {
 		pred += wt[i] * d[i] * d[i]
 	}
@@ -262,7 +302,7 @@ func (r *Result) correlated(tau []float64, kind Kind, acq Acquisition) (*Correla
 	if pred > 0 {
 		ce.ResidualRatio = chi / pred
 	}
-	vg, vv, cgv := cov.At(2, 2), cov.At(3, 3), cov.At(2, 3)
+	vg, vv, cgv := cov[2][2], cov[3][3], cov[2][3]
 	ce.GammaSEPerS = math.Sqrt(math.Max(0, vg)) * g0
 	dv, dg := 1.0, -2*v // PDI = v/g² at g = 1
 	ce.PDISE = math.Sqrt(math.Max(0, dv*dv*vv+dg*dg*vg+2*dv*dg*cgv))
