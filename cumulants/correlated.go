@@ -213,64 +213,70 @@ func (r *Result) correlated(tau []float64, kind Kind, acq Acquisition) (*Correla
 	}
 
 	// Meat JᵀW·C·WJ = Bᵀ·R̃·B with C_ij = D_i·D_j·R_ij, R from the
-	// continuous kernel: B holds the rows of W·J·D/√kd, and R̃·B is
-	// accumulated pair by pair (R̃ symmetric, its diagonal kd).
+	// continuous kernel: B holds the rows of W·J·D/√kd, R̃ is symmetric
+	// with the diagonal kd, and meat = Σ kd_i·b_i·b_iᵀ + X + Xᵀ with
+	// X = Σ_{i<j} R̃_ij·b_i·b_jᵀ.
 	ch := make([]noiseChannel, m)
 	kd := make([]float64, m)
 	for i, c := range idx {
 		ch[i] = sp.channel(tau[c], dts[c])
 		kd[i] = sp.kernel(&ch[i], &ch[i]) + ch[i].shot
 	}
-	b := make([]float64, m*np)  // rows of W·J·D/√kd
-	kb := make([]float64, m*np) // rows of R̃·B
+	b := make([]float64, m*np) // rows of W·J·D/√kd
+	var meat, x [5][5]float64
 	for i := range m {
 		f := 0.0
 		if kd[i] > 0 {
 			f = d[i] / math.Sqrt(kd[i])
 		}
+		bi := b[i*np : (i+1)*np]
 		for p := range np {
-			b[i*np+p] = wt[i] * J[i*np+p] * f
-			kb[i*np+p] = kd[i] * b[i*np+p]
+			bi[p] = wt[i] * J[i*np+p] * f
+		}
+		for p := range np {
+			for q := p; q < np; q++ {
+				meat[p][q] += kd[i] * bi[p] * bi[q]
+			}
 		}
 	}
-	// E_|τj−τi| = exp(−Γ·(τj − τi)) for j > i is the product of the
-	// factors between neighbouring channels (m exponentials instead of one
-	// per pair; the lags increase). Every term of the kernel carries a
-	// factor of at most E_|τj−τi| (g_j ≤ E·g_i), and E only falls as j
-	// moves on, so the pairs beyond E < pairCut add below 1e-150 of the
-	// diagonal to the sums and are left out.
+	sep := pairsSeparable(sp, ch, b, np, &x)
+	// The pairs (i, j) with i < j and j ≥ sep, one kernel each:
+	// E_|τj−τi| = exp(−Γ·(τj − τi)) is the product of the factors between
+	// neighbouring channels (the lags increase). Every term of the kernel
+	// carries a factor of at most E (g_j = E·g_i), times lags and 1/Γ of at
+	// most Γ·τ_max/Γ, and E only falls as i moves away from j, so the pairs
+	// beyond E < pairCut, which add less than 1e-140 of the diagonal to
+	// the sums, are left out.
 	step := make([]float64, m)
-	for i := 1; i < m; i++ {
+	for i := 1; i < m && sep < m; i++ {
 		step[i] = math.Exp(-sp.gamma * (ch[i].tau - ch[i-1].tau))
 	}
 	const pairCut = 1e-150
 	kc := sp.consts()
-	for i := range m {
-		bi := b[i*np : (i+1)*np]
-		ki := kb[i*np : (i+1)*np]
+	for j := sep; j < m; j++ {
+		bj := b[j*np : (j+1)*np]
+		var v [5]float64 // Σ_i R̃_ij·b_i
 		eu := 1.0
-		for j := i + 1; j < m; j++ {
-			eu *= step[j]
-			if eu < pairCut {
+		for i := j - 1; i >= 0; i-- {
+			if eu *= step[i+1]; eu < pairCut {
 				break
 			}
 			k := kc.kernel(&ch[i], &ch[j], eu)
-			bj := b[j*np : (j+1)*np]
-			kj := kb[j*np : (j+1)*np]
+			bi := b[i*np : (i+1)*np]
 			for p := range np {
-				ki[p] += k * bj[p]
-				kj[p] += k * bi[p]
+				v[p] += k * bi[p]
+			}
+		}
+		for p := range np {
+			for q := range np {
+				x[p][q] += v[p] * bj[q]
 			}
 		}
 	}
-	var meat [5][5]float64
 	for p := range np {
 		for q := p; q < np; q++ {
-			s := 0.0
-			for i := range m {
-				s += b[i*np+p] * kb[i*np+q]
-			}
-			meat[p][q], meat[q][p] = s, s
+			meat[p][q] += x[p][q] + x[q][p]
+			meat[q][p] = meat[p][q]
 		}
 	}
 	// cov = A⁻¹·meat·A⁻¹; the prediction needs tr(A⁻¹·meat).
@@ -313,4 +319,72 @@ func (r *Result) correlated(tau []float64, kind Kind, acq Acquisition) (*Correla
 		return nil, fmt.Errorf("%w: non-finite covariance", ErrNoCorrelated)
 	}
 	return ce, nil
+}
+
+// sepMaxGammaTau bounds Γ·τ of the channels whose pairs pairsSeparable
+// sums: there 1/G = e^(2Γτ) stays below 1e18, and the differences τj − τi
+// formed from the prefix sums lose at most a factor 2Γτ ≤ 40 in relative
+// precision. A variable only so that tests can move the boundary between
+// the two ways of summing.
+var sepMaxGammaTau = 20.0
+
+// pairsSeparable adds to x the pair sum X = Σ_{i<j<sep} R̃_ij·b_i·b_jᵀ over
+// the first sep channels (those with Γ·τ ≤ sepMaxGammaTau; ch by
+// increasing lag, b rows of np) and returns sep. For τi < τj the kernel
+// (noiseSpec.kernel, with E = g_j/g_i, G = g², g_i·g_j·E = G_j and
+// min(G_i, G_j) = G_j) is a sum of six products of a function of i and
+// one of j:
+//
+//	R̃_ij = (G_j/G_i)·[β²(τj − τi + 1/(2Γ)) + c1]
+//	     + G_j·[4β³(τj − τi + 1/Γ) + c2]
+//	     + G_i·G_j·[(β² − 2β³)(τi + τj) + β²/(2Γ) − 3β³/Γ + c1]
+//
+// with c1 = 2β/r and c2 = 4β²/r (0 without shot noise), so X is
+// Σ_j Σ_t β_t(j)·P_t(j)·b_jᵀ with the prefix sums P_t(j) = Σ_{i<j} α_t(i)·b_i:
+// O(sep) work instead of O(sep²) kernels (TestCorrelatedMatchesDirect).
+func pairsSeparable(sp *noiseSpec, ch []noiseChannel, b []float64, np int, x *[5][5]float64) int {
+	sep := 0
+	for sep < len(ch) && sp.gamma*ch[sep].tau <= sepMaxGammaTau {
+		sep++
+	}
+	be := sp.beta
+	b2 := be * be
+	b3 := b2 * be
+	ih := 1 / sp.gamma
+	var c1, c2 float64
+	if r := sp.rate; r > 0 {
+		c1, c2 = 2*be/r, 4*b2/r
+	}
+	k3 := b2*ih/2 - 3*b3*ih + c1
+	var pre [6][5]float64
+	for j := range sep {
+		c := &ch[j]
+		bj := b[j*np : (j+1)*np]
+		if j > 0 {
+			bt := [6]float64{
+				c.G * (b2*c.tau + b2*ih/2 + c1), -b2 * c.G,
+				c.G * (4*b3*(c.tau+ih) + c2), -4 * b3 * c.G,
+				c.G * ((b2-2*b3)*c.tau + k3), (b2 - 2*b3) * c.G,
+			}
+			var v [5]float64
+			for t, f := range bt {
+				for p := range np {
+					v[p] += f * pre[t][p]
+				}
+			}
+			for p := range np {
+				for q := range np {
+					x[p][q] += v[p] * bj[q]
+				}
+			}
+		}
+		iG := 1 / c.G
+		al := [6]float64{iG, c.tau * iG, 1, c.tau, c.G, c.G * c.tau}
+		for t, f := range al {
+			for p := range np {
+				pre[t][p] += f * bj[p]
+			}
+		}
+	}
+	return sep
 }
