@@ -4,6 +4,7 @@ import (
 	"errors"
 	"fmt"
 	"math"
+	"sync"
 
 	"gonum.org/v1/gonum/mat"
 )
@@ -105,22 +106,29 @@ func (r *Result) correlated(tau []float64, kind Kind, acq Acquisition) (*Correla
 	sp := &noiseSpec{gamma: r.GammaPerS, beta: beta, rate: acq.CountRateHz}
 	idx := fitChannels(r.FitFirst, r.FitLast, len(tau), r.tailN, r.farFitted)
 	m := len(idx)
-	dts, ks := sampleTimes(tau)
+	np := 4
+	if r.Order == 3 {
+		np = 5
+	}
+	w := corrPool.Get().(*corrWork)
+	defer corrPool.Put(w)
+	w.grow(len(tau), m, np)
+	dts, ks := w.dts, w.ks
+	sampleTimesTo(tau, dts, ks)
 
 	// Channel standard deviations D in the units of the data.
-	d := make([]float64, m)
+	d := w.d
 	// model fills d from the lattice variances for a duration durS (0: per
 	// second of measurement, lags neglected against the duration).
 	model := func(durS float64) {
 		// One lattice per sample time (the lag differences of one stage
 		// agree to rounding: key them to 1e-9 relative).
-		lat := map[int64]*noiseLattice{}
+		w.keys = w.keys[:0]
 		for i, c := range idx {
 			key := int64(math.Round(math.Log2(dts[c]) * 1e9))
-			l := lat[key]
+			l := w.lattice(key)
 			if l == nil {
-				l = newNoiseLattice(sp, dts[c])
-				lat[key] = l
+				l = w.addLattice(key, sp, dts[c])
 			}
 			n := 1 / dts[c]
 			if durS > 0 {
@@ -169,15 +177,10 @@ func (r *Result) correlated(tau []float64, kind Kind, acq Acquisition) (*Correla
 
 	// Jacobian in the fit's scaled parameters (B, β, Γ/Γ̄, μ2/Γ̄², μ3/Γ̄³)
 	// at the solution (rows of np), and the weights.
-	np := 4
-	if r.Order == 3 {
-		np = 5
-	}
 	g0 := r.GammaPerS
 	v := r.Mu2PerS2 / (g0 * g0)
 	w3 := r.Mu3PerS3 / (g0 * g0 * g0)
-	J := make([]float64, m*np)
-	wt := make([]float64, m)
+	J, wt := w.J, w.wt
 	chi := 0.0
 	for i, c := range idx {
 		ti := tau[c] * g0
@@ -216,13 +219,12 @@ func (r *Result) correlated(tau []float64, kind Kind, acq Acquisition) (*Correla
 	// continuous kernel: B holds the rows of W·J·D/√kd, R̃ is symmetric
 	// with the diagonal kd, and meat = Σ kd_i·b_i·b_iᵀ + X + Xᵀ with
 	// X = Σ_{i<j} R̃_ij·b_i·b_jᵀ.
-	ch := make([]noiseChannel, m)
-	kd := make([]float64, m)
+	ch, kd := w.ch, w.kd
 	for i, c := range idx {
 		ch[i] = sp.channel(tau[c], dts[c])
 		kd[i] = sp.kernel(&ch[i], &ch[i]) + ch[i].shot
 	}
-	b := make([]float64, m*np) // rows of W·J·D/√kd
+	b := w.b // rows of W·J·D/√kd
 	var meat, x [5][5]float64
 	for i := range m {
 		f := 0.0
@@ -247,7 +249,7 @@ func (r *Result) correlated(tau []float64, kind Kind, acq Acquisition) (*Correla
 	// most Γ·τ_max/Γ, and E only falls as i moves away from j, so the pairs
 	// beyond E < pairCut, which add less than 1e-140 of the diagonal to
 	// the sums, are left out.
-	step := make([]float64, m)
+	step := w.step
 	for i := 1; i < m && sep < m; i++ {
 		step[i] = math.Exp(-sp.gamma * (ch[i].tau - ch[i-1].tau))
 	}
@@ -387,4 +389,66 @@ func pairsSeparable(sp *noiseSpec, ch []noiseChannel, b []float64, np int, x *[5
 		}
 	}
 	return sep
+}
+
+// corrWork is the scratch space of correlated, reused through corrPool:
+// every slice is written in full before it is read.
+type corrWork struct {
+	dts             []float64 // by lag
+	ks              []int
+	d, wt, kd, step []float64 // by fitted channel
+	J, b            []float64 // rows of np
+	ch              []noiseChannel
+	keys            []int64 // sample-time keys of the lattices in use
+	lats            []*noiseLattice
+	buf             []float64
+}
+
+var corrPool = sync.Pool{New: func() any { return new(corrWork) }}
+
+// grow sizes the slices for n lags, m fitted channels and np parameters.
+func (w *corrWork) grow(n, m, np int) {
+	need := n + 4*m + 2*m*np
+	if cap(w.buf) < need {
+		w.buf = make([]float64, need)
+	}
+	f := w.buf[:need]
+	take := func(k int) []float64 {
+		s := f[:k:k]
+		f = f[k:]
+		return s
+	}
+	w.dts = take(n)
+	w.d, w.wt, w.kd, w.step = take(m), take(m), take(m), take(m)
+	w.J, w.b = take(m*np), take(m*np)
+	if cap(w.ks) < n {
+		w.ks = make([]int, n)
+	}
+	w.ks = w.ks[:n]
+	if cap(w.ch) < m {
+		w.ch = make([]noiseChannel, m)
+	}
+	w.ch = w.ch[:m]
+}
+
+// lattice returns the lattice in use with the given key, or nil.
+func (w *corrWork) lattice(key int64) *noiseLattice {
+	for i, k := range w.keys {
+		if k == key {
+			return w.lats[i]
+		}
+	}
+	return nil
+}
+
+// addLattice puts the lattice of sample time dt in use under key, reusing
+// the storage of an earlier one.
+func (w *corrWork) addLattice(key int64, sp *noiseSpec, dt float64) *noiseLattice {
+	i := len(w.keys)
+	w.keys = append(w.keys, key)
+	if i == len(w.lats) {
+		w.lats = append(w.lats, &noiseLattice{})
+	}
+	w.lats[i].reset(sp, dt)
+	return w.lats[i]
 }

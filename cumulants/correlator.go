@@ -149,13 +149,18 @@ func (kc *kernelConsts) kernel(a, b *noiseChannel, eu float64) float64 {
 func sampleTimes(tau []float64) (dt []float64, k []int) {
 	dt = make([]float64, len(tau))
 	k = make([]int, len(tau))
+	sampleTimesTo(tau, dt, k)
+	return dt, k
+}
+
+// sampleTimesTo is sampleTimes into dt and k (of len(tau)).
+func sampleTimesTo(tau, dt []float64, k []int) {
 	prev := 0.0
 	for i, t := range tau {
 		dt[i] = t - prev
 		prev = t
 		k[i] = max(1, int(math.Round(t/dt[i])))
 	}
-	return dt, k
 }
 
 // noiseLattice is the field correlation on the lattice of one sample time.
@@ -168,14 +173,24 @@ type noiseLattice struct {
 }
 
 func newNoiseLattice(sp *noiseSpec, dt float64) *noiseLattice {
+	l := &noiseLattice{}
+	l.reset(sp, dt)
+	return l
+}
+
+// reset makes l the lattice of sample time dt, keeping the table's storage.
+func (l *noiseLattice) reset(sp *noiseSpec, dt float64) {
 	g := sp.gamma * dt
-	l := &noiseLattice{g: g, lf: logSinhc(g), f0: math.Sqrt(triangleMean(2 * g)),
-		q: math.Exp(-g), den2: -math.Expm1(-2 * g), den4: -math.Expm1(-4 * g), tab: make([]float64, 0, 40)}
+	tab := l.tab[:0]
+	if tab == nil {
+		tab = make([]float64, 0, 40)
+	}
+	*l = noiseLattice{g: g, lf: logSinhc(g), f0: math.Sqrt(triangleMean(2 * g)),
+		q: math.Exp(-g), den2: -math.Expm1(-2 * g), den4: -math.Expm1(-4 * g), tab: tab}
 	l.table(1)
 	e1 := l.tab[1]
 	l.s1 = l.f0*l.f0 + 2*e1*e1/l.den2
 	l.s2 = l.f0*l.f0*l.f0*l.f0 + 2*e1*e1*e1*e1/l.den4
-	return l
 }
 
 // logSinhc returns ln(sinh(a)/a) for a ≥ 0 without overflow.

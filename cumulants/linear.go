@@ -103,8 +103,12 @@ func (p *prepared) linear(order, last int, withCov bool) (LinearEstimate, linCov
 
 // logResidual returns ln(y_i − B₀) for a channel above the far baseline,
 // computed once for all the fits of one prepared correlogram (they share
-// y and B₀; their weights and ranges differ).
+// y and B₀; their weights and ranges differ). A truncation fit, the only
+// fit of its data (noCurves), computes it directly.
 func (p *prepared) logResidual(i int) float64 {
+	if p.noCurves {
+		return math.Log(p.y[i] - p.farBase)
+	}
 	if p.logY == nil {
 		p.logY = make([]float64, len(p.y))
 		for k := range p.logY {
