@@ -220,9 +220,10 @@ func (r *Result) correlated(tau []float64, kind Kind, acq Acquisition) (*Correla
 	// with the diagonal kd, and meat = Σ kd_i·b_i·b_iᵀ + X + Xᵀ with
 	// X = Σ_{i<j} R̃_ij·b_i·b_jᵀ.
 	ch, kd := w.ch, w.kd
+	kc := sp.consts()
 	for i, c := range idx {
 		ch[i] = sp.channel(tau[c], dts[c])
-		kd[i] = sp.kernel(&ch[i], &ch[i]) + ch[i].shot
+		kd[i] = kc.kernel(&ch[i], &ch[i], 1) + ch[i].shot // E_0 = exp(−0) = 1
 	}
 	b := w.b // rows of W·J·D/√kd
 	var meat, x [5][5]float64
@@ -254,7 +255,6 @@ func (r *Result) correlated(tau []float64, kind Kind, acq Acquisition) (*Correla
 		step[i] = math.Exp(-sp.gamma * (ch[i].tau - ch[i-1].tau))
 	}
 	const pairCut = 1e-150
-	kc := sp.consts()
 	for j := sep; j < m; j++ {
 		bj := b[j*np : (j+1)*np]
 		var v [5]float64 // Σ_i R̃_ij·b_i
