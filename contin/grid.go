@@ -64,6 +64,7 @@ type Grid struct {
 	at            []float64 // (n+1)×m row-major: row j<n is column j of A, row n is all ones
 	at2           []float64 // the same, squared (the diagonal of A'WA is W against it)
 	supp          []int     // column j of A is zero from lag supp[j] on
+	lagSq         []float64 // Σ_j A_ij² over the rates, by lag: tr(A'WA) = Σ_i W_i·lagSq_i
 	rband         []float64 // n×5: R[j][j+d] at rband[5j+d+2], d = −2..2
 	trR           float64
 	settings      GridSettings
@@ -224,6 +225,12 @@ func buildGrid(tau []float64, gs GridSettings) (*Grid, error) {
 	g.at2 = make([]float64, len(g.at))
 	for i, v := range g.at {
 		g.at2[i] = v * v
+	}
+	g.lagSq = make([]float64, m)
+	for j := 0; j < n; j++ {
+		for i, v := range g.at2[j*m : j*m+g.supp[j]] {
+			g.lagSq[i] += v
+		}
 	}
 
 	// Regulariser: rows of L are second differences of Gt = x/w at the

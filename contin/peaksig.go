@@ -110,11 +110,8 @@ func NewSensitivity(g *Grid, res *Result, sigma []float64, s *Settings) (*Sensit
 	}
 	// tr(G) over the rates, for α² = λ·tr(G)/tr(R) as Invert forms it.
 	var trG float64
-	for j := 0; j < g.n; j++ {
-		col := g.at[j*g.m : j*g.m+g.supp[j]]
-		for i, a := range col {
-			trG += sv.w[i] * a * a
-		}
+	for i, v := range g.lagSq {
+		trG += sv.w[i] * v
 	}
 	a2 := res.Lambda * trG / g.trR
 	h := mat.NewSymDense(p, nil)

@@ -4,6 +4,7 @@ import (
 	"errors"
 	"fmt"
 	"math"
+	"sync"
 
 	"gonum.org/v1/gonum/mat"
 )
@@ -105,22 +106,29 @@ func (r *Result) correlated(tau []float64, kind Kind, acq Acquisition) (*Correla
 	sp := &noiseSpec{gamma: r.GammaPerS, beta: beta, rate: acq.CountRateHz}
 	idx := fitChannels(r.FitFirst, r.FitLast, len(tau), r.tailN, r.farFitted)
 	m := len(idx)
-	dts, ks := sampleTimes(tau)
+	np := 4
+	if r.Order == 3 {
+		np = 5
+	}
+	w := corrPool.Get().(*corrWork)
+	defer corrPool.Put(w)
+	w.grow(len(tau), m, np)
+	dts, ks := w.dts, w.ks
+	sampleTimesTo(tau, dts, ks)
 
 	// Channel standard deviations D in the units of the data.
-	d := make([]float64, m)
+	d := w.d
 	// model fills d from the lattice variances for a duration durS (0: per
 	// second of measurement, lags neglected against the duration).
 	model := func(durS float64) {
 		// One lattice per sample time (the lag differences of one stage
 		// agree to rounding: key them to 1e-9 relative).
-		lat := map[int64]*noiseLattice{}
+		w.keys = w.keys[:0]
 		for i, c := range idx {
 			key := int64(math.Round(math.Log2(dts[c]) * 1e9))
-			l := lat[key]
+			l := w.lattice(key)
 			if l == nil {
-				l = newNoiseLattice(sp, dts[c])
-				lat[key] = l
+				l = w.addLattice(key, sp, dts[c])
 			}
 			n := 1 / dts[c]
 			if durS > 0 {
@@ -168,16 +176,11 @@ func (r *Result) correlated(tau []float64, kind Kind, acq Acquisition) (*Correla
 	}
 
 	// Jacobian in the fit's scaled parameters (B, β, Γ/Γ̄, μ2/Γ̄², μ3/Γ̄³)
-	// at the solution, and the weights.
-	np := 4
-	if r.Order == 3 {
-		np = 5
-	}
+	// at the solution (rows of np), and the weights.
 	g0 := r.GammaPerS
 	v := r.Mu2PerS2 / (g0 * g0)
 	w3 := r.Mu3PerS3 / (g0 * g0 * g0)
-	J := mat.NewDense(m, np, nil)
-	wt := make([]float64, m)
+	J, wt := w.J, w.wt
 	chi := 0.0
 	for i, c := range idx {
 		ti := tau[c] * g0
@@ -185,10 +188,8 @@ func (r *Result) correlated(tau []float64, kind Kind, acq Acquisition) (*Correla
 		f := ex * (1 + v*ti*ti/2 - w3*ti*ti*ti/6)
 		fe := f * f // g2 and g2 − 1: the model is B + β·f²
 		bd := r.Intercept * 2 * f
-		row := []float64{1, fe, bd * (-ti * f), bd * ex * ti * ti / 2, bd * ex * (-ti * ti * ti / 6)}
-		for a := range np {
-			J.Set(i, a, row[a])
-		}
+		row := [5]float64{1, fe, bd * (-ti * f), bd * ex * ti * ti / 2, bd * ex * (-ti * ti * ti / 6)}
+		copy(J[i*np:(i+1)*np], row[:np])
 		wt[i] = 1 / (r.Sigma[c] * r.Sigma[c])
 		chi += wt[i] * r.Residuals[c] * r.Residuals[c]
 	}
@@ -197,64 +198,111 @@ func (r *Result) correlated(tau []float64, kind Kind, acq Acquisition) (*Correla
 		for q := p; q < np; q++ {
 			s := 0.0
 			for i := range m {
-				s += wt[i] * J.At(i, p) * J.At(i, q)
+				s += wt[i] * J[i*np+p] * J[i*np+q]
 			}
 			a.SetSym(p, q, s)
 		}
 	}
 	var chol mat.Cholesky
-	var ainv mat.SymDense
-	if !chol.Factorize(a) || chol.InverseTo(&ainv) != nil {
+	var ainvS mat.SymDense
+	if !chol.Factorize(a) || chol.InverseTo(&ainvS) != nil {
 		return nil, fmt.Errorf("%w: singular normal matrix", ErrNoCorrelated)
 	}
+	var ainv [5][5]float64
+	for p := range np {
+		for q := range np {
+			ainv[p][q] = ainvS.At(p, q)
+		}
+	}
 
-	// Meat JᵀW·C·WJ with C_ij = D_i·D_j·R_ij, R from the continuous kernel.
-	ch := make([]noiseChannel, m)
-	kd := make([]float64, m)
+	// Meat JᵀW·C·WJ = Bᵀ·R̃·B with C_ij = D_i·D_j·R_ij, R from the
+	// continuous kernel: B holds the rows of W·J·D/√kd, R̃ is symmetric
+	// with the diagonal kd, and meat = Σ kd_i·b_i·b_iᵀ + X + Xᵀ with
+	// X = Σ_{i<j} R̃_ij·b_i·b_jᵀ.
+	ch, kd := w.ch, w.kd
+	kc := sp.consts()
 	for i, c := range idx {
 		ch[i] = sp.channel(tau[c], dts[c])
-		kd[i] = sp.kernel(&ch[i], &ch[i]) + ch[i].shot
+		kd[i] = kc.kernel(&ch[i], &ch[i], 1) + ch[i].shot // E_0 = exp(−0) = 1
 	}
-	b := make([]float64, m*np) // rows of W·J·D/√kd
+	b := w.b // rows of W·J·D/√kd
+	var meat, x [5][5]float64
 	for i := range m {
 		f := 0.0
 		if kd[i] > 0 {
 			f = d[i] / math.Sqrt(kd[i])
 		}
-		for p := range np {
-			b[i*np+p] = wt[i] * J.At(i, p) * f
-		}
-	}
-	meat := mat.NewSymDense(np, nil)
-	mt := make([]float64, np*np)
-	for i := range m {
 		bi := b[i*np : (i+1)*np]
 		for p := range np {
+			bi[p] = wt[i] * J[i*np+p] * f
+		}
+		for p := range np {
 			for q := p; q < np; q++ {
-				mt[p*np+q] += kd[i] * bi[p] * bi[q]
+				meat[p][q] += kd[i] * bi[p] * bi[q]
 			}
 		}
-		for j := i + 1; j < m; j++ {
-			k := sp.kernel(&ch[i], &ch[j])
-			bj := b[j*np : (j+1)*np]
+	}
+	sep := pairsSeparable(sp, ch, b, np, &x)
+	// The pairs (i, j) with i < j and j ≥ sep, one kernel each:
+	// E_|τj−τi| = exp(−Γ·(τj − τi)) is the product of the factors between
+	// neighbouring channels (the lags increase). Every term of the kernel
+	// carries a factor of at most E (g_j = E·g_i), times lags and 1/Γ of at
+	// most Γ·τ_max/Γ, and E only falls as i moves away from j, so the pairs
+	// beyond E < pairCut, which add less than 1e-140 of the diagonal to
+	// the sums, are left out.
+	step := w.step
+	for i := 1; i < m && sep < m; i++ {
+		step[i] = math.Exp(-sp.gamma * (ch[i].tau - ch[i-1].tau))
+	}
+	const pairCut = 1e-150
+	for j := sep; j < m; j++ {
+		bj := b[j*np : (j+1)*np]
+		var v [5]float64 // Σ_i R̃_ij·b_i
+		eu := 1.0
+		for i := j - 1; i >= 0; i-- {
+			if eu *= step[i+1]; eu < pairCut {
+				break
+			}
+			k := kc.kernel(&ch[i], &ch[j], eu)
+			bi := b[i*np : (i+1)*np]
 			for p := range np {
-				for q := p; q < np; q++ {
-					mt[p*np+q] += k * (bi[p]*bj[q] + bj[p]*bi[q])
-				}
+				v[p] += k * bi[p]
+			}
+		}
+		for p := range np {
+			for q := range np {
+				x[p][q] += v[p] * bj[q]
 			}
 		}
 	}
 	for p := range np {
 		for q := p; q < np; q++ {
-			meat.SetSym(p, q, mt[p*np+q])
+			meat[p][q] += x[p][q] + x[q][p]
+			meat[q][p] = meat[p][q]
 		}
 	}
-	var left, cov mat.Dense
-	left.Mul(&ainv, meat)
-	cov.Mul(&left, &ainv)
-	var tr mat.Dense
-	tr.Mul(&ainv, meat)
-	pred := -mat.Trace(&tr)
+	// cov = A⁻¹·meat·A⁻¹; the prediction needs tr(A⁻¹·meat).
+	var left, cov [5][5]float64
+	pred := 0.0
+	for p := range np {
+		for q := range np {
+			s := 0.0
+			for k := range np {
+				s += ainv[p][k] * meat[k][q]
+			}
+			left[p][q] = s
+		}
+		pred -= left[p][p]
+	}
+	for p := range np {
+		for q := range np {
+			s := 0.0
+			for k := range np {
+				s += left[p][k] * ainv[k][q]
+			}
+			cov[p][q] = s
+		}
+	}
 	for i := range m {
 		pred += wt[i] * d[i] * d[i]
 	}
@@ -262,7 +310,7 @@ func (r *Result) correlated(tau []float64, kind Kind, acq Acquisition) (*Correla
 	if pred > 0 {
 		ce.ResidualRatio = chi / pred
 	}
-	vg, vv, cgv := cov.At(2, 2), cov.At(3, 3), cov.At(2, 3)
+	vg, vv, cgv := cov[2][2], cov[3][3], cov[2][3]
 	ce.GammaSEPerS = math.Sqrt(math.Max(0, vg)) * g0
 	dv, dg := 1.0, -2*v // PDI = v/g² at g = 1
 	ce.PDISE = math.Sqrt(math.Max(0, dv*dv*vv+dg*dg*vg+2*dv*dg*cgv))
@@ -273,4 +321,134 @@ func (r *Result) correlated(tau []float64, kind Kind, acq Acquisition) (*Correla
 		return nil, fmt.Errorf("%w: non-finite covariance", ErrNoCorrelated)
 	}
 	return ce, nil
+}
+
+// sepMaxGammaTau bounds Γ·τ of the channels whose pairs pairsSeparable
+// sums: there 1/G = e^(2Γτ) stays below 1e18, and the differences τj − τi
+// formed from the prefix sums lose at most a factor 2Γτ ≤ 40 in relative
+// precision. A variable only so that tests can move the boundary between
+// the two ways of summing.
+var sepMaxGammaTau = 20.0
+
+// pairsSeparable adds to x the pair sum X = Σ_{i<j<sep} R̃_ij·b_i·b_jᵀ over
+// the first sep channels (those with Γ·τ ≤ sepMaxGammaTau; ch by
+// increasing lag, b rows of np) and returns sep. For τi < τj the kernel
+// (noiseSpec.kernel, with E = g_j/g_i, G = g², g_i·g_j·E = G_j and
+// min(G_i, G_j) = G_j) is a sum of six products of a function of i and
+// one of j:
+//
+//	R̃_ij = (G_j/G_i)·[β²(τj − τi + 1/(2Γ)) + c1]
+//	     + G_j·[4β³(τj − τi + 1/Γ) + c2]
+//	     + G_i·G_j·[(β² − 2β³)(τi + τj) + β²/(2Γ) − 3β³/Γ + c1]
+//
+// with c1 = 2β/r and c2 = 4β²/r (0 without shot noise), so X is
+// Σ_j Σ_t β_t(j)·P_t(j)·b_jᵀ with the prefix sums P_t(j) = Σ_{i<j} α_t(i)·b_i:
+// O(sep) work instead of O(sep²) kernels (TestCorrelatedMatchesDirect).
+func pairsSeparable(sp *noiseSpec, ch []noiseChannel, b []float64, np int, x *[5][5]float64) int {
+	sep := 0
+	for sep < len(ch) && sp.gamma*ch[sep].tau <= sepMaxGammaTau {
+		sep++
+	}
+	be := sp.beta
+	b2 := be * be
+	b3 := b2 * be
+	ih := 1 / sp.gamma
+	var c1, c2 float64
+	if r := sp.rate; r > 0 {
+		c1, c2 = 2*be/r, 4*b2/r
+	}
+	k3 := b2*ih/2 - 3*b3*ih + c1
+	var pre [6][5]float64
+	for j := range sep {
+		c := &ch[j]
+		bj := b[j*np : (j+1)*np]
+		if j > 0 {
+			bt := [6]float64{
+				c.G * (b2*c.tau + b2*ih/2 + c1), -b2 * c.G,
+				c.G * (4*b3*(c.tau+ih) + c2), -4 * b3 * c.G,
+				c.G * ((b2-2*b3)*c.tau + k3), (b2 - 2*b3) * c.G,
+			}
+			var v [5]float64
+			for t, f := range bt {
+				for p := range np {
+					v[p] += f * pre[t][p]
+				}
+			}
+			for p := range np {
+				for q := range np {
+					x[p][q] += v[p] * bj[q]
+				}
+			}
+		}
+		iG := 1 / c.G
+		al := [6]float64{iG, c.tau * iG, 1, c.tau, c.G, c.G * c.tau}
+		for t, f := range al {
+			for p := range np {
+				pre[t][p] += f * bj[p]
+			}
+		}
+	}
+	return sep
+}
+
+// corrWork is the scratch space of correlated, reused through corrPool:
+// every slice is written in full before it is read.
+type corrWork struct {
+	dts             []float64 // by lag
+	ks              []int
+	d, wt, kd, step []float64 // by fitted channel
+	J, b            []float64 // rows of np
+	ch              []noiseChannel
+	keys            []int64 // sample-time keys of the lattices in use
+	lats            []*noiseLattice
+	buf             []float64
+}
+
+var corrPool = sync.Pool{New: func() any { return new(corrWork) }}
+
+// grow sizes the slices for n lags, m fitted channels and np parameters.
+func (w *corrWork) grow(n, m, np int) {
+	need := n + 4*m + 2*m*np
+	if cap(w.buf) < need {
+		w.buf = make([]float64, need)
+	}
+	f := w.buf[:need]
+	take := func(k int) []float64 {
+		s := f[:k:k]
+		f = f[k:]
+		return s
+	}
+	w.dts = take(n)
+	w.d, w.wt, w.kd, w.step = take(m), take(m), take(m), take(m)
+	w.J, w.b = take(m*np), take(m*np)
+	if cap(w.ks) < n {
+		w.ks = make([]int, n)
+	}
+	w.ks = w.ks[:n]
+	if cap(w.ch) < m {
+		w.ch = make([]noiseChannel, m)
+	}
+	w.ch = w.ch[:m]
+}
+
+// lattice returns the lattice in use with the given key, or nil.
+func (w *corrWork) lattice(key int64) *noiseLattice {
+	for i, k := range w.keys {
+		if k == key {
+			return w.lats[i]
+		}
+	}
+	return nil
+}
+
+// addLattice puts the lattice of sample time dt in use under key, reusing
+// the storage of an earlier one.
+func (w *corrWork) addLattice(key int64, sp *noiseSpec, dt float64) *noiseLattice {
+	i := len(w.keys)
+	w.keys = append(w.keys, key)
+	if i == len(w.lats) {
+		w.lats = append(w.lats, &noiseLattice{})
+	}
+	w.lats[i].reset(sp, dt)
+	return w.lats[i]
 }

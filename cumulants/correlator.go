@@ -93,22 +93,51 @@ func (sp *noiseSpec) channel(tau, dt float64) noiseChannel {
 // (X by integrating exp(−Γ·Σ|u − x_i|) over the segments between the
 // four points −τ2 ≤ τ1 − τ2 ≤ 0 < τ1, for τ1 ≤ τ2).
 func (sp *noiseSpec) kernel(a, b *noiseChannel) float64 {
+	return sp.kernelE(a, b, math.Exp(-sp.gamma*math.Abs(b.tau-a.tau)))
+}
+
+// kernelE is kernel with E_u = exp(−Γ·|τ2 − τ1|) given.
+func (sp *noiseSpec) kernelE(a, b *noiseChannel, eu float64) float64 {
+	kc := sp.consts()
+	return kc.kernel(a, b, eu)
+}
+
+// kernelConsts are the factors of the kernel that depend on the spec
+// only, computed once for all pairs of channels.
+type kernelConsts struct {
+	b2, ih, ih2    float64 // β², 1/Γ, 1/(2Γ)
+	twoB3, fourB3  float64 // 2β³, 4β³
+	shot           bool    // count rate given
+	twoBR, fourB2R float64 // 2β/r, 4β²/r
+}
+
+func (sp *noiseSpec) consts() kernelConsts {
 	be := sp.beta
 	b2, b3 := be*be, be*be*be
 	ih := 1 / sp.gamma
+	kc := kernelConsts{b2: b2, ih: ih, ih2: ih / 2, twoB3: 2 * b3, fourB3: 4 * b3}
+	if r := sp.rate; r > 0 {
+		kc.shot, kc.twoBR, kc.fourB2R = true, 2*be/r, 4*b2/r
+	}
+	return kc
+}
+
+// kernel is noiseSpec.kernel with E_u given, term by term in the same
+// order.
+func (kc *kernelConsts) kernel(a, b *noiseChannel, eu float64) float64 {
+	ih := kc.ih
 	u := math.Abs(b.tau - a.tau)
 	s := a.tau + b.tau
-	eu := math.Exp(-sp.gamma * u)
 	es := a.g * b.g // exp(−Γ·s)
 	pu, ps := eu*(u+ih), es*(s+ih)
-	qu, qs := eu*eu*(u+ih/2), es*es*(s+ih/2)
+	qu, qs := eu*eu*(u+kc.ih2), es*es*(s+kc.ih2)
 	x := math.Min(a.G, b.G)*(u+ih) - es*es*ih/2
-	k := b2*(qu+qs) +
-		2*b3*(a.g*b.g*(ps+pu)+x) -
-		4*b3*(b.G*a.g*a.p+a.G*b.g*b.p) +
-		4*b3*a.G*b.G*ih
-	if r := sp.rate; r > 0 {
-		k += 2*be/r*(eu*eu+es*es) + 4*b2/r*a.g*b.g*(eu+es) - 4*b2/r*a.G*b.G
+	k := kc.b2*(qu+qs) +
+		kc.twoB3*(es*(ps+pu)+x) -
+		kc.fourB3*(b.G*a.g*a.p+a.G*b.g*b.p) +
+		kc.fourB3*a.G*b.G*ih
+	if kc.shot {
+		k += kc.twoBR*(eu*eu+es*es) + kc.fourB2R*a.g*b.g*(eu+es) - kc.fourB2R*a.G*b.G
 	}
 	return k
 }
@@ -120,28 +149,48 @@ func (sp *noiseSpec) kernel(a, b *noiseChannel) float64 {
 func sampleTimes(tau []float64) (dt []float64, k []int) {
 	dt = make([]float64, len(tau))
 	k = make([]int, len(tau))
+	sampleTimesTo(tau, dt, k)
+	return dt, k
+}
+
+// sampleTimesTo is sampleTimes into dt and k (of len(tau)).
+func sampleTimesTo(tau, dt []float64, k []int) {
 	prev := 0.0
 	for i, t := range tau {
 		dt[i] = t - prev
 		prev = t
 		k[i] = max(1, int(math.Round(t/dt[i])))
 	}
-	return dt, k
 }
 
 // noiseLattice is the field correlation on the lattice of one sample time.
 type noiseLattice struct {
-	g, lf, f0 float64 // Γ·Δt, ln(sinh(ΓΔt)/(ΓΔt)) and φ(0)
-	s1, s2    float64
-	tab       []float64 // γ(m) for m < len(tab)
+	g, lf, f0  float64 // Γ·Δt, ln(sinh(ΓΔt)/(ΓΔt)) and φ(0)
+	s1, s2     float64
+	q          float64   // e^(−g)
+	den2, den4 float64   // 1 − e^(−2g) and 1 − e^(−4g), of the geometric tails
+	tab        []float64 // γ(m) for m < len(tab)
 }
 
 func newNoiseLattice(sp *noiseSpec, dt float64) *noiseLattice {
-	g := sp.gamma * dt
-	l := &noiseLattice{g: g, lf: logSinhc(g), f0: math.Sqrt(triangleMean(2 * g))}
-	l.s1 = l.sumProd([]int{0, 0})
-	l.s2 = l.sumProd([]int{0, 0, 0, 0})
+	l := &noiseLattice{}
+	l.reset(sp, dt)
 	return l
+}
+
+// reset makes l the lattice of sample time dt, keeping the table's storage.
+func (l *noiseLattice) reset(sp *noiseSpec, dt float64) {
+	g := sp.gamma * dt
+	tab := l.tab[:0]
+	if tab == nil {
+		tab = make([]float64, 0, 40)
+	}
+	*l = noiseLattice{g: g, lf: logSinhc(g), f0: math.Sqrt(triangleMean(2 * g)),
+		q: math.Exp(-g), den2: -math.Expm1(-2 * g), den4: -math.Expm1(-4 * g), tab: tab}
+	l.table(1)
+	e1 := l.tab[1]
+	l.s1 = l.f0*l.f0 + 2*e1*e1/l.den2
+	l.s2 = l.f0*l.f0*l.f0*l.f0 + 2*e1*e1*e1*e1/l.den4
 }
 
 // logSinhc returns ln(sinh(a)/a) for a ≥ 0 without overflow.
@@ -178,48 +227,61 @@ func (l *noiseLattice) gamma(m int) float64 {
 	return math.Exp(l.lf - l.g*float64(m))
 }
 
-// table tabulates γ(m) for m ≤ n.
+// table tabulates γ(m) for m ≤ n: from m = 2 on as γ(m − 1)·e^(−g)
+// (γ(m) = exp(lf − g·m); the products carry at most m roundings), by the
+// exponential again once the values fall below 1e-200, where the products
+// would lose precision in the subnormal range.
 func (l *noiseLattice) table(n int) {
 	for m := len(l.tab); m <= n; m++ {
-		l.tab = append(l.tab, l.gamma(m))
+		if m >= 2 && l.tab[m-1] > 1e-200 {
+			l.tab = append(l.tab, l.tab[m-1]*l.q)
+		} else {
+			l.tab = append(l.tab, l.gamma(m))
+		}
 	}
 }
 
-// sumProd returns Σ_d Π_i γ(d − c_i) over all integers d: the middle part
-// by direct summation, the two geometric tails in closed form.
-func (l *noiseLattice) sumProd(c []int) float64 {
-	lo, hi := c[0], c[0]
-	for _, x := range c {
-		lo, hi = min(lo, x), max(hi, x)
-	}
-	s := 0.0
-	for d := lo; d <= hi; d++ {
-		p := 1.0
-		for _, x := range c {
-			p *= l.gamma(d - x)
+// The lattice sums of one channel. With γ(0) = φ(0) = f0 and, for
+// m ≥ 1, γ(m) = e(m) = exp(lf − g·m), q = e^(−g), every sum splits into
+// the points themselves, the geometric runs between them and the two
+// tails beyond them, each in closed form (all terms positive; e(i)·e(j)
+// depends only on i + j, so products are written with indices ≥ 1, which
+// do not overflow for large g):
+//
+//	S1 = f0² + 2e(1)²/(1 − q²),  S2 = f0⁴ + 2e(1)⁴/(1 − q⁴)
+//	T(m) = Σγ(d)γ(d − m) = 2f0·e(m) + (m − 1)·e(1)e(m − 1) + 2e(1)e(m + 1)/(1 − q²)
+//	U = Σγ(d − k)²γ(d + k)² = 2f0²e(2k)² + (2k − 1)·e(1)²e(2k − 1)² + 2e(1)²e(2k + 1)²/(1 − q⁴)
+//	W = Σγ(d)²γ(d − k)γ(d + k) = f0²e(k)² + 2f0·e(2k)e(k)² + 2e(1)²e(k)²(1 − q^(2k−2))/(1 − q²) + 2e(k + 1)⁴/(1 − q⁴)
+//
+// for m, k ≥ 1 (T(k) and T(2k) are the sums over the points {0, k} and
+// {−k, k}, U over {k, k, −k, −k}, W over {0, 0, k, −k}).
+
+// sums returns T(k), T(2k), U and W of the channel at lag index k ≥ 1.
+func (l *noiseLattice) sums(k int) (tk, t2k, u, w float64) {
+	l.table(2*k + 1)
+	e := l.tab
+	f0, e1 := l.f0, e[1]
+	t := func(m int) float64 {
+		v := 2*f0*e[m] + 2*e1*e[m+1]/l.den2
+		if m > 1 {
+			v += float64(m-1) * e1 * e[m-1]
 		}
-		s += p
+		return v
 	}
-	// Beyond the points every factor is exp(lf − g·|d − c_i|): two
-	// geometric series.
-	n := float64(len(c))
-	var er, el float64
-	for _, x := range c {
-		er += float64(x - (hi + 1))
-		el += float64((lo - 1) - x)
-	}
-	return s + (math.Exp(n*l.lf+l.g*er)+math.Exp(n*l.lf+l.g*el))/-math.Expm1(-n*l.g)
+	tk, t2k = t(k), t(2*k)
+	ek2 := e[k] * e[k]
+	a, b, c := e1*e[2*k-1], f0*e[2*k], e1*e[2*k+1]
+	u = 2*b*b + float64(2*k-1)*a*a + 2*c*c/l.den4
+	ek1 := e[k+1] * e[k+1]
+	w = f0*f0*ek2 + 2*f0*e[2*k]*ek2 + 2*e1*e1*ek2*(-math.Expm1(-float64(2*k-2)*l.g))/l.den2 + 2*ek1*ek1/l.den4
+	return tk, t2k, u, w
 }
 
 // variance returns the lattice variance of a channel at lag index k, for
 // nu mean counts per sample and n products.
 func (l *noiseLattice) variance(k int, beta, nu, n float64) float64 {
-	l.table(4 * k)
+	tk, t2k, u, w := l.sums(k)
 	gk, g2k, g0 := l.gamma(k), l.gamma(2*k), l.gamma(0)
-	tk := l.sumProd([]int{0, k})
-	t2k := l.sumProd([]int{-k, k})
-	u := l.sumProd([]int{k, k, -k, -k})
-	w := l.sumProd([]int{0, 0, k, -k})
 	b2, b3 := beta*beta, beta*beta*beta
 	gk2 := gk * gk
 	v := b2*(l.s2+u) + 2*b3*(gk2*(t2k+l.s1)+w) - 8*b3*gk2*gk*tk + 4*b3*gk2*gk2*l.s1

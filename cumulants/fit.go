@@ -127,6 +127,13 @@ const rangeShiftLimit = 0.02
 // give the error of Settings.Validate. Fit panics when the slices' lengths
 // differ or kind is not G2, G2Minus1 or G1.
 func Fit(tau, y, sigma []float64, kind Kind, s *Settings) (*Result, error) {
+	return fit(tau, y, sigma, kind, s, false)
+}
+
+// fit is Fit; with noSE it computes no covariance at all (GammaSEPerS and
+// PDISE stay 0, and the warning on a negative PDI compares with 1e-4
+// alone), for callers that read only the fitted values.
+func fit(tau, y, sigma []float64, kind Kind, s *Settings, noSE bool) (*Result, error) {
 	if len(y) != len(tau) || (sigma != nil && len(sigma) != len(tau)) {
 		panic("cumulants: lag, correlation and sigma lengths differ")
 	}
@@ -146,9 +153,10 @@ func Fit(tau, y, sigma []float64, kind Kind, s *Settings) (*Result, error) {
 	}
 	// Without σ the first fit only sets up the second: its standard
 	// errors are wanted only if the second fails.
-	p.skipCov = p.sigmaEstimated && skipUnreadCov
+	p.skipCov = (p.sigmaEstimated || noSE) && skipUnreadCov
+	p.noCurves = noSE && !p.sigmaEstimated && !s.RangeCheck && skipUnreadCov
 	res, err := p.fit(s, p.last)
-	p.skipCov = false
+	p.skipCov = noSE && skipUnreadCov
 	if err != nil {
 		return nil, p.pointErr(p.first, err)
 	}
@@ -221,6 +229,11 @@ type prepared struct {
 	// weights of the points fitted (three blocks of cap(idxBuf)).
 	idxBuf []int
 	ptBuf  []float64
+	logY   []float64 // ln(y − farBase) by channel once computed, else NaN (logResidual)
+	// noCurves leaves out the model curve, residuals and goodness of fit
+	// of a nonlinear fit (Fitted, Residuals, ResidualRMS, ReducedChi2 stay
+	// empty): for fits of given σ whose fitted values alone are read.
+	noCurves bool
 }
 
 // pointErr ties err to point i; an index past the data (no channel at or
@@ -346,7 +359,7 @@ func prepare(tau, y, sigma []float64, kind Kind, s *Settings) (*prepared, error)
 
 // fit runs the configured method over channels p.first..last.
 func (p *prepared) fit(s *Settings, last int) (*Result, error) {
-	lin, cov, err := p.linear(s.Order, last)
+	lin, cov, err := p.linear(s.Order, last, s.Method == Linear)
 	if err != nil {
 		return nil, err
 	}

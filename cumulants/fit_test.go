@@ -372,7 +372,8 @@ func meanOf(v []float64) float64 {
 
 // TestSkippedCovariancesChangeNothing: leaving out the covariance of the
 // fits whose standard errors are not read (the equal-weight first pass,
-// range-check refits with a shift within 2 %) must give the same Result,
+// range-check refits with a shift within 2 %, the fits of the truncation
+// estimate) must give the same Result and truncation estimate,
 // bit for bit, as computing all of them: on unimodal and bimodal
 // correlograms (the bimodal one shifts by more than 2 %, so its refits are
 // repeated with their covariance), with σ given and estimated, and on one
@@ -419,7 +420,11 @@ func TestSkippedCovariancesChangeNothing(t *testing.T) {
 			}
 			c := *r
 			c.Warnings = nil
-			got[k] = fmt.Sprintf("%#v %q", c, ws)
+			tr, err := cumulants.TruncationBias(tau, cumulants.G2, nil, r)
+			if err != nil {
+				t.Fatalf("%s: %v", in.name, err)
+			}
+			got[k] = fmt.Sprintf("%#v %q %#v", c, ws, *tr)
 		}
 		if got[0] != got[1] {
 			t.Errorf("%s: results differ\nskipping: %s\nall:      %s", in.name, got[0], got[1])

@@ -18,7 +18,10 @@ type linCov struct {
 // transformed values. The normal equations are solved by Cholesky: with τ
 // scaled to [0, 1] their condition number stays below about 1e6 for cubic
 // design matrices, far from double-precision trouble.
-func (p *prepared) linear(order, last int) (LinearEstimate, linCov, error) {
+//
+// With withCov false the standard errors are left out (linCov holds only
+// μ3): the nonlinear method reads none of them.
+func (p *prepared) linear(order, last int, withCov bool) (LinearEstimate, linCov, error) {
 	nc := order + 1
 	ts := p.tau[last]
 	// Sums in plain arrays (at most 4×4), copied into gonum's types for
@@ -33,7 +36,7 @@ func (p *prepared) linear(order, last int) (LinearEstimate, linCov, error) {
 		if d <= 3*p.sigma[i] {
 			continue
 		}
-		z := math.Log(d) / e
+		z := p.logResidual(i) / e
 		w := e * e * d * d / (p.sigma[i] * p.sigma[i])
 		t := p.tau[i] / ts
 		row[0] = 1
@@ -67,10 +70,6 @@ func (p *prepared) linear(order, last int) (LinearEstimate, linCov, error) {
 	if err := ch.SolveVecTo(&c, b); err != nil {
 		return LinearEstimate{}, linCov{}, fmt.Errorf("linear cumulant fit: %w", err)
 	}
-	var inv mat.SymDense
-	if err := ch.InverseTo(&inv); err != nil {
-		return LinearEstimate{}, linCov{}, fmt.Errorf("linear cumulant fit: %w", err)
-	}
 	c0, c1, c2 := c.AtVec(0), c.AtVec(1), c.AtVec(2)
 	est := LinearEstimate{
 		GammaPerS: -c1 / ts,
@@ -86,9 +85,38 @@ func (p *prepared) linear(order, last int) (LinearEstimate, linCov, error) {
 	if order == 3 {
 		cv.mu3 = -6 * c.AtVec(3) / (ts * ts * ts)
 	}
+	if !withCov {
+		return est, cv, nil
+	}
+	// SolveVecTo has already refused an ill-conditioned matrix, which is
+	// all that InverseTo would refuse after it.
+	var inv mat.SymDense
+	if err := ch.InverseTo(&inv); err != nil {
+		return LinearEstimate{}, linCov{}, fmt.Errorf("linear cumulant fit: %w", err)
+	}
 	// PDI = 2·c2/c1²: ∂/∂c2 = 2/c1², ∂/∂c1 = −4·c2/c1³.
 	g2, g1 := 2/(c1*c1), -4*c2/(c1*c1*c1)
 	cv.seGamma = math.Sqrt(inv.At(1, 1)) / ts
 	cv.sePDI = math.Sqrt(math.Max(0, g2*g2*inv.At(2, 2)+g1*g1*inv.At(1, 1)+2*g1*g2*inv.At(1, 2)))
 	return est, cv, nil
+}
+
+// logResidual returns ln(y_i − B₀) for a channel above the far baseline,
+// computed once for all the fits of one prepared correlogram (they share
+// y and B₀; their weights and ranges differ). A truncation fit, the only
+// fit of its data (noCurves), computes it directly.
+func (p *prepared) logResidual(i int) float64 {
+	if p.noCurves {
+		return math.Log(p.y[i] - p.farBase)
+	}
+	if p.logY == nil {
+		p.logY = make([]float64, len(p.y))
+		for k := range p.logY {
+			p.logY[k] = math.NaN()
+		}
+	}
+	if math.IsNaN(p.logY[i]) {
+		p.logY[i] = math.Log(p.y[i] - p.farBase)
+	}
+	return p.logY[i]
 }

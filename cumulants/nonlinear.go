@@ -190,7 +190,7 @@ func (p *prepared) nonlinear(s *Settings, lin LinearEstimate, last int, r *Resul
 		r.Mu3PerS3 = par[4] * g0 * g0 * g0
 	}
 	r.PDI = par[3] / (par[2] * par[2])
-	if !p.fixBase {
+	if !p.fixBase && !p.noCurves {
 		p.finish(r, last, k)
 	}
 	if p.skipCov {

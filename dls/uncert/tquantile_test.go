@@ -14,10 +14,10 @@ import (
 // 100,000 are the A&S 26.7.4 distribution function solved in 45-digit
 // decimal arithmetic (testdata/t_quantile.py, 25 digits printed). From
 // ν = 500 on, the series is exact to rounding: 2.5e-16 relative (about 2
-// units in the last place). Below, gonum's inverse incomplete beta
-// function: 5e-14 (its measured error here is at most 1.2e-14; it is
-// 1.7e-11 at ν = 1e5 and 1.6e-7 at ν = 1e9, which is why it is not used
-// there).
+// units in the last place). From ν = 30 to 500, one Newton step from
+// the series, and below, gonum's inverse incomplete beta function: 5e-14
+// (measured at most 1.5e-14 and 1.2e-14; gonum's inverse is 1.7e-11 off
+// at ν = 1e5 and 1.6e-7 at ν = 1e9, which is why it is not used there).
 func TestT975(t *testing.T) {
 	cases := []struct {
 		nu, want float64
@@ -55,7 +55,8 @@ func TestT975(t *testing.T) {
 // to its first neglected term (about 0.4/ν⁶, relative 2e-13 at ν = 100;
 // 5e-13 allowed), while without g5 the error would be g5/ν⁵ ≈ 7e-11 at
 // ν = 100. It also stays continuous where t975 switches method: at ν = 500
-// the series and gonum agree to gonum's accuracy (5e-14).
+// the series and the Newton step, and at ν = 30 the Newton step and gonum,
+// agree to gonum's accuracy (5e-14).
 func TestTSeriesTerms(t *testing.T) {
 	for _, c := range []struct{ nu, want float64 }{
 		{100, 1.9839715185235522865951849},
@@ -68,5 +69,12 @@ func TestTSeriesTerms(t *testing.T) {
 	lib := distuv.StudentsT{Mu: 0, Sigma: 1, Nu: tSeriesMinDOF}.Quantile(0.975)
 	if e := math.Abs(tSeries(tSeriesMinDOF)/lib - 1); !(e <= 5e-14) {
 		t.Errorf("at ν = %d: series %.17g, gonum %.17g", tSeriesMinDOF, tSeries(tSeriesMinDOF), lib)
+	}
+	if e := math.Abs(tNewton(tSeriesMinDOF)/tSeries(tSeriesMinDOF) - 1); !(e <= 5e-14) {
+		t.Errorf("at ν = %d: Newton step %.17g, series %.17g", tSeriesMinDOF, tNewton(tSeriesMinDOF), tSeries(tSeriesMinDOF))
+	}
+	lib = distuv.StudentsT{Mu: 0, Sigma: 1, Nu: tNewtonMinDOF}.Quantile(0.975)
+	if e := math.Abs(tNewton(tNewtonMinDOF)/lib - 1); !(e <= 5e-14) {
+		t.Errorf("at ν = %d: Newton step %.17g, gonum %.17g", tNewtonMinDOF, tNewton(tNewtonMinDOF), lib)
 	}
 }
