@@ -17,7 +17,6 @@ type Run struct {
 	Batch                  spec.Batch
 	Load                   func(i int) (*dls.Result, error)        // see Report.Load
 	LoadRecord             func(i int, dst []byte) ([]byte, error) // see Report.LoadRecord
-	LoadBase               func(i int) (*dls.Result, error)        // see Report.LoadBase
 
 	InputRoot                   string
 	Tables                      []TableFile
@@ -47,7 +46,7 @@ func FromRun(run Run) *Report {
 		}
 	}
 	return &Report{Tool: run.Tool, Version: run.Version, Caution: run.Caution, Settings: run.Settings,
-		Results: run.Results, Briefs: run.Briefs, Samples: run.Samples, Batch: b, Load: run.Load, LoadRecord: run.LoadRecord, LoadBase: run.LoadBase,
+		Results: run.Results, Briefs: run.Briefs, Samples: run.Samples, Batch: b, Load: run.Load, LoadRecord: run.LoadRecord,
 		InputRoot: run.InputRoot, Tables: run.Tables, MeasuredFirst: run.MeasuredFirst, MeasuredLast: run.MeasuredLast,
 		Workers: run.Workers, Progress: run.Progress, Staged: run.Staged}
 }

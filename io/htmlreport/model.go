@@ -444,15 +444,11 @@ func (r *Report) result(idx int, w *writer) (*dls.Result, error) {
 			return nil, err
 		}
 		w.rec = raw
-		var base *dls.Result
-		if r.LoadBase != nil {
-			if base, err = r.LoadBase(idx); err != nil {
-				return nil, err
-			}
-		} else {
-			base = r.Results[idx]
+		var compact *dls.Result // nil: the record gives every field
+		if r.Results != nil {
+			compact = r.Results[idx]
 		}
-		return pageResult(base, raw, &w.arena)
+		return pageResult(compact, raw, &w.arena)
 	case r.Load != nil:
 		return r.Load(idx)
 	}

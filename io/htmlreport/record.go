@@ -5,7 +5,10 @@ import (
 	"encoding/json"
 	"errors"
 	"fmt"
+	"reflect"
 	"strconv"
+	"strings"
+	"sync"
 	"unicode/utf8"
 
 	"dlsbatch/dls"
@@ -23,6 +26,10 @@ import (
 // pageParts are the parts of a record that a page takes from it; the
 // field tags are dls.Result's.
 type pageParts struct {
+	// base, when set, receives the record's other fields that a page
+	// shows (see pageFields); encoding/json never sets it.
+	base *dls.Result
+
 	Params       []dls.Param     `json:"params"`
 	Warnings     []string        `json:"warnings"`
 	Assumptions  []string        `json:"assumptions"`
@@ -40,9 +47,14 @@ type distParts struct {
 
 // pageResult returns the compact result c completed from its record raw:
 // a copy of c with the page's parts set from raw. Its curves and
-// distributions are kept in *arena, which the next call reuses.
+// distributions are kept in *arena, which the next call reuses. With c
+// nil, the record gives the rest too: every field a page shows (see
+// pageFields).
 func pageResult(c *dls.Result, raw []byte, arena *[]float64) (*dls.Result, error) {
 	var p pageParts
+	if c == nil {
+		p.base = &dls.Result{}
+	}
 	*arena = (*arena)[:0]
 	err := p.decode(raw, arena)
 	if err != nil {
@@ -50,17 +62,28 @@ func pageResult(c *dls.Result, raw []byte, arena *[]float64) (*dls.Result, error
 		// record whole, with the parts' validity from the compact copy.
 		var full dls.Result
 		if err := json.Unmarshal(raw, &full); err != nil {
-			return nil, fmt.Errorf("reading back %s: %w", c.File, err)
+			name := "record"
+			if c != nil {
+				name = c.File
+			}
+			return nil, fmt.Errorf("reading back %s: %w", name, err)
 		}
-		full.HasConditions, full.HasCumulants, full.HasDistribution = c.HasConditions, c.HasCumulants, c.HasDistribution
-		full.HasCountRate, full.HasDuration = c.HasCountRate, c.HasDuration
+		if c != nil {
+			full.HasConditions, full.HasCumulants, full.HasDistribution = c.HasConditions, c.HasCumulants, c.HasDistribution
+			full.HasCountRate, full.HasDuration = c.HasCountRate, c.HasDuration
+		}
 		return &full, nil
 	}
-	r := *c
+	var r dls.Result
+	if c != nil {
+		r = *c
+	} else {
+		r = *p.base
+	}
 	r.Params, r.Warnings, r.Assumptions, r.Medium, r.Curves = p.Params, p.Warnings, p.Assumptions, p.Medium, p.Curves
 	if d := p.Distribution; d != nil {
 		sd := &dls.SizeDistribution{DiameterNm: d.DiameterNm, Intensity: d.Intensity, Volume: d.Volume, Number: d.Number}
-		if c.Distribution != nil {
+		if c != nil && c.Distribution != nil {
 			// The audit fields the page does not show stay as the compact
 			// copy has them.
 			sd.MieMasked = c.Distribution.MieMasked
@@ -70,6 +93,115 @@ func pageResult(c *dls.Result, raw []byte, arena *[]float64) (*dls.Result, error
 		r.Distribution = nil
 	}
 	return &r, nil
+}
+
+// pageField is a field of dls.Result as its record names it: the index
+// path through the embedded parts, and whether encoding/json decodes it
+// (structured values).
+type pageField struct {
+	index      []int
+	structured bool
+}
+
+// pageFields maps the JSON names of dls.Result's fields that a page takes
+// from the record besides its parts: every field but the parts (curves,
+// distribution, params, warnings, assumptions, medium) and what no page
+// shows (the uncertainty budgets, the volume and number summaries).
+var pageFields = sync.OnceValue(func() map[string]pageField {
+	skip := map[string]bool{"curves": true, "distribution": true, "params": true, "warnings": true, "assumptions": true,
+		"medium": true, "uncertainty_budget": true, "z_avg_d0_uncertainty_budget": true, "volume": true, "number": true}
+	out := map[string]pageField{}
+	var walk func(t reflect.Type, index []int)
+	walk = func(t reflect.Type, index []int) {
+		for i := range t.NumField() {
+			f := t.Field(i)
+			at := append(append([]int(nil), index...), i)
+			if f.Anonymous && f.Type.Kind() == reflect.Struct {
+				walk(f.Type, at)
+				continue
+			}
+			name, _, _ := strings.Cut(f.Tag.Get("json"), ",")
+			if name == "" || name == "-" || skip[name] {
+				continue
+			}
+			switch f.Type.Kind() {
+			case reflect.String, reflect.Float64, reflect.Bool, reflect.Int:
+				out[name] = pageField{index: at}
+			default:
+				out[name] = pageField{index: at, structured: true}
+			}
+		}
+	}
+	walk(reflect.TypeFor[dls.Result](), nil)
+	return out
+})
+
+// field decodes the value of a field of p.base named key, if it is one of
+// pageFields, else skips it. Keys match as encoding/json matches them:
+// exactly, or case-folded.
+func (p *pageParts) field(s *scanner, key []byte) error {
+	fields := pageFields()
+	f, ok := fields[string(key)]
+	if !ok {
+		for name, g := range fields {
+			if keyIs(key, name) {
+				f, ok = g, true
+				break
+			}
+		}
+	}
+	if !ok {
+		return s.skip()
+	}
+	v := reflect.ValueOf(p.base).Elem().FieldByIndex(f.index)
+	if f.structured {
+		return s.unmarshal(v.Addr().Interface())
+	}
+	if s.null() {
+		return nil // encoding/json leaves the field as it is
+	}
+	switch v.Kind() {
+	case reflect.String:
+		var str string
+		if err := s.str(&str); err != nil {
+			return err
+		}
+		v.SetString(str)
+		return nil
+	case reflect.Bool:
+		switch {
+		case bytes.HasPrefix(s.b[s.i:], []byte("true")):
+			s.i += 4
+			v.SetBool(true)
+		case bytes.HasPrefix(s.b[s.i:], []byte("false")):
+			s.i += 5
+			v.SetBool(false)
+		default:
+			return errRecord
+		}
+		return nil
+	}
+	start := s.i
+	_, end, ok := plotNumber(s.b, s.i) // JSON's number syntax
+	if !ok {
+		return errRecord
+	}
+	s.i = end
+	num := string(s.b[start:end])
+	if v.Kind() == reflect.Int {
+		n, err := strconv.ParseInt(num, 10, 64)
+		if err != nil {
+			return errRecord
+		}
+		v.SetInt(n)
+		return nil
+	}
+	x, err := strconv.ParseFloat(num, 64)
+	if err != nil {
+		return errRecord
+	}
+	v.SetFloat(x)
+	return nil
 }
 
 // errRecord says that a record holds something the fast path does not
@@ -139,6 +271,9 @@ func (p *pageParts) decode(b []byte, arena *[]float64) error {
 			return s.strings(&p.Assumptions)
 		case keyIs(key, "medium"):
 			return s.unmarshal(&p.Medium)
+		}
+		if p.base != nil {
+			return p.field(&s, key)
 		}
 		return s.skip()
 	})

@@ -73,6 +73,22 @@ func checkParts(t *testing.T, got *dls.Result, want *pageParts) {
 	}
 }
 
+// checkBase checks that the fields of got that a record gives besides
+// the parts (pageFields) are those of want, encoding/json's reading of the
+// record: exactly, numbers included (strconv.ParseFloat reads them as
+// encoding/json does).
+func checkBase(t *testing.T, got, want *dls.Result) {
+	t.Helper()
+	g, w := *got, *want
+	for _, r := range []*dls.Result{&g, &w} {
+		r.Curves, r.Distribution, r.Params, r.Warnings, r.Assumptions, r.Medium = nil, nil, nil, nil, nil, nil
+		r.Budget, r.ZAvgD0Budget, r.Volume, r.Number = nil, nil, nil, nil
+	}
+	if !reflect.DeepEqual(g, w) {
+		t.Errorf("fields read from the record differ:\n got %+v\nwant %+v", g, w)
+	}
+}
+
 // The parts a page takes from a record are what encoding/json reads from
 // it (the reference), for the demo measurements and for synthetic ones,
 // written compact (as results.json holds them) and indented; the rest is
@@ -113,6 +129,20 @@ func TestPageResultMatchesJSON(t *testing.T) {
 			checkParts(t, got, &want)
 			if got.ZAvgNm != c.ZAvgNm || got.File != c.File || got.HasCumulants != c.HasCumulants || got.Intensity != c.Intensity {
 				t.Errorf("result %d: the compact copy's fields were not kept", i)
+			}
+			// Without a compact copy the record gives the rest.
+			whole, err := pageResult(nil, raw, &arena)
+			if err != nil {
+				t.Fatalf("result %d: %v", i, err)
+			}
+			checkParts(t, whole, &want)
+			var all dls.Result
+			if err := json.Unmarshal(raw, &all); err != nil {
+				t.Fatal(err)
+			}
+			checkBase(t, whole, &all)
+			if full.HasCumulants && (whole.ZAvgNm != full.ZAvgNm || whole.Intensity == nil != (full.Intensity == nil)) {
+				t.Errorf("result %d: z-average %g, want %g", i, whole.ZAvgNm, full.ZAvgNm)
 			}
 		}
 	}
@@ -253,5 +283,15 @@ func FuzzPageRecord(f *testing.F) {
 			t.Fatal(err)
 		}
 		checkParts(t, got, &want)
+		var all dls.Result
+		if json.Unmarshal(raw, &all) != nil {
+			return
+		}
+		whole, err := pageResult(nil, raw, &arena)
+		if err != nil {
+			t.Fatal(err)
+		}
+		checkParts(t, whole, &want)
+		checkBase(t, whole, &all)
 	})
 }

@@ -46,7 +46,7 @@ type Report struct {
 	Settings any
 	// Results are the measurements in results.csv order, whole or as
 	// compact copies (see Load and LoadRecord); nil when Briefs are given
-	// with LoadBase.
+	// with Load or LoadRecord.
 	Results []*dls.Result
 	// Briefs, when set, are the briefs of the measurements in results.csv
 	// order, which the index reads (nil: taken from Results). A run of
@@ -61,16 +61,13 @@ type Report struct {
 	Load func(i int) (*dls.Result, error)
 	// LoadRecord, when set, is used instead of Load: it appends result
 	// i's JSON record (a dls.Result as results.json holds it) to dst and
-	// returns the extended slice, from which the page takes what its base
-	// (LoadBase, or the compact copy in Results) lacks: curves,
-	// distributions, parameters, warnings, assumptions, the medium note,
-	// without decoding the rest. Each worker passes a buffer of its own;
-	// nothing is kept of it.
+	// returns the extended slice, from which the page takes what the
+	// compact copy in Results lacks (curves, distributions, parameters,
+	// warnings, assumptions, the medium note), or with Results nil every
+	// field it shows, without decoding the rest (the inversion's audit,
+	// the budgets). Each worker passes a buffer of its own; nothing is
+	// kept of it.
 	LoadRecord func(i int, dst []byte) ([]byte, error)
-	// LoadBase, when set with LoadRecord, gives result i's base: its
-	// scalar fields and summaries without curves, distributions,
-	// parameters, budgets, warnings, assumptions or medium note.
-	LoadBase func(i int) (*dls.Result, error)
 	// Workers is the number of pages rendered at once; 0 means
 	// GOMAXPROCS. The bytes do not depend on it.
 	Workers int
@@ -405,8 +402,8 @@ func validate(r *Report) error {
 	if r.Results != nil && len(r.Results) != len(r.Briefs) {
 		return fmt.Errorf("%d results but %d briefs", len(r.Results), len(r.Briefs))
 	}
-	if r.Results == nil && r.Load == nil && (r.LoadRecord == nil || r.LoadBase == nil) && len(r.Briefs) > 0 {
-		return fmt.Errorf("briefs without results need Load, or LoadRecord with LoadBase")
+	if r.Results == nil && r.Load == nil && r.LoadRecord == nil && len(r.Briefs) > 0 {
+		return fmt.Errorf("briefs without results need Load or LoadRecord")
 	}
 	for i, s := range r.Samples {
 		if s == nil {

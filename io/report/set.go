@@ -102,9 +102,8 @@ func WriteSet(ctx context.Context, dir string, s *Set) error {
 		return append(dst, b...), err
 	}
 	var record func(int, []byte) ([]byte, error)
-	var base func(int) (*dls.Result, error)
 	if s.Stream != nil {
-		result, row, record, base = s.Stream.appendRaw, s.Stream.appendRow, s.Stream.appendRaw, s.Stream.Base
+		result, row, record = s.Stream.appendRaw, s.Stream.appendRow, s.Stream.appendRaw
 	} else {
 		for _, r := range d.Results {
 			if err := checkFinite(r); err != nil {
@@ -160,7 +159,7 @@ func WriteSet(ctx context.Context, dir string, s *Set) error {
 	}
 	if s.HTMLReport {
 		rep := htmlreport.FromRun(htmlreport.Run{Tool: d.Tool, Version: d.Version, Caution: d.Caution,
-			Settings: d.Settings, Results: d.Results, Briefs: briefs, Samples: d.Samples, Batch: d.Batch, LoadRecord: record, LoadBase: base,
+			Settings: d.Settings, Results: d.Results, Briefs: briefs, Samples: d.Samples, Batch: d.Batch, LoadRecord: record,
 			Workers: s.Workers, Progress: reportProgress(s), Staged: s.Staged, InputRoot: s.Root, Tables: tableFiles(d.Settings, m.Tables)})
 		pages, err := htmlreport.WriteFiles(ctx, filepath.Join(dir, ReportDir), rep)
 		if err != nil {

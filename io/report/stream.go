@@ -14,9 +14,8 @@ import (
 
 // Stream keeps a run's results out of memory: each full record (curves,
 // distributions, audit) goes to a scratch file in the staging folder as it
-// arrives, in input order, with its results.csv row and its base record
-// (the record less its arrays, budgets and parameters: what a report page
-// shows beside the curves), and only a brief (dls.Brief) stays in memory
+// arrives, in input order, with its results.csv row, and only a brief
+// (dls.Brief) stays in memory
 // for the per-sample statistics, verdicts, tables and the report's index.
 // Records of measurements in a group stay whole in memory, because the
 // group analyses annotate them after the fact. WriteSet then writes
@@ -27,12 +26,12 @@ type Stream struct {
 	f      *os.File
 	w      *bufio.Writer
 	off    int64
-	spans  []span // of each result's JSON record, its CSV row, its base record
+	spans  []span // of each result's JSON record, then its CSV row
 	briefs []*dls.Brief
 	full   map[int]*dls.Result
 }
 
-type span struct{ off, n, csvN, baseN int64 }
+type span struct{ off, n, csvN int64 }
 
 // scratchName is the scratch file, removed before the set is published.
 const scratchName = ".results.part"
@@ -70,9 +69,9 @@ func (s *Stream) AddRecords(results []*dls.Result) ([][]byte, error) {
 }
 
 // Encoded is a result encoded for the stream: its JSON record (as
-// results.json holds it), its results.csv row and its base record.
+// results.json holds it) and its results.csv row.
 type Encoded struct {
-	Record, Row, Base []byte
+	Record, Row []byte
 }
 
 // Encode encodes a result for the stream; a result holding NaN or Inf is
@@ -90,9 +89,6 @@ func Encode(r *dls.Result) (Encoded, error) {
 	if e.Row, err = csvRow(r); err != nil {
 		return e, fmt.Errorf("results csv: %s: %w", r.File, err)
 	}
-	if e.Base, err = json.Marshal(baseOf(r)); err != nil {
-		return e, fmt.Errorf("results json: %s: %w", r.File, err)
-	}
 	return e, nil
 }
 
@@ -102,18 +98,18 @@ func (s *Stream) AddEncoded(results []*dls.Result, enc []Encoded) error {
 	for i, r := range results {
 		if r.Group != "" {
 			s.full[len(s.briefs)] = r
-			s.spans = append(s.spans, span{-1, 0, 0, 0})
+			s.spans = append(s.spans, span{-1, 0, 0})
 			s.briefs = append(s.briefs, briefOf(r))
 			continue
 		}
 		e := enc[i]
-		for _, part := range [][]byte{e.Record, e.Row, e.Base} {
+		for _, part := range [][]byte{e.Record, e.Row} {
 			if _, err := s.w.Write(part); err != nil {
 				return fmt.Errorf("results: %w", err)
 			}
 		}
-		s.spans = append(s.spans, span{s.off, int64(len(e.Record)), int64(len(e.Row)), int64(len(e.Base))})
-		s.off += int64(len(e.Record) + len(e.Row) + len(e.Base))
+		s.spans = append(s.spans, span{s.off, int64(len(e.Record)), int64(len(e.Row))})
+		s.off += int64(len(e.Record) + len(e.Row))
 		s.briefs = append(s.briefs, briefOf(r))
 	}
 	return nil
@@ -140,16 +136,6 @@ func (s *Stream) Rebrief() {
 	for i, r := range s.full {
 		s.briefs[i] = briefOf(r)
 	}
-}
-
-// baseOf is the base record of r: r less what the report's pages take
-// from the full record (curves, distributions, parameters, warnings,
-// assumptions, the medium note) and what they do not show (the budgets).
-func baseOf(r *dls.Result) *dls.Result {
-	c := *r
-	c.Curves, c.Params, c.Budget, c.ZAvgD0Budget, c.Volume, c.Number, c.Distribution = nil, nil, nil, nil, nil, nil, nil
-	c.Assumptions, c.Warnings, c.Medium = nil, nil, nil
-	return &c
 }
 
 // briefOf is r's brief. Texts that repeat from measurement to measurement
@@ -217,27 +203,9 @@ func (s *Stream) Full(i int) (*dls.Result, error) {
 	return &r, nil
 }
 
-// Base returns result i as its base record holds it (see Encode; a group
-// member whole).
-func (s *Stream) Base(i int) (*dls.Result, error) {
-	if r, ok := s.full[i]; ok {
-		return r, nil
-	}
-	sp := s.spans[i]
-	b, err := s.read(sp.off+sp.n+sp.csvN, sp.baseN)
-	if err != nil {
-		return nil, err
-	}
-	var r dls.Result
-	if err := json.Unmarshal(b, &r); err != nil {
-		return nil, fmt.Errorf("results: reading back %s: %w", s.briefs[i].File, err)
-	}
-	return &r, nil
-}
-
-// Message returns result i's message, from its base record.
+// Message returns result i's message, from its record.
 func (s *Stream) Message(i int) (string, error) {
-	r, err := s.Base(i)
+	r, err := s.Full(i)
 	if err != nil {
 		return "", err
 	}
