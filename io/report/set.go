@@ -10,6 +10,7 @@ import (
 	"io"
 	"os"
 	"path/filepath"
+	"runtime"
 	"slices"
 
 	"dlsbatch/dls"
@@ -111,22 +112,63 @@ func WriteSet(ctx context.Context, dir string, s *Set) error {
 			}
 		}
 	}
-	for _, f := range []struct {
-		name  string
-		write func(w io.Writer) error
-	}{
-		{SummaryTxt, func(w io.Writer) error { return writeSummaryFile(w, d, briefs, problems) }},
-		{ResultsCSV, func(w io.Writer) error { return writeCSV(w, len(briefs), row) }},
-		{SamplesCSV, func(w io.Writer) error { return WriteSamplesCSV(w, d.Samples, briefs) }},
-		{ResultsJSON, func(w io.Writer) error { return writeJSON(w, d, briefs, result) }},
-	} {
-		h, err := writeHashed(filepath.Join(dir, f.name), s.Staged, f.write)
-		if err != nil {
-			return err
+	if s.Stream != nil {
+		// From here the scratch file is only read, from several
+		// goroutines at once.
+		if err := s.Stream.flush(); err != nil {
+			return fmt.Errorf("results: %w", err)
 		}
-		h.Path = f.name
-		m.Outputs = append(m.Outputs, h)
 	}
+	tables := func() ([]FileHash, error) {
+		var out []FileHash
+		for _, f := range []struct {
+			name  string
+			write func(w io.Writer) error
+		}{
+			{SummaryTxt, func(w io.Writer) error { return writeSummaryFile(w, d, briefs, problems) }},
+			{ResultsCSV, func(w io.Writer) error { return writeCSV(w, len(briefs), row) }},
+			{SamplesCSV, func(w io.Writer) error { return WriteSamplesCSV(w, d.Samples, briefs) }},
+			{ResultsJSON, func(w io.Writer) error { return writeJSON(w, d, briefs, result) }},
+		} {
+			h, err := writeHashed(filepath.Join(dir, f.name), s.Staged, f.write)
+			if err != nil {
+				return nil, err
+			}
+			h.Path = f.name
+			out = append(out, h)
+		}
+		return out, nil
+	}
+	// With more than one worker the tables are written while the report
+	// is drawn (their bytes, results.json's above all, are mostly
+	// copying); with one, one after the other.
+	type written struct {
+		files []FileHash
+		err   error
+	}
+	tablesDone := make(chan written, 1)
+	if s.Workers > 1 || (s.Workers <= 0 && runtime.GOMAXPROCS(0) > 1) {
+		go func() {
+			files, err := tables()
+			tablesDone <- written{files, err}
+		}()
+	} else {
+		files, err := tables()
+		tablesDone <- written{files, err}
+	}
+	// waitTables is called once on every path out: the goroutine reads
+	// the stream, which Close removes.
+	waited := false
+	waitTables := func() error {
+		if waited {
+			return nil
+		}
+		waited = true
+		t := <-tablesDone
+		m.Outputs = append(t.files, m.Outputs...)
+		return t.err
+	}
+	defer waitTables()
 	// The inputs' digests are held as 32 bytes each and written out in
 	// hex only as the manifest is written.
 	digests := make([]Digest, len(inputs))
@@ -168,6 +210,9 @@ func WriteSet(ctx context.Context, dir string, s *Set) error {
 		for _, p := range pages {
 			m.Outputs = append(m.Outputs, FileHash{Path: ReportDir + "/" + p.Name, Bytes: p.Bytes, SHA256: p.SHA256})
 		}
+	}
+	if err := waitTables(); err != nil {
+		return err
 	}
 	if s.Stream != nil {
 		if err := s.Stream.Close(); err != nil {

@@ -212,6 +212,10 @@ func (s *Stream) Message(i int) (string, error) {
 	return r.Message, nil
 }
 
+// flush writes out what the scratch file's buffer holds; after it, and
+// until another Add, the stream may be read from several goroutines.
+func (s *Stream) flush() error { return s.w.Flush() }
+
 // Close removes the scratch file.
 func (s *Stream) Close() error {
 	name := s.f.Name()
