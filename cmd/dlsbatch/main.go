@@ -15,6 +15,7 @@ import (
 	"github.com/spf13/pflag"
 	"golang.org/x/term"
 
+	"dlsbatch/io/heapbudget"
 	"dlsbatch/io/report"
 )
 
@@ -87,6 +88,7 @@ func main() {
 		os.Exit(exitInterrupted)
 	}()
 	e := env{stdin: os.Stdin, stdout: os.Stdout, stderr: os.Stderr, stderrIsTerminal: term.IsTerminal(int(os.Stderr.Fd()))}
+	heapbudget.Start(heapbudget.Floor) // the collector's budget (DEVELOPERS.md, "Memory of a whole run")
 	os.Exit(run(ctx, os.Args[1:], e))
 }
 
