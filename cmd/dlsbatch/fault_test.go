@@ -1,6 +1,7 @@
 package main
 
 import (
+	"bufio"
 	"bytes"
 	"context"
 	"errors"
@@ -125,19 +126,34 @@ func TestInterruptMarksIncomplete(t *testing.T) {
 	}
 	in := faultBatch(t)
 	out := filepath.Join(t.TempDir(), "out")
-	cmd := child(t, "run", in, "--out", out, "-q", "-j", "1", "--spec", filepath.Join("..", "..", "testdata", "demo-spec.csv"))
-	var stderr strings.Builder
-	cmd.Stderr = &stderr
+	cmd := child(t, "run", in, "--out", out, "--progress", "lines", "-j", "1", "--spec", filepath.Join("..", "..", "testdata", "demo-spec.csv"))
+	pipe, err := cmd.StderrPipe()
+	if err != nil {
+		t.Fatal(err)
+	}
 	if err := cmd.Start(); err != nil {
 		t.Fatal(err)
 	}
-	time.Sleep(150 * time.Millisecond)
-	cmd.Process.Signal(os.Interrupt)
+	// The signal comes while the analysis runs: after its first progress
+	// line (10 of the 100 files), whatever the machine's speed.
+	var stderr strings.Builder
+	read := make(chan struct{})
+	go func() {
+		defer close(read)
+		sc := bufio.NewScanner(pipe)
+		signalled := false
+		for sc.Scan() {
+			stderr.WriteString(sc.Text() + "\n")
+			if !signalled && strings.Contains(sc.Text(), "analysing") {
+				cmd.Process.Signal(os.Interrupt)
+				signalled = true
+			}
+		}
+	}()
 	ctx, cancel := context.WithTimeout(context.Background(), 20*time.Second)
 	defer cancel()
 	done := make(chan error, 1)
-	go func() { done <- cmd.Wait() }()
-	var err error
+	go func() { <-read; done <- cmd.Wait() }()
 	select {
 	case err = <-done:
 	case <-ctx.Done():
@@ -196,11 +212,13 @@ func TestResumeAfterKill(t *testing.T) {
 	tmp := t.TempDir()
 	ref := filepath.Join(tmp, "ref")
 	base := []string{"run", in, "-q", "-j", "2", "--progress", "none"}
+	start := time.Now()
 	if b, err := child(t, append(base, "--out", ref)...).CombinedOutput(); err != nil && !isExit(err, exitOK) {
 		t.Fatalf("reference: %v\n%s", err, b)
 	}
+	whole := time.Since(start) // the kills fall at 30 % and 70 % of a run, whatever the machine's speed
 	out := filepath.Join(tmp, "out")
-	for _, delay := range []time.Duration{300 * time.Millisecond, 700 * time.Millisecond} {
+	for _, delay := range []time.Duration{whole * 3 / 10, whole * 7 / 10} {
 		os.RemoveAll(out)
 		cmd := child(t, append(base, "--out", out)...)
 		if err := cmd.Start(); err != nil {
