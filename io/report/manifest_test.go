@@ -3,8 +3,10 @@ package report
 import (
 	"bytes"
 	"encoding/json"
+	"reflect"
 	"strings"
 	"testing"
+	"unicode/utf8"
 )
 
 // TestWriteManifestBytes: the manifest written one entry at a time is
@@ -53,4 +55,65 @@ func TestDigestOf(t *testing.T) {
 			t.Errorf("DigestOf(%q) accepted", bad)
 		}
 	}
+}
+
+// FuzzWriteManifest: for any texts in the paths, root and version, the
+// manifest written entry by entry is encoding/json's indented encoding of
+// the whole value; it reads back as the value written when the texts are
+// valid UTF-8 (JSON replaces invalid bytes once, after which the bytes
+// are stable).
+func FuzzWriteManifest(f *testing.F) {
+	f.Add("/r", "a.csv", "report/sample-0001.html", "devel", int64(10), 2)
+	f.Add("/a <&> b", "b/\"q\"\u2028.csv", "\xff\xfe", "v1.2.3+dirty", int64(1<<40), 0)
+	f.Add("", "", "", "", int64(0), 5)
+	f.Fuzz(func(t *testing.T, root, input, output, version string, n int64, count int) {
+		count = max(0, min(count, 8))
+		m := &Manifest{Tool: "dlsbatch", Version: version, Complete: count%2 == 0, Root: root, Files: FileCounts{Found: count, Analysed: count}}
+		for i := range count {
+			h := FileHash{Path: input + strings.Repeat("/x", i), Bytes: n + int64(i), SHA256: strings.Repeat("0f", 32)}
+			m.Inputs = append(m.Inputs, h)
+			if i%2 == 0 {
+				m.Outputs = append(m.Outputs, FileHash{Path: output, Bytes: n, SHA256: h.SHA256})
+			}
+		}
+		if count == 3 {
+			m.Tables = []FileHash{}
+		}
+		var want bytes.Buffer
+		enc := json.NewEncoder(&want)
+		enc.SetIndent("", " ")
+		if err := enc.Encode(m); err != nil {
+			t.Fatal(err)
+		}
+		var got bytes.Buffer
+		if err := WriteManifest(&got, m); err != nil {
+			t.Fatal(err)
+		}
+		if got.String() != want.String() {
+			t.Fatalf("differs from encoding/json:\n got %q\nwant %q", got.String(), want.String())
+		}
+		var back Manifest
+		if err := json.Unmarshal(got.Bytes(), &back); err != nil {
+			t.Fatal(err)
+		}
+		valid := utf8.ValidString(root) && utf8.ValidString(input) && utf8.ValidString(output) && utf8.ValidString(version)
+		if valid && !reflect.DeepEqual(back, *m) {
+			t.Fatalf("read back %+v, want %+v", back, *m)
+		}
+		var again bytes.Buffer
+		if err := WriteManifest(&again, &back); err != nil {
+			t.Fatal(err)
+		}
+		var twice bytes.Buffer
+		var back2 Manifest
+		if err := json.Unmarshal(again.Bytes(), &back2); err != nil {
+			t.Fatal(err)
+		}
+		if err := WriteManifest(&twice, &back2); err != nil {
+			t.Fatal(err)
+		}
+		if again.String() != twice.String() {
+			t.Fatalf("not stable after reading back")
+		}
+	})
 }
