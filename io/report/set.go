@@ -154,7 +154,10 @@ func WriteSet(ctx context.Context, dir string, s *Set) error {
 		}()
 	} else {
 		files, err := tables()
-		tablesDone <- written{files, err}
+		if err != nil {
+			return err
+		}
+		tablesDone <- written{files, nil}
 	}
 	// waitTables is called once on every path out: the goroutine reads
 	// the stream, which Close removes.
