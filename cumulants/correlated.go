@@ -282,27 +282,12 @@ func (r *Result) correlated(tau []float64, kind Kind, acq Acquisition) (*Correla
 		}
 	}
 	// cov = A⁻¹·meat·A⁻¹; the prediction needs tr(A⁻¹·meat).
-	var left, cov [5][5]float64
+	left := mul5(&ainv, &meat, np)
 	pred := 0.0
 	for p := range np {
-		for q := range np {
-			s := 0.0
-			for k := range np {
-				s += ainv[p][k] * meat[k][q]
-			}
-			left[p][q] = s
-		}
 		pred -= left[p][p]
 	}
-	for p := range np {
-		for q := range np {
-			s := 0.0
-			for k := range np {
-				s += left[p][k] * ainv[k][q]
-			}
-			cov[p][q] = s
-		}
-	}
+	cov := mul5(&left, &ainv, np)
 	for i := range m {
 		pred += wt[i] * d[i] * d[i]
 	}
@@ -451,4 +436,18 @@ func (w *corrWork) addLattice(key int64, sp *noiseSpec, dt float64) *noiseLattic
 	}
 	w.lats[i].reset(sp, dt)
 	return w.lats[i]
+}
+
+// mul5 is the product of the leading n×n blocks of a and b.
+func mul5(a, b *[5][5]float64, n int) (c [5][5]float64) {
+	for p := range n {
+		for q := range n {
+			s := 0.0
+			for k := range n {
+				s += a[p][k] * b[k][q]
+			}
+			c[p][q] = s
+		}
+	}
+	return c
 }

@@ -9,6 +9,18 @@ import (
 	"unicode/utf8"
 )
 
+// indented is encoding/json's indented encoding of m (the reference).
+func indented(t *testing.T, m *Manifest) string {
+	t.Helper()
+	var b bytes.Buffer
+	enc := json.NewEncoder(&b)
+	enc.SetIndent("", " ")
+	if err := enc.Encode(m); err != nil {
+		t.Fatal(err)
+	}
+	return b.String()
+}
+
 // TestWriteManifestBytes: the manifest written one entry at a time is
 // byte for byte what encoding/json's indenting encoder writes for the
 // whole value (the format the files of earlier runs have, which verify
@@ -25,18 +37,13 @@ func TestWriteManifestBytes(t *testing.T) {
 			Outputs: []FileHash{fh("results.csv", 1<<40)}},
 	}
 	for i, m := range cases {
-		var want bytes.Buffer
-		enc := json.NewEncoder(&want)
-		enc.SetIndent("", " ")
-		if err := enc.Encode(m); err != nil {
-			t.Fatal(err)
-		}
+		want := indented(t, m)
 		var got bytes.Buffer
 		if err := WriteManifest(&got, m); err != nil {
 			t.Fatal(err)
 		}
-		if got.String() != want.String() {
-			t.Errorf("case %d:\n got %q\nwant %q", i, got.String(), want.String())
+		if got.String() != want {
+			t.Errorf("case %d:\n got %q\nwant %q", i, got.String(), want)
 		}
 	}
 }
@@ -79,18 +86,13 @@ func FuzzWriteManifest(f *testing.F) {
 		if count == 3 {
 			m.Tables = []FileHash{}
 		}
-		var want bytes.Buffer
-		enc := json.NewEncoder(&want)
-		enc.SetIndent("", " ")
-		if err := enc.Encode(m); err != nil {
-			t.Fatal(err)
-		}
+		want := indented(t, m)
 		var got bytes.Buffer
 		if err := WriteManifest(&got, m); err != nil {
 			t.Fatal(err)
 		}
-		if got.String() != want.String() {
-			t.Fatalf("differs from encoding/json:\n got %q\nwant %q", got.String(), want.String())
+		if got.String() != want {
+			t.Fatalf("differs from encoding/json:\n got %q\nwant %q", got.String(), want)
 		}
 		var back Manifest
 		if err := json.Unmarshal(got.Bytes(), &back); err != nil {
