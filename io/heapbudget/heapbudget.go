@@ -22,7 +22,6 @@ import (
 	"runtime/debug"
 	"runtime/metrics"
 	"sync"
-	"sync/atomic"
 )
 
 // Floor is the default budget, in bytes.
@@ -39,8 +38,7 @@ func Start(floor int64) (stop func()) {
 	if os.Getenv("GOGC") != "" || os.Getenv("GOMEMLIMIT") != "" || floor <= 0 {
 		return func() {}
 	}
-	b := &budget{floor: floor, sample: []metrics.Sample{{Name: "/gc/heap/live:bytes"}}}
-	b.limit.Store(floor)
+	b := &budget{floor: floor, limit: floor, sample: []metrics.Sample{{Name: "/gc/heap/live:bytes"}}}
 	oldPercent := debug.SetGCPercent(-1)
 	oldLimit := debug.SetMemoryLimit(floor)
 	b.arm()
@@ -54,11 +52,13 @@ func Start(floor int64) (stop func()) {
 }
 
 type budget struct {
-	floor   int64
+	floor int64
+	// mu guards the rest: collections end on the cleanup goroutine, stop
+	// comes from the caller's.
 	mu      sync.Mutex
 	stopped bool
+	limit   int64
 	sample  []metrics.Sample
-	limit   atomic.Int64
 }
 
 // sentinel is an object that only a collection frees: its cleanup runs
@@ -85,9 +85,8 @@ func (b *budget) collected() {
 			live = int64(v)
 		}
 	}
-	limit := max(b.floor, 2*live+headroom)
-	if limit != b.limit.Load() {
-		b.limit.Store(limit)
+	if limit := max(b.floor, 2*live+headroom); limit != b.limit {
+		b.limit = limit
 		debug.SetMemoryLimit(limit)
 	}
 	b.arm()
