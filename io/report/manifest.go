@@ -110,12 +110,6 @@ func HashFile(path string) (FileHash, error) {
 	return FileHash{Path: path, Bytes: d.Bytes, SHA256: d.Hex()}, nil
 }
 
-// HashBytes returns the FileHash of data written under the name path.
-func HashBytes(path string, data []byte) FileHash {
-	s := sha256.Sum256(data)
-	return FileHash{Path: path, Bytes: int64(len(data)), SHA256: hex.EncodeToString(s[:])}
-}
-
 // WriteManifest writes m as indented JSON (one space per level), the
 // bytes json.Encoder with SetIndent("", " ") gives, with the lists of
 // files written one entry at a time: a batch of tens of thousands of
