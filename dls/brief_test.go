@@ -12,8 +12,8 @@ func TestBriefOfResult(t *testing.T) {
 	in := &WeightSummary{Peaks: []Peak{{MeanNm: 52, AreaPct: 40}}, D90Nm: 160}
 	rs := []*Result{
 		{Identity: Identity{File: "a.csv", Sample: "s", Run: "r1", Status: StatusOK, Lot: "L1", Product: "P", Role: RoleReference, Group: "g", Flags: []Flag{{Code: "X", Message: "m"}}},
-			Conditions: Conditions{HasConditions: true, TemperatureC: 25, AngleDeg: 173},
-			Cumulants:  Cumulants{HasCumulants: true, ZAvgNm: 101.5, PDI: 0.05, CountRateKcps: 250, HasCountRate: true},
+			Conditions:  Conditions{HasConditions: true, TemperatureC: 25, AngleDeg: 173},
+			Cumulants:   Cumulants{HasCumulants: true, ZAvgNm: 101.5, PDI: 0.05, CountRateKcps: 250, HasCountRate: true},
 			DistSummary: DistSummary{HasDistribution: true, Intensity: in}},
 		{Identity: Identity{File: "b.csv", Status: StatusWarn, Message: "long remark"}},
 		{Identity: Identity{File: "c.csv", Status: StatusError}},
