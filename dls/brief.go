@@ -41,11 +41,14 @@ func (r *Result) Brief() *Brief {
 	}
 }
 
-// Briefs returns the brief of every result, in order.
+// Briefs returns the brief of every result, in order; a nil result has a
+// nil brief.
 func Briefs(results []*Result) []*Brief {
 	out := make([]*Brief, len(results))
 	for i, r := range results {
-		out[i] = r.Brief()
+		if r != nil {
+			out[i] = r.Brief()
+		}
 	}
 	return out
 }

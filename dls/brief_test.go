@@ -37,6 +37,9 @@ func TestBriefOfResult(t *testing.T) {
 	if b.RunID() != "a.csv[r1]" || rs[1].Brief().RunID() != "b.csv" {
 		t.Errorf("run ids %q, %q", b.RunID(), rs[1].Brief().RunID())
 	}
+	if bs := Briefs([]*Result{rs[1], nil}); bs[0] == nil || bs[1] != nil {
+		t.Errorf("Briefs of a result and a nil: %v", bs)
+	}
 	c, cb := CountResults(rs), CountBriefs(Briefs(rs))
 	if c != cb || c != (Counts{Total: 4, OK: 1, Warn: 1, Error: 2}) {
 		t.Errorf("counts %+v and %+v, want 4 total, 1 ok, 1 warn, 2 error", c, cb)

@@ -96,11 +96,12 @@ func pageResult(c *dls.Result, raw []byte, arena *[]float64) (*dls.Result, error
 }
 
 // pageField is a field of dls.Result as its record names it: the index
-// path through the embedded parts, and whether encoding/json decodes it
-// (structured values).
+// path through the embedded parts, whether encoding/json decodes it
+// (structured values), or whether the page skips it.
 type pageField struct {
 	index      []int
 	structured bool
+	skip       bool
 }
 
 // pageFields maps the JSON names of dls.Result's fields that a page takes
@@ -121,7 +122,13 @@ var pageFields = sync.OnceValue(func() map[string]pageField {
 				continue
 			}
 			name, _, _ := strings.Cut(f.Tag.Get("json"), ",")
-			if name == "" || name == "-" || skip[name] {
+			switch {
+			case name == "" || name == "-":
+				continue
+			case skip[name]:
+				// Known, so that the record's own keys are found at once;
+				// the parts are read before the lookup, the rest skipped.
+				out[name] = pageField{skip: true}
 				continue
 			}
 			switch f.Type.Kind() {
@@ -150,7 +157,7 @@ func (p *pageParts) field(s *scanner, key []byte) error {
 			}
 		}
 	}
-	if !ok {
+	if !ok || f.skip {
 		return s.skip()
 	}
 	v := reflect.ValueOf(p.base).Elem().FieldByIndex(f.index)

@@ -370,23 +370,12 @@ func cleanText(b *bytes.Buffer) {
 	b.Write(out)
 }
 
-// briefsOf is dls.Briefs with a nil result left nil (validate names it).
-func briefsOf(results []*dls.Result) []*dls.Brief {
-	out := make([]*dls.Brief, len(results))
-	for i, res := range results {
-		if res != nil {
-			out[i] = res.Brief()
-		}
-	}
-	return out
-}
-
 // prepare returns r ready to write: a copy with its briefs taken from
 // its results when it has none, checked by validate.
 func prepare(r *Report) (*Report, error) {
 	if r.Briefs == nil {
 		c := *r
-		c.Briefs = briefsOf(r.Results)
+		c.Briefs = dls.Briefs(r.Results)
 		r = &c
 	}
 	return r, validate(r)
