@@ -324,6 +324,12 @@ func publish(ctx context.Context, cfg *Config, out *resultset.Set, p *publishing
 		p.stream.Rebrief()
 	}
 	o.Samples = qc.Aggregate(o.Results, qc.Options{Thresholds: cfg.Settings.QC, ExcludeOutliers: cfg.ExcludeOutliers})
+	if err := p.stream.Flush(); err != nil {
+		return nil, fmt.Errorf("results: %w", err)
+	}
+	if err := batch.JointDistributions(o.Samples, p.stream.Field, &cfg.Settings.Distribution, cfg.Workers); err != nil {
+		return nil, err
+	}
 	o.Batch = spec.Batch{Specified: cfg.Spec != nil, Reason: "not evaluated: the run was interrupted"}
 	if o.Complete {
 		o.Batch = spec.EvaluateRun(cfg.Spec, o.Samples, spec.Run{Results: o.Results, Load: p.stream.Full,

@@ -3,6 +3,8 @@ package batchrun
 import (
 	"bytes"
 	"context"
+	"dlsbatch/contin"
+	"dlsbatch/dls/batch"
 	"encoding/json"
 	"fmt"
 	"os"
@@ -90,6 +92,9 @@ func Merge(ctx context.Context, cfg *MergeConfig) (*Outcome, error) {
 	run := &Config{HTMLReport: cfg.HTMLReport, ExcludeOutliers: rec.ExcludeOutliers,
 		Record: func(string) *report.Settings { return rec }}
 	run.Settings.QC = rec.QCThresholds
+	if run.Settings.Distribution, err = distributionOf(rec); err != nil {
+		return nil, fmt.Errorf("%w: %s: %w", ErrUsage, cfg.Dirs[0], err)
+	}
 	// The inputs are recorded with the hashes the shards took when they
 	// analysed them: what the merged set attests is what was analysed,
 	// and no input is read again.
@@ -232,4 +237,22 @@ func readResults(path string, add func(*dls.Result)) error {
 		return nil
 	}
 	return fmt.Errorf("%s: no results", path)
+}
+
+// distributionOf rebuilds the inversion settings a run recorded, for the
+// joint inversions of the merged samples (batch.JointDistributions): the
+// same criterion, target, strength and grid as the shards' own inversions.
+func distributionOf(rec *report.Settings) (batch.DistributionSettings, error) {
+	d := batch.DefaultDistributionSettings()
+	crit, err := contin.ParseCriterion(rec.AlphaCriterion)
+	if err != nil {
+		return d, fmt.Errorf("settings record: %w", err)
+	}
+	d.Enabled = rec.Distribution
+	d.Contin.Criterion, d.Contin.TargetProbReject, d.Contin.FullScan = crit, rec.ProbRejectTarget, rec.FullAlphaScan
+	if crit == contin.Fixed {
+		d.Contin.Lambda = rec.AlphaLambda
+	}
+	d.Grid.NGamma = rec.GridPoints
+	return d, nil
 }

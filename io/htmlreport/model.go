@@ -392,6 +392,7 @@ func buildSample(r *Report, i int, w *writer) (samplePage, error) {
 		{"PDI RSD (%)", spread(s.PDIRSDPct, nUsed, 1)},
 		{"main intensity peak, mean (nm)", positive(s.Peak1MeanNm, nUsed)},
 		{"intensity peaks across the runs", samplePeaks(s.IntensityPeaks)},
+		{"intensity peaks of the runs inverted together", jointPeaks(s.Joint)},
 		{"D90 intensity, mean (nm)", positive(s.D90MeanNm, nUsed)},
 		{"temperatures (°C)", temperatures(s.TemperaturesC)},
 	}
@@ -517,6 +518,28 @@ func samplePeaks(peaks []dls.SamplePeak) string {
 			strconv.Itoa(pk.NRuns) + " of " + strconv.Itoa(pk.NOf) + " runs"
 	}
 	return strings.Join(parts, "; ")
+}
+
+// jointPeaks lists the intensity peaks of the joint inversion of a
+// sample's used runs, with their uncertainties, or says why there is none.
+func jointPeaks(j *dls.JointDistribution) string {
+	switch {
+	case j == nil:
+		return dash
+	case j.Note != "":
+		return j.Note
+	case j.Intensity == nil || len(j.Intensity.Peaks) == 0:
+		return dash
+	}
+	parts := make([]string, len(j.Intensity.Peaks))
+	for i, pk := range j.Intensity.Peaks {
+		parts[i] = peakText(pk)
+	}
+	t := strings.Join(parts, "; ") + " (" + strconv.Itoa(len(j.Runs)) + " runs)"
+	if j.Intensity.InsignificantPct > 0 {
+		t += "; " + fixed(j.Intensity.InsignificantPct, 0) + " % in peaks within the noise"
+	}
+	return t
 }
 
 // conditions lists the measurement conditions the result was computed

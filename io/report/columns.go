@@ -196,6 +196,15 @@ var sampleColumns = []struct {
 	{"matched1_nm", false}, {"matched1_intensity_pct", false}, {"matched1_runs", false},
 	{"matched2_nm", false}, {"matched2_intensity_pct", false}, {"matched2_runs", false},
 	{"matched3_nm", false}, {"matched3_intensity_pct", false}, {"matched3_runs", false},
+	// The joint inversion of the used runs (dls.JointDistribution): how
+	// many runs it joined, its first three intensity peaks by share (mean
+	// diameter and share, each with its standard uncertainty), and why it
+	// was not computed when it was not.
+	{"joint_runs", false},
+	{"joint1_nm", false}, {"joint1_u_nm", false}, {"joint1_intensity_pct", false}, {"joint1_u_pct", false},
+	{"joint2_nm", false}, {"joint2_u_nm", false}, {"joint2_intensity_pct", false}, {"joint2_u_pct", false},
+	{"joint3_nm", false}, {"joint3_u_nm", false}, {"joint3_intensity_pct", false}, {"joint3_u_pct", false},
+	{"joint_note", true},
 }
 
 // ColumnNames returns the results.csv header.

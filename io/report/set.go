@@ -115,7 +115,7 @@ func WriteSet(ctx context.Context, dir string, s *Set) error {
 	if s.Stream != nil {
 		// From here the scratch file is only read, from several
 		// goroutines at once.
-		if err := s.Stream.flush(); err != nil {
+		if err := s.Stream.Flush(); err != nil {
 			return fmt.Errorf("results: %w", err)
 		}
 	}

@@ -29,9 +29,12 @@ type Stream struct {
 	spans  []span // of each result's JSON record, then its CSV row
 	briefs []*dls.Brief
 	full   map[int]*dls.Result
+	field  []byte // scratch for a field run's encoding
 }
 
-type span struct{ off, n, csvN int64 }
+// span locates a result in the scratch file: its JSON record at off (n
+// bytes), then its CSV row (csvN), then its field run (fieldN, 0 for none).
+type span struct{ off, n, csvN, fieldN int64 }
 
 // scratchName is the scratch file, removed before the set is published.
 const scratchName = ".results.part"
@@ -98,18 +101,19 @@ func (s *Stream) AddEncoded(results []*dls.Result, enc []Encoded) error {
 	for i, r := range results {
 		if r.Group != "" {
 			s.full[len(s.briefs)] = r
-			s.spans = append(s.spans, span{-1, 0, 0})
+			s.spans = append(s.spans, span{-1, 0, 0, 0})
 			s.briefs = append(s.briefs, briefOf(r))
 			continue
 		}
 		e := enc[i]
-		for _, part := range [][]byte{e.Record, e.Row} {
+		s.field = appendFieldRun(s.field[:0], dls.FieldRunOf(r))
+		for _, part := range [][]byte{e.Record, e.Row, s.field} {
 			if _, err := s.w.Write(part); err != nil {
 				return fmt.Errorf("results: %w", err)
 			}
 		}
-		s.spans = append(s.spans, span{s.off, int64(len(e.Record)), int64(len(e.Row))})
-		s.off += int64(len(e.Record) + len(e.Row))
+		s.spans = append(s.spans, span{s.off, int64(len(e.Record)), int64(len(e.Row)), int64(len(s.field))})
+		s.off += int64(len(e.Record) + len(e.Row) + len(s.field))
 		s.briefs = append(s.briefs, briefOf(r))
 	}
 	return nil
@@ -203,6 +207,28 @@ func (s *Stream) Full(i int) (*dls.Result, error) {
 	return &r, nil
 }
 
+// Field returns the field run of result i (dls.FieldRunOf), nil when it
+// has none: what a joint inversion of the sample's runs takes. After
+// Flush, Field may be called from several goroutines.
+func (s *Stream) Field(i int) (*dls.FieldRun, error) {
+	if r, ok := s.full[i]; ok {
+		return dls.FieldRunOf(r), nil
+	}
+	sp := s.spans[i]
+	if sp.fieldN == 0 {
+		return nil, nil
+	}
+	b := make([]byte, sp.fieldN)
+	if _, err := s.f.ReadAt(b, sp.off+sp.n+sp.csvN); err != nil && err != io.EOF {
+		return nil, fmt.Errorf("results: reading back %s: %w", s.briefs[i].File, err)
+	}
+	f, err := readFieldRun(b)
+	if err != nil {
+		return nil, fmt.Errorf("results: reading back %s: %w", s.briefs[i].File, err)
+	}
+	return f, nil
+}
+
 // Message returns result i's message, from its record.
 func (s *Stream) Message(i int) (string, error) {
 	r, err := s.Full(i)
@@ -212,9 +238,9 @@ func (s *Stream) Message(i int) (string, error) {
 	return r.Message, nil
 }
 
-// flush writes out what the scratch file's buffer holds; after it, and
+// Flush writes out what the scratch file's buffer holds; after it, and
 // until another Add, the stream may be read from several goroutines.
-func (s *Stream) flush() error { return s.w.Flush() }
+func (s *Stream) Flush() error { return s.w.Flush() }
 
 // Close removes the scratch file.
 func (s *Stream) Close() error {

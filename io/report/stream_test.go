@@ -54,6 +54,13 @@ func TestStreamRoundTrip(t *testing.T) {
 		if string(row) != string(want) {
 			t.Errorf("result %d: csv row differs", i)
 		}
+		f, err := st.Field(i)
+		if err != nil {
+			t.Fatal(err)
+		}
+		if want := dls.FieldRunOf(r); !reflect.DeepEqual(f, want) {
+			t.Errorf("result %d (%s): field run differs after the round trip (nil: %v, %v)", i, r.File, f == nil, want == nil)
+		}
 		if !reflect.DeepEqual(st.Results()[i], r.Brief()) {
 			t.Errorf("result %d (%s): brief %+v, want %+v", i, r.File, st.Results()[i], r.Brief())
 		}

@@ -366,6 +366,7 @@ func WriteSamplesCSV(w io.Writer, samples []*dls.Sample, results []*dls.Brief) e
 			p := s.IntensityPeaks[k]
 			row = append(row, fixed(p.MeanNm, 2), fixed(p.AreaPct, 1), fmt.Sprintf("%d/%d", p.NRuns, p.NOf))
 		}
+		row = append(row, jointCells(s.Joint, blank)...)
 		for i, c := range sampleColumns {
 			if c.text {
 				row[i] = neutralise(row[i])
@@ -378,6 +379,27 @@ func WriteSamplesCSV(w io.Writer, samples []*dls.Sample, results []*dls.Brief) e
 		return fmt.Errorf("samples csv: %w", err)
 	}
 	return nil
+}
+
+// jointCells are the joint_* cells of samples.csv: empty without a joint
+// inversion (or for a blank); its peaks are those reported, the largest
+// share first, as a run's are.
+func jointCells(j *dls.JointDistribution, blank bool) []string {
+	cells := make([]string, 14)
+	if j == nil || blank {
+		return cells
+	}
+	cells[0] = strconv.Itoa(len(j.Runs))
+	if j.Intensity != nil {
+		for k, p := range j.Intensity.Peaks {
+			if k == 3 {
+				break
+			}
+			cells[1+4*k], cells[2+4*k], cells[3+4*k], cells[4+4*k] = fixed(p.MeanNm, 2), fixed(p.MeanUNm, 2), fixed(p.AreaPct, 1), fixed(p.AreaUPct, 1)
+		}
+	}
+	cells[13] = j.Note
+	return cells
 }
 
 // problemsFirst orders samples for a person reading the summary: failed or

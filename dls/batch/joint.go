@@ -1,0 +1,250 @@
+package batch
+
+import (
+	"fmt"
+	"math"
+	"strings"
+	"sync"
+
+	"dlsbatch/contin"
+	"dlsbatch/cumulants"
+	"dlsbatch/dls"
+	"dlsbatch/dls/mie"
+	"dlsbatch/dls/sizedist"
+)
+
+// Tolerances within which the runs of a sample count as one condition for
+// the joint inversion (common practice: a repeat on one instrument and
+// cell differs in temperature by its control's stability, and not at all
+// in angle, wavelength or lag grid). Runs outside them are not joined.
+const (
+	jointMaxTempSpreadK = 0.5
+	jointMaxAngleDeg    = 0.05
+	jointMaxRelQ        = 1e-3
+)
+
+// JointDistributions gives every sample with at least two used runs that
+// have a size distribution the joint distribution of those runs
+// (Sample.Joint): their field correlations averaged with inverse-variance
+// weights, channel by channel, and inverted once (jointOf). Blanks are
+// left out (no size is reported for them). field loads the field run of
+// result i, nil when it has none; workers (at least 1) samples are worked
+// on at once. Each sample's joint distribution depends on its own runs
+// only, so the outcome does not depend on workers. An error of field
+// stops the work and is returned.
+func JointDistributions(samples []*dls.Sample, field func(i int) (*dls.FieldRun, error), s *DistributionSettings, workers int) error {
+	if !s.Enabled {
+		return nil
+	}
+	workers = max(workers, 1)
+	var (
+		wg    sync.WaitGroup
+		mu    sync.Mutex
+		first error
+		next  = make(chan *dls.Sample)
+	)
+	for range workers {
+		wg.Go(func() {
+			for smp := range next {
+				j, err := jointOfSample(smp, field, s)
+				mu.Lock()
+				if err != nil && first == nil {
+					first = err
+				}
+				mu.Unlock()
+				smp.Joint = j
+			}
+		})
+	}
+	for _, smp := range samples {
+		mu.Lock()
+		stop := first != nil
+		mu.Unlock()
+		if stop {
+			break
+		}
+		if smp.Role == dls.RoleBlank || smp.NUsed < 2 {
+			continue
+		}
+		next <- smp
+	}
+	close(next)
+	wg.Wait()
+	return first
+}
+
+// jointOfSample loads the field runs of the sample's used runs and inverts
+// them together; nil when fewer than two of them have a distribution.
+func jointOfSample(smp *dls.Sample, field func(i int) (*dls.FieldRun, error), s *DistributionSettings) (*dls.JointDistribution, error) {
+	var runs []*dls.FieldRun
+	var idx []int
+	for _, i := range smp.Used {
+		f, err := field(i)
+		if err != nil {
+			return nil, fmt.Errorf("joint inversion of sample %s: %w", smp.Name, err)
+		}
+		if f != nil {
+			runs = append(runs, f)
+			idx = append(idx, i)
+		}
+	}
+	if len(runs) < 2 {
+		return nil, nil
+	}
+	return jointOf(runs, idx, s), nil
+}
+
+// jointOf inverts the field runs together. The runs must share the lag
+// channels, angle, wavelength and particle index, and lie within
+// jointMaxTempSpreadK and jointMaxRelQ of one another; otherwise the
+// result holds only a note saying why. The mean field correlation at each
+// channel k is
+//
+//	ḡ_k = Σ_r g_rk/σ_rk² / Σ_r 1/σ_rk²,   σ̄_k = (Σ_r 1/σ_rk²)^(−1/2),
+//
+// the maximum-likelihood estimate from independent runs with Gaussian
+// noise (runs are independent measurements; the correlation of the noise
+// along the lag axis within a run stays as it is in each run's σ). It is
+// inverted with the runs' mean temperature, viscosity and q, and the
+// settings of every run's second pass; the free baseline column is kept
+// only when some run's baseline was not reached.
+func jointOf(runs []*dls.FieldRun, idx []int, s *DistributionSettings) *dls.JointDistribution {
+	j := &dls.JointDistribution{Runs: idx}
+	if why := jointMismatch(runs); why != "" {
+		j.Note = why + ": no joint inversion"
+		return j
+	}
+	g1, sg := meanField(runs)
+	var tC, etaMPaS, nMed, gamma, pdi float64
+	reached := true
+	for _, r := range runs {
+		tC += r.TemperatureC
+		etaMPaS += r.ViscosityMPaS
+		nMed += r.RefractiveIndex
+		gamma += r.GammaMeanPerS
+		pdi += r.PDI
+		reached = reached && r.BaselineReached
+	}
+	m := float64(len(runs))
+	tC, etaMPaS, nMed, gamma, pdi = tC/m, etaMPaS/m, nMed/m, gamma/m, pdi/m
+	tK, etaPaS := dls.KelvinFromCelsius(tC), etaMPaS*1e-3
+	optics := dls.Optics{WavelengthM: runs[0].WavelengthNm * 1e-9, AngleRad: runs[0].AngleDeg * math.Pi / 180, RefractiveIndex: nMed}
+	mPart, err := runIndex(runs[0].ParticleRI)
+	if err != nil {
+		j.Note = "particle index: " + err.Error() + ": no joint inversion"
+		return j
+	}
+	tau := runs[0].TauS
+	gs := sizeBoundedGrid(s.Grid, tau, tK, etaPaS, optics.Q())
+	var grid *contin.Grid
+	if s.Cache != nil {
+		grid, err = s.Cache.Grid(tau, &gs)
+	} else {
+		grid, err = contin.NewGrid(tau, &gs)
+	}
+	if err != nil {
+		j.Note = err.Error() + ": no joint inversion"
+		return j
+	}
+	cs := s.Contin
+	cs.Baseline = cs.Baseline && !reached
+	cs.Start = cumulantStart(grid.GammaPerS(), &cumulants.Result{GammaPerS: gamma, PDI: pdi})
+	inv, err := contin.Invert(grid, g1, sg, &cs)
+	if err != nil {
+		j.Note = err.Error() + ": no joint inversion"
+		return j
+	}
+	d, err := sizedist.New(sizedist.Input{
+		GammaPerS: inv.GammaPerS, Amplitude: inv.Amplitude, TempK: tK, ViscosityPaS: etaPaS,
+		Optics: optics, ParticleIndex: mPart, Polarization: s.Polarization, Cache: s.MieCache,
+	})
+	if err != nil {
+		j.Note = err.Error() + ": no joint inversion"
+		return j
+	}
+	j.Alpha, j.ProbReject, j.DegreesOfFreedom = inv.Alpha, inv.ProbReject, inv.DegreesOfFreedom
+	if mean := contin.PeaksMeanPerS(contin.Peaks(inv.GammaPerS, inv.Amplitude, &s.Peaks)); mean > 0 {
+		j.DistZAvgNm = dls.DiameterFromDiffusion(tK, etaPaS, dls.DiffusionFromRate(mean, optics.Q())) * 1e9
+	}
+	sens, _ := contin.NewSensitivity(grid, inv, sg, &cs) // nil: peaks without uncertainties
+	j.Intensity, j.Volume, j.Number = summariseWeightings(d, inv.Amplitude, sens, &s.Peaks)
+	lo, hi := -1, -1
+	for k, v := range d.Intensity {
+		if v > 0 {
+			if lo < 0 {
+				lo = k
+			}
+			hi = k
+		}
+	}
+	if lo >= 0 {
+		j.DiameterNm = append([]float64(nil), d.DiameterNm[lo:hi+1]...)
+		for _, v := range d.Intensity[lo : hi+1] {
+			j.IntensityPct = append(j.IntensityPct, 100*v)
+		}
+	}
+	if !dls.JointFinite(j) {
+		return &dls.JointDistribution{Runs: idx, Note: "the joint inversion gave a value that is not a finite number: no joint inversion"}
+	}
+	return j
+}
+
+// meanField is the inverse-variance weighted mean of the runs' field
+// correlations at each channel and its standard deviation (the runs share
+// their channels: jointMismatch).
+func meanField(runs []*dls.FieldRun) (g1, sigma []float64) {
+	n := len(runs[0].TauS)
+	g1 = make([]float64, n)
+	sigma = make([]float64, n)
+	for k := range n {
+		var w, wg float64
+		for _, r := range runs {
+			wk := 1 / (r.G1Sigma[k] * r.G1Sigma[k])
+			w += wk
+			wg += wk * r.G1[k]
+		}
+		g1[k], sigma[k] = wg/w, 1/math.Sqrt(w)
+	}
+	return g1, sigma
+}
+
+// jointMismatch says how the runs differ beyond one condition; "" when
+// they can be joined.
+func jointMismatch(runs []*dls.FieldRun) string {
+	r0 := runs[0]
+	tMin, tMax := r0.TemperatureC, r0.TemperatureC
+	for _, r := range runs[1:] {
+		switch {
+		case len(r.TauS) != len(r0.TauS):
+			return "the runs' inversions used different lag channels"
+		case math.Abs(r.AngleDeg-r0.AngleDeg) > jointMaxAngleDeg:
+			return fmt.Sprintf("the runs were measured at different angles (%g° and %g°)", r0.AngleDeg, r.AngleDeg)
+		case r.WavelengthNm != r0.WavelengthNm:
+			return fmt.Sprintf("the runs were measured at different wavelengths (%g nm and %g nm)", r0.WavelengthNm, r.WavelengthNm)
+		case r.ParticleRI != r0.ParticleRI:
+			return "the runs state different particle indices"
+		case math.Abs(r.QPerM-r0.QPerM) > jointMaxRelQ*r0.QPerM:
+			return "the runs' scattering vectors differ by more than 0.1 % (medium index)"
+		}
+		for k, t := range r.TauS {
+			if t != r0.TauS[k] {
+				return "the runs' inversions used different lag channels"
+			}
+		}
+		tMin, tMax = math.Min(tMin, r.TemperatureC), math.Max(tMax, r.TemperatureC)
+	}
+	if tMax-tMin > jointMaxTempSpreadK {
+		return fmt.Sprintf("the runs' temperatures span %.2f K, more than %g K", tMax-tMin, jointMaxTempSpreadK)
+	}
+	return ""
+}
+
+// runIndex reads the particle index as a result states it: the complex
+// index, followed for a material of the Mie table by its name and source
+// in parentheses.
+func runIndex(text string) (complex128, error) {
+	if i := strings.Index(text, " ("); i >= 0 {
+		text = text[:i]
+	}
+	return mie.ParseComplexIndex(text)
+}

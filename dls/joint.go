@@ -1,0 +1,87 @@
+package dls
+
+import "reflect"
+
+// FieldRun is what a joint inversion takes of one run: its conditions and
+// the field correlation its own inversion fitted, over the channels that
+// inversion used (those with a positive σ), as a Result records them. It
+// is built from the result alone (FieldRunOf), so a run resumed from the
+// journal or merged from shards gives the same one.
+type FieldRun struct {
+	TemperatureC    float64
+	ViscosityMPaS   float64
+	RefractiveIndex float64
+	WavelengthNm    float64
+	AngleDeg        float64
+	QPerM           float64
+	// GammaMeanPerS and PDI are the cumulant fit's, for the solver's start.
+	GammaMeanPerS float64
+	PDI           float64
+	// BaselineReached is the cumulant fit's: the far-channel baseline was
+	// subtracted, so no free baseline column is needed.
+	BaselineReached bool
+	// ParticleRI is the particle index as the result states it.
+	ParticleRI string
+	// TauS, G1 and G1Sigma are the lags, field correlation and its σ of
+	// the channels the run's inversion used.
+	TauS, G1, G1Sigma []float64
+}
+
+// FieldRunOf returns the field run of r; nil when r has no size
+// distribution or no channel with a positive σ.
+func FieldRunOf(r *Result) *FieldRun {
+	d := r.Distribution
+	if !r.HasDistribution || d == nil || r.Curves == nil || len(d.G1) != len(r.Curves.TauS) || len(d.G1Sigma) != len(d.G1) {
+		return nil
+	}
+	f := &FieldRun{
+		TemperatureC: r.TemperatureC, ViscosityMPaS: r.ViscosityMPaS, RefractiveIndex: r.RefractiveIndex,
+		WavelengthNm: r.WavelengthNm, AngleDeg: r.AngleDeg, QPerM: r.QPerM,
+		GammaMeanPerS: r.GammaMeanPerS, PDI: r.PDI, BaselineReached: r.BaselineReached, ParticleRI: r.ParticleRI,
+	}
+	for k, s := range d.G1Sigma {
+		if s > 0 {
+			f.TauS = append(f.TauS, r.Curves.TauS[k])
+			f.G1 = append(f.G1, d.G1[k])
+			f.G1Sigma = append(f.G1Sigma, s)
+		}
+	}
+	if len(f.TauS) == 0 {
+		return nil
+	}
+	return f
+}
+
+// JointDistribution is the size distribution of one inversion of all the
+// used runs of a sample together: the inverse-variance weighted mean of
+// their field correlations, inverted as one correlogram of their summed
+// duration. Its peaks carry the uncertainty of that mean, so close
+// populations that each run alone cannot separate may show here; the
+// per-run results stand beside it. Note says why it was not computed when
+// Intensity is nil.
+type JointDistribution struct {
+	// Runs indexes the runs inverted together in the batch's result list.
+	Runs []int `json:"runs"`
+	// Note says why there is no joint distribution (runs at different
+	// angles, lag grids or optics, or the inversion's error); "" when there
+	// is one.
+	Note string `json:"note"`
+	// Alpha, ProbReject and DegreesOfFreedom describe the chosen
+	// regularisation, as a run's alpha, prob_reject and dof do.
+	Alpha            float64 `json:"alpha"`
+	ProbReject       float64 `json:"prob_reject"`
+	DegreesOfFreedom float64 `json:"dof"`
+	// DistZAvgNm is the z-average of the joint distribution's peaks.
+	DistZAvgNm float64        `json:"dist_z_avg_nm"`
+	Intensity  *WeightSummary `json:"intensity"`
+	Volume     *WeightSummary `json:"volume"`
+	Number     *WeightSummary `json:"number"`
+	// DiameterNm and IntensityPct are the intensity distribution over the
+	// span of bins that hold any of it (the grid's empty ends left out).
+	DiameterNm   []float64 `json:"diameter_nm"`
+	IntensityPct []float64 `json:"intensity_pct"`
+}
+
+// JointFinite reports whether every number of j is finite (results.json
+// holds no NaN or Inf).
+func JointFinite(j *JointDistribution) bool { return finiteValue(reflect.ValueOf(j)) }

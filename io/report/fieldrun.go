@@ -1,0 +1,93 @@
+package report
+
+import (
+	"encoding/binary"
+	"errors"
+	"math"
+
+	"dlsbatch/dls"
+)
+
+// A field run is kept in the scratch file in a private binary form, exact
+// to the bit (little-endian IEEE 754):
+//
+//	9 float64   temperature, viscosity, medium index, wavelength, angle,
+//	            q, Γ̄, PDI, baseline reached (0 or 1)
+//	uint32 n, then n float64 lags, n g1 values, n σ
+//	uint32 length, then the particle index text
+//
+// nil encodes as nothing.
+const fieldScalars = 9
+
+// appendFieldRun appends the encoding of f to dst.
+func appendFieldRun(dst []byte, f *dls.FieldRun) []byte {
+	if f == nil {
+		return dst
+	}
+	reached := 0.0
+	if f.BaselineReached {
+		reached = 1
+	}
+	for _, v := range [fieldScalars]float64{f.TemperatureC, f.ViscosityMPaS, f.RefractiveIndex, f.WavelengthNm,
+		f.AngleDeg, f.QPerM, f.GammaMeanPerS, f.PDI, reached} {
+		dst = binary.LittleEndian.AppendUint64(dst, math.Float64bits(v))
+	}
+	dst = binary.LittleEndian.AppendUint32(dst, uint32(len(f.TauS)))
+	for _, c := range [][]float64{f.TauS, f.G1, f.G1Sigma} {
+		for _, v := range c {
+			dst = binary.LittleEndian.AppendUint64(dst, math.Float64bits(v))
+		}
+	}
+	dst = binary.LittleEndian.AppendUint32(dst, uint32(len(f.ParticleRI)))
+	return append(dst, f.ParticleRI...)
+}
+
+var errFieldRun = errors.New("field run: truncated or malformed")
+
+// readFieldRun decodes what appendFieldRun wrote.
+func readFieldRun(b []byte) (*dls.FieldRun, error) {
+	f64 := func() (float64, bool) {
+		if len(b) < 8 {
+			return 0, false
+		}
+		v := math.Float64frombits(binary.LittleEndian.Uint64(b))
+		b = b[8:]
+		return v, true
+	}
+	u32 := func() (int, bool) {
+		if len(b) < 4 {
+			return 0, false
+		}
+		v := binary.LittleEndian.Uint32(b)
+		b = b[4:]
+		return int(v), true
+	}
+	var sc [fieldScalars]float64
+	for k := range sc {
+		v, ok := f64()
+		if !ok {
+			return nil, errFieldRun
+		}
+		sc[k] = v
+	}
+	if b8 := math.Float64bits(sc[8]); b8 != 0 && b8 != math.Float64bits(1) { // only what appendFieldRun writes
+		return nil, errFieldRun
+	}
+	n, ok := u32()
+	if !ok || n > len(b)/24 {
+		return nil, errFieldRun
+	}
+	f := &dls.FieldRun{TemperatureC: sc[0], ViscosityMPaS: sc[1], RefractiveIndex: sc[2], WavelengthNm: sc[3],
+		AngleDeg: sc[4], QPerM: sc[5], GammaMeanPerS: sc[6], PDI: sc[7], BaselineReached: sc[8] == 1}
+	all := make([]float64, 3*n)
+	for k := range all {
+		all[k], _ = f64()
+	}
+	f.TauS, f.G1, f.G1Sigma = all[:n:n], all[n:2*n:2*n], all[2*n:]
+	m, ok := u32()
+	if !ok || m != len(b) {
+		return nil, errFieldRun
+	}
+	f.ParticleRI = string(b)
+	return f, nil
+}
