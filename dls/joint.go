@@ -3,8 +3,9 @@ package dls
 import "reflect"
 
 // FieldRun is what a joint inversion takes of one run: its conditions and
-// the field correlation its own inversion fitted, over the channels that
-// inversion used (those with a positive σ), as a Result records them. It
+// the field correlation its own (second-pass) inversion fitted, over the
+// channels that inversion used (those with a positive σ), as a Result
+// records them. It
 // is built from the result alone (FieldRunOf), so a run resumed from the
 // journal or merged from shards gives the same one.
 type FieldRun struct {
@@ -17,9 +18,6 @@ type FieldRun struct {
 	// GammaMeanPerS and PDI are the cumulant fit's, for the solver's start.
 	GammaMeanPerS float64
 	PDI           float64
-	// BaselineReached is the cumulant fit's: the far-channel baseline was
-	// subtracted, so no free baseline column is needed.
-	BaselineReached bool
 	// ParticleRI is the particle index as the result states it.
 	ParticleRI string
 	// TauS, G1 and G1Sigma are the lags, field correlation and its σ of
@@ -37,7 +35,7 @@ func FieldRunOf(r *Result) *FieldRun {
 	f := &FieldRun{
 		TemperatureC: r.TemperatureC, ViscosityMPaS: r.ViscosityMPaS, RefractiveIndex: r.RefractiveIndex,
 		WavelengthNm: r.WavelengthNm, AngleDeg: r.AngleDeg, QPerM: r.QPerM,
-		GammaMeanPerS: r.GammaMeanPerS, PDI: r.PDI, BaselineReached: r.BaselineReached, ParticleRI: r.ParticleRI,
+		GammaMeanPerS: r.GammaMeanPerS, PDI: r.PDI, ParticleRI: r.ParticleRI,
 	}
 	for k, s := range d.G1Sigma {
 		if s > 0 {

@@ -104,9 +104,10 @@ func median(v []float64) float64 {
 }
 
 // TestJointResolvesWhatRunsCannot: two populations at diameter ratio 3
-// (50 + 150 nm, 20/80 by intensity) in runs of 30 s. A run alone rarely
-// separates them (measured: 1 of 50 runs); the joint inversion of ten runs
-// has the noise of one run ten times as long (measured: 5 of 5 sets). A
+// (50 + 150 nm, equal intensity) in runs of 100 s on the fast simulator. A
+// run alone rarely separates them (measured: 3 of 50 runs); the joint
+// inversion of ten runs has the noise of one run ten times as long
+// (measured: 5 of 5 sets). A
 // pair counts as resolved with a reported peak within ±25 % of each
 // diameter (the criterion of DEVELOPERS.md "Resolution on correlator
 // noise"). Three sets of ten runs: at least two joint inversions must
@@ -123,7 +124,7 @@ func TestJointResolvesWhatRunsCannot(t *testing.T) {
 	}
 	single, joint := 0, 0
 	for set := range 3 {
-		rs := simulatedRuns(t, "20%mono(50nm)+80%mono(150nm)@intensity", uint64(1000+100*set), 10, 30)
+		rs := simulatedRuns(t, "50%mono(50nm)+50%mono(150nm)@intensity", uint64(1000+100*set), 10, 100)
 		for _, r := range rs {
 			if resolved(r.Intensity.Peaks) {
 				single++

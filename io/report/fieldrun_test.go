@@ -14,8 +14,8 @@ import (
 func TestFieldRunRoundTrip(t *testing.T) {
 	f := &dls.FieldRun{TemperatureC: 25.000000000000004, ViscosityMPaS: 0.8900220000000001, RefractiveIndex: 1.33162,
 		WavelengthNm: 632.8, AngleDeg: 173, QPerM: 2.6377e7, GammaMeanPerS: 1234.5678901234567, PDI: math.Copysign(0, -1),
-		BaselineReached: true, ParticleRI: "1.5874+0i (polystyrene: Sultanova et al. 2009, λ in µm)",
-		TauS: []float64{2.5e-8, 5e-8}, G1: []float64{0.99, -1e-3}, G1Sigma: []float64{5e-324, 1e-3}}
+		ParticleRI: "1.5874+0i (polystyrene: Sultanova et al. 2009, λ in µm)",
+		TauS:       []float64{2.5e-8, 5e-8}, G1: []float64{0.99, -1e-3}, G1Sigma: []float64{5e-324, 1e-3}}
 	b := appendFieldRun(nil, f)
 	back, err := readFieldRun(b)
 	if err != nil {
