@@ -79,29 +79,18 @@ func dots(x, b []float64, m int, js, ls []int, out []float64) {
 	k := 0
 	for ; k+3 < len(js); k += 4 {
 		var acc [16]float64
-		l0, l1, l2, l3 := ls[k], ls[k+1], ls[k+2], ls[k+3]
-		j0, j1, j2, j3 := js[k]*m, js[k+1]*m, js[k+2]*m, js[k+3]*m
-		y0, y1, y2, y3 := b[j0:j0+l0], b[j1:j1+l1], b[j2:j2+l2], b[j3:j3+l3]
-		common := min(l0, l1, l2, l3) &^ 3
-		lanes4(x, y0, y1, y2, y3, common, &acc)
-		out[k] = rest(&acc, 0, x, y0, common)
-		out[k+1] = rest(&acc, 1, x, y1, common)
-		out[k+2] = rest(&acc, 2, x, y2, common)
-		out[k+3] = rest(&acc, 3, x, y3, common)
+		common := min(ls[k], ls[k+1], ls[k+2], ls[k+3]) &^ 3
+		y := func(d int) []float64 { j := js[k+d]; return b[j*m : j*m+ls[k+d]] }
+		lanes4(x, y(0), y(1), y(2), y(3), common, &acc)
+		for d := 0; d < 4; d++ {
+			a := (*[4]float64)(acc[4*d : 4*d+4])
+			n := ls[k+d]
+			lanes1(x, y(d), common, n&^3, a)
+			out[k+d] = finish(a, x, y(d), n)
+		}
 	}
 	for ; k < len(js); k++ {
 		j := js[k]
 		out[k] = dot(x[:ls[k]], b[j*m:j*m+ls[k]])
 	}
-}
-
-// rest continues sum d of a block of dots alone from common, where the
-// block's shared lanes ended, to the end of y, and combines it.
-func rest(acc *[16]float64, d int, x, y []float64, common int) float64 {
-	a := (*[4]float64)(acc[4*d : 4*d+4])
-	n := len(y)
-	if to := n &^ 3; to > common {
-		lanes1(x, y, common, to, a)
-	}
-	return finish(a, x, y, n)
 }

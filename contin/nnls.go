@@ -274,19 +274,13 @@ func (e *neSolver) ensure(t int) {
 		}
 	} else {
 		m, supp := e.m, e.supp
-		// The columns still to form: not the diagonal, nor those set when
-		// their own row was formed. Listed without a branch per column
-		// (have follows no pattern the processor could predict).
-		js, ls := e.js[:S], e.ls[:S]
-		have, st := e.have[:S], supp[t]
-		nj := 0
-		for j, h := range have {
-			js[nj], ls[nj] = j, min(st, supp[j])
-			if !h && j != t {
-				nj++
+		js, ls := e.js[:0], e.ls[:0]
+		for j := 0; j < S; j++ {
+			if j == t || e.have[j] {
+				continue // the diagonal, or set when row j was formed
 			}
+			js, ls = append(js, j), append(ls, min(supp[t], supp[j]))
 		}
-		js, ls = js[:nj], ls[:nj]
 		ct := e.ct[:supp[t]]
 		for i, a := range e.at[t*m : t*m+supp[t]] {
 			ct[i] = e.w[i] * a
