@@ -147,7 +147,14 @@ func lognormalCurve(tau []float64, gamma, pdi, b, beta, e float64) []float64 {
 		}
 		g /= sw
 		done = g < 1e-16
-		y[i] = b + beta*math.Pow(g, e)
+		// g^e for e = 1 or 2. The previous lag's g was at least 1e-16 and
+		// g(2τ) ≥ g(τ)² for a mixture of exponentials, so g·g is never
+		// subnormal here and equals math.Pow(g, 2) bit for bit.
+		ge := g
+		if e == 2 {
+			ge = g * g
+		}
+		y[i] = b + beta*ge
 	}
 	return y
 }
