@@ -160,12 +160,7 @@ func distribution(m *dls.Measurement, fit *cumulants.Result, st state, meta dls.
 	tau := m.TauS[first:]
 	tK := dls.KelvinFromCelsius(st.tempC)
 	gs := sizeBoundedGrid(s.Grid, tau, tK, st.etaPaS, st.optics.Q())
-	var grid *contin.Grid
-	if s.Cache != nil {
-		grid, err = s.Cache.Grid(tau, &gs)
-	} else {
-		grid, err = contin.NewGrid(tau, &gs)
-	}
+	grid, err := s.grid(tau, &gs)
 	if err != nil {
 		return fail(err)
 	}
@@ -300,6 +295,15 @@ func sizeBoundedGrid(gs contin.GridSettings, tau []float64, tK, etaPaS, q float6
 		gs.GammaMaxPerS = math.Min(contin.DefaultGammaMaxTimesTauMin/tau[0], rate(minGridDiameterM))
 	}
 	return gs
+}
+
+// grid returns the inversion grid of the lags, from the cache when there
+// is one.
+func (s *DistributionSettings) grid(tau []float64, gs *contin.GridSettings) (*contin.Grid, error) {
+	if s.Cache != nil {
+		return s.Cache.Grid(tau, gs)
+	}
+	return contin.NewGrid(tau, gs)
 }
 
 // padFront aligns an array over lags first.. with the full lag axis; the

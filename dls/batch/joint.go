@@ -133,12 +133,7 @@ func jointOf(runs []*dls.FieldRun, idx []int, s *DistributionSettings) *dls.Join
 	}
 	tau := runs[0].TauS
 	gs := sizeBoundedGrid(s.Grid, tau, tK, etaPaS, optics.Q())
-	var grid *contin.Grid
-	if s.Cache != nil {
-		grid, err = s.Cache.Grid(tau, &gs)
-	} else {
-		grid, err = contin.NewGrid(tau, &gs)
-	}
+	grid, err := s.grid(tau, &gs)
 	if err != nil {
 		j.Note = err.Error() + ": no joint inversion"
 		return j

@@ -7,6 +7,7 @@ import (
 	"testing"
 
 	"dlsbatch/dls"
+	"dlsbatch/dls/stats"
 )
 
 // TestMeanFieldWorkedExample checks the channel means against the
@@ -80,27 +81,12 @@ func TestJointMonodisperse(t *testing.T) {
 	for _, r := range rs {
 		us = append(us, r.Intensity.Peaks[0].MeanUNm)
 	}
-	med := median(us)
+	med := stats.Median(us)
 	ratio := p.MeanUNm / med
 	if lo, hi := 0.5/math.Sqrt(k), 2/math.Sqrt(k); !(ratio > lo && ratio < hi) {
 		t.Errorf("joint peak u %.3f nm vs runs' median %.3f nm: ratio %.3f, want in (%.3f, %.3f)", p.MeanUNm, med, ratio, lo, hi)
 	}
 	t.Logf("joint u %.3f nm, runs %v, ratio %.3f", p.MeanUNm, us, ratio)
-}
-
-func median(v []float64) float64 {
-	s := append([]float64(nil), v...)
-	for i := range s {
-		for j := i + 1; j < len(s); j++ {
-			if s[j] < s[i] {
-				s[i], s[j] = s[j], s[i]
-			}
-		}
-	}
-	if len(s)%2 == 1 {
-		return s[len(s)/2]
-	}
-	return (s[len(s)/2-1] + s[len(s)/2]) / 2
 }
 
 // TestJointResolvesWhatRunsCannot: two populations at diameter ratio 3
