@@ -119,7 +119,8 @@ func Run(ctx context.Context, cfg *Config) (*Outcome, error) {
 	defer out.Abort()
 
 	found := csvdata.Discover(cfg.Paths)
-	relative(found.Problems, root)
+	nm := csvdata.NewNamer(root)
+	relative(found.Problems, nm)
 	for _, p := range found.Problems {
 		warn(p.Err.Error()) // and an error row each: the runner gets them as failed inputs
 	}
@@ -137,13 +138,16 @@ func Run(ctx context.Context, cfg *Config) (*Outcome, error) {
 	// The run's order is that of the inputs' paths relative to the root,
 	// whatever the shard or the way the paths were typed.
 	paths := found.Paths()
-	relOf := func(p string) string {
+	// relName holds each path's name relative to the root, taken once.
+	relName := make(map[string]string, len(paths))
+	for _, p := range paths {
 		if _, problem := found.Failed(p); problem {
-			return p // named relative to the root already
+			relName[p] = p // named relative to the root already
+		} else {
+			relName[p] = nm.Rel(p)
 		}
-		return csvdata.Rel(root, p)
 	}
-	sort.SliceStable(paths, func(a, b int) bool { return relOf(paths[a]) < relOf(paths[b]) })
+	sort.SliceStable(paths, func(a, b int) bool { return relName[paths[a]] < relName[paths[b]] })
 	if len(paths) == 0 && cfg.Shard.Count <= 1 {
 		return nil, ErrNoInput
 	}
@@ -154,7 +158,7 @@ func Run(ctx context.Context, cfg *Config) (*Outcome, error) {
 		cfg.Sheet.Rename(csvdata.Rel(root, cfg.SheetFile))
 		match = cfg.Sheet.Check(csvdata.Rel(root, cfg.SheetFile), files, rels)
 		for i, f := range match.UnmatchedFiles {
-			match.UnmatchedFiles[i] = csvdata.Rel(root, f)
+			match.UnmatchedFiles[i] = nm.Rel(f)
 			warn(match.UnmatchedFiles[i] + ": no row of the sample sheet matches this file")
 		}
 		for _, msg := range match.UnusedRows {
@@ -181,7 +185,7 @@ func Run(ctx context.Context, cfg *Config) (*Outcome, error) {
 	var measuredAt []string // of each result, in input order
 	sheetRel := map[string]string{}
 	for _, f := range files {
-		sheetRel[csvdata.Rel(root, f)] = rels[f]
+		sheetRel[relName[f]] = rels[f]
 	}
 	rn := &batch.Runner{
 		Cached: func(path string) ([]*dls.Result, bool) {
@@ -195,13 +199,13 @@ func Run(ctx context.Context, cfg *Config) (*Outcome, error) {
 			hashedMu.Lock()
 			hashed[path] = d // the manifest takes it from here: each input is read for its hash once
 			hashedMu.Unlock()
-			return jr.cached(csvdata.Rel(root, path), d.Hex())
+			return jr.cached(relName[path], d.Hex())
 		},
 		Read: func(path string) []batch.Input {
 			if in, failed := found.Failed(path); failed {
 				return in
 			}
-			in := csvdata.ReadFileAs(path, csvdata.Rel(root, path), cfg.Read)
+			in := csvdata.ReadFileAs(path, relName[path], cfg.Read)
 			for _, x := range in {
 				if cfg.Sheet != nil && x.M != nil {
 					cfg.Sheet.Apply(x.M, rels[path])
@@ -379,9 +383,9 @@ type encoded struct {
 
 // relative names the failed entries of input problems by their path
 // relative to the input root, as every other result is named.
-func relative(in []dls.Input, root string) {
+func relative(in []dls.Input, nm csvdata.Namer) {
 	for i := range in {
-		in[i].File = csvdata.Rel(root, in[i].File)
+		in[i].File = nm.Rel(in[i].File)
 		var pe *dls.PosError
 		if errors.As(in[i].Err, &pe) {
 			q := *pe

@@ -125,12 +125,13 @@ func Merge(ctx context.Context, cfg *MergeConfig) (*Outcome, error) {
 			return nil, fmt.Errorf("%w: sample sheet: %w", ErrUsage, err)
 		}
 		rels := map[string]string{}
+		nm := csvdata.NewNamer(root)
 		for _, f := range inputs {
-			rels[f] = csvdata.Rel(root, f)
+			rels[f] = nm.Rel(f)
 		}
 		match = run.Sheet.Check(rec.Sheet, inputs, rels)
 		for i, f := range match.UnmatchedFiles {
-			match.UnmatchedFiles[i] = csvdata.Rel(root, f)
+			match.UnmatchedFiles[i] = nm.Rel(f)
 		}
 	}
 	if run.SpecFile != "" {

@@ -25,8 +25,9 @@ func Select(f *csvdata.Found, root string, include, exclude []string) *csvdata.F
 		return f
 	}
 	out := &csvdata.Found{Problems: f.Problems}
+	nm := csvdata.NewNamer(root)
 	for _, file := range f.Files {
-		rel := csvdata.Rel(root, file)
+		rel := nm.Rel(file)
 		if (len(include) == 0 || matchAny(include, rel)) && !matchAny(exclude, rel) {
 			out.Files = append(out.Files, file)
 		}
@@ -121,8 +122,9 @@ func (s Shard) Part(f *csvdata.Found, root string) *csvdata.Found {
 		return f
 	}
 	out := &csvdata.Found{}
+	nm := csvdata.NewNamer(root)
 	for _, file := range f.Files {
-		if s.Of(csvdata.Rel(root, file)) == s.Index {
+		if s.Of(nm.Rel(file)) == s.Index {
 			out.Files = append(out.Files, file)
 		}
 	}
@@ -149,8 +151,9 @@ func (s Shard) Info(all *csvdata.Found, root string) *report.ShardInfo {
 // relative to the root, in the order the run analyses them: sorted.
 func RelPaths(f *csvdata.Found, root string) []string {
 	var rels []string
+	nm := csvdata.NewNamer(root)
 	for _, file := range f.Files {
-		rels = append(rels, csvdata.Rel(root, file))
+		rels = append(rels, nm.Rel(file))
 	}
 	for _, p := range f.Problems {
 		rels = append(rels, p.File) // named relative to the root already

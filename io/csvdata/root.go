@@ -49,13 +49,42 @@ func Root(paths []string) (string, error) {
 
 // Rel returns path relative to root with forward slashes (".." steps
 // where path lies outside root), or path itself when no relative form
-// exists.
-func Rel(root, path string) string {
-	a, err := filepath.Abs(path)
+// exists. It takes the working directory on every call; a run that names
+// many paths uses a Namer.
+func Rel(root, path string) string { return NewNamer(root).Rel(path) }
+
+// Namer names paths relative to an input root as Rel does, with the
+// working directory taken once (filepath.Abs asks the system for it, two
+// stat calls, every time: a run names each input a few dozen times). The
+// process must not change its working directory while a Namer is in use.
+type Namer struct {
+	root, wd string // wd "": unknown, filepath.Abs on every call
+}
+
+// NewNamer returns the Namer of root.
+func NewNamer(root string) Namer {
+	wd, err := os.Getwd()
 	if err != nil {
-		return filepath.ToSlash(path)
+		wd = ""
 	}
-	r, err := filepath.Rel(root, a)
+	return Namer{root: root, wd: wd}
+}
+
+// Rel returns path relative to the Namer's root, as Rel.
+func (n Namer) Rel(path string) string {
+	var a string
+	switch {
+	case filepath.IsAbs(path):
+		a = filepath.Clean(path)
+	case n.wd != "":
+		a = filepath.Join(n.wd, path)
+	default:
+		var err error
+		if a, err = filepath.Abs(path); err != nil {
+			return filepath.ToSlash(path)
+		}
+	}
+	r, err := filepath.Rel(n.root, a)
 	if err != nil {
 		return filepath.ToSlash(path)
 	}

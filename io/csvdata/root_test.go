@@ -49,4 +49,20 @@ func TestRoot(t *testing.T) {
 	if _, err := Root(nil); err == nil {
 		t.Error("Root of nothing succeeded")
 	}
+	// A Namer takes the working directory once and must name every path
+	// as filepath.Abs followed by filepath.Rel would (the definition).
+	nm := NewNamer(night)
+	for _, p := range []string{"night/a/x.csv", "./night/../night/b", night + "/a/x.csv", "night/a/", dir, "/", "x.csv", "../outside"} {
+		a, err := filepath.Abs(p)
+		if err != nil {
+			t.Fatal(err)
+		}
+		r, err := filepath.Rel(night, a)
+		if err != nil {
+			t.Fatal(err)
+		}
+		if got, want := nm.Rel(p), filepath.ToSlash(r); got != want {
+			t.Errorf("Namer.Rel(%q) = %q, want %q", p, got, want)
+		}
+	}
 }

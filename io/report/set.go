@@ -222,8 +222,9 @@ func WriteSet(ctx context.Context, dir string, s *Set) error {
 			return fmt.Errorf("results: %w", err)
 		}
 	}
+	nm := csvdata.NewNamer(s.Root)
 	input := func(i int) FileHash {
-		return FileHash{Path: csvdata.Rel(s.Root, inputs[i]), Bytes: digests[i].Bytes, SHA256: digests[i].Hex()}
+		return FileHash{Path: nm.Rel(inputs[i]), Bytes: digests[i].Bytes, SHA256: digests[i].Hex()}
 	}
 	manifest := func(w io.Writer) error { return writeManifest(w, m, len(inputs), input) }
 	if s.Staged {
@@ -362,8 +363,9 @@ func analysed(root string, inputs []string, results []*dls.Brief) []string {
 		done[r.File] = true
 	}
 	var out []string
+	nm := csvdata.NewNamer(root)
 	for _, f := range inputs {
-		if done[csvdata.Rel(root, f)] {
+		if done[nm.Rel(f)] {
 			out = append(out, f)
 		}
 	}
