@@ -15,6 +15,7 @@ import (
 	"sync"
 
 	"dlsbatch/dls"
+	"dlsbatch/io/atomicfile"
 	"dlsbatch/io/report"
 )
 
@@ -53,6 +54,8 @@ type journal struct {
 	old      map[string]journalEntry // by file, from a resumed journal
 	hashes   sync.Map                // rel file → input SHA-256
 	reused   int
+	written  counted // the file, counting the bytes written
+	kicked   int64   // bytes whose writeback was started
 	ignored  int
 }
 
@@ -71,7 +74,9 @@ func openJournal(path string, settings []byte, resume bool) (*journal, error) {
 	if err != nil {
 		return nil, fmt.Errorf("journal: %w", err)
 	}
-	j.f, j.w = f, bufio.NewWriterSize(f, 1<<16)
+	j.f = f
+	j.written.w = f
+	j.w = bufio.NewWriterSize(&j.written, 1<<16)
 	return j, nil
 }
 
@@ -148,7 +153,33 @@ func (j *journal) add(results []*dls.Result, records [][]byte) error {
 	if _, err := j.w.WriteString("]}\n"); err != nil {
 		return fmt.Errorf("journal: %w", err)
 	}
-	return j.w.Flush() // each file's line reaches the file system as it is done
+	// Each file's line reaches the file system as it is done; every few
+	// MiB its writeback is started, so that the flush of the result set at
+	// the end of the run does not also wait for the whole journal.
+	if err := j.w.Flush(); err != nil {
+		return fmt.Errorf("journal: %w", err)
+	}
+	if j.written.n-j.kicked >= journalKick {
+		atomicfile.StartWriteback(j.f, j.kicked, j.written.n-j.kicked)
+		j.kicked = j.written.n
+	}
+	return nil
+}
+
+// journalKick is how many bytes the journal grows by between two starts
+// of its writeback (atomicfile.StartWriteback).
+const journalKick = 4 << 20
+
+// counted writes to w and counts the bytes written.
+type counted struct {
+	w io.Writer
+	n int64
+}
+
+func (c *counted) Write(p []byte) (int, error) {
+	n, err := c.w.Write(p)
+	c.n += int64(n)
+	return n, err
 }
 
 // close ends the journal; remove deletes it (the run is published whole).

@@ -423,7 +423,7 @@ func validate(r *Report) error {
 func (r *Report) writeFile(dir, name string, data []byte) (PageFile, error) {
 	var err error
 	if r.Staged {
-		err = os.WriteFile(filepath.Join(dir, name), data, 0o644)
+		err = atomicfile.WriteStaged(filepath.Join(dir, name), data)
 	} else {
 		err = atomicfile.Write(filepath.Join(dir, name), data)
 	}

@@ -339,6 +339,7 @@ func writeInPlace(path string, fill func(w io.Writer) error) error {
 		f.Close()
 		return fmt.Errorf("write %s: %w", path, err)
 	}
+	atomicfile.StartWriteback(f, 0, 0)
 	if err := f.Close(); err != nil {
 		return fmt.Errorf("write %s: %w", path, err)
 	}
