@@ -217,12 +217,15 @@ func unwrapPath(err error) error {
 // directly), for matching sample-sheet patterns.
 func RelativePaths(files, inputs []string) map[string]string {
 	out := make(map[string]string, len(files))
+	var dirs []string // the inputs that are folders, each looked up once
+	for _, in := range inputs {
+		if st, err := os.Stat(in); err == nil && st.IsDir() {
+			dirs = append(dirs, in)
+		}
+	}
 	for _, f := range files {
 		rel := filepath.Base(f)
-		for _, in := range inputs {
-			if st, err := os.Stat(in); err != nil || !st.IsDir() {
-				continue
-			}
+		for _, in := range dirs {
 			if r, err := filepath.Rel(in, f); err == nil && !strings.HasPrefix(r, "..") {
 				rel = r
 				break
