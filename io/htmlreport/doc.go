@@ -34,8 +34,11 @@
 // Tick labels of a log axis are thinned (every second, third … decade)
 // until none overlaps, by the advance widths of Liberation Sans with a
 // margin for wider fallback fonts. Coordinates have one decimal in a 230 ×
-// 150 box, written from integers; the x axis of a lag or diameter grid is
-// laid out once per worker and reused.
+// 150 box, written from integers (tenths); the points and lines of the
+// data are written as steps from one point to the next (relative path
+// commands, exact in tenths, 8 % fewer bytes per report than absolute
+// ones); the x axis of a lag or diameter grid is laid out once per worker
+// and reused.
 //
 // A sample page plots at most Report.MaxPlotRuns runs (default
 // DefaultMaxPlotRuns = 24, the first in Sample.Runs order, so that a page

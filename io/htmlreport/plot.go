@@ -602,21 +602,42 @@ func textWidth(s string, size float64) float64 {
 // 230 × 150 box; anything beyond ±10⁵ (which a layout error alone could
 // give) is clamped, so that no coordinate is ever written as NaN or in an
 // exponent form.
-func (w *writer) num(v float64) {
+func (w *writer) num(v float64) { w.tenths(tenthsOf(v), false) }
+
+// tenthsOf is v in tenths of an SVG unit, clamped to ±10⁵ units.
+func tenthsOf(v float64) int64 {
 	if !(v > -1e5) {
 		v = -1e5
 	} else if v > 1e5 {
 		v = 1e5
 	}
-	n := int64(math.Round(v * 10))
+	return int64(math.Round(v * 10))
+}
+
+// tenths appends n tenths as a number with one decimal at most; short
+// drops the zero before the point (".5", "-.5"), as SVG path data allow.
+func (w *writer) tenths(n int64, short bool) {
 	if n < 0 {
 		w.b = append(w.b, '-')
 		n = -n
 	}
-	w.b = strconv.AppendInt(w.b, n/10, 10)
+	if !short || n >= 10 || n == 0 {
+		w.b = strconv.AppendInt(w.b, n/10, 10)
+	}
 	if d := n % 10; d != 0 {
 		w.b = append(w.b, '.', byte('0'+d))
 	}
+}
+
+// rel appends the step dx, dy (in tenths) of a relative path command: the
+// numbers short, with a space between them only where no minus sign
+// separates them.
+func (w *writer) rel(dx, dy int64) {
+	w.tenths(dx, true)
+	if dy >= 0 {
+		w.b = append(w.b, ' ')
+	}
+	w.tenths(dy, true)
 }
 
 func (w *writer) str(s string) { w.b = append(w.b, s...) }
@@ -713,7 +734,10 @@ func (w *writer) window(f *frame, lo, hi float64) {
 	}
 }
 
-// polyline draws the points joined by straight lines.
+// polyline draws the points joined by straight lines: the first point
+// absolute, the others as steps from the one before (a relative lineto),
+// all in whole tenths, so that each point lands where its absolute
+// coordinates, rounded, would put it.
 func (w *writer) polyline(f *frame, ps []point, col, width, dash string) {
 	if len(ps) < 2 {
 		return
@@ -727,28 +751,50 @@ func (w *writer) polyline(f *frame, ps []point, col, width, dash string) {
 		w.str(dash)
 	}
 	w.str(`" stroke-linejoin="round" d="M`)
+	var x0, y0 int64
 	for i, p := range ps {
-		if i == 1 {
-			w.b = append(w.b, 'L')
-		} else if i > 1 {
+		x, y := tenthsOf(f.lpx(p.lx)), tenthsOf(f.py(p.y))
+		switch i {
+		case 0:
+			w.tenths(x, false)
 			w.b = append(w.b, ' ')
+			w.tenths(y, false)
+		case 1:
+			w.b = append(w.b, 'l')
+			w.rel(x-x0, y-y0)
+		default:
+			if x-x0 >= 0 {
+				w.b = append(w.b, ' ')
+			}
+			w.rel(x-x0, y-y0)
 		}
-		w.pt(f.lpx(p.lx), f.py(p.y))
+		x0, y0 = x, y
 	}
 	w.str(`"/>`)
 }
 
 // points draws each point as a 2 × 2 square: a stroke 2 wide and 2 long,
-// all in one path, which keeps a 200-point correlogram at a few
-// kilobytes.
+// all in one path (the first square placed absolutely, each next one by
+// its step from the end of the one before), which keeps a 200-point
+// correlogram at a few kilobytes.
 func (w *writer) points(f *frame, ps []point, col string) {
 	w.str(`<path fill="none" stroke="`)
 	w.str(col)
 	w.str(`" stroke-width="2" d="`)
-	for _, p := range ps {
-		w.b = append(w.b, 'M')
-		w.pt(f.lpx(p.lx)-1, f.py(p.y))
+	var x0, y0 int64 // where the pen is, in tenths
+	for i, p := range ps {
+		x, y := tenthsOf(f.lpx(p.lx)-1), tenthsOf(f.py(p.y))
+		if i == 0 {
+			w.b = append(w.b, 'M')
+			w.tenths(x, false)
+			w.b = append(w.b, ' ')
+			w.tenths(y, false)
+		} else {
+			w.b = append(w.b, 'm')
+			w.rel(x-x0, y-y0)
+		}
 		w.str("h2")
+		x0, y0 = x+20, y
 	}
 	w.str(`"/>`)
 }

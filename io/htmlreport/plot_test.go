@@ -282,3 +282,100 @@ func TestPlotAccessible(t *testing.T) {
 		}
 	}
 }
+
+// pathPoints reads SVG path data of the commands the plots write (M, m,
+// L, l, h, with implicit repetition) into the absolute points they visit,
+// in tenths, after the path grammar of the SVG 1.1 specification (W3C,
+// 2011, §8.3.9): a number ends where a sign, a second point or a letter
+// begins.
+func pathPoints(t *testing.T, d string) [][2]int64 {
+	t.Helper()
+	var out [][2]int64
+	var x, y int64
+	var cmd byte
+	i := 0
+	number := func() int64 {
+		for i < len(d) && d[i] == ' ' {
+			i++
+		}
+		j := i
+		if j < len(d) && d[j] == '-' {
+			j++
+		}
+		dot := false
+		for j < len(d) && (d[j] >= '0' && d[j] <= '9' || d[j] == '.' && !dot) {
+			dot = dot || d[j] == '.'
+			j++
+		}
+		var v float64
+		if _, err := fmt.Sscan(d[i:j], &v); err != nil {
+			t.Fatalf("bad number at %d in %q", i, d)
+		}
+		i = j
+		return int64(math.Round(v * 10))
+	}
+	for {
+		for i < len(d) && d[i] == ' ' {
+			i++
+		}
+		if i == len(d) {
+			return out
+		}
+		if c := d[i]; c >= 'A' && c <= 'z' {
+			cmd = c
+			i++
+		}
+		switch cmd {
+		case 'M', 'L':
+			x, y = number(), number()
+		case 'm', 'l':
+			x, y = x+number(), y+number()
+		case 'h':
+			x += number()
+		default:
+			t.Fatalf("command %q in %q", cmd, d)
+		}
+		out = append(out, [2]int64{x, y})
+	}
+}
+
+// TestRelativePaths: the points and lines, written as steps from one
+// point to the next, visit exactly the absolute positions (rounded to a
+// tenth) of the data, so the relative form changes bytes, not drawings.
+func TestRelativePaths(t *testing.T) {
+	var w writer
+	f, ok := w.frame(1e-6, 1, -3, 3, lagAxis)
+	if !ok {
+		t.Fatal("no frame")
+	}
+	var ps []point
+	for k := range 60 {
+		x := math.Pow(10, -6+6*float64(k)/59)
+		y := 3 * math.Sin(float64(k)*0.7) * math.Exp(-float64(k)/30)
+		ps = append(ps, point{x, y, math.Log10(x)})
+	}
+	d := func() string {
+		s := string(w.b)
+		i := strings.Index(s, ` d="`)
+		return s[i+4 : len(s)-3]
+	}
+	w.b = w.b[:0]
+	w.polyline(&f, ps, colFit, "1", "")
+	line := pathPoints(t, d())
+	w.b = w.b[:0]
+	w.points(&f, ps, colData)
+	marks := pathPoints(t, d())
+	if len(line) != len(ps) || len(marks) != 2*len(ps) {
+		t.Fatalf("%d line points, %d mark points, want %d and %d", len(line), len(marks), len(ps), 2*len(ps))
+	}
+	for k, p := range ps {
+		x, y := tenthsOf(f.lpx(p.lx)), tenthsOf(f.py(p.y))
+		if line[k] != [2]int64{x, y} {
+			t.Errorf("line point %d at %v, want %v", k, line[k], [2]int64{x, y})
+		}
+		mx := tenthsOf(f.lpx(p.lx) - 1)
+		if marks[2*k] != [2]int64{mx, y} || marks[2*k+1] != [2]int64{mx + 20, y} {
+			t.Errorf("mark %d from %v to %v, want %v to %v", k, marks[2*k], marks[2*k+1], [2]int64{mx, y}, [2]int64{mx + 20, y})
+		}
+	}
+}
