@@ -181,7 +181,15 @@ func Run(ctx context.Context, cfg *Config) (*Outcome, error) {
 	defer func() { jr.close(published) }()
 	hashed := map[string]report.Digest{} // input path → its digest, taken at analysis
 	var hashedMu sync.Mutex
-	var encodings sync.Map  // a file's first result → its records, encoded
+	var encodings sync.Map // a file's first result → its records, encoded
+	// contents holds an input's bytes from its hashing (Cached) to its
+	// reading (Read): each input is opened and read once.
+	var contents sync.Map
+	readOpts := cfg.Read
+	if readOpts == nil {
+		readOpts = &csvdata.Options{}
+	}
+	maxBytes, _, _ := readOpts.Limits()
 	var measuredAt []string // of each result, in input order
 	sheetRel := map[string]string{}
 	for _, f := range files {
@@ -192,20 +200,29 @@ func Run(ctx context.Context, cfg *Config) (*Outcome, error) {
 			if _, problem := found.Failed(path); problem {
 				return nil, false
 			}
-			d, err := report.DigestFile(path)
+			d, content, err := report.ReadDigest(path, maxBytes)
 			if err != nil {
 				return nil, false
 			}
 			hashedMu.Lock()
 			hashed[path] = d // the manifest takes it from here: each input is read for its hash once
 			hashedMu.Unlock()
-			return jr.cached(relName[path], d.Hex())
+			res, ok := jr.cached(relName[path], d.Hex())
+			if !ok && content != nil {
+				contents.Store(path, content) // for Read, next in the same worker
+			}
+			return res, ok
 		},
 		Read: func(path string) []batch.Input {
 			if in, failed := found.Failed(path); failed {
 				return in
 			}
-			in := csvdata.ReadFileAs(path, relName[path], cfg.Read)
+			var in []csvdata.Entry
+			if b, ok := contents.LoadAndDelete(path); ok {
+				in = csvdata.ReadBytesAs(b.([]byte), relName[path], cfg.Read)
+			} else {
+				in = csvdata.ReadFileAs(path, relName[path], cfg.Read)
+			}
 			for _, x := range in {
 				if cfg.Sheet != nil && x.M != nil {
 					cfg.Sheet.Apply(x.M, rels[path])

@@ -1,6 +1,7 @@
 package csvdata
 
 import (
+	"bytes"
 	"errors"
 	"fmt"
 	"io/fs"
@@ -89,6 +90,12 @@ func (n Namer) Rel(path string) string {
 		return filepath.ToSlash(path)
 	}
 	return filepath.ToSlash(r)
+}
+
+// ReadBytesAs reads a correlogram export already read into memory (its
+// content b), naming it name, as ReadFileAs reads a file.
+func ReadBytesAs(b []byte, name string, o *Options) []Entry {
+	return Read(bytes.NewReader(b), name, o)
 }
 
 // ReadFileAs reads the correlogram export at path like ReadFile, naming it

@@ -86,6 +86,40 @@ func DigestFile(path string) (Digest, error) {
 	return d, nil
 }
 
+// ReadDigest reads the file at path whole when it holds at most max
+// bytes and returns its digest with its content, so that a file analysed
+// is opened once and the bytes hashed are the bytes read; a larger file is
+// hashed as it streams past and its content not kept (nil).
+func ReadDigest(path string, max int64) (Digest, []byte, error) {
+	f, err := os.Open(path)
+	if err != nil {
+		return Digest{}, nil, fmt.Errorf("manifest: %w", err)
+	}
+	defer f.Close()
+	size := int64(bytes.MinRead)
+	if st, err := f.Stat(); err == nil && st.Size() >= 0 && st.Size() <= max {
+		size = st.Size() + 1 // +1: the read that meets the end
+	}
+	buf := bytes.NewBuffer(make([]byte, 0, size))
+	if _, err := buf.ReadFrom(io.LimitReader(f, max+1)); err != nil {
+		return Digest{}, nil, fmt.Errorf("manifest: %s: %w", path, err)
+	}
+	h := sha256.New()
+	h.Write(buf.Bytes())
+	content := buf.Bytes()
+	n := int64(len(content))
+	if n > max { // larger than the limit (or grown since): hash the rest, keep nothing
+		m, err := io.Copy(h, f)
+		if err != nil {
+			return Digest{}, nil, fmt.Errorf("manifest: %s: %w", path, err)
+		}
+		n, content = n+m, nil
+	}
+	d := Digest{Bytes: n}
+	h.Sum(d.SHA256[:0])
+	return d, content, nil
+}
+
 // Hex is the digest in hex, as the manifest records it.
 func (d Digest) Hex() string { return hex.EncodeToString(d.SHA256[:]) }
 

@@ -3,6 +3,7 @@ package report
 import (
 	"bytes"
 	"encoding/json"
+	"fmt"
 	"os"
 	"path/filepath"
 	"reflect"
@@ -127,4 +128,43 @@ func FuzzWriteManifest(f *testing.F) {
 			t.Fatalf("not stable after reading back")
 		}
 	})
+}
+
+// TestReadDigest: the digest is DigestFile's (SHA-256 of the whole file,
+// FIPS 180-4, as crypto/sha256 computes it) at every size around the
+// limit; the content comes back byte for byte up to the limit and not at
+// all beyond it; a missing file is an error.
+func TestReadDigest(t *testing.T) {
+	dir := t.TempDir()
+	const max = 1000
+	for _, n := range []int{0, 1, 999, 1000, 1001, 5000} {
+		data := make([]byte, n)
+		for i := range data {
+			data[i] = byte(i*7 + n)
+		}
+		p := filepath.Join(dir, fmt.Sprintf("f%d.csv", n))
+		if err := os.WriteFile(p, data, 0o644); err != nil {
+			t.Fatal(err)
+		}
+		want, err := DigestFile(p)
+		if err != nil {
+			t.Fatal(err)
+		}
+		got, content, err := ReadDigest(p, max)
+		if err != nil {
+			t.Fatalf("%d bytes: %v", n, err)
+		}
+		if got != want || got.Bytes != int64(n) {
+			t.Errorf("%d bytes: digest %s (%d), want %s (%d)", n, got.Hex(), got.Bytes, want.Hex(), want.Bytes)
+		}
+		if n <= max && !bytes.Equal(content, data) {
+			t.Errorf("%d bytes: content of %d bytes differs", n, len(content))
+		}
+		if n > max && content != nil {
+			t.Errorf("%d bytes: content kept beyond the limit of %d", n, max)
+		}
+	}
+	if _, _, err := ReadDigest(filepath.Join(dir, "missing.csv"), max); err == nil {
+		t.Error("a missing file gave no error")
+	}
 }
