@@ -242,7 +242,7 @@ func (r *Result) correlated(tau []float64, kind Kind, acq Acquisition) (*Correla
 			}
 		}
 	}
-	sep := pairsSeparable(sp, ch, b, np, &x)
+	sep := pairsSeparable(sp, ch, b, np, &x, sepMaxGammaTau)
 	// The pairs (i, j) with i < j and j ≥ sep, one kernel each:
 	// E_|τj−τi| = exp(−Γ·(τj − τi)) is the product of the factors between
 	// neighbouring channels (the lags increase). Every term of the kernel
@@ -316,7 +316,7 @@ func (r *Result) correlated(tau []float64, kind Kind, acq Acquisition) (*Correla
 var sepMaxGammaTau = 20.0
 
 // pairsSeparable adds to x the pair sum X = Σ_{i<j<sep} R̃_ij·b_i·b_jᵀ over
-// the first sep channels (those with Γ·τ ≤ sepMaxGammaTau; ch by
+// the first sep channels (those with Γ·τ ≤ maxGammaTau; ch by
 // increasing lag, b rows of np) and returns sep. For τi < τj the kernel
 // (noiseSpec.kernel, with E = g_j/g_i, G = g², g_i·g_j·E = G_j and
 // min(G_i, G_j) = G_j) is a sum of six products of a function of i and
@@ -329,9 +329,9 @@ var sepMaxGammaTau = 20.0
 // with c1 = 2β/r and c2 = 4β²/r (0 without shot noise), so X is
 // Σ_j Σ_t β_t(j)·P_t(j)·b_jᵀ with the prefix sums P_t(j) = Σ_{i<j} α_t(i)·b_i:
 // O(sep) work instead of O(sep²) kernels (TestCorrelatedMatchesDirect).
-func pairsSeparable(sp *noiseSpec, ch []noiseChannel, b []float64, np int, x *[5][5]float64) int {
+func pairsSeparable(sp *noiseSpec, ch []noiseChannel, b []float64, np int, x *[5][5]float64, maxGammaTau float64) int {
 	sep := 0
-	for sep < len(ch) && sp.gamma*ch[sep].tau <= sepMaxGammaTau {
+	for sep < len(ch) && sp.gamma*ch[sep].tau <= maxGammaTau {
 		sep++
 	}
 	be := sp.beta

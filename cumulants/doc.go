@@ -126,6 +126,14 @@
 // one rate instead of two (Γ̄(1 ± √PDI)) changed the standard error by
 // under 1 %.
 //
+// Result.ChannelNoise gives the same C, over the channels from a chosen
+// lag on, as a quadratic form v ↦ v'·C·v for linear functionals of the
+// data other than the fit's (the peaks of an inversion, in dls/batch): in
+// O(m), by the kernel's separable form up to Γ̄·τ = 40 and, beyond, by a
+// recurrence on the one term of the kernel that is left where g(τ)² <
+// 1e-34 (TestChannelNoiseQuadMatchesDirect checks it against the direct
+// double sum).
+//
 // TruncationBias estimates, from a lognormal model, how far truncating the
 // series at second order moves Γ̄ of a broad sample (see its
 // documentation); package dls/uncert takes it as a Type B input.

@@ -1,0 +1,234 @@
+package cumulants
+
+import (
+	"fmt"
+	"math"
+)
+
+// ChannelNoise is the covariance of a correlogram's channel noise under
+// the correlator model that CorrelatedErrors uses (Schätzel 1990: one
+// decay rate Γ̄, speckle, fourth cumulant, monitor normalisation and shot
+// noise), C = D·R·D over the channels from a first lag on, in the units of
+// the data: what a functional of the data that is linear in it (the
+// peaks of an inversion, say) needs for its variance v'·C·v. It is not
+// safe for concurrent use.
+type ChannelNoise struct {
+	// Basis says where D comes from: BasisSigma, BasisModel or BasisTail,
+	// as for CorrelatedErrors.
+	Basis string
+
+	sp          noiseSpec
+	kc          kernelConsts
+	ch          []noiseChannel
+	kd, f, step []float64    // kernel diagonal, D/√kd, exp(−Γ·Δτ) to the channel before
+	b           []float64    // scratch of Quad
+	bt, al      [][6]float64 // separable kernel terms of the channels with Γ·τ ≤ quadSepGammaTau
+	deep        int          // first channel with Γ·τ > deepGammaTau (m: none)
+}
+
+// ChannelNoise returns the channel-noise covariance of the data that r
+// was fitted to (tau all lags, as for Fit), over the channels from..end.
+// D is the σ given with the data; else the model's lattice variances for
+// the stated duration and count rate; else those of the model without a
+// duration, scaled to the residuals of the far channels (as
+// CorrelatedErrors). Errors wrap ErrNoCorrelated.
+func (r *Result) ChannelNoise(tau []float64, kind Kind, acq Acquisition, from int) (*ChannelNoise, error) {
+	n := len(tau)
+	switch {
+	case kind == G1:
+		return nil, fmt.Errorf("%w for g1 data", ErrNoCorrelated)
+	case !(r.GammaPerS > 0) || !(r.Intercept > 0):
+		return nil, fmt.Errorf("%w: no positive decay rate and intercept", ErrNoCorrelated)
+	case from < 0 || from >= n || len(r.Sigma) != n || len(r.Residuals) != n:
+		return nil, fmt.Errorf("%w: channels %d… of %d lags", ErrNoCorrelated, from, n)
+	case !(acq.DurationS >= 0) || !(acq.CountRateHz >= 0) || math.IsInf(acq.DurationS, 0) || math.IsInf(acq.CountRateHz, 0):
+		return nil, fmt.Errorf("%w: duration %g s or count rate %g /s is not a non-negative number", ErrNoCorrelated, acq.DurationS, acq.CountRateHz)
+	}
+	level := r.Baseline
+	if kind == G2Minus1 {
+		level = 1 + r.Baseline
+	}
+	if !(level > 0) {
+		return nil, fmt.Errorf("%w: baseline level %g is not positive", ErrNoCorrelated, level)
+	}
+	beta := math.Min(r.Intercept/level, 1)
+	cn := &ChannelNoise{sp: noiseSpec{gamma: r.GammaPerS, beta: beta, rate: acq.CountRateHz}}
+	sp := &cn.sp
+	dts := make([]float64, n)
+	ks := make([]int, n)
+	sampleTimesTo(tau, dts, ks)
+	// lattice variance of channel c for a duration durS (0: per second).
+	lats := map[int64]*noiseLattice{}
+	modelSD := func(c int, durS float64) float64 {
+		key := int64(math.Round(math.Log2(dts[c]) * 1e9))
+		l := lats[key]
+		if l == nil {
+			l = newNoiseLattice(sp, dts[c])
+			lats[key] = l
+		}
+		nn := 1 / dts[c]
+		if durS > 0 {
+			nn = math.Max(1, (durS-tau[c])/dts[c])
+		}
+		return level * math.Sqrt(l.variance(ks[c], beta, acq.CountRateHz*dts[c], nn))
+	}
+	m := n - from
+	d := make([]float64, m)
+	switch {
+	case !r.SigmaEstimated:
+		cn.Basis = BasisSigma
+		copy(d, r.Sigma[from:])
+	case acq.DurationS > 0 && acq.CountRateHz > 0:
+		cn.Basis = BasisModel
+		for i := range d {
+			d[i] = modelSD(from+i, acq.DurationS)
+		}
+	case r.farFitted:
+		cn.Basis = BasisTail
+		idx := fitChannels(r.FitFirst, r.FitLast, n, r.tailN, r.farFitted)
+		ss, nt := 0.0, 0
+		for _, c := range idx {
+			if c > r.FitLast {
+				if sd := modelSD(c, 0); sd > 0 {
+					z := r.Residuals[c] / sd
+					ss += z * z
+					nt++
+				}
+			}
+		}
+		if nt < 5 || !(ss > 0) {
+			return nil, fmt.Errorf("%w: duration_s not given and too few far channels to scale the noise model", ErrNoCorrelated)
+		}
+		f := math.Sqrt(ss / float64(nt-1))
+		for i := range d {
+			d[i] = f * modelSD(from+i, 0)
+		}
+	default:
+		return nil, fmt.Errorf("%w: the duration is not given and the baseline not reached", ErrNoCorrelated)
+	}
+	cn.kc = sp.consts()
+	cn.ch = make([]noiseChannel, m)
+	cn.kd, cn.f, cn.step, cn.b = make([]float64, m), make([]float64, m), make([]float64, m), make([]float64, m)
+	for i := range m {
+		cn.ch[i] = sp.channel(tau[from+i], dts[from+i])
+		cn.kd[i] = cn.kc.kernel(&cn.ch[i], &cn.ch[i], 1) + cn.ch[i].shot
+		if cn.kd[i] > 0 {
+			cn.f[i] = d[i] / math.Sqrt(cn.kd[i])
+		}
+		if i > 0 {
+			cn.step[i] = math.Exp(-sp.gamma * (cn.ch[i].tau - cn.ch[i-1].tau))
+		}
+	}
+	cn.sepCoef()
+	cn.deep = m
+	for i := range m {
+		if sp.gamma*cn.ch[i].tau > deepGammaTau {
+			cn.deep = i
+			break
+		}
+	}
+	return cn, nil
+}
+
+// sepCoef sets the factors of pairsSeparable's six separable terms for
+// each channel up to Γ·τ = quadSepGammaTau: the row factors β_t(j) and the
+// column factors α_t(i) of its prefix sums, in its order of operations.
+func (cn *ChannelNoise) sepCoef() {
+	sp := &cn.sp
+	be := sp.beta
+	b2 := be * be
+	b3 := b2 * be
+	ih := 1 / sp.gamma
+	var c1, c2 float64
+	if r := sp.rate; r > 0 {
+		c1, c2 = 2*be/r, 4*b2/r
+	}
+	k3 := b2*ih/2 - 3*b3*ih + c1
+	cn.bt, cn.al = cn.bt[:0], cn.al[:0]
+	for j := range cn.ch {
+		c := &cn.ch[j]
+		if sp.gamma*c.tau > quadSepGammaTau {
+			break
+		}
+		cn.bt = append(cn.bt, [6]float64{
+			c.G * (b2*c.tau + b2*ih/2 + c1), -b2 * c.G,
+			c.G * (4*b3*(c.tau+ih) + c2), -4 * b3 * c.G,
+			c.G * ((b2-2*b3)*c.tau + k3), (b2 - 2*b3) * c.G,
+		})
+		iG := 1 / c.G
+		cn.al = append(cn.al, [6]float64{iG, c.tau * iG, 1, c.tau, c.G, c.G * c.tau})
+	}
+}
+
+// deepGammaTau is the Γ·τ beyond which Quad sums a channel's pairs by its
+// recurrence (g(τ) = exp(−Γτ) < 1e-17 there), and quadSepGammaTau the Γ·τ
+// up to which it sums them through the separable kernel. Variables only so
+// that tests can move them.
+var (
+	deepGammaTau    = 40.0
+	quadSepGammaTau = 40.0
+)
+
+// Quad returns v'·C·v for v over the channels (len: the number of
+// channels from the first lag asked for), in O(m). Pairs of channels with
+// Γ·τ ≤ 40 are summed through the separable form of the kernel, as in
+// CorrelatedErrors (there up to Γ·τ = 20: from 40 the prefix sums'
+// differences keep about 14 digits rather than 15). Beyond Γ·τ = 40 every
+// term of the kernel of a pair (i < j) but one carries G_j = g(τj)² <
+// 1e-34, so the row takes that one, E²·(β²·(τj − τi + 1/(2Γ)) + 2β/r) with
+// E = exp(−Γ·(τj − τi)), by a recurrence along the lags over every
+// channel before it.
+func (cn *ChannelNoise) Quad(v []float64) float64 {
+	m := len(cn.ch)
+	if len(v) != m {
+		panic("cumulants: ChannelNoise.Quad: vector length differs from the channels")
+	}
+	b := cn.b
+	diag := 0.0
+	for i, x := range v {
+		b[i] = x * cn.f[i]
+		diag += cn.kd[i] * b[i] * b[i]
+	}
+	// pairsSeparable for one column, with its coefficients of each
+	// channel computed once (sepCoef).
+	sep := len(cn.al)
+	off := 0.0
+	var pre [6]float64
+	for j := range sep {
+		bt, al := &cn.bt[j], &cn.al[j]
+		if j > 0 {
+			v := 0.0
+			for t, f := range bt {
+				v += f * pre[t]
+			}
+			off += v * b[j]
+		}
+		for t, f := range al {
+			pre[t] += f * b[j]
+		}
+	}
+	// Channels the separable sums leave (only when quadSepGammaTau is moved
+	// below deepGammaTau, as the tests do): one kernel per pair.
+	ts := max(cn.deep, sep)
+	for j := sep; j < ts; j++ {
+		acc, eu := 0.0, 1.0
+		for i := j - 1; i >= 0; i-- {
+			eu *= cn.step[i+1]
+			acc += cn.kc.kernel(&cn.ch[i], &cn.ch[j], eu) * b[i]
+		}
+		off += acc * b[j]
+	}
+	b2 := cn.sp.beta * cn.sp.beta
+	ih2 := 1 / (2 * cn.sp.gamma)
+	c1 := cn.kc.twoBR
+	var s0, s1 float64 // Σ_{i<j} E_ij²·b_i and E_ij²·τ_i·b_i
+	for j := 1; j < m; j++ {
+		q := cn.step[j] * cn.step[j]
+		s0 = q * (s0 + b[j-1])
+		s1 = q * (s1 + cn.ch[j-1].tau*b[j-1])
+		if j >= ts {
+			off += b[j] * ((b2*(cn.ch[j].tau+ih2)+c1)*s0 - b2*s1)
+		}
+	}
+	return diag + 2*off
+}
