@@ -7,10 +7,17 @@ import (
 	"gonum.org/v1/gonum/mat"
 )
 
-// DefaultPeakMinZ is the default of PeakSettings.MinZ: a peak is reported
-// only when its share is at least four times its standard uncertainty
-// (the choice is explained in the package documentation).
+// DefaultPeakMinZ is the default of PeakSettings.MinZ for uncertainties
+// from the residuals (Sensitivity without Noise): a peak is reported only
+// when its share is at least four times its standard uncertainty, which
+// leans low (the choice is explained in the package documentation).
 const DefaultPeakMinZ = 4
+
+// DefaultPeakMinZNoise is the default of PeakSettings.MinZ for
+// uncertainties from a noise covariance of the data (Sensitivity.Noise):
+// 2.5 standard uncertainties (the choice is explained in the package
+// documentation).
+const DefaultPeakMinZNoise = 2.5
 
 // Significant reports whether a peak holding the share fraction, with
 // standard uncertainty u of that share, is significant under s (nil: the
@@ -66,11 +73,17 @@ func Significant(fraction, u float64, s *PeakSettings) bool {
 // it (PeakSettings.MinZ) was set on photon-level simulations (see the
 // package documentation).
 type Sensitivity struct {
+	// Noise, when set, gives g'·C·g for the covariance C of the data's
+	// noise (over the lags, in the units of the data) and a vector g, and
+	// StdDev uses it instead of the residuals' Bartlett estimate.
+	Noise func(g []float64) float64
+
 	g     *Grid
 	pas   []int // passive rates, then g.n for a free baseline
 	chol  mat.Cholesky
 	w, e  []float64
 	block int
+	rho   float64 // lag-one autocorrelation of the standardised residuals
 }
 
 // NewSensitivity returns the sensitivity of res, the chosen solution of an
@@ -130,13 +143,21 @@ func NewSensitivity(g *Grid, res *Result, sigma []float64, s *Settings) (*Sensit
 	if !sv.chol.Factorize(h) {
 		return nil, fmt.Errorf("contin: sensitivity: H of %d passive columns is not positive definite: %w", p, ErrIllConditioned)
 	}
-	sv.block = blockLength(res.Residuals, sv.w)
+	sv.block, sv.rho = blockLength(res.Residuals, sv.w)
 	return sv, nil
 }
 
+// ResidualCorrelation returns the lag-one autocorrelation of the chosen
+// solution's standardised residuals e_i/σ_i (not clipped): about 0 for
+// noise independent from lag to lag, and well above it for a
+// correlator's (whose neighbouring channels share most of their noise; the
+// fit absorbs part of it).
+func (s *Sensitivity) ResidualCorrelation() float64 { return s.rho }
+
 // blockLength returns b = L + 1 of the Bartlett kernel (Andrews 1991, AR(1)
-// plug-in) from the lag-one autocorrelation of the standardised residuals.
-func blockLength(e, w []float64) int {
+// plug-in) from the lag-one autocorrelation of the standardised residuals,
+// and that autocorrelation.
+func blockLength(e, w []float64) (int, float64) {
 	var s0, s1 float64
 	m := 0
 	prev, have := 0.0, false
@@ -153,14 +174,28 @@ func blockLength(e, w []float64) int {
 		prev, have = z, true
 		m++
 	}
-	rho := 0.0
+	raw := 0.0
 	if s0 > 0 {
-		rho = math.Min(math.Max(s1/s0, 0), 0.98)
+		raw = s1 / s0
 	}
+	rho := math.Min(math.Max(raw, 0), 0.98)
 	a := 4 * rho * rho / ((1 - rho) * (1 - rho) * (1 + rho) * (1 + rho))
 	l := 1.1447 * math.Cbrt(a*float64(m))
 	l = math.Min(l, float64(m)/2)
-	return int(math.Floor(l)) + 1
+	return int(math.Floor(l)) + 1, raw
+}
+
+// MinZ returns the significance threshold for this sensitivity's
+// uncertainties under s (nil: the defaults): s.MinZ when set, else
+// DefaultPeakMinZNoise with Noise and DefaultPeakMinZ without.
+func (s *Sensitivity) MinZ(ps *PeakSettings) float64 {
+	switch {
+	case ps != nil && ps.MinZ != 0:
+		return ps.MinZ
+	case s != nil && s.Noise != nil:
+		return DefaultPeakMinZNoise
+	}
+	return DefaultPeakMinZ
 }
 
 // BlockLength returns the number of lags b of the Bartlett kernel (the
@@ -200,6 +235,12 @@ func (s *Sensitivity) StdDev(c []float64) float64 {
 		for i, x := range col {
 			v[i] += tj * x
 		}
+	}
+	if s.Noise != nil {
+		for i := range v {
+			v[i] *= s.w[i]
+		}
+		return math.Sqrt(math.Max(0, s.Noise(v)))
 	}
 	for i := range v {
 		v[i] *= s.w[i] * s.e[i]

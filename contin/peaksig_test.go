@@ -79,15 +79,19 @@ func TestBlockLength(t *testing.T) {
 		prev = 0.8*prev + math.Sqrt(1-0.64)*r.NormFloat64()
 		ar[i] = prev
 	}
-	if b := blockLength(white, w); b > 3 {
-		t.Errorf("white noise: block %d, want about 1", b)
+	// The lag-one autocorrelation it returns: within 3 standard errors
+	// (1/√m = 0.016) of 0 for white noise and of 0.8 for the AR(1) series
+	// (its standard error √((1−ρ²)/m) = 0.0095), −1 for the alternating one.
+	if b, rho := blockLength(white, w); b > 3 || math.Abs(rho) > 0.05 {
+		t.Errorf("white noise: block %d, ρ %.3f; want about 1 and 0", b, rho)
 	}
-	if b := blockLength(alt, w); b != 1 {
-		t.Errorf("alternating series: block %d, want 1", b)
+	if b, rho := blockLength(alt, w); b != 1 || math.Abs(rho+1) > 1e-3 {
+		t.Errorf("alternating series: block %d, ρ %.4f; want 1 and −1", b, rho)
 	}
 	want := 1 + 1.1447*math.Cbrt(4*0.64/(0.04*3.24)*m)
-	if b := float64(blockLength(ar, w)); math.Abs(b/want-1) > 0.15 {
-		t.Errorf("AR(1) 0.8: block %g, want %.1f ± 15 %%", b, want)
+	b, rho := blockLength(ar, w)
+	if math.Abs(float64(b)/want-1) > 0.15 || math.Abs(rho-0.8) > 0.03 {
+		t.Errorf("AR(1) 0.8: block %d, ρ %.3f; want %.1f ± 15 %% and 0.8 ± 0.03", b, rho, want)
 	}
 }
 
