@@ -131,6 +131,12 @@ type DistSummary struct {
 	// to the correlogram's units, over the cumulant fit's range: comparable
 	// with FitRMS.
 	DistFitRMS float64 `json:"dist_fit_rms"`
+	// PeakNoise is the noise covariance the peaks' uncertainties (and so
+	// their significance) were computed with: "correlator model (model)",
+	// "correlator model (sigma)", "correlator model (tail)" (see
+	// cumulants.ChannelNoise) or "residuals" (contin.Sensitivity's
+	// Bartlett estimate, where no model applies).
+	PeakNoise string `json:"peak_noise"`
 	// Intensity, Volume and Number summarise each weighting: peaks by
 	// decreasing area, percentiles and mean.
 	Intensity *WeightSummary `json:"intensity,omitempty"`

@@ -18,9 +18,11 @@ import (
 // the standard uncertainties of its share and mean diameter (0 without
 // sens).
 func summariseWeightings(d *sizedist.Distribution, amp []float64, sens *contin.Sensitivity, ps *contin.PeakSettings) (in, vol, num *dls.WeightSummary) {
+	sig := *ps
+	sig.MinZ = sens.MinZ(ps) // the threshold that goes with sens's uncertainties
 	in = summarise(d, d.Intensity, ps, func(p contin.Peak) (bool, float64, float64) {
 		uA, uM := peakNoise(d, d.Intensity, nil, amp, sens, p)
-		return sens == nil || contin.Significant(p.Fraction, uA, ps), uA, uM
+		return sens == nil || contin.Significant(p.Fraction, uA, &sig), uA, uM
 	})
 	keepPeaks(d, in)
 	kept := make([]bool, len(d.DiameterNm))
@@ -142,9 +144,19 @@ func summarise(d *sizedist.Distribution, w []float64, ps *contin.PeakSettings, j
 	if sw > 0 {
 		ws.MeanNm = swd / sw
 	}
-	for _, p := range contin.Peaks(d.DiameterNm, w, ps) {
+	cand := contin.Peaks(d.DiameterNm, w, ps)
+	// The largest candidate always stands: the test asks whether a peak
+	// is more than noise beside the rest, and the distribution's main
+	// population is not in question.
+	main := -1
+	for i, p := range cand {
+		if main < 0 || p.Fraction > cand[main].Fraction {
+			main = i
+		}
+	}
+	for i, p := range cand {
 		keep, uFrac, uMean := judge(p)
-		if !keep {
+		if !keep && i != main {
 			ws.InsignificantPct += 100 * p.Fraction
 			continue
 		}
