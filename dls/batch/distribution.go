@@ -266,8 +266,8 @@ func distribution(m *dls.Measurement, fit *cumulants.Result, st state, meta dls.
 // overstate the noise of every smooth functional and drop real peaks.
 // Measured (standardised residuals of the second pass): independent
 // Gaussian noise, 160 runs, median 0.00, 95th percentile 0.11, largest
-// 0.23; photon-level runs of nine conditions (1,000 runs), medians
-// 0.26–0.45, 3–28 % of them below 0.2 (these keep the residual-based
+// 0.23; photon-level runs of eight conditions (730 runs), medians
+// 0.26–0.45, 2–28 % of them below 0.2 (these keep the residual-based
 // uncertainty and its threshold).
 var minCorrelatorRho = 0.2 // a variable only so that tests can switch the model off
 
