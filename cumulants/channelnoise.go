@@ -31,27 +31,17 @@ type ChannelNoise struct {
 // D is the σ given with the data; else the model's lattice variances for
 // the stated duration and count rate; else those of the model without a
 // duration, scaled to the residuals of the far channels (as
-// CorrelatedErrors). Errors wrap ErrNoCorrelated.
+// CorrelatedErrors). Like CorrelatedErrors it covers the nonlinear fit of
+// g2 or g2 − 1 data; errors wrap ErrNoCorrelated.
 func (r *Result) ChannelNoise(tau []float64, kind Kind, acq Acquisition, from int) (*ChannelNoise, error) {
 	n := len(tau)
-	switch {
-	case kind == G1:
-		return nil, fmt.Errorf("%w for g1 data", ErrNoCorrelated)
-	case !(r.GammaPerS > 0) || !(r.Intercept > 0):
-		return nil, fmt.Errorf("%w: no positive decay rate and intercept", ErrNoCorrelated)
-	case from < 0 || from >= n || len(r.Sigma) != n || len(r.Residuals) != n:
+	if from < 0 || from >= n || len(r.Sigma) != n || len(r.Residuals) != n {
 		return nil, fmt.Errorf("%w: channels %d… of %d lags", ErrNoCorrelated, from, n)
-	case !(acq.DurationS >= 0) || !(acq.CountRateHz >= 0) || math.IsInf(acq.DurationS, 0) || math.IsInf(acq.CountRateHz, 0):
-		return nil, fmt.Errorf("%w: duration %g s or count rate %g /s is not a non-negative number", ErrNoCorrelated, acq.DurationS, acq.CountRateHz)
 	}
-	level := r.Baseline
-	if kind == G2Minus1 {
-		level = 1 + r.Baseline
+	level, beta, err := r.noiseLevel(kind, acq)
+	if err != nil {
+		return nil, err
 	}
-	if !(level > 0) {
-		return nil, fmt.Errorf("%w: baseline level %g is not positive", ErrNoCorrelated, level)
-	}
-	beta := math.Min(r.Intercept/level, 1)
 	cn := &ChannelNoise{sp: noiseSpec{gamma: r.GammaPerS, beta: beta, rate: acq.CountRateHz}}
 	sp := &cn.sp
 	dts := make([]float64, n)

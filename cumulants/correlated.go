@@ -81,28 +81,38 @@ func FitCorrelated(tau, y, sigma []float64, kind Kind, s *Settings, acq Acquisit
 	return res, nil
 }
 
-// correlated computes the standard errors under the correlator noise model.
-func (r *Result) correlated(tau []float64, kind Kind, acq Acquisition) (*CorrelatedErrors, error) {
+// noiseLevel checks that the correlator noise model applies to the fit r
+// of data of kind with acquisition acq, and returns the baseline level
+// the noise of g2 scales with and the coherence factor relative to it.
+func (r *Result) noiseLevel(kind Kind, acq Acquisition) (level, beta float64, err error) {
 	switch {
 	case r.Method != Nonlinear:
-		return nil, fmt.Errorf("%w for the %s method", ErrNoCorrelated, r.Method)
+		return 0, 0, fmt.Errorf("%w for the %s method", ErrNoCorrelated, r.Method)
 	case kind == G1:
-		return nil, fmt.Errorf("%w for g1 data", ErrNoCorrelated)
+		return 0, 0, fmt.Errorf("%w for g1 data", ErrNoCorrelated)
 	case !(r.GammaPerS > 0) || !(r.Intercept > 0):
-		return nil, fmt.Errorf("%w: no positive decay rate and intercept", ErrNoCorrelated)
+		return 0, 0, fmt.Errorf("%w: no positive decay rate and intercept", ErrNoCorrelated)
 	}
 	if !(acq.DurationS >= 0) || !(acq.CountRateHz >= 0) || math.IsInf(acq.DurationS, 0) || math.IsInf(acq.CountRateHz, 0) {
-		return nil, fmt.Errorf("%w: duration %g s or count rate %g /s is not a non-negative number", ErrNoCorrelated, acq.DurationS, acq.CountRateHz)
+		return 0, 0, fmt.Errorf("%w: duration %g s or count rate %g /s is not a non-negative number", ErrNoCorrelated, acq.DurationS, acq.CountRateHz)
 	}
 	// The noise of g2 scales with its baseline level.
-	level := r.Baseline
+	level = r.Baseline
 	if kind == G2Minus1 {
 		level = 1 + r.Baseline
 	}
 	if !(level > 0) {
-		return nil, fmt.Errorf("%w: baseline level %g is not positive", ErrNoCorrelated, level)
+		return 0, 0, fmt.Errorf("%w: baseline level %g is not positive", ErrNoCorrelated, level)
 	}
-	beta := math.Min(r.Intercept/level, 1)
+	return level, math.Min(r.Intercept/level, 1), nil
+}
+
+// correlated computes the standard errors under the correlator noise model.
+func (r *Result) correlated(tau []float64, kind Kind, acq Acquisition) (*CorrelatedErrors, error) {
+	level, beta, err := r.noiseLevel(kind, acq)
+	if err != nil {
+		return nil, err
+	}
 	sp := &noiseSpec{gamma: r.GammaPerS, beta: beta, rate: acq.CountRateHz}
 	idx := fitChannels(r.FitFirst, r.FitLast, len(tau), r.tailN, r.farFitted)
 	m := len(idx)

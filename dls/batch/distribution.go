@@ -286,9 +286,6 @@ var minCorrelatorRho = 0.2 // a variable only so that tests can switch the model
 // 150 runs of 100 nm at 173° and 40 of 200 nm at 90°); with this one
 // the rms z was 1.19 and 1.10 (DEVELOPERS.md, "Peaks you can believe").
 func correlatorNoise(m *dls.Measurement, fit *cumulants.Result, first int, sigmaY, sg []float64, acq cumulants.Acquisition) (func([]float64) float64, string) {
-	if fit.Method != cumulants.Nonlinear {
-		return nil, ""
-	}
 	kind := cumulants.G2
 	switch m.Kind {
 	case dls.KindG2m1:
