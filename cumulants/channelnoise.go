@@ -76,20 +76,10 @@ func (r *Result) ChannelNoise(tau []float64, kind Kind, acq Acquisition, from in
 	case r.farFitted:
 		cn.Basis = BasisTail
 		idx := fitChannels(r.FitFirst, r.FitLast, n, r.tailN, r.farFitted)
-		ss, nt := 0.0, 0
-		for _, c := range idx {
-			if c > r.FitLast {
-				if sd := modelSD(c, 0); sd > 0 {
-					z := r.Residuals[c] / sd
-					ss += z * z
-					nt++
-				}
-			}
+		f, _, err := r.tailScale(idx, func(i int) float64 { return modelSD(idx[i], 0) })
+		if err != nil {
+			return nil, err
 		}
-		if nt < 5 || !(ss > 0) {
-			return nil, fmt.Errorf("%w: duration_s not given and too few far channels to scale the noise model", ErrNoCorrelated)
-		}
-		f := math.Sqrt(ss / float64(nt-1))
 		for i := range d {
 			d[i] = f * modelSD(from+i, 0)
 		}
@@ -124,29 +114,15 @@ func (r *Result) ChannelNoise(tau []float64, kind Kind, acq Acquisition, from in
 // each channel up to Γ·τ = quadSepGammaTau: the row factors β_t(j) and the
 // column factors α_t(i) of its prefix sums, in its order of operations.
 func (cn *ChannelNoise) sepCoef() {
-	sp := &cn.sp
-	be := sp.beta
-	b2 := be * be
-	b3 := b2 * be
-	ih := 1 / sp.gamma
-	var c1, c2 float64
-	if r := sp.rate; r > 0 {
-		c1, c2 = 2*be/r, 4*b2/r
-	}
-	k3 := b2*ih/2 - 3*b3*ih + c1
+	sf := cn.sp.sepFactors()
 	cn.bt, cn.al = cn.bt[:0], cn.al[:0]
 	for j := range cn.ch {
 		c := &cn.ch[j]
-		if sp.gamma*c.tau > quadSepGammaTau {
+		if cn.sp.gamma*c.tau > quadSepGammaTau {
 			break
 		}
-		cn.bt = append(cn.bt, [6]float64{
-			c.G * (b2*c.tau + b2*ih/2 + c1), -b2 * c.G,
-			c.G * (4*b3*(c.tau+ih) + c2), -4 * b3 * c.G,
-			c.G * ((b2-2*b3)*c.tau + k3), (b2 - 2*b3) * c.G,
-		})
-		iG := 1 / c.G
-		cn.al = append(cn.al, [6]float64{iG, c.tau * iG, 1, c.tau, c.G, c.G * c.tau})
+		cn.bt = append(cn.bt, sf.row(c))
+		cn.al = append(cn.al, sf.col(c))
 	}
 }
 
@@ -179,8 +155,8 @@ func (cn *ChannelNoise) Quad(v []float64) float64 {
 		b[i] = x * cn.f[i]
 		diag += cn.kd[i] * b[i] * b[i]
 	}
-	// pairsSeparable for one column, with its coefficients of each
-	// channel computed once (sepCoef).
+	// pairsSeparable's sums for one column, with each channel's factors
+	// computed once (sepCoef).
 	sep := len(cn.al)
 	off := 0.0
 	var pre [6]float64

@@ -107,6 +107,28 @@ func (r *Result) noiseLevel(kind Kind, acq Acquisition) (level, beta float64, er
 	return level, math.Min(r.Intercept/level, 1), nil
 }
 
+// tailScale returns the factor that scales the model's standard deviations
+// (without a duration) to the residuals of the far channels, those of the
+// fitted channels idx beyond r.FitLast (sd(i): the model's σ of idx[i]),
+// and the number of far channels it rests on.
+func (r *Result) tailScale(idx []int, sd func(i int) float64) (f float64, nt int, err error) {
+	ss := 0.0
+	for i, c := range idx {
+		if c <= r.FitLast {
+			continue
+		}
+		if s := sd(i); s > 0 {
+			z := r.Residuals[c] / s
+			ss += z * z
+			nt++
+		}
+	}
+	if nt < 5 || !(ss > 0) {
+		return 0, 0, fmt.Errorf("%w: duration_s not given and too few far channels to scale the noise model", ErrNoCorrelated)
+	}
+	return math.Sqrt(ss / float64(nt-1)), nt, nil
+}
+
 // correlated computes the standard errors under the correlator noise model.
 func (r *Result) correlated(tau []float64, kind Kind, acq Acquisition) (*CorrelatedErrors, error) {
 	level, beta, err := r.noiseLevel(kind, acq)
@@ -165,18 +187,10 @@ func (r *Result) correlated(tau []float64, kind Kind, acq Acquisition) (*Correla
 		// so their residuals fix the scale 1/T of the model's variances.
 		basis = BasisTail
 		model(0)
-		ss, nt := 0.0, 0
-		for i, c := range idx {
-			if c > r.FitLast && d[i] > 0 {
-				z := r.Residuals[c] / d[i]
-				ss += z * z
-				nt++
-			}
+		f, nt, err := r.tailScale(idx, func(i int) float64 { return d[i] })
+		if err != nil {
+			return nil, err
 		}
-		if nt < 5 || !(ss > 0) {
-			return nil, fmt.Errorf("%w: duration_s not given and too few far channels to scale the noise model", ErrNoCorrelated)
-		}
-		f := math.Sqrt(ss / float64(nt-1))
 		for i := range d {
 			d[i] *= f
 		}
@@ -252,7 +266,7 @@ func (r *Result) correlated(tau []float64, kind Kind, acq Acquisition) (*Correla
 			}
 		}
 	}
-	sep := pairsSeparable(sp, ch, b, np, &x, sepMaxGammaTau)
+	sep := pairsSeparable(sp, ch, b, np, &x)
 	// The pairs (i, j) with i < j and j ≥ sep, one kernel each:
 	// E_|τj−τi| = exp(−Γ·(τj − τi)) is the product of the factors between
 	// neighbouring channels (the lags increase). Every term of the kernel
@@ -326,7 +340,7 @@ func (r *Result) correlated(tau []float64, kind Kind, acq Acquisition) (*Correla
 var sepMaxGammaTau = 20.0
 
 // pairsSeparable adds to x the pair sum X = Σ_{i<j<sep} R̃_ij·b_i·b_jᵀ over
-// the first sep channels (those with Γ·τ ≤ maxGammaTau; ch by
+// the first sep channels (those with Γ·τ ≤ sepMaxGammaTau; ch by
 // increasing lag, b rows of np) and returns sep. For τi < τj the kernel
 // (noiseSpec.kernel, with E = g_j/g_i, G = g², g_i·g_j·E = G_j and
 // min(G_i, G_j) = G_j) is a sum of six products of a function of i and
@@ -339,30 +353,18 @@ var sepMaxGammaTau = 20.0
 // with c1 = 2β/r and c2 = 4β²/r (0 without shot noise), so X is
 // Σ_j Σ_t β_t(j)·P_t(j)·b_jᵀ with the prefix sums P_t(j) = Σ_{i<j} α_t(i)·b_i:
 // O(sep) work instead of O(sep²) kernels (TestCorrelatedMatchesDirect).
-func pairsSeparable(sp *noiseSpec, ch []noiseChannel, b []float64, np int, x *[5][5]float64, maxGammaTau float64) int {
+func pairsSeparable(sp *noiseSpec, ch []noiseChannel, b []float64, np int, x *[5][5]float64) int {
 	sep := 0
-	for sep < len(ch) && sp.gamma*ch[sep].tau <= maxGammaTau {
+	for sep < len(ch) && sp.gamma*ch[sep].tau <= sepMaxGammaTau {
 		sep++
 	}
-	be := sp.beta
-	b2 := be * be
-	b3 := b2 * be
-	ih := 1 / sp.gamma
-	var c1, c2 float64
-	if r := sp.rate; r > 0 {
-		c1, c2 = 2*be/r, 4*b2/r
-	}
-	k3 := b2*ih/2 - 3*b3*ih + c1
+	sf := sp.sepFactors()
 	var pre [6][5]float64
 	for j := range sep {
 		c := &ch[j]
 		bj := b[j*np : (j+1)*np]
 		if j > 0 {
-			bt := [6]float64{
-				c.G * (b2*c.tau + b2*ih/2 + c1), -b2 * c.G,
-				c.G * (4*b3*(c.tau+ih) + c2), -4 * b3 * c.G,
-				c.G * ((b2-2*b3)*c.tau + k3), (b2 - 2*b3) * c.G,
-			}
+			bt := sf.row(c)
 			var v [5]float64
 			for t, f := range bt {
 				for p := range np {
@@ -375,15 +377,46 @@ func pairsSeparable(sp *noiseSpec, ch []noiseChannel, b []float64, np int, x *[5
 				}
 			}
 		}
-		iG := 1 / c.G
-		al := [6]float64{iG, c.tau * iG, 1, c.tau, c.G, c.G * c.tau}
-		for t, f := range al {
+		for t, f := range sf.col(c) {
 			for p := range np {
 				pre[t][p] += f * bj[p]
 			}
 		}
 	}
 	return sep
+}
+
+// sepFactors are the constants of the separable form of the kernel (see
+// pairsSeparable): β², β³, 1/Γ, 2β/r, 4β²/r and the constant of the
+// third term.
+type sepFactors struct{ b2, b3, ih, c1, c2, k3 float64 }
+
+func (sp *noiseSpec) sepFactors() sepFactors {
+	be := sp.beta
+	b2 := be * be
+	b3 := b2 * be
+	ih := 1 / sp.gamma
+	var c1, c2 float64
+	if r := sp.rate; r > 0 {
+		c1, c2 = 2*be/r, 4*b2/r
+	}
+	return sepFactors{b2: b2, b3: b3, ih: ih, c1: c1, c2: c2, k3: b2*ih/2 - 3*b3*ih + c1}
+}
+
+// row returns the factors β_t(j) of channel j's row in the six terms.
+func (f *sepFactors) row(c *noiseChannel) [6]float64 {
+	b2, b3, ih := f.b2, f.b3, f.ih
+	return [6]float64{
+		c.G * (b2*c.tau + b2*ih/2 + f.c1), -b2 * c.G,
+		c.G * (4*b3*(c.tau+ih) + f.c2), -4 * b3 * c.G,
+		c.G * ((b2-2*b3)*c.tau + f.k3), (b2 - 2*b3) * c.G,
+	}
+}
+
+// col returns the factors α_t(i) of channel i in the prefix sums.
+func (f *sepFactors) col(c *noiseChannel) [6]float64 {
+	iG := 1 / c.G
+	return [6]float64{iG, c.tau * iG, 1, c.tau, c.G, c.G * c.tau}
 }
 
 // corrWork is the scratch space of correlated, reused through corrPool:
