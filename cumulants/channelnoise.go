@@ -20,6 +20,7 @@ type ChannelNoise struct {
 	sp          noiseSpec
 	kc          kernelConsts
 	ch          []noiseChannel
+	sd          []float64    // D
 	kd, f, step []float64    // kernel diagonal, D/√kd, exp(−Γ·Δτ) to the channel before
 	b           []float64    // scratch of Quad
 	bt, al      [][6]float64 // separable kernel terms of the channels with Γ·τ ≤ quadSepGammaTau
@@ -86,6 +87,61 @@ func (r *Result) ChannelNoise(tau []float64, kind Kind, acq Acquisition, from in
 	default:
 		return nil, fmt.Errorf("%w: the duration is not given and the baseline not reached", ErrNoCorrelated)
 	}
+	cn.build(tau, dts, from, d)
+	return cn, nil
+}
+
+// NewChannelNoise returns the channel-noise covariance of the correlator
+// model with decay rate gammaPerS (1/s), coherence factor beta (relative
+// to the baseline, in (0, 1]) and count rate countRateHz (counts/s; 0: no
+// shot noise) for the lags tau (all of a correlogram's, as for Fit) over
+// the channels from…, whose standard deviations are sd (len(tau) − from
+// of them, non-negative, in any unit: the covariance is in that unit
+// squared). With the values Parameters returns, it rebuilds the
+// ChannelNoise of a fit exactly (TestNewChannelNoiseRebuilds): what a
+// later analysis of stored results needs, such as the noise of the mean
+// of several runs. Errors wrap ErrNoCorrelated.
+func NewChannelNoise(tau []float64, from int, gammaPerS, beta, countRateHz float64, sd []float64) (*ChannelNoise, error) {
+	n := len(tau)
+	switch {
+	case from < 0 || from >= n || len(sd) != n-from:
+		return nil, fmt.Errorf("%w: %d standard deviations for channels %d… of %d lags", ErrNoCorrelated, len(sd), from, n)
+	case !(gammaPerS > 0) || math.IsInf(gammaPerS, 0) || !(beta > 0 && beta <= 1) || !(countRateHz >= 0) || math.IsInf(countRateHz, 0):
+		return nil, fmt.Errorf("%w: decay rate %g 1/s, coherence factor %g, count rate %g /s", ErrNoCorrelated, gammaPerS, beta, countRateHz)
+	}
+	prev := 0.0
+	for i, t := range tau {
+		if !(t > prev) || math.IsInf(t, 0) {
+			return nil, fmt.Errorf("%w: lag %d (%g s) does not increase", ErrNoCorrelated, i, t)
+		}
+		prev = t
+	}
+	for i, v := range sd {
+		if !(v >= 0) || math.IsInf(v, 0) {
+			return nil, fmt.Errorf("%w: standard deviation %g at channel %d", ErrNoCorrelated, v, from+i)
+		}
+	}
+	dts := make([]float64, n)
+	ks := make([]int, n)
+	sampleTimesTo(tau, dts, ks)
+	cn := &ChannelNoise{sp: noiseSpec{gamma: gammaPerS, beta: beta, rate: countRateHz}}
+	cn.build(tau, dts, from, append([]float64(nil), sd...))
+	return cn, nil
+}
+
+// Parameters returns what the model was made of, for NewChannelNoise: the
+// decay rate (1/s), the coherence factor, the count rate (counts/s) and
+// the channels' standard deviations D (not to be modified).
+func (cn *ChannelNoise) Parameters() (gammaPerS, beta, countRateHz float64, sd []float64) {
+	return cn.sp.gamma, cn.sp.beta, cn.sp.rate, cn.sd
+}
+
+// build sets the kernel's channel terms for the lags tau (sample times
+// dts) from channel from on, with standard deviations d.
+func (cn *ChannelNoise) build(tau, dts []float64, from int, d []float64) {
+	sp := &cn.sp
+	m := len(d)
+	cn.sd = d
 	cn.kc = sp.consts()
 	cn.ch = make([]noiseChannel, m)
 	cn.kd, cn.f, cn.step, cn.b = make([]float64, m), make([]float64, m), make([]float64, m), make([]float64, m)
@@ -107,7 +163,6 @@ func (r *Result) ChannelNoise(tau []float64, kind Kind, acq Acquisition, from in
 			break
 		}
 	}
-	return cn, nil
 }
 
 // sepCoef sets the factors of pairsSeparable's six separable terms for
