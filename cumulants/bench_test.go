@@ -63,3 +63,37 @@ func BenchmarkFitCorrelated(b *testing.B) {
 		}
 	})
 }
+
+// BenchmarkChannelNoise builds the channel-noise model of a fit from its
+// first lag on (model and tail bases, 200 lags) and evaluates one
+// quadratic form, as a peak's uncertainty needs.
+func BenchmarkChannelNoise(b *testing.B) {
+	tau := multiTau(0.5e-6, 8, 200)
+	g1, _, _ := logNormalG1(tau, 2000, 0.15)
+	y := correlogram(g1, cumulants.G2, 0.9, 1, 1e-3, rand.New(rand.NewPCG(1, 1)))
+	r, err := cumulants.Fit(tau, y, nil, cumulants.G2, nil)
+	if err != nil {
+		b.Fatal(err)
+	}
+	v := make([]float64, len(tau)-r.FitFirst)
+	for i := range v {
+		v[i] = 1
+	}
+	for _, c := range []struct {
+		name string
+		acq  cumulants.Acquisition
+	}{{"model", cumulants.Acquisition{DurationS: 10, CountRateHz: 2e5}}, {"tail", cumulants.Acquisition{}}} {
+		b.Run(c.name, func(b *testing.B) {
+			b.ReportAllocs()
+			for b.Loop() {
+				cn, err := r.ChannelNoise(tau, cumulants.G2, c.acq, r.FitFirst)
+				if err != nil {
+					b.Fatal(err)
+				}
+				if !(cn.Quad(v) > 0) {
+					b.Fatal("form not positive")
+				}
+			}
+		})
+	}
+}

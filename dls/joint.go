@@ -23,6 +23,20 @@ type FieldRun struct {
 	// TauS, G1 and G1Sigma are the lags, field correlation and its σ of
 	// the channels the run's inversion used.
 	TauS, G1, G1Sigma []float64
+	// Noise is the run's correlator model of the noise of G1
+	// (SizeDistribution.NoiseModel), nil when the record has none or when
+	// the run's channels are not the contiguous lags the model describes.
+	Noise *FieldNoise
+}
+
+// FieldNoise is a run's correlator noise model over the channels of its
+// field run: NoiseModel's parameters, the model's σ of g1 at each of
+// TauS, and the lag before the first of them (0 for none), from which the
+// model takes the first channel's sample time.
+type FieldNoise struct {
+	GammaPerS, Beta, CountRatePerS float64
+	PrevLagS                       float64
+	G1Sigma                        []float64
 }
 
 // FieldRunOf returns the field run of r; nil when r has no size
@@ -47,6 +61,23 @@ func FieldRunOf(r *Result) *FieldRun {
 	if len(f.TauS) == 0 {
 		return nil
 	}
+	if nm := d.NoiseModel; nm != nil && len(nm.G1Sigma) == len(d.G1) {
+		// The model describes the lags from the inversion's first on,
+		// all of them: the field run must hold exactly those.
+		k0 := len(d.G1) - len(f.TauS)
+		contiguous := true
+		for _, s := range d.G1Sigma[k0:] {
+			contiguous = contiguous && s > 0
+		}
+		if contiguous {
+			fn := &FieldNoise{GammaPerS: nm.GammaPerS, Beta: nm.Beta, CountRatePerS: nm.CountRatePerS,
+				G1Sigma: append([]float64(nil), nm.G1Sigma[k0:]...)}
+			if k0 > 0 {
+				fn.PrevLagS = r.Curves.TauS[k0-1]
+			}
+			f.Noise = fn
+		}
+	}
 	return f
 }
 
@@ -64,6 +95,12 @@ type JointDistribution struct {
 	// angles, lag grids or optics, or the inversion's error); "" when there
 	// is one.
 	Note string `json:"note"`
+	// PeakNoise says where the peaks' uncertainties come from, as a run's
+	// peak_noise does: "correlator model (mean of the runs)" when every run
+	// kept its correlator model and the joint inversion's residuals are
+	// correlated from lag to lag, "residuals (independent from lag to
+	// lag)" when they are not, else "residuals".
+	PeakNoise string `json:"peak_noise"`
 	// Alpha, ProbReject and DegreesOfFreedom describe the chosen
 	// regularisation, as a run's alpha, prob_reject and dof do.
 	Alpha            float64 `json:"alpha"`

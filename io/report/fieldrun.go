@@ -15,6 +15,8 @@ import (
 //	            q, Γ̄, PDI
 //	uint32 n, then n float64 lags, n g1 values, n σ
 //	uint32 length, then the particle index text
+//	uint32 0 (no noise model), or n, then 4 float64 Γ, β, count rate,
+//	            previous lag, and the model's n σ of g1
 //
 // nil encodes as nothing.
 const fieldScalars = 8
@@ -35,7 +37,19 @@ func appendFieldRun(dst []byte, f *dls.FieldRun) []byte {
 		}
 	}
 	dst = binary.LittleEndian.AppendUint32(dst, uint32(len(f.ParticleRI)))
-	return append(dst, f.ParticleRI...)
+	dst = append(dst, f.ParticleRI...)
+	nz := f.Noise
+	if nz == nil || len(nz.G1Sigma) != len(f.TauS) {
+		return binary.LittleEndian.AppendUint32(dst, 0)
+	}
+	dst = binary.LittleEndian.AppendUint32(dst, uint32(len(nz.G1Sigma)))
+	for _, v := range [4]float64{nz.GammaPerS, nz.Beta, nz.CountRatePerS, nz.PrevLagS} {
+		dst = binary.LittleEndian.AppendUint64(dst, math.Float64bits(v))
+	}
+	for _, v := range nz.G1Sigma {
+		dst = binary.LittleEndian.AppendUint64(dst, math.Float64bits(v))
+	}
+	return dst
 }
 
 var errFieldRun = errors.New("field run: truncated or malformed")
@@ -78,9 +92,28 @@ func readFieldRun(b []byte) (*dls.FieldRun, error) {
 	}
 	f.TauS, f.G1, f.G1Sigma = all[:n:n], all[n:2*n:2*n], all[2*n:]
 	m, ok := u32()
-	if !ok || m != len(b) {
+	if !ok || m > len(b) {
 		return nil, errFieldRun
 	}
-	f.ParticleRI = string(b)
+	f.ParticleRI = string(b[:m])
+	b = b[m:]
+	k, ok := u32()
+	switch {
+	case !ok:
+		return nil, errFieldRun
+	case k == 0 && len(b) == 0:
+		return f, nil
+	case k != n || len(b) != 8*(4+n):
+		return nil, errFieldRun
+	}
+	nz := &dls.FieldNoise{G1Sigma: make([]float64, n)}
+	nz.GammaPerS, _ = f64()
+	nz.Beta, _ = f64()
+	nz.CountRatePerS, _ = f64()
+	nz.PrevLagS, _ = f64()
+	for i := range nz.G1Sigma {
+		nz.G1Sigma[i], _ = f64()
+	}
+	f.Noise = nz
 	return f, nil
 }
