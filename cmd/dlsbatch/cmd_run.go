@@ -37,7 +37,7 @@ type runOptions struct {
 	set, defaults paramsFlag
 	read          csvdata.Options // foreign columns, decimal comma, lines to skip, limits
 
-	cpuProfile, memProfile                                   string
+	cpuProfile, memProfile, traceFile                        string
 	out, particleRI                                          string // output folder; default particle index
 	solventFile, sheetFile, specFile, qcFile                 string // tables
 	includeGlobs, excludeGlobs                               []string
@@ -94,6 +94,7 @@ func (o *runOptions) addFlags(fs *pflag.FlagSet) {
 	fs.StringVar(&o.shard, "shard", "", "analyse part K of the batch split N ways (K/N, K = 0…N−1; auto: from Slurm's or Kubernetes' array index; merge the parts with 'dlsbatch merge')")
 	fs.StringVar(&o.cpuProfile, "cpuprofile", "", "write a CPU profile of the run to this file (go tool pprof)")
 	fs.StringVar(&o.memProfile, "memprofile", "", "write a heap profile at the end of the run to this file (go tool pprof)")
+	fs.StringVar(&o.traceFile, "trace", "", "write an execution trace of the run, its phases marked, to this file (go tool trace)")
 	fs.BoolVar(&o.implausible, "allow-implausible", false, "analyse metadata values outside their physically plausible range (each such result is a warning, not an error)")
 	fs.BoolVar(&o.noCurves, "no-curves", false, "leave fitted curves and residuals out of results.json")
 	fs.StringVar(&o.solventFile, "solvent-file", "", "CSV of extra or replacement solvents (see 'dlsbatch solvents --help')")
@@ -145,7 +146,7 @@ func runBatch(ctx context.Context, e env, args []string, name string) int {
 	if err != nil {
 		return fail(exitUsage, err)
 	}
-	stopProfile, err := profile.Start(o.cpuProfile, o.memProfile)
+	stopProfile, err := profile.Start(o.cpuProfile, o.memProfile, o.traceFile)
 	if err != nil {
 		return fail(exitUsage, err)
 	}

@@ -13,6 +13,7 @@ import (
 	"encoding/json"
 	"errors"
 	"fmt"
+	"runtime/trace"
 	"sort"
 	"sync"
 
@@ -283,7 +284,9 @@ func Run(ctx context.Context, cfg *Config) (*Outcome, error) {
 			mu.Unlock()
 		}
 	}
+	region := trace.StartRegion(ctx, "analyse")
 	_, runErr := rn.Run(ctx, paths)
+	region.End()
 	if cfg.Resume {
 		warn(fmt.Sprintf("resumed: %d files taken from the journal, %d of its entries ignored (other settings, tool version or file content)",
 			jr.reused, jr.ignored))
@@ -339,6 +342,7 @@ func publish(ctx context.Context, cfg *Config, out *resultset.Set, p *publishing
 	o := &Outcome{Results: p.stream.Results(), Complete: p.complete}
 	// A shard leaves the group analyses to the merge: a group may span
 	// shards, and its records must reach the merge as analysed.
+	region := trace.StartRegion(ctx, "groups, QC and joint inversions")
 	var groups batch.GroupReport
 	if p.shard == nil {
 		groups = batch.Groups(p.stream.Members())
@@ -351,6 +355,7 @@ func publish(ctx context.Context, cfg *Config, out *resultset.Set, p *publishing
 	if err := batch.JointDistributions(o.Samples, p.stream.Field, &cfg.Settings.Distribution, cfg.Workers); err != nil {
 		return nil, err
 	}
+	region.End()
 	o.Batch = spec.Batch{Specified: cfg.Spec != nil, Reason: "not evaluated: the run was interrupted"}
 	if o.Complete {
 		o.Batch = spec.EvaluateRun(cfg.Spec, o.Samples, spec.Run{Results: o.Results, Load: p.stream.Full,
@@ -380,13 +385,19 @@ func publish(ctx context.Context, cfg *Config, out *resultset.Set, p *publishing
 	if !o.Complete {
 		writeCtx = context.Background()
 	}
-	if err := report.WriteSet(writeCtx, out.Staging, set); err != nil {
+	region = trace.StartRegion(ctx, "write the set")
+	err = report.WriteSet(writeCtx, out.Staging, set)
+	region.End()
+	if err != nil {
 		if ctx.Err() != nil {
 			return nil, ErrWriteInterrupted
 		}
 		return nil, err
 	}
-	if err := out.Commit(); err != nil {
+	region = trace.StartRegion(ctx, "flush, publish and clean up")
+	err = out.Commit()
+	region.End()
+	if err != nil {
 		return nil, err
 	}
 	return o, nil

@@ -1,5 +1,7 @@
-// Package profile writes the CPU and heap profiles of a run for whoever
-// tunes the code (go tool pprof reads them); see DEVELOPERS.md.
+// Package profile writes the CPU and heap profiles of a run (go tool pprof
+// reads them) and its execution trace (go tool trace: what each core did
+// when, and the run's phases as regions) for whoever tunes the code; see
+// DEVELOPERS.md.
 package profile
 
 import (
@@ -7,23 +9,44 @@ import (
 	"os"
 	"runtime"
 	"runtime/pprof"
+	"runtime/trace"
 )
 
-// Start begins a CPU profile into cpuFile (when not empty) and returns the
-// function that ends it and writes a heap profile into memFile (when not
-// empty), after a garbage collection so that it shows live memory.
-func Start(cpuFile, memFile string) (stop func() error, err error) {
-	var cpu *os.File
+// Start begins a CPU profile into cpuFile and an execution trace into
+// traceFile (each when not empty) and returns the function that ends them
+// and writes a heap profile into memFile (when not empty), after a garbage
+// collection so that it shows live memory.
+func Start(cpuFile, memFile, traceFile string) (stop func() error, err error) {
+	var cpu, tr *os.File
+	if traceFile != "" {
+		if tr, err = os.Create(traceFile); err != nil {
+			return nil, fmt.Errorf("--trace: %w", err)
+		}
+		if err := trace.Start(tr); err != nil {
+			tr.Close()
+			return nil, fmt.Errorf("--trace: %w", err)
+		}
+	}
 	if cpuFile != "" {
 		if cpu, err = os.Create(cpuFile); err != nil {
 			return nil, fmt.Errorf("--cpuprofile: %w", err)
 		}
 		if err := pprof.StartCPUProfile(cpu); err != nil {
 			cpu.Close()
+			if tr != nil {
+				trace.Stop()
+				tr.Close()
+			}
 			return nil, fmt.Errorf("--cpuprofile: %w", err)
 		}
 	}
 	return func() error {
+		if tr != nil {
+			trace.Stop()
+			if err := tr.Close(); err != nil {
+				return fmt.Errorf("--trace: %w", err)
+			}
+		}
 		if cpu != nil {
 			pprof.StopCPUProfile()
 			if err := cpu.Close(); err != nil {

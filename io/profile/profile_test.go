@@ -3,16 +3,18 @@ package profile
 import (
 	"os"
 	"path/filepath"
+	"strings"
 	"testing"
 )
 
 // TestStart: both profiles are written, as gzip-compressed protocol
 // buffers (runtime/pprof's documented format: they start with the gzip
-// magic bytes 1f 8b), and empty names write nothing.
+// magic bytes 1f 8b), the trace with the header go tool trace reads
+// ("go 1.N trace"), and empty names write nothing.
 func TestStart(t *testing.T) {
 	dir := t.TempDir()
-	cpu, mem := filepath.Join(dir, "cpu.out"), filepath.Join(dir, "mem.out")
-	stop, err := Start(cpu, mem)
+	cpu, mem, tr := filepath.Join(dir, "cpu.out"), filepath.Join(dir, "mem.out"), filepath.Join(dir, "trace.out")
+	stop, err := Start(cpu, mem, tr)
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -30,11 +32,17 @@ func TestStart(t *testing.T) {
 			t.Errorf("%s: %d bytes, %v; want a gzip-compressed profile", filepath.Base(p), len(b), err)
 		}
 	}
-	stop, err = Start("", "")
+	if b, err := os.ReadFile(tr); err != nil || !strings.HasPrefix(string(b), "go 1.") || !strings.Contains(string(b[:min(len(b), 16)]), " trace") {
+		t.Errorf("trace: %d bytes, %v; want a trace with its header", len(b), err)
+	}
+	stop, err = Start("", "", "")
 	if err != nil || stop() != nil {
 		t.Error("no profiles asked for: an error")
 	}
-	if _, err := Start(filepath.Join(dir, "missing", "cpu.out"), ""); err == nil {
+	if _, err := Start(filepath.Join(dir, "missing", "cpu.out"), "", ""); err == nil {
 		t.Error("an unwritable profile file was accepted")
+	}
+	if _, err := Start("", "", filepath.Join(dir, "missing", "trace.out")); err == nil {
+		t.Error("an unwritable trace file was accepted")
 	}
 }

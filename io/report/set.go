@@ -11,6 +11,7 @@ import (
 	"os"
 	"path/filepath"
 	"runtime"
+	"runtime/trace"
 	"slices"
 
 	"dlsbatch/dls"
@@ -149,11 +150,14 @@ func WriteSet(ctx context.Context, dir string, s *Set) error {
 	tablesDone := make(chan written, 1)
 	if s.Workers > 1 || (s.Workers <= 0 && runtime.GOMAXPROCS(0) > 1) {
 		go func() {
+			defer trace.StartRegion(ctx, "tables").End()
 			files, err := tables()
 			tablesDone <- written{files, err}
 		}()
 	} else {
+		r := trace.StartRegion(ctx, "tables")
 		files, err := tables()
+		r.End()
 		if err != nil {
 			return err
 		}
@@ -206,7 +210,9 @@ func WriteSet(ctx context.Context, dir string, s *Set) error {
 		rep := htmlreport.FromRun(htmlreport.Run{Tool: d.Tool, Version: d.Version, Caution: d.Caution,
 			Settings: d.Settings, Results: d.Results, Briefs: briefs, Samples: d.Samples, Batch: d.Batch, LoadRecord: record,
 			Workers: s.Workers, Progress: reportProgress(s), Staged: s.Staged, InputRoot: s.Root, Tables: tableFiles(d.Settings, m.Tables)})
+		region := trace.StartRegion(ctx, "report")
 		pages, err := htmlreport.WriteFiles(ctx, filepath.Join(dir, ReportDir), rep)
+		region.End()
 		if err != nil {
 			return fmt.Errorf("report: %w", err)
 		}
