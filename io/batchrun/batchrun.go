@@ -258,20 +258,24 @@ func Run(ctx context.Context, cfg *Config) (*Outcome, error) {
 				if err != nil {
 					return err
 				}
-				return jr.add(res, recs)
+				_, err = jr.add(res, recs)
+				return err
 			}
 			e := v.(encoded)
 			if e.err != nil {
 				return e.err
 			}
-			if err := stream.AddEncoded(res, e.enc); err != nil {
-				return err
-			}
 			recs := make([][]byte, len(e.enc))
 			for i := range e.enc {
 				recs[i] = e.enc[i].Record
 			}
-			return jr.add(res, recs)
+			// The records are written once, to the journal, and the
+			// stream reads them back from there.
+			at, err := jr.add(res, recs)
+			if err != nil {
+				return err
+			}
+			return stream.AddEncodedAt(res, e.enc, jr.records(), at)
 		},
 	}
 	if cfg.Progress != nil {

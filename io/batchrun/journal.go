@@ -48,6 +48,7 @@ func journalPath(out string) string {
 type journal struct {
 	mu       sync.Mutex
 	f        *os.File
+	r        *os.File // the same file, for reading its records back (records)
 	w        *bufio.Writer
 	settings string // SHA-256 of the settings and tables
 	version  string
@@ -74,11 +75,20 @@ func openJournal(path string, settings []byte, resume bool) (*journal, error) {
 	if err != nil {
 		return nil, fmt.Errorf("journal: %w", err)
 	}
-	j.f = f
+	r, err := os.Open(path)
+	if err != nil {
+		f.Close()
+		return nil, fmt.Errorf("journal: %w", err)
+	}
+	j.f, j.r = f, r
 	j.written.w = f
 	j.w = bufio.NewWriterSize(&j.written, 1<<16)
 	return j, nil
 }
+
+// records reads the records add wrote, at the offsets it returned: the
+// result stream keeps them here rather than writing them a second time.
+func (j *journal) records() io.ReaderAt { return j.r }
 
 func (j *journal) load(path string) error {
 	f, err := os.Open(path)
@@ -126,44 +136,51 @@ func (j *journal) cached(rel, sum string) ([]*dls.Result, bool) {
 }
 
 // add records the results of one file (called in input order), given
-// their JSON records as results.json holds them.
-func (j *journal) add(results []*dls.Result, records [][]byte) error {
+// their JSON records as results.json holds them, and returns the offset of
+// each record in the file (records reads them there once add returned).
+func (j *journal) add(results []*dls.Result, records [][]byte) ([]int64, error) {
 	if len(results) == 0 {
-		return nil
+		return nil, nil
 	}
 	rel := results[0].File
 	sum, _ := j.hashes.LoadAndDelete(rel) // taken once: the map holds only the files in flight
 	s, _ := sum.(string)
 	head, err := json.Marshal(journalEntry{InputSHA256: s, SettingsSHA256: j.settings, Version: j.version, File: rel})
 	if err != nil {
-		return fmt.Errorf("journal: %w", err)
+		return nil, fmt.Errorf("journal: %w", err)
 	}
 	// The entry's encoding with the records spliced in for "results":null.
 	head = bytes.TrimSuffix(head, []byte(`"results":null}`))
 	j.mu.Lock()
 	defer j.mu.Unlock()
+	at := make([]int64, len(records))
+	pos := j.written.n + int64(j.w.Buffered()) + int64(len(head)) + int64(len(`"results":[`))
 	j.w.Write(head)
 	j.w.WriteString(`"results":[`)
 	for i, r := range records {
 		if i > 0 {
 			j.w.WriteByte(',')
+			pos++
 		}
+		at[i] = pos
+		pos += int64(len(r))
 		j.w.Write(r)
 	}
 	if _, err := j.w.WriteString("]}\n"); err != nil {
-		return fmt.Errorf("journal: %w", err)
+		return nil, fmt.Errorf("journal: %w", err)
 	}
-	// Each file's line reaches the file system as it is done; every few
-	// MiB its writeback is started, so that the flush of the result set at
-	// the end of the run does not also wait for the whole journal.
+	// Each file's line reaches the file system as it is done (and so can
+	// be read back); every few MiB its writeback is started, so that the
+	// flush of the result set at the end of the run does not also wait
+	// for the whole journal.
 	if err := j.w.Flush(); err != nil {
-		return fmt.Errorf("journal: %w", err)
+		return nil, fmt.Errorf("journal: %w", err)
 	}
 	if j.written.n-j.kicked >= journalKick {
 		atomicfile.StartWriteback(j.f, j.kicked, j.written.n-j.kicked)
 		j.kicked = j.written.n
 	}
-	return nil
+	return at, nil
 }
 
 // journalKick is how many bytes the journal grows by between two starts
@@ -186,6 +203,7 @@ func (c *counted) Write(p []byte) (int, error) {
 func (j *journal) close(remove bool) {
 	j.w.Flush()
 	j.f.Close()
+	j.r.Close()
 	if remove {
 		os.Remove(j.f.Name())
 	}

@@ -249,8 +249,7 @@ func (s *Stream) appendRaw(i int, dst []byte) ([]byte, error) {
 		b, err := json.Marshal(r)
 		return append(dst, b...), err
 	}
-	sp := s.spans[i]
-	return s.appendAt(dst, sp.off, sp.n)
+	return s.appendRecord(dst, s.spans[i])
 }
 
 // appendRow appends the results.csv row of result i to dst, as appendRaw
@@ -261,17 +260,28 @@ func (s *Stream) appendRow(i int, dst []byte) ([]byte, error) {
 		return append(dst, b...), err
 	}
 	sp := s.spans[i]
-	return s.appendAt(dst, sp.off+sp.n, sp.csvN)
+	return s.appendAt(dst, s.f, sp.off, sp.csvN)
 }
 
-// appendAt appends the n bytes of the scratch file at off to dst.
-func (s *Stream) appendAt(dst []byte, off, n int64) ([]byte, error) {
+// appendRecord appends the JSON record of span sp to dst, from the
+// scratch file or from the records it was added with (AddEncodedAt).
+func (s *Stream) appendRecord(dst []byte, sp span) ([]byte, error) {
+	src := io.ReaderAt(s.f)
+	if sp.ext {
+		src = s.records
+	}
+	return s.appendAt(dst, src, sp.recOff, sp.n)
+}
+
+// appendAt appends the n bytes of src at off to dst, the scratch file's
+// buffer written out first.
+func (s *Stream) appendAt(dst []byte, src io.ReaderAt, off, n int64) ([]byte, error) {
 	if err := s.w.Flush(); err != nil {
 		return dst, err
 	}
 	k := len(dst)
 	dst = slices.Grow(dst, int(n))[:k+int(n)]
-	if _, err := s.f.ReadAt(dst[k:], off); err != nil && err != io.EOF {
+	if _, err := src.ReadAt(dst[k:], off); err != nil && err != io.EOF {
 		return dst[:k], err
 	}
 	return dst, nil

@@ -1,6 +1,8 @@
 package report
 
 import (
+	"bytes"
+	"encoding/json"
 	"reflect"
 	"testing"
 	"unsafe"
@@ -13,7 +15,9 @@ import (
 // TestStreamRoundTrip: a result read back from the scratch file equals the
 // one that went in, field for field (JSON carries every field and Go's
 // shortest float formatting round-trips exactly), and its results.csv row
-// and JSON record are the bytes WriteCSV and WriteJSON write for it.
+// and JSON record are the bytes WriteCSV and WriteJSON write for it; the
+// same when the records stay in another file (AddEncodedAt, as a run's
+// journal holds them) and the scratch file holds only rows and field runs.
 func TestStreamRoundTrip(t *testing.T) {
 	s := batch.DefaultSettings()
 	var in []*dls.Result
@@ -30,39 +34,62 @@ func TestStreamRoundTrip(t *testing.T) {
 	if len(in) < 2 {
 		t.Fatalf("only %d results read from the fixtures", len(in))
 	}
-	st, err := NewStream(t.TempDir())
-	if err != nil {
-		t.Fatal(err)
-	}
-	defer st.Close()
-	if err := st.Add(in); err != nil {
-		t.Fatal(err)
-	}
-	for i, r := range in {
-		back, err := st.Full(i)
+	for _, external := range []bool{false, true} {
+		st, err := NewStream(t.TempDir())
 		if err != nil {
 			t.Fatal(err)
 		}
-		if !reflect.DeepEqual(back, r) {
-			t.Errorf("result %d (%s) differs after the round trip", i, r.File)
-		}
-		row, err1 := st.row(i)
-		want, err2 := csvRow(r)
-		if err1 != nil || err2 != nil || len(want) == 0 {
-			t.Fatalf("result %d: row %v, csvRow %v (%d bytes)", i, err1, err2, len(want))
-		}
-		if string(row) != string(want) {
-			t.Errorf("result %d: csv row differs", i)
-		}
-		f, err := st.Field(i)
-		if err != nil {
+		defer st.Close()
+		if external {
+			var journal bytes.Buffer
+			journal.WriteString(`{"file":"x.csv","results":[`)
+			enc := make([]Encoded, len(in))
+			at := make([]int64, len(in))
+			for i, r := range in {
+				if enc[i], err = Encode(r); err != nil {
+					t.Fatal(err)
+				}
+				at[i] = int64(journal.Len())
+				journal.Write(enc[i].Record)
+				journal.WriteByte(',')
+			}
+			if err := st.AddEncodedAt(in, enc, bytes.NewReader(journal.Bytes()), at); err != nil {
+				t.Fatal(err)
+			}
+		} else if err := st.Add(in); err != nil {
 			t.Fatal(err)
 		}
-		if want := dls.FieldRunOf(r); !reflect.DeepEqual(f, want) {
-			t.Errorf("result %d (%s): field run differs after the round trip (nil: %v, %v)", i, r.File, f == nil, want == nil)
-		}
-		if !reflect.DeepEqual(st.Results()[i], r.Brief()) {
-			t.Errorf("result %d (%s): brief %+v, want %+v", i, r.File, st.Results()[i], r.Brief())
+		for i, r := range in {
+			back, err := st.Full(i)
+			if err != nil {
+				t.Fatal(err)
+			}
+			if !reflect.DeepEqual(back, r) {
+				t.Errorf("external %v: result %d (%s) differs after the round trip", external, i, r.File)
+			}
+			rec, err1 := st.appendRaw(i, []byte("x"))
+			want, err2 := json.Marshal(r)
+			if err1 != nil || err2 != nil || string(rec) != "x"+string(want) {
+				t.Errorf("external %v: result %d: record differs (%v, %v)", external, i, err1, err2)
+			}
+			row, err1 := st.row(i)
+			want, err2 = csvRow(r)
+			if err1 != nil || err2 != nil || len(want) == 0 {
+				t.Fatalf("result %d: row %v, csvRow %v (%d bytes)", i, err1, err2, len(want))
+			}
+			if string(row) != string(want) {
+				t.Errorf("external %v: result %d: csv row differs", external, i)
+			}
+			f, err := st.Field(i)
+			if err != nil {
+				t.Fatal(err)
+			}
+			if want := dls.FieldRunOf(r); !reflect.DeepEqual(f, want) {
+				t.Errorf("external %v: result %d (%s): field run differs after the round trip (nil: %v, %v)", external, i, r.File, f == nil, want == nil)
+			}
+			if !reflect.DeepEqual(st.Results()[i], r.Brief()) {
+				t.Errorf("result %d (%s): brief %+v, want %+v", i, r.File, st.Results()[i], r.Brief())
+			}
 		}
 	}
 }
