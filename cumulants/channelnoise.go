@@ -35,17 +35,43 @@ type ChannelNoise struct {
 // CorrelatedErrors). Like CorrelatedErrors it covers the nonlinear fit of
 // g2 or g2 − 1 data; errors wrap ErrNoCorrelated.
 func (r *Result) ChannelNoise(tau []float64, kind Kind, acq Acquisition, from int) (*ChannelNoise, error) {
-	n := len(tau)
-	if from < 0 || from >= n || len(r.Sigma) != n || len(r.Residuals) != n {
-		return nil, fmt.Errorf("%w: channels %d… of %d lags", ErrNoCorrelated, from, n)
-	}
-	level, beta, err := r.noiseLevel(kind, acq)
+	sp, d, dts, basis, err := r.channelSD(tau, kind, acq, from)
 	if err != nil {
 		return nil, err
 	}
-	cn := &ChannelNoise{sp: noiseSpec{gamma: r.GammaPerS, beta: beta, rate: acq.CountRateHz}}
-	sp := &cn.sp
-	dts := make([]float64, n)
+	cn := &ChannelNoise{Basis: basis, sp: sp}
+	cn.build(tau, dts, from, d)
+	return cn, nil
+}
+
+// ChannelSD returns what ChannelNoise would be made of, the values its
+// Parameters would return (decay rate, coherence factor, count rate and
+// the channels' standard deviations D from channel from on), and the basis
+// of D, without building the covariance: about half the cost, for keeping
+// the model where it is not used at once (NewChannelNoise builds it
+// later, the same bits).
+func (r *Result) ChannelSD(tau []float64, kind Kind, acq Acquisition, from int) (gammaPerS, beta, countRateHz float64, sd []float64, basis string, err error) {
+	sp, d, _, basis, err := r.channelSD(tau, kind, acq, from)
+	if err != nil {
+		return 0, 0, 0, nil, "", err
+	}
+	return sp.gamma, sp.beta, sp.rate, d, basis, nil
+}
+
+// channelSD is the part of ChannelNoise before the covariance: the
+// model's spec, D over the channels from…, the sample times of all lags
+// and the basis of D.
+func (r *Result) channelSD(tau []float64, kind Kind, acq Acquisition, from int) (sp noiseSpec, d, dts []float64, basis string, err error) {
+	n := len(tau)
+	if from < 0 || from >= n || len(r.Sigma) != n || len(r.Residuals) != n {
+		return sp, nil, nil, "", fmt.Errorf("%w: channels %d… of %d lags", ErrNoCorrelated, from, n)
+	}
+	level, beta, err := r.noiseLevel(kind, acq)
+	if err != nil {
+		return sp, nil, nil, "", err
+	}
+	sp = noiseSpec{gamma: r.GammaPerS, beta: beta, rate: acq.CountRateHz}
+	dts = make([]float64, n)
 	ks := make([]int, n)
 	sampleTimesTo(tau, dts, ks)
 	// lattice variance of channel c for a duration durS (0: per second).
@@ -54,7 +80,7 @@ func (r *Result) ChannelNoise(tau []float64, kind Kind, acq Acquisition, from in
 		key := int64(math.Round(math.Log2(dts[c]) * 1e9))
 		l := lats[key]
 		if l == nil {
-			l = newNoiseLattice(sp, dts[c])
+			l = newNoiseLattice(&sp, dts[c])
 			lats[key] = l
 		}
 		nn := 1 / dts[c]
@@ -64,31 +90,30 @@ func (r *Result) ChannelNoise(tau []float64, kind Kind, acq Acquisition, from in
 		return level * math.Sqrt(l.variance(ks[c], beta, acq.CountRateHz*dts[c], nn))
 	}
 	m := n - from
-	d := make([]float64, m)
+	d = make([]float64, m)
 	switch {
 	case !r.SigmaEstimated:
-		cn.Basis = BasisSigma
+		basis = BasisSigma
 		copy(d, r.Sigma[from:])
 	case acq.DurationS > 0 && acq.CountRateHz > 0:
-		cn.Basis = BasisModel
+		basis = BasisModel
 		for i := range d {
 			d[i] = modelSD(from+i, acq.DurationS)
 		}
 	case r.farFitted:
-		cn.Basis = BasisTail
+		basis = BasisTail
 		idx := fitChannels(r.FitFirst, r.FitLast, n, r.tailN, r.farFitted)
 		f, _, err := r.tailScale(idx, func(i int) float64 { return modelSD(idx[i], 0) })
 		if err != nil {
-			return nil, err
+			return sp, nil, nil, "", err
 		}
 		for i := range d {
 			d[i] = f * modelSD(from+i, 0)
 		}
 	default:
-		return nil, fmt.Errorf("%w: the duration is not given and the baseline not reached", ErrNoCorrelated)
+		return sp, nil, nil, "", fmt.Errorf("%w: the duration is not given and the baseline not reached", ErrNoCorrelated)
 	}
-	cn.build(tau, dts, from, d)
-	return cn, nil
+	return sp, d, dts, basis, nil
 }
 
 // NewChannelNoise returns the channel-noise covariance of the correlator

@@ -4,6 +4,7 @@ import (
 	"errors"
 	"math"
 	"math/rand/v2"
+	"slices"
 	"testing"
 )
 
@@ -95,8 +96,9 @@ func TestChannelNoiseQuadMatchesDirect(t *testing.T) {
 	}
 }
 
-// TestNewChannelNoiseRebuilds: a ChannelNoise built by NewChannelNoise
-// from the Parameters of a fit's gives the same quadratic form bit for bit
+// TestNewChannelNoiseRebuilds: ChannelSD gives the Parameters of the
+// fit's ChannelNoise, and a ChannelNoise built by NewChannelNoise from
+// them gives the same quadratic form bit for bit
 // (the same arithmetic on the same inputs) for every basis; scaling the
 // standard deviations by s scales the form by s² (to 1e-14 relative, the
 // rounding of the products); and the constructor refuses parameters that
@@ -120,6 +122,10 @@ func TestNewChannelNoiseRebuilds(t *testing.T) {
 			t.Fatal(err)
 		}
 		gamma, beta, rate, sd := cn.Parameters()
+		g2, b2, r2, sd2, basis, err := r.ChannelSD(tau, G2, acq, from)
+		if err != nil || basis != cn.Basis || g2 != gamma || b2 != beta || r2 != rate || !slices.Equal(sd2, sd) {
+			t.Fatalf("basis %s: ChannelSD gives other parameters than ChannelNoise (%v)", cn.Basis, err)
+		}
 		re, err := NewChannelNoise(tau, from, gamma, beta, rate, sd)
 		if err != nil {
 			t.Fatal(err)

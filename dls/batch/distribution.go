@@ -243,12 +243,11 @@ func distribution(m *dls.Measurement, fit *cumulants.Result, st state, meta dls.
 			r.PeakNoise = "residuals (independent from lag to lag)"
 		}
 		if rho >= minModelRho {
-			if noise, basis, nm := correlatorNoise(m, fit, first, sigma, sg, acquisition(r)); noise != nil {
-				model = nm
-				if rho >= minCorrelatorRho {
-					sens.Noise = noise
-					r.PeakNoise = "correlator model (" + basis + ")"
-				}
+			noise, basis, nm := correlatorNoise(m, fit, first, sigma, sg, acquisition(r), rho >= minCorrelatorRho)
+			model = nm
+			if noise != nil {
+				sens.Noise = noise
+				r.PeakNoise = "correlator model (" + basis + ")"
 			}
 		}
 	}
@@ -289,7 +288,8 @@ var minCorrelatorRho = 0.2 // a variable only so that tests can switch the model
 // 11 % below 0.2, 1.3 % below 0.1; independent Gaussian noise, 1,000 runs
 // of the scipy comparison: 12 % at or above 0.1, 0.7 % at or above 0.2, so
 // about one run in eight of such data pays for a model it will rarely use:
-// ~45 µs, cumulants BenchmarkChannelNoise, and 200 numbers in its record).
+// its σ alone, ~25 µs, cumulants BenchmarkChannelNoise sd-only, and 200
+// numbers in its record; BenchmarkAnalyze +2–3 %).
 const minModelRho = 0.1
 
 // correlatorNoise returns the quadratic form g ↦ g'·C·g of the noise
@@ -300,7 +300,8 @@ const minModelRho = 0.1
 // channels), the basis of D, and the model in g1's units as the record
 // keeps it (for the joint inversion of the sample's runs, which rebuilds
 // it: cumulants.NewChannelNoise); nil where the model does not apply (g1
-// data, the linear method, too few far channels). g1 is linear in the
+// data, the linear method, too few far channels). Without use only the
+// record's model is made (no form: cumulants.ChannelSD, half the cost). g1 is linear in the
 // data to first order, δg1_i = δy_i·σ_g1,i/σ_y,i (sigmaY the σ of the data
 // that sg was propagated from).
 //
@@ -308,7 +309,7 @@ const minModelRho = 0.1
 // diameter understated its scatter 5 to 8 times (rms z 5.4 and 8.1 for
 // 150 runs of 100 nm at 173° and 40 of 200 nm at 90°); with this one
 // the rms z was 1.19 and 1.10 (DEVELOPERS.md, "Peaks you can believe").
-func correlatorNoise(m *dls.Measurement, fit *cumulants.Result, first int, sigmaY, sg []float64, acq cumulants.Acquisition) (func([]float64) float64, string, *dls.NoiseModel) {
+func correlatorNoise(m *dls.Measurement, fit *cumulants.Result, first int, sigmaY, sg []float64, acq cumulants.Acquisition, use bool) (func([]float64) float64, string, *dls.NoiseModel) {
 	kind := cumulants.G2
 	switch m.Kind {
 	case dls.KindG2m1:
@@ -316,7 +317,17 @@ func correlatorNoise(m *dls.Measurement, fit *cumulants.Result, first int, sigma
 	case dls.KindG1:
 		return nil, "", nil
 	}
-	cn, err := fit.ChannelNoise(m.TauS, kind, acq, first)
+	var cn *cumulants.ChannelNoise
+	var gamma, beta, rate float64
+	var d []float64
+	var err error
+	if use {
+		if cn, err = fit.ChannelNoise(m.TauS, kind, acq, first); err == nil {
+			gamma, beta, rate, d = cn.Parameters()
+		}
+	} else {
+		gamma, beta, rate, d, _, err = fit.ChannelSD(m.TauS, kind, acq, first)
+	}
 	if err != nil {
 		return nil, "", nil
 	}
@@ -326,10 +337,12 @@ func correlatorNoise(m *dls.Measurement, fit *cumulants.Result, first int, sigma
 			jac[i] = s / sy
 		}
 	}
-	gamma, beta, rate, d := cn.Parameters()
 	nm := &dls.NoiseModel{GammaPerS: gamma, Beta: beta, CountRatePerS: rate, G1Sigma: make([]float64, len(m.TauS))}
 	for i, v := range d {
 		nm.G1Sigma[first+i] = v * jac[i]
+	}
+	if cn == nil {
+		return nil, "", nm
 	}
 	w := make([]float64, len(sg))
 	return func(g []float64) float64 {
