@@ -449,7 +449,7 @@ func (r *Report) result(idx int, w *writer) (*dls.Result, error) {
 		if r.Results != nil {
 			compact = r.Results[idx]
 		}
-		return pageResult(compact, raw, &w.arena)
+		return pageResult(compact, raw, &w.arena, &w.grids)
 	case r.Load != nil:
 		return r.Load(idx)
 	}

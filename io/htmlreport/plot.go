@@ -82,6 +82,7 @@ type writer struct {
 	rec        []byte         // a run's record (Report.LoadRecord)
 	page       []byte         // a sample page, while b holds its run sections
 	arena      []float64      // a run's curves and distributions (pageResult)
+	grids      gridCache      // the lag and diameter grids last read (pageResult)
 	lags, diam logCache       // log10 of the lag and diameter grids
 	axes       map[xKey]xAxis // laid-out x axes (see frame)
 }

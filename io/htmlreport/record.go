@@ -50,13 +50,13 @@ type distParts struct {
 // distributions are kept in *arena, which the next call reuses. With c
 // nil, the record gives the rest too: every field a page shows (see
 // pageFields).
-func pageResult(c *dls.Result, raw []byte, arena *[]float64) (*dls.Result, error) {
+func pageResult(c *dls.Result, raw []byte, arena *[]float64, grids *gridCache) (*dls.Result, error) {
 	var p pageParts
 	if c == nil {
 		p.base = &dls.Result{}
 	}
 	*arena = (*arena)[:0]
-	err := p.decode(raw, arena)
+	err := p.decode(raw, arena, grids)
 	if err != nil {
 		// The fast path met something it does not handle: decode the
 		// record whole, with the parts' validity from the compact copy.
@@ -220,8 +220,11 @@ var errRecord = errors.New("record not in the expected form")
 // skipped. A key given twice (which encoding/json's writer never does)
 // may decode differently from encoding/json. Numbers are read with
 // strconv.ParseFloat after a check of JSON's number syntax.
-func (p *pageParts) decode(b []byte, arena *[]float64) error {
+func (p *pageParts) decode(b []byte, arena *[]float64, grids *gridCache) error {
 	s := scanner{b: b, arena: arena}
+	if grids == nil {
+		grids = &gridCache{}
+	}
 	err := s.object(func(key []byte) error {
 		switch {
 		case keyIs(key, "curves"):
@@ -236,7 +239,7 @@ func (p *pageParts) decode(b []byte, arena *[]float64) error {
 			return s.object(func(k []byte) error {
 				switch {
 				case keyIs(k, "tau_s"):
-					return s.floats(&c.TauS)
+					return s.sharedFloats(&c.TauS, &grids.lags)
 				case keyIs(k, "data"):
 					return s.floats(&c.Data)
 				case keyIs(k, "fitted"):
@@ -260,7 +263,7 @@ func (p *pageParts) decode(b []byte, arena *[]float64) error {
 			return s.object(func(k []byte) error {
 				switch {
 				case keyIs(k, "diameter_nm"):
-					return s.floats(&d.DiameterNm)
+					return s.sharedFloats(&d.DiameterNm, &grids.diameters)
 				case keyIs(k, "intensity"):
 					return s.floats(&d.Intensity)
 				case keyIs(k, "volume"):
@@ -488,6 +491,41 @@ func (s *scanner) unmarshal(v any) error {
 func (s *scanner) peekStart() int {
 	s.ws()
 	return s.i
+}
+
+// gridCache keeps the lag and diameter grids of the last run read, as
+// text and values: the runs of a batch mostly share them, and comparing
+// the text costs a fraction of reading its numbers.
+type gridCache struct{ lags, diameters sharedArray }
+
+// sharedArray is an array of numbers as text and as read.
+type sharedArray struct {
+	raw  []byte
+	vals []float64
+}
+
+// sharedFloats is floats for an array that is often the same as the last
+// one read into c (its values are then c's, not to be modified).
+func (s *scanner) sharedFloats(dst *[]float64, c *sharedArray) error {
+	start := s.peekStart()
+	if s.peek() != '[' {
+		return s.floats(dst)
+	}
+	if err := s.skip(); err != nil {
+		return err
+	}
+	raw := s.b[start:s.i]
+	if c.vals != nil && bytes.Equal(raw, c.raw) {
+		*dst = c.vals
+		return nil
+	}
+	s.i = start
+	if err := s.floats(dst); err != nil {
+		return err
+	}
+	c.raw = append(c.raw[:0], raw...)
+	c.vals = append(make([]float64, 0, len(*dst)), *dst...)
+	return nil
 }
 
 // floats reads an array of numbers (null elements read as 0, as

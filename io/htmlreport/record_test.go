@@ -104,6 +104,11 @@ func TestPageResultMatchesJSON(t *testing.T) {
 	m.Params = []dls.Param{}
 	results = append(results, &m)
 	var arena []float64
+	// One grid cache across all of them, as a writer keeps it: runs that
+	// share their lag and diameter grids with the one before take the
+	// cached values, the others read theirs (both happen here: the demo's
+	// runs share grids, the synthetic ones have others).
+	var grids gridCache
 	for i, full := range results {
 		for _, indent := range []bool{false, true} {
 			raw, err := json.Marshal(full)
@@ -118,11 +123,11 @@ func TestPageResultMatchesJSON(t *testing.T) {
 				t.Fatal(err)
 			}
 			var fast pageParts
-			if err := fast.decode(raw, &arena); err != nil {
+			if err := fast.decode(raw, &arena, &grids); err != nil {
 				t.Errorf("result %d (indent %v): fast path failed: %v", i, indent, err)
 			}
 			c := compactOf(full)
-			got, err := pageResult(c, raw, &arena)
+			got, err := pageResult(c, raw, &arena, &grids)
 			if err != nil {
 				t.Fatalf("result %d: %v", i, err)
 			}
@@ -131,7 +136,7 @@ func TestPageResultMatchesJSON(t *testing.T) {
 				t.Errorf("result %d: the compact copy's fields were not kept", i)
 			}
 			// Without a compact copy the record gives the rest.
-			whole, err := pageResult(nil, raw, &arena)
+			whole, err := pageResult(nil, raw, &arena, &grids)
 			if err != nil {
 				t.Fatalf("result %d: %v", i, err)
 			}
@@ -163,7 +168,7 @@ func TestPageResultFallback(t *testing.T) {
 		{"trailing bytes", `{"curves":null} x`, false},
 	} {
 		t.Run(tc.name, func(t *testing.T) {
-			r, err := pageResult(c, []byte(tc.raw), &arena)
+			r, err := pageResult(c, []byte(tc.raw), &arena, nil)
 			if (err == nil) != tc.ok {
 				t.Fatalf("error %v, want ok %v", err, tc.ok)
 			}
@@ -273,12 +278,12 @@ func FuzzPageRecord(f *testing.F) {
 	f.Fuzz(func(t *testing.T, raw []byte) {
 		var arena []float64
 		var fast pageParts
-		fastErr := fast.decode(raw, &arena)
+		fastErr := fast.decode(raw, &arena, nil)
 		var want pageParts
 		if fastErr != nil || json.Unmarshal(raw, &want) != nil || hasDuplicateKeys(raw) {
 			return
 		}
-		got, err := pageResult(&dls.Result{}, raw, &arena)
+		got, err := pageResult(&dls.Result{}, raw, &arena, nil)
 		if err != nil {
 			t.Fatal(err)
 		}
@@ -287,7 +292,7 @@ func FuzzPageRecord(f *testing.F) {
 		if json.Unmarshal(raw, &all) != nil {
 			return
 		}
-		whole, err := pageResult(nil, raw, &arena)
+		whole, err := pageResult(nil, raw, &arena, nil)
 		if err != nil {
 			t.Fatal(err)
 		}
