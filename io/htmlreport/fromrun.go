@@ -23,6 +23,7 @@ type Run struct {
 	MeasuredFirst, MeasuredLast string
 
 	Workers  int
+	Beside   func() // see Report.Beside
 	Progress func(done, total int)
 	Staged   bool
 }
@@ -48,5 +49,5 @@ func FromRun(run Run) *Report {
 	return &Report{Tool: run.Tool, Version: run.Version, Caution: run.Caution, Settings: run.Settings,
 		Results: run.Results, Briefs: run.Briefs, Samples: run.Samples, Batch: b, Load: run.Load, LoadRecord: run.LoadRecord,
 		InputRoot: run.InputRoot, Tables: run.Tables, MeasuredFirst: run.MeasuredFirst, MeasuredLast: run.MeasuredLast,
-		Workers: run.Workers, Progress: run.Progress, Staged: run.Staged}
+		Workers: run.Workers, Beside: run.Beside, Progress: run.Progress, Staged: run.Staged}
 }

@@ -71,6 +71,12 @@ type Report struct {
 	// Workers is the number of pages rendered at once; 0 means
 	// GOMAXPROCS. The bytes do not depend on it.
 	Workers int
+	// Beside, when set, is other work that shares the pages' workers (a
+	// run's tables, say): the first worker to start does it, the others
+	// begin on the pages, and each takes pages when it is free, so that no
+	// core waits while the other has two things to do. WriteFiles does not
+	// look at what it does; it runs once, unless WriteFiles fails first.
+	Beside func()
 	// Progress, when set, is called after each sample page is written
 	// with the number of pages done and the number of sample pages; calls
 	// come one at a time, done counting up.
@@ -237,7 +243,11 @@ func WriteFiles(ctx context.Context, dir string, r *Report) ([]PageFile, error) 
 	if workers <= 0 {
 		workers = runtime.GOMAXPROCS(0)
 	}
-	workers = max(1, min(workers, n))
+	first := 0 // task 0 is Beside, when set; the pages follow
+	if r.Beside != nil {
+		first = 1
+	}
+	workers = max(1, min(workers, first+n))
 	errs := make([]error, n)
 	ranges := make([]timeRange, n)
 	files := make([]PageFile, n+1)
@@ -251,7 +261,11 @@ func WriteFiles(ctx context.Context, dir string, r *Report) ([]PageFile, error) 
 			defer wg.Done()
 			var w writer
 			for {
-				i := int(next.Add(1) - 1)
+				i := int(next.Add(1)-1) - first
+				if i == -1 {
+					r.Beside()
+					continue
+				}
 				if i >= n {
 					return
 				}

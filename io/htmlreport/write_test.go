@@ -11,6 +11,7 @@ import (
 	"path/filepath"
 	"regexp"
 	"runtime"
+	"sync/atomic"
 	"slices"
 	"strconv"
 	"strings"
@@ -391,8 +392,9 @@ func withRecords(t *testing.T, r *Report) *Report {
 
 // The same report gives the same bytes whatever the number of workers
 // (Workers, and GOMAXPROCS for the default), whether pages read the runs
-// from memory or back from their records, and whether it is written in
-// place (Staged) or file by file through temporary names.
+// from memory or back from their records, whether it is written in place
+// (Staged) or file by file through temporary names, and whether other work
+// shares its workers (Beside, which runs once).
 func TestDeterministic(t *testing.T) {
 	for _, base := range []struct {
 		name string
@@ -417,6 +419,23 @@ func TestDeterministic(t *testing.T) {
 			}
 			if len(got) != len(want) {
 				t.Errorf("%s, %s: %d files, want %d", base.name, name, len(got), len(want))
+			}
+		}
+		// Other work beside the pages (a run's tables): done once, by one
+		// of the workers, whatever their number, and the pages unchanged.
+		for _, workers := range []int{1, 2, 5} {
+			c := *base.r
+			c.Workers = workers
+			var calls atomic.Int32
+			c.Beside = func() { calls.Add(1) }
+			got := writeWith(t, &c)
+			if n := calls.Load(); n != 1 {
+				t.Errorf("%s, %d workers: the work beside the pages ran %d times, want once", base.name, workers, n)
+			}
+			for f, b := range want {
+				if !bytes.Equal(got[f], b) {
+					t.Errorf("%s, %d workers with work beside: %s differs", base.name, workers, f)
+				}
 			}
 		}
 		prev := runtime.GOMAXPROCS(1)
