@@ -11,10 +11,10 @@ import (
 	"path/filepath"
 	"regexp"
 	"runtime"
-	"sync/atomic"
 	"slices"
 	"strconv"
 	"strings"
+	"sync/atomic"
 	"testing"
 
 	"dlsbatch/dls"
