@@ -30,6 +30,14 @@ func BenchmarkFit(b *testing.B) {
 	}
 }
 
+// benchAcquisitions are the two bases of the correlated-noise model the
+// benchmarks take: the model's variances for a stated duration and count
+// rate, and those scaled to the far channels (neither stated).
+var benchAcquisitions = []struct {
+	name string
+	acq  cumulants.Acquisition
+}{{"model", cumulants.Acquisition{DurationS: 10, CountRateHz: 2e5}}, {"tail", cumulants.Acquisition{}}}
+
 // BenchmarkFitCorrelated is BenchmarkFit/default with the correlated-noise
 // standard errors: the model basis (duration and count rate given) and the
 // tail basis (neither), and the truncation estimate.
@@ -37,10 +45,7 @@ func BenchmarkFitCorrelated(b *testing.B) {
 	tau := multiTau(0.5e-6, 8, 200)
 	g1, _, _ := logNormalG1(tau, 2000, 0.15)
 	y := correlogram(g1, cumulants.G2, 0.9, 1, 1e-3, rand.New(rand.NewPCG(1, 1)))
-	for _, c := range []struct {
-		name string
-		acq  cumulants.Acquisition
-	}{{"model", cumulants.Acquisition{DurationS: 10, CountRateHz: 2e5}}, {"tail", cumulants.Acquisition{}}} {
+	for _, c := range benchAcquisitions {
 		b.Run(c.name, func(b *testing.B) {
 			b.ReportAllocs()
 			for b.Loop() {
@@ -80,10 +85,7 @@ func BenchmarkChannelNoise(b *testing.B) {
 	for i := range v {
 		v[i] = 1
 	}
-	for _, c := range []struct {
-		name string
-		acq  cumulants.Acquisition
-	}{{"model", cumulants.Acquisition{DurationS: 10, CountRateHz: 2e5}}, {"tail", cumulants.Acquisition{}}} {
+	for _, c := range benchAcquisitions {
 		b.Run(c.name, func(b *testing.B) {
 			b.ReportAllocs()
 			for b.Loop() {

@@ -205,6 +205,26 @@ func TestPeakSignificancePhotonLong(t *testing.T) {
 // at 40 runs the rms itself is known to about 11 %, and u varies from run
 // to run), and at least 25 of the 40 runs must take that model (about 90 %
 // do on such runs). With the residual-based uncertainty instead the same
+
+// scatterZ is the rms of (x_i − x̄)/u_i over values x with their stated
+// standard uncertainties u: about 1 when u states the scatter of x. n − 1
+// in the mean square, since x̄ is estimated from the same values; NaN for
+// fewer than two.
+func scatterZ(x, u []float64) float64 {
+	if len(x) < 2 {
+		return math.NaN()
+	}
+	mu := 0.0
+	for _, v := range x {
+		mu += v / float64(len(x))
+	}
+	ss := 0.0
+	for i, v := range x {
+		ss += (v - mu) * (v - mu) / (u[i] * u[i])
+	}
+	return math.Sqrt(ss / float64(len(x)-1))
+}
+
 // rms is above 2.5 (measured 5.4 at 10 s), so the test tells the two apart.
 func TestPeakUncertaintyPhotonShort(t *testing.T) {
 	ms := peakRuns(t, peakCondition{pop: "mono(100nm)", angleDeg: 173, durS: 1, rateHz: 3e5, runs: 40, seed: 91, photon: true})
@@ -222,19 +242,7 @@ func TestPeakUncertaintyPhotonShort(t *testing.T) {
 			p := r.Intensity.Peaks[0]
 			means, us = append(means, p.MeanNm), append(us, p.MeanUNm)
 		}
-		if len(means) < 2 {
-			return math.NaN(), len(means)
-		}
-		mu := 0.0
-		for _, v := range means {
-			mu += v / float64(len(means))
-		}
-		ss := 0.0
-		for i, v := range means {
-			ss += (v - mu) * (v - mu) / (us[i] * us[i])
-		}
-		// n − 1: the mean is estimated from the same runs.
-		return math.Sqrt(ss / float64(len(means)-1)), len(means)
+		return scatterZ(means, us), len(means)
 	}
 	zm, n := rmsZ(true)
 	t.Logf("correlator model: rms z %.2f over %d runs", zm, n)
