@@ -11,6 +11,7 @@ import (
 	"dlsbatch/dls"
 	"dlsbatch/dls/mie"
 	"dlsbatch/dls/sizedist"
+	"dlsbatch/dls/stats"
 )
 
 // DistributionSettings control the size-distribution step.
@@ -340,6 +341,13 @@ func correlatorNoise(m *dls.Measurement, fit *cumulants.Result, first int, sigma
 	nm := &dls.NoiseModel{GammaPerS: gamma, Beta: beta, CountRatePerS: rate, G1Sigma: make([]float64, len(m.TauS))}
 	for i, v := range d {
 		nm.G1Sigma[first+i] = v * jac[i]
+		if !stats.IsFinite(nm.G1Sigma[first+i]) {
+			nm = nil // a record holds finite numbers only: keep no model rather than lose the result
+			break
+		}
+	}
+	if nm != nil && !(stats.IsFinite(gamma) && stats.IsFinite(beta) && stats.IsFinite(rate)) {
+		nm = nil
 	}
 	if cn == nil {
 		return nil, "", nm
