@@ -257,7 +257,8 @@ func hasDuplicateKeys(b []byte) bool {
 }
 
 // Whatever the bytes, reading a record never panics, and when both the
-// fast path and encoding/json read it (and no key repeats), they agree.
+// fast path and encoding/json read it (and no key repeats), they agree,
+// also when its grids come from the cache of a read before.
 func FuzzPageRecord(f *testing.F) {
 	// A demo record cut to its first lags and bins (whole ones, 40 kB,
 	// leave the mutator too little room to reach the parts).
@@ -288,6 +289,15 @@ func FuzzPageRecord(f *testing.F) {
 			t.Fatal(err)
 		}
 		checkParts(t, got, &want)
+		// Twice through one grid cache: filled, then taken.
+		var grids gridCache
+		for range 2 {
+			got, err := pageResult(&dls.Result{}, raw, &arena, &grids)
+			if err != nil {
+				t.Fatal(err)
+			}
+			checkParts(t, got, &want)
+		}
 		var all dls.Result
 		if json.Unmarshal(raw, &all) != nil {
 			return
