@@ -71,8 +71,7 @@ func BenchmarkFitCorrelated(b *testing.B) {
 
 // BenchmarkChannelNoise builds the channel-noise model of a fit from its
 // first lag on (model and tail bases, 200 lags) and evaluates one
-// quadratic form, as a peak's uncertainty needs; sd-only makes only the
-// model's channel σ (ChannelSD), as a record keeps it.
+// quadratic form, as a peak's uncertainty needs.
 func BenchmarkChannelNoise(b *testing.B) {
 	tau := multiTau(0.5e-6, 8, 200)
 	g1, _, _ := logNormalG1(tau, 2000, 0.15)
@@ -95,14 +94,6 @@ func BenchmarkChannelNoise(b *testing.B) {
 				}
 				if !(cn.Quad(v) > 0) {
 					b.Fatal("form not positive")
-				}
-			}
-		})
-		b.Run(c.name+"/sd-only", func(b *testing.B) {
-			b.ReportAllocs()
-			for b.Loop() {
-				if _, _, _, _, _, err := r.ChannelSD(tau, cumulants.G2, c.acq, r.FitFirst); err != nil {
-					b.Fatal(err)
 				}
 			}
 		})

@@ -20,7 +20,6 @@ type ChannelNoise struct {
 	sp          noiseSpec
 	kc          kernelConsts
 	ch          []noiseChannel
-	sd          []float64    // D
 	kd, f, step []float64    // kernel diagonal, D/√kd, exp(−Γ·Δτ) to the channel before
 	b           []float64    // scratch of Quad
 	bt, al      [][6]float64 // separable kernel terms of the channels with Γ·τ ≤ quadSepGammaTau
@@ -35,43 +34,17 @@ type ChannelNoise struct {
 // CorrelatedErrors). Like CorrelatedErrors it covers the nonlinear fit of
 // g2 or g2 − 1 data; errors wrap ErrNoCorrelated.
 func (r *Result) ChannelNoise(tau []float64, kind Kind, acq Acquisition, from int) (*ChannelNoise, error) {
-	sp, d, dts, basis, err := r.channelSD(tau, kind, acq, from)
-	if err != nil {
-		return nil, err
-	}
-	cn := &ChannelNoise{Basis: basis, sp: sp}
-	cn.build(tau, dts, from, d)
-	return cn, nil
-}
-
-// ChannelSD returns what ChannelNoise would be made of, the values its
-// Parameters would return (decay rate, coherence factor, count rate and
-// the channels' standard deviations D from channel from on), and the basis
-// of D, without building the covariance: about half the cost, for keeping
-// the model where it is not used at once (NewChannelNoise builds it
-// later, the same bits).
-func (r *Result) ChannelSD(tau []float64, kind Kind, acq Acquisition, from int) (gammaPerS, beta, countRateHz float64, sd []float64, basis string, err error) {
-	sp, d, _, basis, err := r.channelSD(tau, kind, acq, from)
-	if err != nil {
-		return 0, 0, 0, nil, "", err
-	}
-	return sp.gamma, sp.beta, sp.rate, d, basis, nil
-}
-
-// channelSD is the part of ChannelNoise before the covariance: the
-// model's spec, D over the channels from…, the sample times of all lags
-// and the basis of D.
-func (r *Result) channelSD(tau []float64, kind Kind, acq Acquisition, from int) (sp noiseSpec, d, dts []float64, basis string, err error) {
 	n := len(tau)
 	if from < 0 || from >= n || len(r.Sigma) != n || len(r.Residuals) != n {
-		return sp, nil, nil, "", fmt.Errorf("%w: channels %d… of %d lags", ErrNoCorrelated, from, n)
+		return nil, fmt.Errorf("%w: channels %d… of %d lags", ErrNoCorrelated, from, n)
 	}
 	level, beta, err := r.noiseLevel(kind, acq)
 	if err != nil {
-		return sp, nil, nil, "", err
+		return nil, err
 	}
-	sp = noiseSpec{gamma: r.GammaPerS, beta: beta, rate: acq.CountRateHz}
-	dts = make([]float64, n)
+	cn := &ChannelNoise{sp: noiseSpec{gamma: r.GammaPerS, beta: beta, rate: acq.CountRateHz}}
+	sp := &cn.sp
+	dts := make([]float64, n)
 	ks := make([]int, n)
 	sampleTimesTo(tau, dts, ks)
 	// lattice variance of channel c for a duration durS (0: per second).
@@ -80,7 +53,7 @@ func (r *Result) channelSD(tau []float64, kind Kind, acq Acquisition, from int) 
 		key := int64(math.Round(math.Log2(dts[c]) * 1e9))
 		l := lats[key]
 		if l == nil {
-			l = newNoiseLattice(&sp, dts[c])
+			l = newNoiseLattice(sp, dts[c])
 			lats[key] = l
 		}
 		nn := 1 / dts[c]
@@ -90,83 +63,29 @@ func (r *Result) channelSD(tau []float64, kind Kind, acq Acquisition, from int) 
 		return level * math.Sqrt(l.variance(ks[c], beta, acq.CountRateHz*dts[c], nn))
 	}
 	m := n - from
-	d = make([]float64, m)
+	d := make([]float64, m)
 	switch {
 	case !r.SigmaEstimated:
-		basis = BasisSigma
+		cn.Basis = BasisSigma
 		copy(d, r.Sigma[from:])
 	case acq.DurationS > 0 && acq.CountRateHz > 0:
-		basis = BasisModel
+		cn.Basis = BasisModel
 		for i := range d {
 			d[i] = modelSD(from+i, acq.DurationS)
 		}
 	case r.farFitted:
-		basis = BasisTail
+		cn.Basis = BasisTail
 		idx := fitChannels(r.FitFirst, r.FitLast, n, r.tailN, r.farFitted)
 		f, _, err := r.tailScale(idx, func(i int) float64 { return modelSD(idx[i], 0) })
 		if err != nil {
-			return sp, nil, nil, "", err
+			return nil, err
 		}
 		for i := range d {
 			d[i] = f * modelSD(from+i, 0)
 		}
 	default:
-		return sp, nil, nil, "", fmt.Errorf("%w: the duration is not given and the baseline not reached", ErrNoCorrelated)
+		return nil, fmt.Errorf("%w: the duration is not given and the baseline not reached", ErrNoCorrelated)
 	}
-	return sp, d, dts, basis, nil
-}
-
-// NewChannelNoise returns the channel-noise covariance of the correlator
-// model with decay rate gammaPerS (1/s), coherence factor beta (relative
-// to the baseline, in (0, 1]) and count rate countRateHz (counts/s; 0: no
-// shot noise) for the lags tau (all of a correlogram's, as for Fit) over
-// the channels from…, whose standard deviations are sd (len(tau) − from
-// of them, non-negative, in any unit: the covariance is in that unit
-// squared). With the values Parameters returns, it rebuilds the
-// ChannelNoise of a fit exactly (TestNewChannelNoiseRebuilds): what a
-// later analysis of stored results needs, such as the noise of the mean
-// of several runs. Errors wrap ErrNoCorrelated.
-func NewChannelNoise(tau []float64, from int, gammaPerS, beta, countRateHz float64, sd []float64) (*ChannelNoise, error) {
-	n := len(tau)
-	switch {
-	case from < 0 || from >= n || len(sd) != n-from:
-		return nil, fmt.Errorf("%w: %d standard deviations for channels %d… of %d lags", ErrNoCorrelated, len(sd), from, n)
-	case !(gammaPerS > 0) || math.IsInf(gammaPerS, 0) || !(beta > 0 && beta <= 1) || !(countRateHz >= 0) || math.IsInf(countRateHz, 0):
-		return nil, fmt.Errorf("%w: decay rate %g 1/s, coherence factor %g, count rate %g /s", ErrNoCorrelated, gammaPerS, beta, countRateHz)
-	}
-	prev := 0.0
-	for i, t := range tau {
-		if !(t > prev) || math.IsInf(t, 0) {
-			return nil, fmt.Errorf("%w: lag %d (%g s) does not increase", ErrNoCorrelated, i, t)
-		}
-		prev = t
-	}
-	for i, v := range sd {
-		if !(v >= 0) || math.IsInf(v, 0) {
-			return nil, fmt.Errorf("%w: standard deviation %g at channel %d", ErrNoCorrelated, v, from+i)
-		}
-	}
-	dts := make([]float64, n)
-	ks := make([]int, n)
-	sampleTimesTo(tau, dts, ks)
-	cn := &ChannelNoise{sp: noiseSpec{gamma: gammaPerS, beta: beta, rate: countRateHz}}
-	cn.build(tau, dts, from, append([]float64(nil), sd...))
-	return cn, nil
-}
-
-// Parameters returns what the model was made of, for NewChannelNoise: the
-// decay rate (1/s), the coherence factor, the count rate (counts/s) and
-// the channels' standard deviations D (not to be modified).
-func (cn *ChannelNoise) Parameters() (gammaPerS, beta, countRateHz float64, sd []float64) {
-	return cn.sp.gamma, cn.sp.beta, cn.sp.rate, cn.sd
-}
-
-// build sets the kernel's channel terms for the lags tau (sample times
-// dts) from channel from on, with standard deviations d.
-func (cn *ChannelNoise) build(tau, dts []float64, from int, d []float64) {
-	sp := &cn.sp
-	m := len(d)
-	cn.sd = d
 	cn.kc = sp.consts()
 	cn.ch = make([]noiseChannel, m)
 	cn.kd, cn.f, cn.step, cn.b = make([]float64, m), make([]float64, m), make([]float64, m), make([]float64, m)
@@ -188,6 +107,7 @@ func (cn *ChannelNoise) build(tau, dts []float64, from int, d []float64) {
 			break
 		}
 	}
+	return cn, nil
 }
 
 // sepCoef sets the factors of pairsSeparable's six separable terms for

@@ -1,10 +1,8 @@
 package cumulants
 
 import (
-	"errors"
 	"math"
 	"math/rand/v2"
-	"slices"
 	"testing"
 )
 
@@ -93,84 +91,5 @@ func TestChannelNoiseQuadMatchesDirect(t *testing.T) {
 				}
 			}
 		})
-	}
-}
-
-// TestNewChannelNoiseRebuilds: ChannelSD gives the Parameters of the
-// fit's ChannelNoise, and a ChannelNoise built by NewChannelNoise from
-// them gives the same quadratic form bit for bit
-// (the same arithmetic on the same inputs) for every basis; scaling the
-// standard deviations by s scales the form by s² (to 1e-14 relative, the
-// rounding of the products); and the constructor refuses parameters that
-// are out of range instead of building a model from them.
-func TestNewChannelNoiseRebuilds(t *testing.T) {
-	tau := multiTauGrid(0.5e-6, 8, 200)
-	rng := rand.New(rand.NewPCG(4, 4))
-	y := make([]float64, len(tau))
-	for i, x := range tau {
-		g := math.Exp(-2000 * x)
-		y[i] = 1 + 0.9*g*g + 1e-3*rng.NormFloat64()
-	}
-	r, err := Fit(tau, y, nil, G2, nil)
-	if err != nil {
-		t.Fatal(err)
-	}
-	const from = 5
-	for _, acq := range []Acquisition{{DurationS: 10, CountRateHz: 2e5}, {}} {
-		cn, err := r.ChannelNoise(tau, G2, acq, from)
-		if err != nil {
-			t.Fatal(err)
-		}
-		gamma, beta, rate, sd := cn.Parameters()
-		g2, b2, r2, sd2, basis, err := r.ChannelSD(tau, G2, acq, from)
-		if err != nil || basis != cn.Basis || g2 != gamma || b2 != beta || r2 != rate || !slices.Equal(sd2, sd) {
-			t.Fatalf("basis %s: ChannelSD gives other parameters than ChannelNoise (%v)", cn.Basis, err)
-		}
-		re, err := NewChannelNoise(tau, from, gamma, beta, rate, sd)
-		if err != nil {
-			t.Fatal(err)
-		}
-		scaled := make([]float64, len(sd))
-		for i, v := range sd {
-			scaled[i] = 3 * v
-		}
-		re3, err := NewChannelNoise(tau, from, gamma, beta, rate, scaled)
-		if err != nil {
-			t.Fatal(err)
-		}
-		for trial := range 5 {
-			v := make([]float64, len(tau)-from)
-			for i := range v {
-				v[i] = rng.NormFloat64()
-			}
-			a, b, c := cn.Quad(v), re.Quad(v), re3.Quad(v)
-			if math.Float64bits(a) != math.Float64bits(b) {
-				t.Fatalf("basis %s, vector %d: rebuilt %v, fit's %v", cn.Basis, trial, b, a)
-			}
-			if math.Abs(c-9*a) > 1e-14*9*math.Abs(a) {
-				t.Fatalf("basis %s, vector %d: D×3 gives %v, want 9×%v", cn.Basis, trial, c, a)
-			}
-		}
-	}
-	sd := make([]float64, len(tau)-from)
-	for i := range sd {
-		sd[i] = 1e-3
-	}
-	for _, c := range []struct {
-		name                  string
-		from                  int
-		gamma, beta, rate, s0 float64
-	}{
-		{"channels", from + 1, 2000, 0.9, 0, 1e-3},
-		{"rate", from, 0, 0.9, 0, 1e-3},
-		{"beta", from, 2000, 1.2, 0, 1e-3},
-		{"count rate", from, 2000, 0.9, -1, 1e-3},
-		{"sd", from, 2000, 0.9, 0, math.NaN()},
-	} {
-		s := append([]float64(nil), sd...)
-		s[0] = c.s0
-		if _, err := NewChannelNoise(tau, c.from, c.gamma, c.beta, c.rate, s); !errors.Is(err, ErrNoCorrelated) {
-			t.Errorf("%s: error %v, want ErrNoCorrelated", c.name, err)
-		}
 	}
 }

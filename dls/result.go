@@ -241,24 +241,6 @@ type SizeDistribution struct {
 	G1Fitted    []float64  `json:"g1_fitted"`
 	G1Residuals []float64  `json:"g1_residuals"`
 	Scan        []AlphaRow `json:"alpha_scan"`
-	// NoiseModel is the correlator model of the noise of G1, kept where
-	// the inversion's standardised residuals are correlated from lag to
-	// lag (lag-one autocorrelation at least 0.1) for the joint inversion of
-	// the sample's runs; the run's own peaks used it when PeakNoise says
-	// "correlator model …" (from 0.2). nil where the model does not apply.
-	NoiseModel *NoiseModel `json:"noise_model,omitempty"`
-}
-
-// NoiseModel is a correlator model of the channel noise of g1
-// (cumulants.ChannelNoise): one decay rate, the coherence factor and the
-// count rate (0: not given, no shot noise) that shape the correlation of
-// the channels, and the standard deviation of g1 at every lag of
-// Curves.TauS (0 before the inversion's first lag).
-type NoiseModel struct {
-	GammaPerS     float64   `json:"gamma_per_s"`
-	Beta          float64   `json:"beta"`
-	CountRatePerS float64   `json:"count_rate_per_s"`
-	G1Sigma       []float64 `json:"g1_sigma"`
 }
 
 // AlphaRow is one regularisation strength tried.

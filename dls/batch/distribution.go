@@ -11,7 +11,6 @@ import (
 	"dlsbatch/dls"
 	"dlsbatch/dls/mie"
 	"dlsbatch/dls/sizedist"
-	"dlsbatch/dls/stats"
 )
 
 // DistributionSettings control the size-distribution step.
@@ -236,27 +235,19 @@ func distribution(m *dls.Measurement, fit *cumulants.Result, st state, meta dls.
 		r.DistZAvgNm = dls.DiameterFromDiffusion(tK, st.etaPaS, dls.DiffusionFromRate(r.DistMeanRatePerS, st.optics.Q())) * 1e9
 	}
 	sens, _ := contin.NewSensitivity(grid, inv, sg, &cs) // nil: peaks without uncertainties
-	var model *dls.NoiseModel
 	if sens != nil {
 		r.PeakNoise = "residuals"
-		rho := sens.ResidualCorrelation()
-		if rho < minCorrelatorRho {
+		if sens.ResidualCorrelation() < minCorrelatorRho {
 			r.PeakNoise = "residuals (independent from lag to lag)"
-		}
-		if rho >= minModelRho {
-			noise, basis, nm := correlatorNoise(m, fit, first, sigma, sg, acquisition(r), rho >= minCorrelatorRho)
-			model = nm
-			if noise != nil {
-				sens.Noise = noise
-				r.PeakNoise = "correlator model (" + basis + ")"
-			}
+		} else if noise, basis := correlatorNoise(m, fit, first, sigma, sg, acquisition(r)); noise != nil {
+			sens.Noise = noise
+			r.PeakNoise = "correlator model (" + basis + ")"
 		}
 	}
 	r.Intensity, r.Volume, r.Number = summariseWeightings(d, inv.Amplitude, sens, &s.Peaks)
 	sd := &dls.SizeDistribution{
 		DiameterNm: d.DiameterNm, Intensity: d.Intensity, Volume: d.Volume, Number: d.Number, MieMasked: d.Masked,
 		G1: padFront(g1, first), G1Sigma: padFront(sg, first), G1Fitted: padFront(inv.Fitted, first), G1Residuals: padFront(inv.Residuals, first),
-		NoiseModel: model,
 	}
 	for i, row := range inv.Scan {
 		sd.Scan = append(sd.Scan, dls.AlphaRow{Lambda: row.Lambda, Alpha: row.Alpha, ChiSquare: row.ChiSquare,
@@ -280,29 +271,13 @@ func distribution(m *dls.Measurement, fit *cumulants.Result, st state, meta dls.
 // uncertainty and its threshold).
 var minCorrelatorRho = 0.2 // a variable only so that tests can switch the model off
 
-// minModelRho is the lag-one autocorrelation of the standardised residuals
-// from which a run keeps its correlator model in its record
-// (SizeDistribution.NoiseModel) even where its own peaks do not use it
-// (below minCorrelatorRho): the joint inversion of a sample's runs needs
-// every run's model, and a run of correlator data falls below 0.2 now and
-// then by chance (photon-level runs, 300 of 100 nm and ratio-3 pairs:
-// 11 % below 0.2, 1.3 % below 0.1; independent Gaussian noise, 1,000 runs
-// of the scipy comparison: 12 % at or above 0.1, 0.7 % at or above 0.2, so
-// about one run in eight of such data pays for a model it will rarely use:
-// its σ alone, ~25 µs, cumulants BenchmarkChannelNoise sd-only, and 200
-// numbers in its record; BenchmarkAnalyze +2–3 %).
-const minModelRho = 0.1
-
 // correlatorNoise returns the quadratic form g ↦ g'·C·g of the noise
 // covariance of the inversion's data (g1 at the lags first…, with σ sg)
 // under the correlator model of the cumulant fit (cumulants.ChannelNoise:
 // one rate Γ̄; D the σ given with the data, or the model's variances for
 // the stated duration and count rate, or those scaled to the far
-// channels), the basis of D, and the model in g1's units as the record
-// keeps it (for the joint inversion of the sample's runs, which rebuilds
-// it: cumulants.NewChannelNoise); nil where the model does not apply (g1
-// data, the linear method, too few far channels). Without use only the
-// record's model is made (no form: cumulants.ChannelSD, half the cost). g1 is linear in the
+// channels), and the basis of D; nil where the model does not apply (g1
+// data, the linear method, too few far channels). g1 is linear in the
 // data to first order, δg1_i = δy_i·σ_g1,i/σ_y,i (sigmaY the σ of the data
 // that sg was propagated from).
 //
@@ -310,27 +285,17 @@ const minModelRho = 0.1
 // diameter understated its scatter 5 to 8 times (rms z 5.4 and 8.1 for
 // 150 runs of 100 nm at 173° and 40 of 200 nm at 90°); with this one
 // the rms z was 1.19 and 1.10 (DEVELOPERS.md, "Peaks you can believe").
-func correlatorNoise(m *dls.Measurement, fit *cumulants.Result, first int, sigmaY, sg []float64, acq cumulants.Acquisition, use bool) (func([]float64) float64, string, *dls.NoiseModel) {
+func correlatorNoise(m *dls.Measurement, fit *cumulants.Result, first int, sigmaY, sg []float64, acq cumulants.Acquisition) (func([]float64) float64, string) {
 	kind := cumulants.G2
 	switch m.Kind {
 	case dls.KindG2m1:
 		kind = cumulants.G2Minus1
 	case dls.KindG1:
-		return nil, "", nil
+		return nil, ""
 	}
-	var cn *cumulants.ChannelNoise
-	var gamma, beta, rate float64
-	var d []float64
-	var err error
-	if use {
-		if cn, err = fit.ChannelNoise(m.TauS, kind, acq, first); err == nil {
-			gamma, beta, rate, d = cn.Parameters()
-		}
-	} else {
-		gamma, beta, rate, d, _, err = fit.ChannelSD(m.TauS, kind, acq, first)
-	}
+	cn, err := fit.ChannelNoise(m.TauS, kind, acq, first)
 	if err != nil {
-		return nil, "", nil
+		return nil, ""
 	}
 	jac := make([]float64, len(sg))
 	for i, s := range sg {
@@ -338,27 +303,13 @@ func correlatorNoise(m *dls.Measurement, fit *cumulants.Result, first int, sigma
 			jac[i] = s / sy
 		}
 	}
-	nm := &dls.NoiseModel{GammaPerS: gamma, Beta: beta, CountRatePerS: rate, G1Sigma: make([]float64, len(m.TauS))}
-	for i, v := range d {
-		nm.G1Sigma[first+i] = v * jac[i]
-		if !stats.IsFinite(nm.G1Sigma[first+i]) {
-			nm = nil // a record holds finite numbers only: keep no model rather than lose the result
-			break
-		}
-	}
-	if nm != nil && !(stats.IsFinite(gamma) && stats.IsFinite(beta) && stats.IsFinite(rate)) {
-		nm = nil
-	}
-	if cn == nil {
-		return nil, "", nm
-	}
 	w := make([]float64, len(sg))
 	return func(g []float64) float64 {
 		for i, x := range g {
 			w[i] = x * jac[i]
 		}
 		return cn.Quad(w)
-	}, cn.Basis, nm
+	}, cn.Basis
 }
 
 // cumulantStart returns amplitudes for the inversion's first solve to

@@ -3,14 +3,12 @@ package batch
 import (
 	"fmt"
 	"math"
+	"strconv"
 	"strings"
 	"sync"
 
-	"dlsbatch/contin"
-	"dlsbatch/cumulants"
 	"dlsbatch/dls"
 	"dlsbatch/dls/mie"
-	"dlsbatch/dls/sizedist"
 )
 
 // Tolerances within which the runs of a sample count as one condition for
@@ -32,8 +30,8 @@ const (
 // on at once. Each sample's joint distribution depends on its own runs
 // only, so the outcome does not depend on workers. An error of field
 // stops the work and is returned.
-func JointDistributions(samples []*dls.Sample, field func(i int) (*dls.FieldRun, error), s *DistributionSettings, workers int) error {
-	if !s.Enabled {
+func JointDistributions(samples []*dls.Sample, field func(i int) (*dls.FieldRun, error), s *Settings, workers int) error {
+	if !s.Distribution.Enabled {
 		return nil
 	}
 	workers = max(workers, 1)
@@ -75,7 +73,7 @@ func JointDistributions(samples []*dls.Sample, field func(i int) (*dls.FieldRun,
 
 // jointOfSample loads the field runs of the sample's used runs and inverts
 // them together; nil when fewer than two of them have a distribution.
-func jointOfSample(smp *dls.Sample, field func(i int) (*dls.FieldRun, error), s *DistributionSettings) (*dls.JointDistribution, error) {
+func jointOfSample(smp *dls.Sample, field func(i int) (*dls.FieldRun, error), s *Settings) (*dls.JointDistribution, error) {
 	var runs []*dls.FieldRun
 	var idx []int
 	for _, i := range smp.Used {
@@ -94,88 +92,63 @@ func jointOfSample(smp *dls.Sample, field func(i int) (*dls.FieldRun, error), s 
 	return jointOf(runs, idx, s), nil
 }
 
-// jointOf inverts the field runs together. The runs must share the lag
-// channels, angle, wavelength and particle index, and lie within
-// jointMaxTempSpreadK and jointMaxRelQ of one another; otherwise the
-// result holds only a note saying why. The mean field correlation at each
-// channel k is
+// jointOf analyses the runs together: the mean of their correlograms at
+// each lag, weighted by duration (equal weights unless every run states
+// one),
 //
-//	ḡ_k = Σ_r g_rk/σ_rk² / Σ_r 1/σ_rk²,   σ̄_k = (Σ_r 1/σ_rk²)^(−1/2),
+//	ȳ_k = Σ_r T_r·y_rk / Σ_r T_r,
 //
-// the maximum-likelihood estimate from independent runs with Gaussian
-// noise (runs are independent measurements; the correlation of the noise
-// along the lag axis within a run stays as it is in each run's σ). It is
-// inverted with the runs' mean temperature, viscosity and q, and the
-// settings of the runs' second pass (whose targets the field runs hold).
-func jointOf(runs []*dls.FieldRun, idx []int, s *DistributionSettings) *dls.JointDistribution {
+// is analysed as one measurement (Analyze, with the runs' settings) of
+// the summed duration and the runs' conditions (meanMeasurement). The runs
+// must share their lags, angle, wavelength
+// and particle index, and lie within jointMaxTempSpreadK and jointMaxRelQ
+// of one another; otherwise the result holds only a note saying why.
+//
+// The correlograms are averaged before the analysis, as one long run
+// averages, rather than the runs' field correlations after each became g1
+// (the square root of a noisy (g2 − B)/β, whose bias where the signal is
+// small an average keeps, with each run's own β and baseline): on
+// photon-level samples of three 30 s runs of 50 + 150 nm this resolved
+// the pair in 9, 15 and 16 of 20 samples at 50/50 and 10, 16 and 17 at
+// 20/80 (default, probability to reject 0.02, GCV), the mean of the field
+// correlations in 5, 13 and 15 and 4, 9 and 12, with a second peak in 0, 0
+// and 2 of 60 monodisperse samples (DEVELOPERS.md, "Joint inversion of a
+// sample's runs"). A σ given with the runs' data is not carried over: the
+// mean's is estimated as for data without one. (A σ from the runs'
+// scatter, channel by channel and averaged over nine lags, made it worse
+// on those samples: 13 and 11 of 20 at 0.02, and a second peak in 2 of 20
+// of 200 nm at 90°, against 15, 16 and none.)
+func jointOf(runs []*dls.FieldRun, idx []int, s *Settings) *dls.JointDistribution {
 	j := &dls.JointDistribution{Runs: idx}
 	if why := jointMismatch(runs); why != "" {
 		j.Note = why + ": no joint inversion"
 		return j
 	}
-	g1, sg := meanField(runs)
-	var tC, etaMPaS, nMed, gamma, pdi float64
-	for _, r := range runs {
-		tC += r.TemperatureC
-		etaMPaS += r.ViscosityMPaS
-		nMed += r.RefractiveIndex
-		gamma += r.GammaMeanPerS
-		pdi += r.PDI
-	}
-	m := float64(len(runs))
-	tC, etaMPaS, nMed, gamma, pdi = tC/m, etaMPaS/m, nMed/m, gamma/m, pdi/m
-	tK, etaPaS := dls.KelvinFromCelsius(tC), etaMPaS*1e-3
-	optics := dls.Optics{WavelengthM: runs[0].WavelengthNm * 1e-9, AngleRad: runs[0].AngleDeg * math.Pi / 180, RefractiveIndex: nMed}
-	mPart, err := runIndex(runs[0].ParticleRI)
-	if err != nil {
-		j.Note = "particle index: " + err.Error() + ": no joint inversion"
-		return j
-	}
-	tau := runs[0].TauS
-	gs := sizeBoundedGrid(s.Grid, tau, tK, etaPaS, optics.Q())
-	grid, err := s.grid(tau, &gs)
+	m, err := meanMeasurement(runs)
 	if err != nil {
 		j.Note = err.Error() + ": no joint inversion"
 		return j
 	}
-	// The free constant column stays (when the settings have it) even where
-	// every run reached its baseline, unlike a run's inversion: the mean's
-	// σ is √n times smaller than a run's, while what the runs' far-channel
-	// baselines share of their error is not, so without the column it
-	// would be fitted by the grid's slowest rates (measured on photon-level
-	// monodisperse samples of three runs, 100 nm for 10 s and 200 nm at 90°
-	// for 30 s: a second peak in 2 of 50 joint inversions without it, none
-	// with it; the ratio-3 pairs of DEVELOPERS.md lose 1 of 40).
-	cs := s.Contin
-	cs.Start = cumulantStart(grid.GammaPerS(), &cumulants.Result{GammaPerS: gamma, PDI: pdi})
-	inv, err := contin.Invert(grid, g1, sg, &cs)
-	if err != nil {
-		j.Note = err.Error() + ": no joint inversion"
+	r := Analyze(m, jointSettings(s))
+	switch {
+	case r.Status == dls.StatusError:
+		j.Note = r.Message + ": no joint inversion"
 		return j
-	}
-	d, err := sizedist.New(sizedist.Input{
-		GammaPerS: inv.GammaPerS, Amplitude: inv.Amplitude, TempK: tK, ViscosityPaS: etaPaS,
-		Optics: optics, ParticleIndex: mPart, Polarization: s.Polarization, Cache: s.MieCache,
-	})
-	if err != nil {
-		j.Note = err.Error() + ": no joint inversion"
-		return j
-	}
-	j.Alpha, j.ProbReject, j.DegreesOfFreedom = inv.Alpha, inv.ProbReject, inv.DegreesOfFreedom
-	if mean := contin.PeaksMeanPerS(contin.Peaks(inv.GammaPerS, inv.Amplitude, &s.Peaks)); mean > 0 {
-		j.DistZAvgNm = dls.DiameterFromDiffusion(tK, etaPaS, dls.DiffusionFromRate(mean, optics.Q())) * 1e9
-	}
-	sens, _ := contin.NewSensitivity(grid, inv, sg, &cs) // nil: peaks without uncertainties
-	if sens != nil {
-		j.PeakNoise = "residuals"
-		if sens.ResidualCorrelation() < minCorrelatorRho {
-			j.PeakNoise = "residuals (independent from lag to lag)"
-		} else if noise := meanNoise(runs); noise != nil {
-			sens.Noise = noise
-			j.PeakNoise = "correlator model (mean of the runs)"
+	case !r.HasDistribution || r.Distribution == nil:
+		why := "no size distribution"
+		for _, w := range r.Warnings {
+			if strings.HasPrefix(w, "size distribution not computed") {
+				why = w
+			}
 		}
+		j.Note = why + ": no joint inversion"
+		return j
 	}
-	j.Intensity, j.Volume, j.Number = summariseWeightings(d, inv.Amplitude, sens, &s.Peaks)
+	j.PeakNoise = r.PeakNoise
+	j.Alpha, j.ProbReject, j.DegreesOfFreedom = r.Alpha, r.ProbReject, r.DegreesOfFreedom
+	j.DistZAvgNm = r.DistZAvgNm
+	j.Intensity, j.Volume, j.Number = r.Intensity, r.Volume, r.Number
+	d := r.Distribution
 	lo, hi := -1, -1
 	for k, v := range d.Intensity {
 		if v > 0 {
@@ -197,83 +170,74 @@ func jointOf(runs []*dls.FieldRun, idx []int, s *DistributionSettings) *dls.Join
 	return j
 }
 
-// meanNoise returns the quadratic form g ↦ g'·C̄·g of the noise
-// covariance of meanField's mean under the runs' correlator models, nil
-// unless every run has one (dls.FieldNoise). The runs' noises are
-// independent, and the mean at channel k is Σ_r a_rk·g_rk with
-// a_rk = σ_rk⁻²/Σ_s σ_sk⁻², so C̄ = Σ_r A_r·C_r·A_r (A_r = diag(a_r)) and
-// g'·C̄·g = Σ_r (a_r∘g)'·C_r·(a_r∘g): each run's model rebuilt
-// (cumulants.NewChannelNoise) and evaluated at its share of g. jointOf
-// takes it, as a run's inversion takes its own, when the joint
-// inversion's standardised residuals are correlated from lag to lag.
-// Without it the joint peaks took the residual-based uncertainty, which
-// the channels' correlated noise makes too small: at GCV the joint
-// inversion of three 10 s photon-level runs showed a second peak in 9 of
-// 60 monodisperse samples, with it in 2 (DEVELOPERS.md, "Joint inversion
-// of a sample's runs").
-func meanNoise(runs []*dls.FieldRun) func([]float64) float64 {
-	n := len(runs[0].TauS)
-	cns := make([]*cumulants.ChannelNoise, len(runs))
-	for i, r := range runs {
-		nz := r.Noise
-		if nz == nil || len(nz.G1Sigma) != n || len(r.TauS) != n {
-			return nil
-		}
-		tau, from := r.TauS, 0
-		if nz.PrevLagS > 0 {
-			tau, from = append([]float64{nz.PrevLagS}, r.TauS...), 1
-		}
-		cn, err := cumulants.NewChannelNoise(tau, from, nz.GammaPerS, nz.Beta, nz.CountRatePerS, nz.G1Sigma)
-		if err != nil {
-			return nil
-		}
-		cns[i] = cn
-	}
-	share := make([][]float64, len(runs))
-	for i := range share {
-		share[i] = make([]float64, n)
-	}
-	for k := range n {
-		var w float64
-		for _, r := range runs {
-			w += 1 / (r.G1Sigma[k] * r.G1Sigma[k])
-		}
-		for i, r := range runs {
-			if w > 0 {
-				share[i][k] = 1 / (r.G1Sigma[k] * r.G1Sigma[k]) / w
-			}
-		}
-	}
-	v := make([]float64, n)
-	return func(g []float64) float64 {
-		q := 0.0
-		for i, cn := range cns {
-			for k, x := range g {
-				v[k] = share[i][k] * x
-			}
-			q += cn.Quad(v)
-		}
-		return q
-	}
+// jointSettings is s for the analysis of the runs' mean, which states
+// every condition itself (meanMeasurement): no overrides or defaults.
+func jointSettings(s *Settings) *Settings {
+	js := *s
+	js.Overrides, js.Defaults = nil, nil
+	return &js
 }
 
-// meanField is the inverse-variance weighted mean of the runs' field
-// correlations at each channel and its standard deviation (the runs share
-// their channels: jointMismatch).
-func meanField(runs []*dls.FieldRun) (g1, sigma []float64) {
-	n := len(runs[0].TauS)
-	g1 = make([]float64, n)
-	sigma = make([]float64, n)
-	for k := range n {
-		var w, wg float64
-		for _, r := range runs {
-			wk := 1 / (r.G1Sigma[k] * r.G1Sigma[k])
-			w += wk
-			wg += wk * r.G1[k]
-		}
-		g1[k], sigma[k] = wg/w, 1/math.Sqrt(w)
+// meanMeasurement is the measurement jointOf analyses: the mean
+// correlogram, with the runs' conditions as their analyses resolved them
+// (weighted means of temperature, viscosity and medium index; the first
+// run's wavelength, angle and particle index, which jointMismatch found
+// shared), the summed duration and the mean count rate, each stated as
+// given.
+func meanMeasurement(runs []*dls.FieldRun) (*dls.Measurement, error) {
+	r0 := runs[0]
+	kind, err := dls.ParseCorrKind(r0.Kind)
+	if err != nil {
+		return nil, fmt.Errorf("correlation kind %q: %w", r0.Kind, err)
 	}
-	return g1, sigma
+	timed, rated := true, true
+	for _, r := range runs {
+		timed = timed && r.HasDuration && r.DurationS > 0
+		rated = rated && r.HasCountRate
+	}
+	w := make([]float64, len(runs))
+	var sw, tC, eta, nMed, dur, rate float64
+	for i, r := range runs {
+		w[i] = 1 // without every duration, equal weights
+		if timed {
+			w[i] = r.DurationS
+		}
+		sw += w[i]
+		tC += w[i] * r.TemperatureC
+		eta += w[i] * r.ViscosityMPaS
+		nMed += w[i] * r.RefractiveIndex
+		dur += r.DurationS
+		rate += w[i] * r.CountRateKcps
+	}
+	n := len(r0.TauS)
+	m := &dls.Measurement{File: "joint of the sample's runs", Kind: kind, TauS: r0.TauS, Corr: make([]float64, n)}
+	for k := range n {
+		v := 0.0
+		for i, r := range runs {
+			v += w[i] * r.Data[k]
+		}
+		m.Corr[k] = v / sw
+	}
+	const where = "joint analysis of the sample's runs"
+	set := func(key, value string) {
+		m.Meta.Set(dls.Param{Key: key, Value: value, Origin: dls.OriginFlag, Where: where})
+	}
+	num := func(key string, v float64) { set(key, strconv.FormatFloat(v, 'g', -1, 64)) }
+	num(dls.KeyTemperatureC, tC/sw)
+	num(dls.KeyViscosityMPaS, eta/sw)
+	num(dls.KeyRefractiveIndex, nMed/sw)
+	num(dls.KeyWavelengthNm, r0.WavelengthNm)
+	num(dls.KeyAngleDeg, r0.AngleDeg)
+	if ri, _, _ := strings.Cut(r0.ParticleRI, " ("); ri != "" {
+		set(dls.KeyParticleRI, ri)
+	}
+	if timed {
+		num(dls.KeyDurationS, dur)
+	}
+	if rated {
+		num(dls.KeyCountRateKcps, rate/sw)
+	}
+	return m, nil
 }
 
 // jointMismatch says how the runs differ beyond one condition; "" when
@@ -283,8 +247,10 @@ func jointMismatch(runs []*dls.FieldRun) string {
 	tMin, tMax := r0.TemperatureC, r0.TemperatureC
 	for _, r := range runs[1:] {
 		switch {
-		case len(r.TauS) != len(r0.TauS):
-			return "the runs' inversions used different lag channels"
+		case len(r.TauS) != len(r0.TauS) || len(r.Data) != len(r.TauS):
+			return "the runs have different lag channels"
+		case r.Kind != r0.Kind:
+			return "the runs' correlation values are of different kinds"
 		case math.Abs(r.AngleDeg-r0.AngleDeg) > jointMaxAngleDeg:
 			return fmt.Sprintf("the runs were measured at different angles (%g° and %g°)", r0.AngleDeg, r.AngleDeg)
 		case r.WavelengthNm != r0.WavelengthNm:
@@ -296,7 +262,7 @@ func jointMismatch(runs []*dls.FieldRun) string {
 		}
 		for k, t := range r.TauS {
 			if t != r0.TauS[k] {
-				return "the runs' inversions used different lag channels"
+				return "the runs have different lag channels"
 			}
 		}
 		tMin, tMax = math.Min(tMin, r.TemperatureC), math.Max(tMax, r.TemperatureC)

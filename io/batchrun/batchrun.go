@@ -356,7 +356,7 @@ func publish(ctx context.Context, cfg *Config, out *resultset.Set, p *publishing
 	if err := p.stream.Flush(); err != nil {
 		return nil, fmt.Errorf("results: %w", err)
 	}
-	if err := batch.JointDistributions(o.Samples, p.stream.Field, &cfg.Settings.Distribution, cfg.Workers); err != nil {
+	if err := batch.JointDistributions(o.Samples, p.stream.Field, &cfg.Settings, cfg.Workers); err != nil {
 		return nil, err
 	}
 	region.End()

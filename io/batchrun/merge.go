@@ -4,6 +4,7 @@ import (
 	"bytes"
 	"context"
 	"dlsbatch/contin"
+	"dlsbatch/cumulants"
 	"dlsbatch/dls/batch"
 	"encoding/json"
 	"fmt"
@@ -95,6 +96,10 @@ func Merge(ctx context.Context, cfg *MergeConfig) (*Outcome, error) {
 	if run.Settings.Distribution, err = distributionOf(rec); err != nil {
 		return nil, fmt.Errorf("%w: %s: %w", ErrUsage, cfg.Dirs[0], err)
 	}
+	if run.Settings.Cumulants, err = cumulantsOf(rec); err != nil {
+		return nil, fmt.Errorf("%w: %s: %w", ErrUsage, cfg.Dirs[0], err)
+	}
+	run.Settings.AllowImplausible, run.Settings.Extrapolate = rec.AllowImplausible, rec.Extrapolate
 	// The inputs are recorded with the hashes the shards took when they
 	// analysed them: what the merged set attests is what was analysed,
 	// and no input is read again.
@@ -238,6 +243,19 @@ func readResults(path string, add func(*dls.Result)) error {
 		return nil
 	}
 	return fmt.Errorf("%s: no results", path)
+}
+
+// cumulantsOf rebuilds the cumulant settings a run recorded, for the
+// joint analyses of the merged samples, which fit the mean correlogram as
+// the shards fitted each run.
+func cumulantsOf(rec *report.Settings) (cumulants.Settings, error) {
+	c := cumulants.DefaultSettings()
+	m, err := cumulants.ParseMethod(rec.CumulantMethod)
+	if err != nil {
+		return c, fmt.Errorf("settings record: %w", err)
+	}
+	c.Method, c.Order, c.Cutoff, c.MinTauS, c.MinPoints, c.RangeCheck = m, rec.CumulantOrder, rec.G1Cutoff, rec.MinLagS, rec.MinPoints, rec.RangeCheck
+	return c, nil
 }
 
 // distributionOf rebuilds the inversion settings a run recorded, for the

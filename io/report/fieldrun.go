@@ -12,13 +12,12 @@ import (
 // to the bit (little-endian IEEE 754):
 //
 //	8 float64   temperature, viscosity, medium index, wavelength, angle,
-//	            q, Γ̄, PDI
-//	uint32 n, then n float64 lags, n g1 values, n σ
-//	uint32 length, then the particle index text
-//	uint32 0 (no noise model), or n, then 4 float64 Γ, β, count rate,
-//	            previous lag, and the model's n σ of g1
+//	            q, duration, count rate
+//	1 byte      flags: 1 duration given, 2 count rate given
+//	text        particle index, then the kind of the correlation values
+//	uint32 n, then n float64 lags and n correlation values
 //
-// nil encodes as nothing.
+// A text is a uint32 length and its bytes. nil encodes as nothing.
 const fieldScalars = 8
 
 // appendFieldRun appends the encoding of f to dst.
@@ -27,27 +26,29 @@ func appendFieldRun(dst []byte, f *dls.FieldRun) []byte {
 		return dst
 	}
 	for _, v := range [fieldScalars]float64{f.TemperatureC, f.ViscosityMPaS, f.RefractiveIndex, f.WavelengthNm,
-		f.AngleDeg, f.QPerM, f.GammaMeanPerS, f.PDI} {
+		f.AngleDeg, f.QPerM, f.DurationS, f.CountRateKcps} {
 		dst = binary.LittleEndian.AppendUint64(dst, math.Float64bits(v))
 	}
-	dst = binary.LittleEndian.AppendUint32(dst, uint32(len(f.TauS)))
-	for _, c := range [][]float64{f.TauS, f.G1, f.G1Sigma} {
+	var flags byte
+	if f.HasDuration {
+		flags |= 1
+	}
+	if f.HasCountRate {
+		flags |= 2
+	}
+	dst = append(dst, flags)
+	text := func(s string) {
+		dst = binary.LittleEndian.AppendUint32(dst, uint32(len(s)))
+		dst = append(dst, s...)
+	}
+	text(f.ParticleRI)
+	text(f.Kind)
+	n := min(len(f.TauS), len(f.Data))
+	dst = binary.LittleEndian.AppendUint32(dst, uint32(n))
+	for _, c := range [][]float64{f.TauS[:n], f.Data[:n]} {
 		for _, v := range c {
 			dst = binary.LittleEndian.AppendUint64(dst, math.Float64bits(v))
 		}
-	}
-	dst = binary.LittleEndian.AppendUint32(dst, uint32(len(f.ParticleRI)))
-	dst = append(dst, f.ParticleRI...)
-	nz := f.Noise
-	if nz == nil || len(nz.G1Sigma) != len(f.TauS) {
-		return binary.LittleEndian.AppendUint32(dst, 0)
-	}
-	dst = binary.LittleEndian.AppendUint32(dst, uint32(len(nz.G1Sigma)))
-	for _, v := range [4]float64{nz.GammaPerS, nz.Beta, nz.CountRatePerS, nz.PrevLagS} {
-		dst = binary.LittleEndian.AppendUint64(dst, math.Float64bits(v))
-	}
-	for _, v := range nz.G1Sigma {
-		dst = binary.LittleEndian.AppendUint64(dst, math.Float64bits(v))
 	}
 	return dst
 }
@@ -56,64 +57,60 @@ var errFieldRun = errors.New("field run: truncated or malformed")
 
 // readFieldRun decodes what appendFieldRun wrote.
 func readFieldRun(b []byte) (*dls.FieldRun, error) {
-	f64 := func() (float64, bool) {
+	ok := true
+	f64 := func() float64 {
 		if len(b) < 8 {
-			return 0, false
+			ok = false
+			return 0
 		}
 		v := math.Float64frombits(binary.LittleEndian.Uint64(b))
 		b = b[8:]
-		return v, true
+		return v
 	}
-	u32 := func() (int, bool) {
+	u32 := func() int {
 		if len(b) < 4 {
-			return 0, false
+			ok = false
+			return 0
 		}
 		v := binary.LittleEndian.Uint32(b)
 		b = b[4:]
-		return int(v), true
+		return int(v)
+	}
+	text := func() string {
+		n := u32()
+		if !ok || n > len(b) {
+			ok = false
+			return ""
+		}
+		s := string(b[:n])
+		b = b[n:]
+		return s
 	}
 	var sc [fieldScalars]float64
 	for k := range sc {
-		v, ok := f64()
-		if !ok {
-			return nil, errFieldRun
-		}
-		sc[k] = v
+		sc[k] = f64()
 	}
-	n, ok := u32()
-	if !ok || n > len(b)/24 {
+	if !ok || len(b) < 1 || b[0]&^3 != 0 {
 		return nil, errFieldRun
 	}
+	flags := b[0]
+	b = b[1:]
 	f := &dls.FieldRun{TemperatureC: sc[0], ViscosityMPaS: sc[1], RefractiveIndex: sc[2], WavelengthNm: sc[3],
-		AngleDeg: sc[4], QPerM: sc[5], GammaMeanPerS: sc[6], PDI: sc[7]}
-	all := make([]float64, 3*n)
-	for k := range all {
-		all[k], _ = f64()
-	}
-	f.TauS, f.G1, f.G1Sigma = all[:n:n], all[n:2*n:2*n], all[2*n:]
-	m, ok := u32()
-	if !ok || m > len(b) {
+		AngleDeg: sc[4], QPerM: sc[5], DurationS: sc[6], CountRateKcps: sc[7],
+		HasDuration: flags&1 != 0, HasCountRate: flags&2 != 0}
+	f.ParticleRI = text()
+	f.Kind = text()
+	n := u32()
+	if !ok || len(b) != 16*n {
 		return nil, errFieldRun
 	}
-	f.ParticleRI = string(b[:m])
-	b = b[m:]
-	k, ok := u32()
-	switch {
-	case !ok:
-		return nil, errFieldRun
-	case k == 0 && len(b) == 0:
+	if n == 0 {
 		return f, nil
-	case k != n || len(b) != 8*(4+n):
-		return nil, errFieldRun
 	}
-	nz := &dls.FieldNoise{G1Sigma: make([]float64, n)}
-	nz.GammaPerS, _ = f64()
-	nz.Beta, _ = f64()
-	nz.CountRatePerS, _ = f64()
-	nz.PrevLagS, _ = f64()
-	for i := range nz.G1Sigma {
-		nz.G1Sigma[i], _ = f64()
+	all := make([]float64, 2*n)
+	for k := range all {
+		all[k] = f64()
 	}
-	f.Noise = nz
+	f.TauS, f.Data = all[:n:n], all[n:]
 	return f, nil
 }
