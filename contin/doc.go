@@ -210,16 +210,15 @@
 // in 2 % of 100 nm runs at 173° but 9 % of 200 nm runs at 90°, so the
 // default stays at 0.5 (the full tables, with other strengths and a
 // whitened fit, are in DEVELOPERS.md, "Resolution on correlator noise").
-// Inverting the mean of a sample's three 30 s runs (dls/batch's joint
-// inversion) at a probability to reject of 0.02 splits ratio 3 in 11 and
-// 10 of 20 samples and ratio 2.5 in 12 of 20, inventing a second peak in
-// 1 of 100 samples of 100 nm at 173° and 1 of 20 of 200 nm at 90°; GCV
-// splits ratio 3 in 13 of 20 but invents one in 5–15 % (DEVELOPERS.md,
-// "Joint inversion of a sample's runs"). With the joint peaks' noise
-// taken from the runs' correlator models (the covariance of the mean), on
-// a later set GCV splits ratio 3 in 15 of 20 (50/50) and 12 of 20 (20/80)
-// and invents a second peak in 2 of 80 monodisperse samples, against 9 of
-// 60 and 3 of 20 with the residual-based noise. One 100 s run at 300 kcps, at
+// Analysing the mean of a sample's three 30 s correlograms as one
+// measurement (dls/batch's joint analysis) splits ratio 3 at 50/50 and
+// 20/80 in 9 and 10 of 20 samples at the default, 15 and 16 of 20 at a
+// probability to reject of 0.02 and 16 and 17 of 20 at GCV, inventing a
+// second peak in none of 80 monodisperse samples (100 nm at 173°, 200 nm
+// at 90°) at the default and 0.02, and in 2 at GCV; inverting the mean of
+// the runs' field correlations instead, as an earlier version did, split
+// ratio 3 in 13 and 9 of 20 at 0.02 (DEVELOPERS.md, "Joint inversion of a
+// sample's runs"). One 100 s run at 300 kcps, at
 // 0.02, splits ratio 3 in 15 and 17 of 20 runs (50/50, 20/80) and ratio
 // 2.5 in 11 and 9 of 20, with no second peak on 40 monodisperse runs.
 // A Gauss–Newton second pass (the target √u replaced by its tangent at

@@ -12,7 +12,7 @@ import (
 )
 
 // Tolerances within which the runs of a sample count as one condition for
-// the joint inversion (common practice: a repeat on one instrument and
+// the joint analysis (common practice: a repeat on one instrument and
 // cell differs in temperature by its control's stability, and not at all
 // in angle, wavelength or lag grid). Runs outside them are not joined.
 const (
@@ -23,8 +23,8 @@ const (
 
 // JointDistributions gives every sample with at least two used runs that
 // have a size distribution the joint distribution of those runs
-// (Sample.Joint): their field correlations averaged with inverse-variance
-// weights, channel by channel, and inverted once (jointOf). Blanks are
+// (Sample.Joint): the mean of their correlograms analysed as one
+// measurement (jointOf). Blanks are
 // left out (no size is reported for them). field loads the field run of
 // result i, nil when it has none; workers (at least 1) samples are worked
 // on at once. Each sample's joint distribution depends on its own runs
@@ -71,7 +71,7 @@ func JointDistributions(samples []*dls.Sample, field func(i int) (*dls.FieldRun,
 	return first
 }
 
-// jointOfSample loads the field runs of the sample's used runs and inverts
+// jointOfSample loads the field runs of the sample's used runs and analyses
 // them together; nil when fewer than two of them have a distribution.
 func jointOfSample(smp *dls.Sample, field func(i int) (*dls.FieldRun, error), s *Settings) (*dls.JointDistribution, error) {
 	var runs []*dls.FieldRun
