@@ -8,7 +8,6 @@ import (
 	"sync"
 
 	"dlsbatch/dls"
-	"dlsbatch/dls/mie"
 )
 
 // Tolerances within which the runs of a sample count as one condition for
@@ -273,12 +272,3 @@ func jointMismatch(runs []*dls.FieldRun) string {
 	return ""
 }
 
-// runIndex reads the particle index as a result states it: the complex
-// index, followed for a material of the Mie table by its name and source
-// in parentheses.
-func runIndex(text string) (complex128, error) {
-	if i := strings.Index(text, " ("); i >= 0 {
-		text = text[:i]
-	}
-	return mie.ParseComplexIndex(text)
-}
