@@ -271,4 +271,3 @@ func jointMismatch(runs []*dls.FieldRun) string {
 	}
 	return ""
 }
-
