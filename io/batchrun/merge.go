@@ -91,7 +91,7 @@ func Merge(ctx context.Context, cfg *MergeConfig) (*Outcome, error) {
 
 	rec := first.Settings
 	run := &Config{HTMLReport: cfg.HTMLReport, ExcludeOutliers: rec.ExcludeOutliers,
-		Record: func(string) *report.Settings { return rec }}
+		Record: func(string) *report.Settings { return rec }, Settings: batch.DefaultSettings()}
 	run.Settings.QC = rec.QCThresholds
 	if run.Settings.Distribution, err = distributionOf(rec); err != nil {
 		return nil, fmt.Errorf("%w: %s: %w", ErrUsage, cfg.Dirs[0], err)
