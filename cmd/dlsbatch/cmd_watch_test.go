@@ -5,6 +5,7 @@ import (
 	"os"
 	"path/filepath"
 	"strings"
+	"sync"
 	"testing"
 	"time"
 
@@ -24,9 +25,9 @@ func TestWatch(t *testing.T) {
 	in := filepath.Join(t.TempDir(), "instrument")
 	os.MkdirAll(in, 0o755)
 	out := filepath.Join(t.TempDir(), "out")
-	watch := func(ctx context.Context) (chan int, *strings.Builder) {
+	watch := func(ctx context.Context) (chan int, *lockedText) {
 		done := make(chan int, 1)
-		var stderr strings.Builder
+		var stderr lockedText
 		go func() {
 			var b strings.Builder
 			code := run(ctx, []string{"watch", in, "--out", out, "--settle", "300ms", "--poll", "100ms", "-q"},
@@ -100,4 +101,23 @@ func mustRead(t *testing.T, p string) []byte {
 		t.Fatal(err)
 	}
 	return b
+}
+
+// lockedText is a strings.Builder that a running command writes while the
+// test reads it.
+type lockedText struct {
+	mu sync.Mutex
+	b  strings.Builder
+}
+
+func (l *lockedText) Write(p []byte) (int, error) {
+	l.mu.Lock()
+	defer l.mu.Unlock()
+	return l.b.Write(p)
+}
+
+func (l *lockedText) String() string {
+	l.mu.Lock()
+	defer l.mu.Unlock()
+	return l.b.String()
 }
