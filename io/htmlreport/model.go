@@ -392,7 +392,7 @@ func buildSample(r *Report, i int, w *writer) (samplePage, error) {
 		{"PDI RSD (%)", spread(s.PDIRSDPct, nUsed, 1)},
 		{"main intensity peak, mean (nm)", positive(s.Peak1MeanNm, nUsed)},
 		{"intensity peaks across the runs", samplePeaks(s.IntensityPeaks)},
-		{"intensity peaks of the runs inverted together", jointPeaks(s.Joint)},
+		{"intensity peaks of the runs analysed together", jointPeaks(s.Joint)},
 		{"D90 intensity, mean (nm)", positive(s.D90MeanNm, nUsed)},
 		{"temperatures (°C)", temperatures(s.TemperaturesC)},
 	}
