@@ -49,7 +49,7 @@ func FieldRunOf(r *Result) *FieldRun {
 // cannot separate may show here; the per-run results stand beside it.
 // Note says why it was not computed when Intensity is nil.
 type JointDistribution struct {
-	// Runs indexes the runs inverted together in the batch's result list.
+	// Runs indexes the runs analysed together in the batch's result list.
 	Runs []int `json:"runs"`
 	// Note says why there is no joint distribution (runs at different
 	// angles, lag grids or optics, or the inversion's error); "" when there

@@ -81,7 +81,7 @@ type Sample struct {
 	// IntensityPeaks are the intensity peaks of the used runs matched by
 	// position (MatchPeaks): how many of the runs show each.
 	IntensityPeaks []SamplePeak `json:"intensity_peaks"`
-	// Joint is the size distribution of the used runs inverted together
+	// Joint is the size distribution of the used runs analysed together
 	// (batch.JointDistributions); nil for a blank, for fewer than two used
 	// runs with a distribution, or when the inversion is off.
 	Joint *JointDistribution `json:"joint,omitempty"`

@@ -88,7 +88,7 @@ func jointOfResults(rs []*dls.Result) *dls.JointDistribution {
 	return jointOf(fr, idx, &s)
 }
 
-// TestJointMonodisperse: K runs of one population inverted together carry
+// TestJointMonodisperse: K runs of one population analysed together carry
 // the noise of their mean, about 1/√K of one run's, so the joint peak's
 // uncertainty must fall below the runs' median one (its exact ratio also
 // depends on the regularisation each solve chooses: the bound is the
