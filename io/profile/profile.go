@@ -28,12 +28,13 @@ func Start(cpuFile, memFile, traceFile string) (stop func() error, err error) {
 		}
 	}
 	if cpuFile != "" {
-		if cpu, err = os.Create(cpuFile); err != nil {
-			return nil, fmt.Errorf("--cpuprofile: %w", err)
+		if cpu, err = os.Create(cpuFile); err == nil {
+			if err = pprof.StartCPUProfile(cpu); err != nil {
+				cpu.Close()
+			}
 		}
-		if err := pprof.StartCPUProfile(cpu); err != nil {
-			cpu.Close()
-			if tr != nil {
+		if err != nil {
+			if tr != nil { // no trace left running
 				trace.Stop()
 				tr.Close()
 			}

@@ -45,4 +45,16 @@ func TestStart(t *testing.T) {
 	if _, err := Start("", "", filepath.Join(dir, "missing", "trace.out")); err == nil {
 		t.Error("an unwritable trace file was accepted")
 	}
+	// A CPU profile that cannot be written leaves no trace running: a
+	// trace can be started again at once (runtime/trace refuses a second).
+	if _, err := Start(filepath.Join(dir, "missing", "cpu.out"), "", filepath.Join(dir, "t1.out")); err == nil {
+		t.Error("an unwritable profile file was accepted beside a trace")
+	}
+	stop, err = Start("", "", filepath.Join(dir, "t2.out"))
+	if err != nil {
+		t.Fatalf("a trace after a failed start: %v", err)
+	}
+	if err := stop(); err != nil {
+		t.Error(err)
+	}
 }
