@@ -15,8 +15,10 @@ import (
 	"dlsbatch/dls"
 )
 
-// appendRaw gives the same record as raw (the stream's stored JSON, or a
-// group member's encoding), after whatever dst held.
+// appendRaw and appendRow append, after whatever dst held, a result's
+// JSON record and results.csv row as encoding/json and csvRow write them:
+// read back from the scratch file, or encoded afresh for a group member
+// kept whole in memory.
 func TestAppendRaw(t *testing.T) {
 	st, err := NewStream(t.TempDir())
 	if err != nil {
@@ -26,13 +28,15 @@ func TestAppendRaw(t *testing.T) {
 	rs := sampleResults()
 	grouped := *rs[0]
 	grouped.Group = "g1" // kept whole in memory
-	if err := st.Add([]*dls.Result{rs[0], rs[1], &grouped}); err != nil {
+	in := []*dls.Result{rs[0], rs[1], &grouped}
+	if err := st.Add(in); err != nil {
 		t.Fatal(err)
 	}
-	for i := range 3 {
-		want, err := st.raw(i)
-		if err != nil {
-			t.Fatal(err)
+	for i, r := range in {
+		want, err1 := json.Marshal(r)
+		wantRow, err2 := csvRow(r)
+		if err1 != nil || err2 != nil {
+			t.Fatal(err1, err2)
 		}
 		got, err := st.appendRaw(i, []byte("prefix"))
 		if err != nil {
@@ -40,10 +44,6 @@ func TestAppendRaw(t *testing.T) {
 		}
 		if !bytes.Equal(got, append([]byte("prefix"), want...)) {
 			t.Errorf("record %d: %q, want prefix + %q", i, got, want)
-		}
-		wantRow, err := st.row(i)
-		if err != nil {
-			t.Fatal(err)
 		}
 		gotRow, err := st.appendRow(i, []byte("prefix"))
 		if err != nil {

@@ -194,42 +194,13 @@ func intern(s string) string {
 	return unique.Make(s).Value()
 }
 
-// raw returns the stored JSON record of result i.
-func (s *Stream) raw(i int) ([]byte, error) {
-	if r, ok := s.full[i]; ok {
-		return json.Marshal(r)
-	}
-	sp := s.spans[i]
-	return s.appendRecord(nil, sp)
-}
-
-// row returns the results.csv row of result i.
-func (s *Stream) row(i int) ([]byte, error) {
-	if r, ok := s.full[i]; ok {
-		return csvRow(r)
-	}
-	sp := s.spans[i]
-	return s.read(sp.off, sp.csvN)
-}
-
-func (s *Stream) read(off, n int64) ([]byte, error) {
-	if err := s.w.Flush(); err != nil {
-		return nil, err
-	}
-	b := make([]byte, n)
-	if _, err := s.f.ReadAt(b, off); err != nil && err != io.EOF {
-		return nil, err
-	}
-	return b, nil
-}
-
 // Full returns result i whole, read back from the scratch file (JSON
 // carries every field of a result, so the record comes back as it was).
 func (s *Stream) Full(i int) (*dls.Result, error) {
 	if r, ok := s.full[i]; ok {
 		return r, nil
 	}
-	b, err := s.raw(i)
+	b, err := s.appendRaw(i, nil)
 	if err != nil {
 		return nil, err
 	}
