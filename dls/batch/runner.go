@@ -144,21 +144,16 @@ func (rn *Runner) Run(ctx context.Context, paths []string) ([]*dls.Result, error
 	}
 	wg.Wait()
 	// Files finished after a gap left by cancellation, in input order.
-	done := next
 	for i := next; i < len(paths); i++ {
 		if res, ok := pending[i]; ok {
 			emit(res)
 		}
 	}
-	if done < len(paths) {
-		stopped := parent.Err()
-		if emitErr != nil {
-			return out, emitErr
-		}
-		return out, stopped
-	}
-	if emitErr != nil {
+	switch {
+	case emitErr != nil:
 		return out, emitErr
+	case next < len(paths):
+		return out, parent.Err()
 	}
 	return out, nil
 }
