@@ -50,17 +50,13 @@ func (r *Result) ChannelNoise(tau []float64, kind Kind, acq Acquisition, from in
 	// lattice variance of channel c for a duration durS (0: per second).
 	lats := map[int64]*noiseLattice{}
 	modelSD := func(c int, durS float64) float64 {
-		key := int64(math.Round(math.Log2(dts[c]) * 1e9))
+		key := latticeKey(dts[c])
 		l := lats[key]
 		if l == nil {
 			l = newNoiseLattice(sp, dts[c])
 			lats[key] = l
 		}
-		nn := 1 / dts[c]
-		if durS > 0 {
-			nn = math.Max(1, (durS-tau[c])/dts[c])
-		}
-		return level * math.Sqrt(l.variance(ks[c], beta, acq.CountRateHz*dts[c], nn))
+		return level * l.channelSD(tau[c], dts[c], ks[c], beta, acq.CountRateHz, durS)
 	}
 	m := n - from
 	d := make([]float64, m)

@@ -157,16 +157,12 @@ func (r *Result) correlated(tau []float64, kind Kind, acq Acquisition) (*Correla
 		// agree to rounding: key them to 1e-9 relative).
 		w.keys = w.keys[:0]
 		for i, c := range idx {
-			key := int64(math.Round(math.Log2(dts[c]) * 1e9))
+			key := latticeKey(dts[c])
 			l := w.lattice(key)
 			if l == nil {
 				l = w.addLattice(key, sp, dts[c])
 			}
-			n := 1 / dts[c]
-			if durS > 0 {
-				n = math.Max(1, (durS-tau[c])/dts[c])
-			}
-			d[i] = level * math.Sqrt(l.variance(ks[c], beta, acq.CountRateHz*dts[c], n))
+			d[i] = level * l.channelSD(tau[c], dts[c], ks[c], beta, acq.CountRateHz, durS)
 		}
 	}
 	var basis string
@@ -457,6 +453,24 @@ func (w *corrWork) grow(n, m, np int) {
 		w.ch = make([]noiseChannel, m)
 	}
 	w.ch = w.ch[:m]
+}
+
+// latticeKey is the key of the lattice of sample time dt: the lag
+// differences of one multi-tau stage agree to rounding, so they are keyed
+// to 1e-9 relative.
+func latticeKey(dt float64) int64 { return int64(math.Round(math.Log2(dt) * 1e9)) }
+
+// channelSD is the model's standard deviation, relative to the baseline
+// level, of the channel at lag tau with sample time dt (k sample times)
+// for a measurement of durS seconds (0: per second of measurement, the lag
+// neglected against the duration), coherence factor beta and count rate
+// rateHz.
+func (l *noiseLattice) channelSD(tau, dt float64, k int, beta, rateHz, durS float64) float64 {
+	n := 1 / dt
+	if durS > 0 {
+		n = math.Max(1, (durS-tau)/dt)
+	}
+	return math.Sqrt(l.variance(k, beta, rateHz*dt, n))
 }
 
 // lattice returns the lattice in use with the given key, or nil.
