@@ -205,10 +205,8 @@ func (o *runOptions) config(paths []string, say func(any)) (*batchrun.Config, er
 	if err != nil {
 		return nil, err
 	}
-	for _, p := range append(append([]string(nil), o.includeGlobs...), o.excludeGlobs...) {
-		if err := batchrun.CheckPattern(p); err != nil {
-			return nil, err
-		}
+	if err := batchrun.CheckPatterns(o.includeGlobs, o.excludeGlobs); err != nil {
+		return nil, err
 	}
 	var shard batchrun.Shard
 	if o.shard != "" {

@@ -48,10 +48,14 @@ func matchAny(patterns []string, rel string) bool {
 	return false
 }
 
-// CheckPattern reports a malformed glob pattern.
-func CheckPattern(p string) error {
-	if _, err := path.Match(p, ""); err != nil {
-		return fmt.Errorf("pattern %q: %w", p, err)
+// CheckPatterns reports the first malformed glob pattern of the lists.
+func CheckPatterns(lists ...[]string) error {
+	for _, l := range lists {
+		for _, p := range l {
+			if _, err := path.Match(p, ""); err != nil {
+				return fmt.Errorf("pattern %q: %w", p, err)
+			}
+		}
 	}
 	return nil
 }

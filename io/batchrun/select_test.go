@@ -28,7 +28,7 @@ func TestSelect(t *testing.T) {
 			t.Errorf("include %v exclude %v: %d files, want %d", tc.include, tc.exclude, got, tc.want)
 		}
 	}
-	if CheckPattern("[") == nil {
+	if CheckPatterns([]string{"*.csv"}, []string{"["}) == nil {
 		t.Error("malformed pattern accepted")
 	}
 }
