@@ -218,7 +218,11 @@
 // at 90°) at the default and 0.02, and in 2 at GCV; inverting the mean of
 // the runs' field correlations instead, as an earlier version did, split
 // ratio 3 in 13 and 9 of 20 at 0.02 (DEVELOPERS.md, "Joint inversion of a
-// sample's runs"). One 100 s run at 300 kcps, at
+// sample's runs"). That is why dls/batch's joint analysis aims at 0.02 by
+// default while a run keeps 0.5: on a second set of such samples it split
+// ratio 3 in 17 and 16 of 20 at 0.02 (10 and 10 at 0.5) and showed a
+// second peak in 4 of 80 monodisperse samples (2 and 1 at 0.5), where one
+// 30 s run at 0.02 split it in 40 and 24 of 60. One 100 s run at 300 kcps, at
 // 0.02, splits ratio 3 in 15 and 17 of 20 runs (50/50, 20/80) and ratio
 // 2.5 in 11 and 9 of 20, with no second peak on 40 monodisperse runs.
 // A Gauss–Newton second pass (the target √u replaced by its tangent at

@@ -44,7 +44,7 @@ type runOptions struct {
 	shard                                                    string
 	corrKind, method, criterion, progress                    *enumFlag
 	jobs, order, gridPoints, maxFileMB                       int
-	cutoff, minLagS, lambda, target                          float64
+	cutoff, minLagS, lambda, target, jointTarget             float64
 	uTempK, uViscRel, uIndex, uAngleDeg                      float64 // Type B uncertainties
 	quiet, force, resume, extrapolate, noCurves, implausible bool
 	exclude, noReport, noDist, fullScan                      bool
@@ -108,6 +108,7 @@ func (o *runOptions) addFlags(fs *pflag.FlagSet) {
 	fs.Var(o.criterion, "alpha-criterion", "choice of the regularisation strength: probability to reject (Provencher), gcv, l-curve, or fixed (with --alpha-lambda)")
 	fs.Float64Var(&o.lambda, "alpha-lambda", 0, "dimensionless strength λ (α² = λ·tr(A'WA)/tr(L'L)) for --alpha-criterion fixed")
 	fs.Float64Var(&o.target, "prob-reject-target", contin.DefaultTargetProbReject, "target probability to reject for the default criterion")
+	fs.Float64Var(&o.jointTarget, "joint-prob-reject-target", batch.DefaultJointTargetProbReject, "target probability to reject of each sample's joint analysis of its runs, with the default criterion (weaker than a run's: see DEVELOPERS.md)")
 	fs.IntVar(&o.gridPoints, "grid-points", contin.DefaultNGamma, "points of the log-spaced decay-rate grid of the inversion")
 	fs.StringVar(&o.particleRI, "default-particle-ri", "1.59+0i", "particle refractive index (complex, e.g. 1.59+0i) where a measurement gives none; only the volume and number weightings use it")
 	fs.Float64Var(&o.uTempK, "u-temperature-k", uncert.DefaultTemperatureUncertaintyK, "standard uncertainty of the sample temperature, K (GUM budget)")
@@ -276,7 +277,7 @@ func (o *runOptions) settings() (batch.Settings, *csvdata.Options, error) {
 	if crit == contin.Fixed {
 		d.Contin.Lambda = o.lambda
 	}
-	d.Grid.NGamma, d.DefaultParticleRI = o.gridPoints, ri
+	d.Grid.NGamma, d.DefaultParticleRI, d.JointTargetProbReject = o.gridPoints, ri, o.jointTarget
 	if err := s.Validate(); err != nil {
 		return s, nil, err
 	}

@@ -7,6 +7,7 @@ import (
 	"strings"
 	"sync"
 
+	"dlsbatch/contin"
 	"dlsbatch/dls"
 )
 
@@ -97,7 +98,8 @@ func jointOfSample(smp *dls.Sample, field func(i int) (*dls.FieldRun, error), s 
 //
 //	ȳ_k = Σ_r T_r·y_rk / Σ_r T_r,
 //
-// is analysed as one measurement (Analyze, with the runs' settings) of
+// is analysed as one measurement (Analyze, with the runs' settings and the
+// joint target: jointSettings) of
 // the summed duration and the runs' conditions (meanMeasurement). The runs
 // must share their lags, angle, wavelength
 // and particle index, and lie within jointMaxTempSpreadK and jointMaxRelQ
@@ -170,10 +172,15 @@ func jointOf(runs []*dls.FieldRun, idx []int, s *Settings) *dls.JointDistributio
 }
 
 // jointSettings is s for the analysis of the runs' mean, which states
-// every condition itself (meanMeasurement): no overrides or defaults.
+// every condition itself (meanMeasurement): no overrides or defaults, and
+// with the ProbReject criterion the joint target
+// (DistributionSettings.JointTargetProbReject) where one is set.
 func jointSettings(s *Settings) *Settings {
 	js := *s
 	js.Overrides, js.Defaults = nil, nil
+	if d := &js.Distribution; d.Contin.Criterion == contin.ProbReject && d.JointTargetProbReject > 0 {
+		d.Contin.TargetProbReject = d.JointTargetProbReject
+	}
 	return &js
 }
 

@@ -483,6 +483,9 @@ func (s *Settings) Validate() error {
 	if t := d.Contin.TargetProbReject; !(t > 0 && t < 1) {
 		return fmt.Errorf("probability-to-reject target %g: want a value between 0 and 1", t)
 	}
+	if t := d.JointTargetProbReject; !(t >= 0 && t < 1) { // 0: the runs' target
+		return fmt.Errorf("joint probability-to-reject target %g: want a value between 0 and 1", t)
+	}
 	if n := d.Grid.NGamma; n != 0 && (n < 20 || n > 400) { // 0: contin.DefaultNGamma
 		return fmt.Errorf("decay-rate grid of %d points: want 20 to 400", n)
 	}

@@ -453,7 +453,7 @@ func (cfg *Config) record(root string) *report.Settings {
 		CoverageFactor: s.CoverageFactor, CumulantMethod: s.Cumulants.Method.String(), CumulantOrder: s.Cumulants.Order,
 		Default: dls.Assignments(s.Defaults), DefaultParticleRI: mie.FormatComplexIndex(s.Distribution.DefaultParticleRI),
 		Distribution: s.Distribution.Enabled, Exclude: cfg.Exclude, ExcludeOutliers: cfg.ExcludeOutliers, Extrapolate: s.Extrapolate,
-		FullAlphaScan: s.Distribution.Contin.FullScan, G1Cutoff: s.Cumulants.Cutoff, GridPoints: s.Distribution.Grid.NGamma, Include: cfg.Include, LagColumn: ro.TauColumn,
+		FullAlphaScan: s.Distribution.Contin.FullScan, G1Cutoff: s.Cumulants.Cutoff, GridPoints: s.Distribution.Grid.NGamma, Include: cfg.Include, JointTarget: s.Distribution.JointTargetProbReject, LagColumn: ro.TauColumn,
 		LagUnit: ro.TauUnit, MaxColumns: maxCols, MaxFileMB: int(maxBytes >> 20), MaxRows: maxRows,
 		MinLagS: s.Cumulants.MinTauS, MinPoints: s.Cumulants.MinPoints, ProbRejectTarget: s.Distribution.Contin.TargetProbReject,
 		QCThresholds: s.QC, QCThresholdsFile: rel(cfg.QCFile), RangeCheck: s.Cumulants.RangeCheck,

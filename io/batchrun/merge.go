@@ -269,6 +269,9 @@ func distributionOf(rec *report.Settings) (batch.DistributionSettings, error) {
 	}
 	d.Enabled = rec.Distribution
 	d.Contin.Criterion, d.Contin.TargetProbReject, d.Contin.FullScan = crit, rec.ProbRejectTarget, rec.FullAlphaScan
+	// A set made before the joint target existed has none in its record
+	// (0): its joint analyses used the runs' target, and so does this.
+	d.JointTargetProbReject = rec.JointTarget
 	if crit == contin.Fixed {
 		d.Contin.Lambda = rec.AlphaLambda
 	}

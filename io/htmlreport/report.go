@@ -22,7 +22,7 @@ import (
 // peaks can and cannot show: the measured resolution of the default
 // inversion on photon-level simulated correlator noise (DEVELOPERS.md,
 // "Resolution on correlator noise").
-const ResolutionLimit = "Intensity peaks come from a regularised inversion: two populations closer than a factor of about 3 in diameter are often shown as one broad peak (measured on simulated correlator noise, 30 s runs), so a single peak does not prove a single population. The analysis of the sample's runs together (their mean correlogram, in the summary above) carries the noise of their mean and separates close populations more often than any one run does, but not always."
+const ResolutionLimit = "Intensity peaks come from a regularised inversion: two populations closer than a factor of about 3 in diameter are often shown as one broad peak (measured on simulated correlator noise, 30 s runs), so a single peak does not prove a single population. The analysis of the sample's runs together (their mean correlogram, in the summary above) carries the noise of their mean, is regularised less firmly than one run (by default), and separates close populations more often than any one run does (three runs of 30 s: a factor of 3 in about four samples of five), but not always."
 
 // DefaultCaution is shown when Report.Caution is empty: the report
 // supports, and does not replace, qualified review.

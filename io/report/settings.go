@@ -26,6 +26,7 @@ type Settings struct {
 	G1Cutoff          float64       `json:"g1_cutoff"`                    // end of the cumulant fit window in g1
 	GridPoints        int           `json:"grid_points"`                  // decay-rate grid of the inversion
 	Include           []string      `json:"include"`                      // --include globs
+	JointTarget       float64       `json:"joint_prob_reject_target"`     // target of the joint analyses (0: the runs' target, in sets made before it existed)
 	LagColumn         string        `json:"lag_column"`                   // --lag-column (foreign CSVs)
 	LagUnit           string        `json:"lag_unit"`                     // --lag-unit (foreign CSVs)
 	MaxColumns        int           `json:"max_columns"`                  // limit on the columns of one input file
