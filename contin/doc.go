@@ -72,8 +72,11 @@
 //
 // choosing the row whose P_reject is closest to 0.5: the smoothest solution
 // whose misfit is not significantly worse than the reference's. The choice
-// is refined by 4 bisection steps in log λ between the two lattice rows
-// that bracket 0.5. (The formula is as generally quoted for CONTIN; from
+// is refined between the two lattice rows that bracket 0.5 by at most 4
+// regula falsi steps (Illinois rule) in (log λ, logit P_reject), stopping
+// once P_reject is within 0.04 of the target in logit (±0.01 at 0.5):
+// typically one or two solves, where four bisection steps were used
+// before 2026-12-03 and came as close. (The formula is as generally quoted for CONTIN; from
 // memory, not checked against the 1982 text.) V cannot fall as α grows
 // (the two optimality inequalities of the minimisers at α₁ < α₂ give
 // ||Lx₂|| ≤ ||Lx₁||, then V₁ ≤ V₂), so P_reject is monotone in λ and the
@@ -81,8 +84,10 @@
 // InvertFrom, from an earlier choice) in steps of 1, 2, 4, … strengths
 // towards the target, then by bisection, each solve warm-started from the
 // nearest one solved. That takes the reference and typically 3–6 lattice
-// strengths instead of 21, with the same bracket, refinement and choice as
-// the full scan (checked by TestSearchMatchesFullScan). The search leaves Picks.GCV and
+// strengths instead of 21, with the same bracket as the full scan and the
+// same refinement and choice to rounding (λ within 1e-7: the refinement's
+// steps follow P_reject, which the search and the scan reach from other
+// warm starts; checked by TestSearchMatchesFullScan). The search leaves Picks.GCV and
 // Picks.LCurve at −1; Settings.FullScan restores the complete scan for
 // audit. The other criteria:
 //
@@ -182,7 +187,7 @@
 //     the three outermost bins at either end.
 //   - λ from 1e-10 (the plateau of the practically unregularised
 //     non-negative fit on typical grids: the F-test reference) to 1 (a
-//     featureless hump), 21 values, 4 bisection steps; the lattice
+//     featureless hump), 21 values, at most 4 refinement steps; the lattice
 //     searched, not scanned, for ProbReject.
 //   - ProbReject at 0.5, as Provencher recommends; the free baseline on.
 //

@@ -62,7 +62,7 @@ type ScanRow struct {
 	// QR reports that the augmented-matrix QR solver was used instead of
 	// the normal equations (tiny α or a numerically dependent column).
 	QR bool
-	// Refined marks rows added by the bisection of ProbReject.
+	// Refined marks rows added by the refinement of ProbReject.
 	Refined bool
 	Status  Status
 }
@@ -71,7 +71,7 @@ type ScanRow struct {
 // that criterion chooses, or −1 when it was not evaluated (a fixed α, a
 // scan too short for the L-curve, or GCV and L-curve after ProbReject's
 // search, which solves only part of the lattice: see Settings.FullScan).
-// ProbReject includes the bisection rows only when ProbReject is the
+// ProbReject includes the refinement rows only when ProbReject is the
 // selected criterion.
 type Picks struct {
 	ProbReject, GCV, LCurve int
@@ -955,19 +955,57 @@ func (p *problem) pickLCurve() int {
 	return best
 }
 
-// refine bisects log λ between the rows lo and hi that bracket the target
-// probability to reject, warm-starting each solve from the lower end.
+// refineTol is the distance from the target, in logit(P_reject), at
+// which refine stops: 0.04 is ±0.01 in P_reject at the target 0.5, which
+// is how close four bisection steps came (median 0.006, largest 0.016 on
+// the 50 correlograms of BenchmarkAnalyze).
+const refineTol = 0.04
+
+// refine narrows the rows lo and hi that bracket the target probability
+// to reject by at most Settings.Refine solves, warm-starting each from the
+// lower end, and stops once a solve's P_reject is within refineTol of the
+// target in logit. Each new strength is the regula falsi point of the
+// bracket in (log λ, logit P_reject), where P_reject is close to linear
+// (a lattice step spans about 0.33 to 0.64 around the target 0.5), with
+// the Illinois rule: an end kept twice in a row has its distance from the
+// target halved, so that the bracket shrinks from both sides (Dowell &
+// Jarratt, BIT 11, 168, 1971). The point is kept within the middle 90 %
+// of the bracket, and where an end's P_reject is 0 or 1 (no logit) the
+// midpoint in log λ is taken, as a bisection would. The choice is then the
+// solved row closest to the target (pickProbReject). Typically one or two
+// solves reach what four bisection steps did.
 func (p *problem) refine(lo, hi int) {
 	t := p.s.TargetProbReject
+	logit := func(v float64) float64 { return math.Log(v / (1 - v)) }
+	ft := logit(t)
+	flo, fhi := logit(p.rows[lo].ProbReject)-ft, logit(p.rows[hi].ProbReject)-ft
+	kept := 0 // +1: hi was kept last step, −1: lo was
 	for step := 0; step < p.s.Refine; step++ {
-		lambda := math.Sqrt(p.rows[lo].Lambda * p.rows[hi].Lambda)
+		x0, x1 := math.Log(p.rows[lo].Lambda), math.Log(p.rows[hi].Lambda)
+		x := 0.5 * (x0 + x1)
+		if !math.IsInf(flo, 0) && !math.IsInf(fhi, 0) && fhi > flo {
+			f := -flo / (fhi - flo)
+			x = x0 + (x1-x0)*math.Min(math.Max(f, 0.05), 0.95)
+		}
+		lambda := math.Exp(x)
 		p.warmFrom(lo)
 		r := p.solveAt(lambda, p.a2Of(lambda), true)
-		p.rows[r].ProbReject, p.pDone[r] = p.probReject(p.rows[r].ChiSquare), true
-		if p.rows[r].ProbReject >= t {
-			hi = r
+		pr := p.probReject(p.rows[r].ChiSquare)
+		p.rows[r].ProbReject, p.pDone[r] = pr, true
+		fr := logit(pr) - ft
+		if pr >= t {
+			if hi, fhi = r, fr; kept == -1 {
+				flo /= 2
+			}
+			kept = -1 // lo kept
 		} else {
-			lo = r
+			if lo, flo = r, fr; kept == 1 {
+				fhi /= 2
+			}
+			kept = 1 // hi kept
+		}
+		if math.Abs(fr) <= refineTol {
+			return
 		}
 	}
 }

@@ -60,9 +60,9 @@ const (
 	// a featureless hump.
 	DefaultLambdaMin = 1e-10
 	DefaultLambdaMax = 1
-	// DefaultRefine is the number of bisection steps in log λ that refine
-	// the ProbReject choice between the two scan points that bracket the
-	// target.
+	// DefaultRefine is the largest number of regula falsi steps in log λ
+	// that refine the ProbReject choice between the two scan points that
+	// bracket the target.
 	DefaultRefine = 4
 	// DefaultTargetProbReject is Provencher's target probability to reject.
 	DefaultTargetProbReject = 0.5
@@ -87,8 +87,9 @@ type Settings struct {
 	NAlpha int
 	// LambdaMin and LambdaMax bound the scan; 0 means the defaults.
 	LambdaMin, LambdaMax float64
-	// Refine is the number of bisection steps for ProbReject; 0 means
-	// DefaultRefine, a negative value none.
+	// Refine is the largest number of refinement steps for ProbReject
+	// (fewer once the target is met); 0 means DefaultRefine, a negative
+	// value none.
 	Refine int
 	// TargetProbReject is the probability to reject aimed at by
 	// ProbReject; 0 means DefaultTargetProbReject. Must lie in (0, 1).
@@ -121,7 +122,7 @@ type Settings struct {
 }
 
 // DefaultSettings returns the documented defaults: ProbReject at 0.5 over
-// 21 values of λ from 1e-10 to 1 refined by 4 bisection steps, with the
+// 21 values of λ from 1e-10 to 1 refined by at most 4 steps, with the
 // baseline column.
 func DefaultSettings() *Settings {
 	return &Settings{
