@@ -88,7 +88,39 @@ func peakNoise(d *sizedist.Distribution, w []float64, in []bool, amp []float64, 
 	if math.IsNaN(uFrac) || math.IsNaN(uMeanNm) {
 		return 0, 0
 	}
+	if p.Lo == p.Hi {
+		// A peak of one bin has the bin's diameter for its mean whatever
+		// its amplitude, so the propagation gives 0; its position is known
+		// only to the bin: the resolution of an indication, a rectangular
+		// distribution of the bin's width δ, u = δ/(2√3) (GUM, JCGM
+		// 100:2008, F.2.2.1).
+		uMeanNm = math.Hypot(uMeanNm, binWidthNm(d.DiameterNm, p.Lo)/(2*math.Sqrt(3)))
+	}
 	return uFrac, uMeanNm
+}
+
+// binWidthNm is the width of bin j of the increasing, log-spaced
+// diameters dNm: from the geometric mean with its lower neighbour to that
+// with its upper one, an end bin reflected about its diameter in log.
+func binWidthNm(dNm []float64, j int) float64 {
+	n := len(dNm)
+	if n < 2 {
+		return 0
+	}
+	var lo, hi float64
+	if j > 0 {
+		lo = math.Sqrt(dNm[j-1] * dNm[j])
+	}
+	if j < n-1 {
+		hi = math.Sqrt(dNm[j] * dNm[j+1])
+	}
+	if j == 0 {
+		lo = dNm[0] * dNm[0] / hi
+	}
+	if j == n-1 {
+		hi = dNm[j] * dNm[j] / lo
+	}
+	return hi - lo
 }
 
 // keepPeaks confines the volume and number weights to the bins of the

@@ -257,3 +257,26 @@ func TestPeakUncertaintyPhotonShort(t *testing.T) {
 		t.Errorf("residual-based uncertainty: rms z %.2f; the runs do not show what the test is about", zr)
 	}
 }
+
+// TestBinWidthNm: the widths of a log grid's bins, worked by hand on a
+// grid of ratio 2 (10, 20, 40 nm): the middle bin runs from √200 to √800
+// nm (14.142 wide), the first from 10/√2 to √200 (7.071), the last from
+// √800 to 40·√2 (28.284); a single diameter has no width. A one-bin peak
+// takes δ/(2√3) of its bin as its position's uncertainty (GUM F.2.2.1).
+func TestBinWidthNm(t *testing.T) {
+	d := []float64{10, 20, 40}
+	for _, c := range []struct {
+		d    []float64
+		j    int
+		want float64
+	}{
+		{d, 1, math.Sqrt(800) - math.Sqrt(200)},
+		{d, 0, math.Sqrt(200) - 10/math.Sqrt2},
+		{d, 2, 40*math.Sqrt2 - math.Sqrt(800)},
+		{[]float64{50}, 0, 0},
+	} {
+		if got := binWidthNm(c.d, c.j); math.Abs(got-c.want) > 1e-12*math.Max(c.want, 1) {
+			t.Errorf("bin %d of %v: width %.12g nm, want %.12g", c.j, c.d, got, c.want)
+		}
+	}
+}
