@@ -150,6 +150,9 @@ func TestParseCriterion(t *testing.T) {
 			t.Errorf("%v: %v %v", c, got, err)
 		}
 	}
+	if names := Criteria(); len(names) != 4 || names[0] != ProbReject.String() || names[3] != Fixed.String() {
+		t.Errorf("Criteria() = %v, want the four names in the order of their values", names)
+	}
 	if _, err := ParseCriterion("discrepancy"); !errors.Is(err, ErrBadSettings) {
 		t.Errorf("unknown name: %v", err)
 	}

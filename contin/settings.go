@@ -3,6 +3,7 @@ package contin
 import (
 	"fmt"
 	"math"
+	"slices"
 	"strings"
 )
 
@@ -36,6 +37,10 @@ func (c Criterion) String() string {
 	}
 	return fmt.Sprintf("Criterion(%d)", int(c))
 }
+
+// Criteria lists the criteria's names as Criterion.String spells them,
+// in the order of their values (ProbReject, the default, first).
+func Criteria() []string { return slices.Clone(criterionNames[:]) }
 
 // ParseCriterion parses a name returned by Criterion.String
 // (case-insensitive).

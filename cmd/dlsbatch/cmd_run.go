@@ -42,7 +42,7 @@ type runOptions struct {
 	solventFile, sheetFile, specFile, qcFile                 string // tables
 	includeGlobs, excludeGlobs                               []string
 	shard                                                    string
-	corrKind, method, criterion, progress                    *enumFlag
+	corrKind, method, criterion, progress, peakNoise         *enumFlag
 	jobs, order, gridPoints, maxFileMB                       int
 	cutoff, minLagS, lambda, target, jointTarget             float64
 	uTempK, uViscRel, uIndex, uAngleDeg                      float64 // Type B uncertainties
@@ -53,15 +53,15 @@ type runOptions struct {
 func newRunOptions() *runOptions {
 	d := cumulants.DefaultSettings()
 	return &runOptions{
-		set:      paramsFlag{flag: "set", origin: dls.OriginFlag},
-		defaults: paramsFlag{flag: "default", origin: dls.OriginDefault},
-		corrKind: newEnum("", "g2", "g2m1", "g1"),
-		progress: newEnum(progress.Auto, progress.Modes()...),
-		method:   newEnum(d.Method.String(), "nonlinear", "linear"),
-		criterion: newEnum(contin.ProbReject.String(), contin.ProbReject.String(), contin.GCV.String(),
-			contin.LCurve.String(), contin.Fixed.String()),
-		order:  d.Order,
-		cutoff: d.Cutoff,
+		set:       paramsFlag{flag: "set", origin: dls.OriginFlag},
+		defaults:  paramsFlag{flag: "default", origin: dls.OriginDefault},
+		corrKind:  newEnum("", "g2", "g2m1", "g1"),
+		progress:  newEnum(progress.Auto, progress.Modes()...),
+		method:    newEnum(d.Method.String(), "nonlinear", "linear"),
+		peakNoise: newEnum(batch.PeakNoiseAuto.String(), batch.PeakNoiseChoices()...),
+		criterion: newEnum(contin.ProbReject.String(), contin.Criteria()...),
+		order:     d.Order,
+		cutoff:    d.Cutoff,
 	}
 }
 
@@ -109,6 +109,7 @@ func (o *runOptions) addFlags(fs *pflag.FlagSet) {
 	fs.Float64Var(&o.lambda, "alpha-lambda", 0, "dimensionless strength λ (α² = λ·tr(A'WA)/tr(L'L)) for --alpha-criterion fixed")
 	fs.Float64Var(&o.target, "prob-reject-target", contin.DefaultTargetProbReject, "target probability to reject for the default criterion")
 	fs.Float64Var(&o.jointTarget, "joint-prob-reject-target", batch.DefaultJointTargetProbReject, "target probability to reject of each sample's joint analysis of its runs, with the default criterion (weaker than a run's: see DEVELOPERS.md)")
+	fs.Var(o.peakNoise, "peak-uncertainty", "noise of the peaks' uncertainties: auto (the correlator model when the residuals are correlated from lag to lag), correlator-model (data from a correlator), residuals (noise independent from lag to lag)")
 	fs.IntVar(&o.gridPoints, "grid-points", contin.DefaultNGamma, "points of the log-spaced decay-rate grid of the inversion")
 	fs.StringVar(&o.particleRI, "default-particle-ri", "1.59+0i", "particle refractive index (complex, e.g. 1.59+0i) where a measurement gives none; only the volume and number weightings use it")
 	fs.Float64Var(&o.uTempK, "u-temperature-k", uncert.DefaultTemperatureUncertaintyK, "standard uncertainty of the sample temperature, K (GUM budget)")
@@ -255,6 +256,7 @@ func (o *runOptions) settings() (batch.Settings, *csvdata.Options, error) {
 	s := batch.DefaultSettings()
 	m, err1 := cumulants.ParseMethod(o.method.value)
 	crit, err2 := contin.ParseCriterion(o.criterion.value)
+	s.Distribution.PeakNoise, _ = batch.ParsePeakNoise(o.peakNoise.value) // the enum flag allows only its names
 	ri, err3 := mie.ParseComplexIndex(o.particleRI)
 	if err3 != nil {
 		err3 = fmt.Errorf("--default-particle-ri: %w", err3)

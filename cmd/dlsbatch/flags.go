@@ -15,9 +15,7 @@ type enumFlag struct {
 	allowed []string
 }
 
-func newEnum(def string, allowed ...string) *enumFlag {
-	return &enumFlag{value: def, allowed: allowed}
-}
+func newEnum(def string, allowed ...string) *enumFlag { return &enumFlag{value: def, allowed: allowed} }
 
 func (f *enumFlag) String() string { return f.value }
 func (f *enumFlag) Type() string   { return strings.Join(f.allowed, "|") }

@@ -4,6 +4,7 @@ import (
 	"errors"
 	"fmt"
 	"math"
+	"slices"
 	"strings"
 
 	"dlsbatch/contin"
@@ -27,6 +28,12 @@ type DistributionSettings struct {
 	// DEVELOPERS.md "Joint inversion of a sample's runs" has the
 	// measurements that set it.
 	JointTargetProbReject float64
+	// PeakNoise chooses the noise covariance of the peaks' uncertainties:
+	// PeakNoiseAuto (the zero value) decides by the correlation of the
+	// inversion's residuals from lag to lag (minCorrelatorRho), which a
+	// few per cent of correlator runs fall below; a site that knows its
+	// instrument's noise can fix the choice.
+	PeakNoise PeakNoiseChoice
 	// DefaultParticleRI is used, and named in the result's assumptions,
 	// when a measurement gives no particle_ri: 1.59+0i, the common-practice
 	// value for polystyrene latex at visible wavelengths.
@@ -39,6 +46,52 @@ type DistributionSettings struct {
 	// measurements with the same rate grid, temperature, medium and optics
 	// (safe for concurrent use); nil computes them per measurement.
 	MieCache *sizedist.WeightCache
+}
+
+// PeakNoiseChoice says where a run's peak uncertainties take their noise
+// covariance from.
+type PeakNoiseChoice int
+
+const (
+	// PeakNoiseAuto takes the correlator model when the inversion's
+	// standardised residuals are correlated from lag to lag (lag-one
+	// autocorrelation at least minCorrelatorRho), else the residuals.
+	PeakNoiseAuto PeakNoiseChoice = iota
+	// PeakNoiseCorrelator takes the correlator model wherever it can be
+	// built (a σ column, or the duration and count rate, or a reached
+	// baseline), for data known to come from a correlator.
+	PeakNoiseCorrelator
+	// PeakNoiseResiduals takes the residuals' Bartlett estimate always,
+	// for data whose noise is known to be independent from lag to lag.
+	PeakNoiseResiduals
+)
+
+var peakNoiseNames = [...]string{"auto", "correlator-model", "residuals"}
+
+// String returns the choice's name as flags and the settings record
+// spell it.
+func (c PeakNoiseChoice) String() string {
+	if c < 0 || int(c) >= len(peakNoiseNames) {
+		return fmt.Sprintf("PeakNoiseChoice(%d)", int(c))
+	}
+	return peakNoiseNames[c]
+}
+
+// PeakNoiseChoices lists the choices' names, the default first.
+func PeakNoiseChoices() []string { return slices.Clone(peakNoiseNames[:]) }
+
+// ParsePeakNoise reads a choice by its name; "" is PeakNoiseAuto (a
+// settings record written before the choice existed).
+func ParsePeakNoise(s string) (PeakNoiseChoice, error) {
+	if s == "" {
+		return PeakNoiseAuto, nil
+	}
+	for i, n := range peakNoiseNames {
+		if s == n {
+			return PeakNoiseChoice(i), nil
+		}
+	}
+	return 0, fmt.Errorf("peak uncertainty %q: want one of %s", s, strings.Join(peakNoiseNames[:], ", "))
 }
 
 // DefaultJointTargetProbReject is the probability-to-reject target of a
@@ -256,11 +309,16 @@ func distribution(m *dls.Measurement, fit *cumulants.Result, st state, meta dls.
 	sens, _ := contin.NewSensitivity(grid, inv, sg, &cs) // nil: peaks without uncertainties
 	if sens != nil {
 		r.PeakNoise = "residuals"
-		if sens.ResidualCorrelation() < minCorrelatorRho {
+		switch choice := s.PeakNoise; {
+		case choice == PeakNoiseResiduals:
+			r.PeakNoise = "residuals (as set)"
+		case choice == PeakNoiseAuto && sens.ResidualCorrelation() < minCorrelatorRho:
 			r.PeakNoise = "residuals (independent from lag to lag)"
-		} else if noise, basis := correlatorNoise(m, fit, first, sigma, sg, acquisition(r)); noise != nil {
-			sens.Noise = noise
-			r.PeakNoise = "correlator model (" + basis + ")"
+		default:
+			if noise, basis := correlatorNoise(m, fit, first, sigma, sg, acquisition(r)); noise != nil {
+				sens.Noise = noise
+				r.PeakNoise = "correlator model (" + basis + ")"
+			}
 		}
 	}
 	r.Intensity, r.Volume, r.Number = summariseWeightings(d, inv.Amplitude, sens, &s.Peaks)

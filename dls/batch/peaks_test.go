@@ -280,3 +280,54 @@ func TestBinWidthNm(t *testing.T) {
 		}
 	}
 }
+
+// TestPeakNoiseChoice: the peak-uncertainty choice overrides the gate. On
+// the photon-level runs of TestPeakUncertaintyPhotonShort, with
+// PeakNoiseCorrelator every run takes the correlator model, the runs that
+// the gate would have sent to the residuals included, and the main peak's
+// rms z stays within that test's 0.6–1.8; with PeakNoiseResiduals every
+// run takes the residuals and is labelled so; a record's spelling of each
+// choice reads back, and "" (a set made before the choice) reads as auto.
+func TestPeakNoiseChoice(t *testing.T) {
+	ms := peakRuns(t, peakCondition{pop: "mono(100nm)", angleDeg: 173, durS: 1, rateHz: 3e5, runs: 40, seed: 91, photon: true})
+	for _, c := range []struct {
+		choice PeakNoiseChoice
+		prefix string
+	}{
+		{PeakNoiseCorrelator, "correlator model"},
+		{PeakNoiseResiduals, "residuals (as set)"},
+	} {
+		s := DefaultSettings()
+		s.Distribution.PeakNoise = c.choice
+		var means, us []float64
+		for _, m := range ms {
+			r := Analyze(m, &s)
+			if !r.HasDistribution || len(r.Intensity.Peaks) == 0 {
+				t.Fatalf("%s: no distribution or peak: %s", m.File, r.Message)
+			}
+			if !strings.HasPrefix(r.PeakNoise, c.prefix) {
+				t.Fatalf("%v: %s took %q", c.choice, m.File, r.PeakNoise)
+			}
+			means, us = append(means, r.Intensity.Peaks[0].MeanNm), append(us, r.Intensity.Peaks[0].MeanUNm)
+		}
+		z := scatterZ(means, us)
+		t.Logf("%v: rms z %.2f over %d runs", c.choice, z, len(means))
+		if c.choice == PeakNoiseCorrelator && !(z >= 0.6 && z <= 1.8) {
+			t.Errorf("%v: rms z %.2f, want 0.6–1.8", c.choice, z)
+		}
+		if c.choice == PeakNoiseResiduals && !(z > 2.5) {
+			t.Errorf("%v: rms z %.2f; the residuals should understate these runs' scatter", c.choice, z)
+		}
+	}
+	for _, want := range []PeakNoiseChoice{PeakNoiseAuto, PeakNoiseCorrelator, PeakNoiseResiduals} {
+		if got, err := ParsePeakNoise(want.String()); err != nil || got != want {
+			t.Errorf("%v: reads back as %v (%v)", want, got, err)
+		}
+	}
+	if got, err := ParsePeakNoise(""); err != nil || got != PeakNoiseAuto {
+		t.Errorf(`"": %v (%v), want auto`, got, err)
+	}
+	if _, err := ParsePeakNoise("model"); err == nil {
+		t.Error(`"model" accepted`)
+	}
+}

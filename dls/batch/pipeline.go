@@ -483,6 +483,9 @@ func (s *Settings) Validate() error {
 	if t := d.Contin.TargetProbReject; !(t > 0 && t < 1) {
 		return fmt.Errorf("probability-to-reject target %g: want a value between 0 and 1", t)
 	}
+	if d.PeakNoise < PeakNoiseAuto || d.PeakNoise > PeakNoiseResiduals {
+		return fmt.Errorf("peak uncertainty choice %d: not one of %v", int(d.PeakNoise), PeakNoiseChoices())
+	}
 	if t := d.JointTargetProbReject; !(t >= 0 && t < 1) { // 0: the runs' target
 		return fmt.Errorf("joint probability-to-reject target %g: want a value between 0 and 1", t)
 	}

@@ -455,7 +455,7 @@ func (cfg *Config) record(root string) *report.Settings {
 		Distribution: s.Distribution.Enabled, Exclude: cfg.Exclude, ExcludeOutliers: cfg.ExcludeOutliers, Extrapolate: s.Extrapolate,
 		FullAlphaScan: s.Distribution.Contin.FullScan, G1Cutoff: s.Cumulants.Cutoff, GridPoints: s.Distribution.Grid.NGamma, Include: cfg.Include, JointTarget: s.Distribution.JointTargetProbReject, LagColumn: ro.TauColumn,
 		LagUnit: ro.TauUnit, MaxColumns: maxCols, MaxFileMB: int(maxBytes >> 20), MaxRows: maxRows,
-		MinLagS: s.Cumulants.MinTauS, MinPoints: s.Cumulants.MinPoints, ProbRejectTarget: s.Distribution.Contin.TargetProbReject,
+		MinLagS: s.Cumulants.MinTauS, MinPoints: s.Cumulants.MinPoints, PeakUncertainty: s.Distribution.PeakNoise.String(), ProbRejectTarget: s.Distribution.Contin.TargetProbReject,
 		QCThresholds: s.QC, QCThresholdsFile: rel(cfg.QCFile), RangeCheck: s.Cumulants.RangeCheck,
 		Set: dls.Assignments(s.Overrides), Sheet: rel(cfg.SheetFile), SigmaColumn: ro.SigmaColumn, SolventFile: rel(cfg.SolventFile),
 		Spec: rel(cfg.SpecFile), UAngleDeg: cfg.UAngleDeg, URefractiveIndex: s.Uncertainty.RefractiveIndex,

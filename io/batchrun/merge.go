@@ -272,6 +272,9 @@ func distributionOf(rec *report.Settings) (batch.DistributionSettings, error) {
 	// A set made before the joint target existed has none in its record
 	// (0): its joint analyses used the runs' target, and so does this.
 	d.JointTargetProbReject = rec.JointTarget
+	if d.PeakNoise, err = batch.ParsePeakNoise(rec.PeakUncertainty); err != nil {
+		return d, fmt.Errorf("settings record: %w", err)
+	}
 	if crit == contin.Fixed {
 		d.Contin.Lambda = rec.AlphaLambda
 	}

@@ -34,6 +34,7 @@ type Settings struct {
 	MaxRows           int           `json:"max_rows"`                     // limit on the data rows of one input file
 	MinLagS           float64       `json:"min_lag_s"`                    // channels below this lag ignored
 	MinPoints         int           `json:"min_points"`                   // fewest channels a cumulant fit needs
+	PeakUncertainty   string        `json:"peak_uncertainty"`             // noise of the peaks' uncertainties: auto, correlator-model, residuals ("" in sets made before it existed: auto)
 	ProbRejectTarget  float64       `json:"prob_reject_target"`           // target of the default criterion
 	QCThresholds      qc.Thresholds `json:"qc_thresholds"`                // every QC threshold used
 	QCThresholdsFile  string        `json:"qc_thresholds_file,omitempty"` // --qc-thresholds file as named
