@@ -135,7 +135,9 @@ type DistSummary struct {
 	// their significance) were computed with: "correlator model (model)",
 	// "correlator model (sigma)", "correlator model (tail)" (see
 	// cumulants.ChannelNoise) or "residuals" (contin.Sensitivity's
-	// Bartlett estimate, where no model applies).
+	// Bartlett estimate, where no model applies), "residuals (independent
+	// from lag to lag)" (the residuals were not correlated enough for the
+	// model) or "residuals (as set)" (batch.PeakNoiseResiduals).
 	PeakNoise string `json:"peak_noise"`
 	// Intensity, Volume and Number summarise each weighting: peaks by
 	// decreasing area, percentiles and mean.
