@@ -994,15 +994,17 @@ func (p *problem) refine(lo, hi int) {
 		p.rows[r].ProbReject, p.pDone[r] = pr, true
 		fr := logit(pr) - ft
 		if pr >= t {
-			if hi, fhi = r, fr; kept == -1 {
+			hi, fhi = r, fr
+			if kept == -1 { // lo kept a second time
 				flo /= 2
 			}
-			kept = -1 // lo kept
+			kept = -1
 		} else {
-			if lo, flo = r, fr; kept == 1 {
+			lo, flo = r, fr
+			if kept == 1 { // hi kept a second time
 				fhi /= 2
 			}
-			kept = 1 // hi kept
+			kept = 1
 		}
 		if math.Abs(fr) <= refineTol {
 			return
