@@ -28,6 +28,8 @@ type Brief struct {
 	// Intensity holds the intensity peaks and percentiles (nil without a
 	// distribution).
 	Intensity *WeightSummary
+	// PeakNoise is Result.PeakNoise.
+	PeakNoise string
 }
 
 // Brief returns the brief of r. Its slices are r's.
@@ -37,7 +39,7 @@ func (r *Result) Brief() *Brief {
 		Status: r.Status, Role: r.Role, Flags: r.Flags,
 		HasConditions: r.HasConditions, HasCumulants: r.HasCumulants, HasDistribution: r.HasDistribution,
 		HasCountRate: r.HasCountRate, TemperatureC: r.TemperatureC, AngleDeg: r.AngleDeg,
-		ZAvgNm: r.ZAvgNm, PDI: r.PDI, CountRateKcps: r.CountRateKcps, Intensity: r.Intensity,
+		ZAvgNm: r.ZAvgNm, PDI: r.PDI, CountRateKcps: r.CountRateKcps, Intensity: r.Intensity, PeakNoise: r.PeakNoise,
 	}
 }
 

@@ -14,7 +14,7 @@ func TestBriefOfResult(t *testing.T) {
 		{Identity: Identity{File: "a.csv", Sample: "s", Run: "r1", Status: StatusOK, Lot: "L1", Product: "P", Role: RoleReference, Group: "g", Flags: []Flag{{Code: "X", Message: "m"}}},
 			Conditions:  Conditions{HasConditions: true, TemperatureC: 25, AngleDeg: 173},
 			Cumulants:   Cumulants{HasCumulants: true, ZAvgNm: 101.5, PDI: 0.05, CountRateKcps: 250, HasCountRate: true},
-			DistSummary: DistSummary{HasDistribution: true, Intensity: in}},
+			DistSummary: DistSummary{HasDistribution: true, Intensity: in, PeakNoise: PeakNoiseModel + " (model)"}},
 		{Identity: Identity{File: "b.csv", Status: StatusWarn, Message: "long remark"}},
 		{Identity: Identity{File: "c.csv", Status: StatusError}},
 		{Identity: Identity{File: "d.csv", Status: "odd"}},
@@ -22,7 +22,7 @@ func TestBriefOfResult(t *testing.T) {
 	b := rs[0].Brief()
 	want := &Brief{File: "a.csv", Sample: "s", Run: "r1", Lot: "L1", Product: "P", Group: "g", Status: StatusOK, Role: RoleReference,
 		Flags: rs[0].Flags, HasConditions: true, HasCumulants: true, HasDistribution: true, HasCountRate: true,
-		TemperatureC: 25, AngleDeg: 173, ZAvgNm: 101.5, PDI: 0.05, CountRateKcps: 250, Intensity: in}
+		TemperatureC: 25, AngleDeg: 173, ZAvgNm: 101.5, PDI: 0.05, CountRateKcps: 250, Intensity: in, PeakNoise: PeakNoiseModel + " (model)"}
 	if !reflect.DeepEqual(b, want) {
 		t.Errorf("brief %+v, want %+v", b, want)
 	}

@@ -132,12 +132,13 @@ type DistSummary struct {
 	// with FitRMS.
 	DistFitRMS float64 `json:"dist_fit_rms"`
 	// PeakNoise is the noise covariance the peaks' uncertainties (and so
-	// their significance) were computed with: "correlator model (model)",
-	// "correlator model (sigma)", "correlator model (tail)" (see
-	// cumulants.ChannelNoise) or "residuals" (contin.Sensitivity's
-	// Bartlett estimate, where no model applies), "residuals (independent
-	// from lag to lag)" (the residuals were not correlated enough for the
-	// model) or "residuals (as set)" (batch.PeakNoiseResiduals).
+	// their significance) were computed with: PeakNoiseModel followed by
+	// its basis, "correlator model (model)", "correlator model (sigma)"
+	// or "correlator model (tail)" (see cumulants.ChannelNoise), or
+	// PeakNoiseResiduals (contin.Sensitivity's Bartlett estimate, where no
+	// model applies), PeakNoiseIndependent (the residuals were not
+	// correlated enough for the model) or PeakNoiseResidualsSet (asked for
+	// with batch.PeakNoiseResiduals).
 	PeakNoise string `json:"peak_noise"`
 	// Intensity, Volume and Number summarise each weighting: peaks by
 	// decreasing area, percentiles and mean.
@@ -337,3 +338,12 @@ func (c *Counts) add(s Status) {
 		c.Error++
 	}
 }
+
+// Values of Result.PeakNoise; the correlator model's is PeakNoiseModel
+// followed by its basis in parentheses.
+const (
+	PeakNoiseModel        = "correlator model"
+	PeakNoiseResiduals    = "residuals"
+	PeakNoiseIndependent  = "residuals (independent from lag to lag)"
+	PeakNoiseResidualsSet = "residuals (as set)"
+)

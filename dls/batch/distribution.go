@@ -309,16 +309,16 @@ func distribution(m *dls.Measurement, fit *cumulants.Result, st state, meta dls.
 	}
 	sens, _ := contin.NewSensitivity(grid, inv, sg, &cs) // nil: peaks without uncertainties
 	if sens != nil {
-		r.PeakNoise = "residuals"
+		r.PeakNoise = dls.PeakNoiseResiduals
 		switch choice := s.PeakNoise; {
 		case choice == PeakNoiseResiduals:
-			r.PeakNoise = "residuals (as set)"
+			r.PeakNoise = dls.PeakNoiseResidualsSet
 		case choice == PeakNoiseAuto && sens.ResidualCorrelation() < minCorrelatorRho:
-			r.PeakNoise = "residuals (independent from lag to lag)"
+			r.PeakNoise = dls.PeakNoiseIndependent
 		default:
 			if noise, basis := correlatorNoise(m, fit, first, sigma, sg, acquisition(r)); noise != nil {
 				sens.Noise = noise
-				r.PeakNoise = "correlator model (" + basis + ")"
+				r.PeakNoise = dls.PeakNoiseModel + " (" + basis + ")"
 			}
 		}
 	}

@@ -29,6 +29,7 @@ import (
 	"fmt"
 	"math"
 	"sort"
+	"strings"
 
 	"dlsbatch/dls"
 	"dlsbatch/dls/stats"
@@ -57,6 +58,14 @@ const (
 	FewRuns        Code = "FEW-RUNS"
 	HighRSD        Code = "HIGH-RSD"
 	NoValidRuns    Code = "NO-VALID-RUNS"
+	// PeakNoiseMixed marks a run whose peak uncertainties came from its
+	// residuals (the gate found them not correlated from lag to lag)
+	// while at least half of its sample's runs with a distribution took
+	// the correlator model: the noise is the instrument's, so this run's
+	// peak uncertainties are likely understated (about eight times on
+	// photon-level simulated correlator noise, DEVELOPERS.md "Peaks you
+	// can believe").
+	PeakNoiseMixed Code = "PEAK-NOISE-MIXED"
 	// Blank marks every analysed run of role blank: what its fit calls a
 	// size is the dispersant's own signal (solvent density fluctuations,
 	// stray light, a few stray particles), not a particle size.
@@ -140,6 +149,7 @@ func Definitions(t Thresholds) []Definition {
 		{FewRuns, "sample", "fewer analysed runs than a repeatability statement needs", fmt.Sprintf("runs used < %d", t.MinRuns)},
 		{HighRSD, "sample", "poor repeatability of the z-average", fmt.Sprintf("RSD > %g %%", t.MaxRSDPct)},
 		{NoValidRuns, "sample", "no run of the sample could be analysed", "runs used = 0"},
+		{PeakNoiseMixed, "sample", "a run's peak uncertainties came from its residuals while most of the sample's runs took the correlator model: likely understated (run with --peak-uncertainty correlator-model)", "residuals in a run, the model in ≥ half of the runs with a distribution"},
 		{Blank, "run", "a blank (dispersant only): its fitted size is the dispersant's signal, not a particle size", "role blank, analysed"},
 		{BlankScatter, "run", "a blank scatters more than clean dispersant: dirty solvent, cell or filter", fmt.Sprintf("role blank, count rate > %g kcps", t.MaxBlankCountRateKcps)},
 	}
@@ -298,6 +308,7 @@ func aggregate(s *dls.Sample, results []*dls.Brief, o Options) {
 	for tc := range temps {
 		s.TemperaturesC = append(s.TemperaturesC, tc)
 	}
+	peakNoiseMixed(s, results)
 	sort.Float64s(s.TemperaturesC)
 	if len(ok) >= 3 {
 		z := make([]float64, len(ok))
@@ -360,6 +371,35 @@ func aggregate(s *dls.Sample, results []*dls.Brief, o Options) {
 	}
 	if s.NUsed >= 2 && s.ZAvgRSDPct > t.MaxRSDPct {
 		s.Flags = append(s.Flags, dls.Flag{Code: HighRSD, Message: fmt.Sprintf("z-average RSD %.1f %% > %g %%", s.ZAvgRSDPct, t.MaxRSDPct)})
+	}
+}
+
+// peakNoiseMixed flags the runs of s whose peak uncertainties fell back to
+// the residuals (dls.PeakNoiseIndependent) when at least half of its runs
+// with a distribution took the correlator model (PeakNoiseMixed).
+func peakNoiseMixed(s *dls.Sample, results []*dls.Brief) {
+	var model, withDist int
+	var fell []int
+	for _, i := range s.Runs {
+		r := results[i]
+		if !r.HasDistribution {
+			continue
+		}
+		withDist++
+		switch {
+		case strings.HasPrefix(r.PeakNoise, dls.PeakNoiseModel):
+			model++
+		case r.PeakNoise == dls.PeakNoiseIndependent:
+			fell = append(fell, i)
+		}
+	}
+	if len(fell) == 0 || 2*model < withDist {
+		return
+	}
+	for _, i := range fell {
+		s.Flags = append(s.Flags, dls.Flag{Code: PeakNoiseMixed, Message: fmt.Sprintf(
+			"%s: peak uncertainties from the residuals, where %d of %d runs took the correlator model: likely understated (--peak-uncertainty correlator-model takes the model for every run)",
+			results[i].RunID(), model, withDist)})
 	}
 }
 

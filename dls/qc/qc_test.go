@@ -1,6 +1,7 @@
 package qc
 
 import (
+	"fmt"
 	"math"
 	"strings"
 	"testing"
@@ -100,7 +101,7 @@ func TestDefinitionsCoverCodes(t *testing.T) {
 		seen[d.Code] = true
 	}
 	for _, c := range []Code{LowIntercept, HighIntercept, NoBaseline, BaselineOffset, Dust, PoorFit, HighPDI, OutsideWindow,
-		Multimodal, DistMismatch, LowCountRate, Failed, Outlier, FewRuns, HighRSD, NoValidRuns, Blank, BlankScatter} {
+		Multimodal, DistMismatch, LowCountRate, Failed, Outlier, FewRuns, HighRSD, NoValidRuns, PeakNoiseMixed, Blank, BlankScatter} {
 		if !seen[c] {
 			t.Errorf("%s has no definition", c)
 		}
@@ -189,4 +190,47 @@ func hasFlag(f []dls.Flag, code Code) bool {
 		}
 	}
 	return false
+}
+
+// TestPeakNoiseMixed: a run whose peak uncertainties fell back to the
+// residuals is flagged when at least half of the sample's runs with a
+// distribution took the correlator model, and only then; a run that asked
+// for the residuals, or one without a distribution, is never flagged.
+func TestPeakNoiseMixed(t *testing.T) {
+	const m, ind, set = dls.PeakNoiseModel + " (model)", dls.PeakNoiseIndependent, dls.PeakNoiseResidualsSet
+	for _, c := range []struct {
+		name    string
+		noise   []string // "" marks a run without a distribution
+		flagged []int
+	}{
+		{"two of three took the model", []string{m, m, ind}, []int{2}},
+		{"one of three took the model", []string{ind, ind, m}, nil},
+		{"half, a run without a distribution aside", []string{m, ind, ""}, []int{1}},
+		{"all took the model", []string{m, m, m}, nil},
+		{"the residuals as set", []string{m, m, set}, nil},
+	} {
+		var rs []*dls.Result
+		for k, n := range c.noise {
+			r := clean()
+			r.File = fmt.Sprintf("r%d.csv", k+1)
+			r.HasDistribution, r.PeakNoise = n != "", n
+			rs = append(rs, r)
+		}
+		s := Aggregate(dls.Briefs(rs), Options{Thresholds: DefaultThresholds()})[0]
+		var got []string
+		for _, f := range s.Flags {
+			if f.Code == PeakNoiseMixed {
+				got = append(got, f.Message)
+			}
+		}
+		if len(got) != len(c.flagged) {
+			t.Errorf("%s: flags %q, want runs %v", c.name, got, c.flagged)
+			continue
+		}
+		for k, i := range c.flagged {
+			if id := rs[i].Brief().RunID(); !strings.HasPrefix(got[k], id+": ") {
+				t.Errorf("%s: flag %q, want it on %s", c.name, got[k], id)
+			}
+		}
+	}
 }
