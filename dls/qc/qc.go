@@ -149,7 +149,7 @@ func Definitions(t Thresholds) []Definition {
 		{FewRuns, "sample", "fewer analysed runs than a repeatability statement needs", fmt.Sprintf("runs used < %d", t.MinRuns)},
 		{HighRSD, "sample", "poor repeatability of the z-average", fmt.Sprintf("RSD > %g %%", t.MaxRSDPct)},
 		{NoValidRuns, "sample", "no run of the sample could be analysed", "runs used = 0"},
-		{PeakNoiseMixed, "sample", "a run's peak uncertainties came from its residuals while most of the sample's runs took the correlator model: likely understated (run with --peak-uncertainty correlator-model)", "residuals in a run, the model in ≥ half of the runs with a distribution"},
+		{PeakNoiseMixed, "sample", "peak uncertainties from the residuals, the sample's others from the model: likely too small", "residuals in a run, the model in ≥ half of those with a distribution"},
 		{Blank, "run", "a blank (dispersant only): its fitted size is the dispersant's signal, not a particle size", "role blank, analysed"},
 		{BlankScatter, "run", "a blank scatters more than clean dispersant: dirty solvent, cell or filter", fmt.Sprintf("role blank, count rate > %g kcps", t.MaxBlankCountRateKcps)},
 	}
