@@ -108,7 +108,7 @@ func (o *runOptions) addFlags(fs *pflag.FlagSet) {
 	fs.Var(o.criterion, "alpha-criterion", "choice of the regularisation strength: probability to reject (Provencher), gcv, l-curve, or fixed (with --alpha-lambda)")
 	fs.Float64Var(&o.lambda, "alpha-lambda", 0, "dimensionless strength λ (α² = λ·tr(A'WA)/tr(L'L)) for --alpha-criterion fixed")
 	fs.Float64Var(&o.target, "prob-reject-target", contin.DefaultTargetProbReject, "target probability to reject for the default criterion")
-	fs.Float64Var(&o.jointTarget, "joint-prob-reject-target", batch.DefaultJointTargetProbReject, "target probability to reject of each sample's joint analysis of its runs, with the default criterion (weaker than a run's: see DEVELOPERS.md)")
+	fs.Float64Var(&o.jointTarget, "joint-prob-reject-target", batch.DefaultJointTargetProbReject, "target probability to reject of each sample's joint analysis of its runs, with the default criterion (weaker than a run's: see DEVELOPERS.md; 0: the runs' target)")
 	fs.Var(o.peakNoise, "peak-uncertainty", "noise of the peaks' uncertainties: auto (the correlator model when the residuals are correlated from lag to lag), correlator-model (data from a correlator), residuals (noise independent from lag to lag)")
 	fs.IntVar(&o.gridPoints, "grid-points", contin.DefaultNGamma, "points of the log-spaced decay-rate grid of the inversion")
 	fs.StringVar(&o.particleRI, "default-particle-ri", "1.59+0i", "particle refractive index (complex, e.g. 1.59+0i) where a measurement gives none; only the volume and number weightings use it")
