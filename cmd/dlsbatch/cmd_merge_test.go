@@ -10,35 +10,43 @@ import (
 
 // TestShardsMergeToOneRun: the demo night run whole and as three shards
 // merged give the same bytes in every output (tables, JSON, manifest with
-// the report pages' hashes); merge refuses a missing shard, a shard given
-// twice and a set that is not a shard.
+// the report pages' hashes), with the default settings and with other
+// settings of the joint analyses that merge recomputes (their target and
+// the peaks' noise, which merge must take from the shards' records);
+// merge refuses a missing shard, a shard given twice and a set that is
+// not a shard.
 func TestShardsMergeToOneRun(t *testing.T) {
 	demo := filepath.Join("..", "..", "testdata")
-	args := []string{filepath.Join(demo, "demo"), "--sheet", filepath.Join(demo, "demo-sheet.csv"),
-		"--spec", filepath.Join(demo, "demo-spec.csv"), "-q"}
 	tmp := t.TempDir()
-	whole := filepath.Join(tmp, "whole")
-	if code, _, stderr := runCmd(t, append([]string{"run", "--out", whole}, args...)...); code != exitSpecFailed {
-		t.Fatalf("whole run: exit %d: %s", code, stderr)
-	}
+	var whole string
 	var shards []string
-	for k := range 3 {
-		d := filepath.Join(tmp, "shard"+string(rune('0'+k)))
-		shards = append(shards, d)
-		code, _, stderr := runCmd(t, append([]string{"run", "--out", d, "--shard", string(rune('0'+k)) + "/3"}, args...)...)
-		if code == exitUsage || code == exitFatal {
-			t.Fatalf("shard %d: exit %d: %s", k, code, stderr)
+	for v, extra := range [][]string{nil, {"--joint-prob-reject-target", "0.3", "--peak-uncertainty", "correlator-model"}} {
+		args := append([]string{filepath.Join(demo, "demo"), "--sheet", filepath.Join(demo, "demo-sheet.csv"),
+			"--spec", filepath.Join(demo, "demo-spec.csv"), "-q"}, extra...)
+		dir := filepath.Join(tmp, string(rune('a'+v)))
+		whole = filepath.Join(dir, "whole")
+		if code, _, stderr := runCmd(t, append([]string{"run", "--out", whole}, args...)...); code != exitSpecFailed {
+			t.Fatalf("%v: whole run: exit %d: %s", extra, code, stderr)
 		}
-	}
-	merged := filepath.Join(tmp, "merged")
-	if code, _, stderr := runCmd(t, append([]string{"merge", "--out", merged, "-q"}, shards...)...); code != exitSpecFailed {
-		t.Fatalf("merge: exit %d: %s", code, stderr)
-	}
-	for _, f := range []string{"results.csv", "samples.csv", "results.json", "manifest.json"} {
-		a, _ := os.ReadFile(filepath.Join(whole, f))
-		b, err := os.ReadFile(filepath.Join(merged, f))
-		if err != nil || !bytes.Equal(a, b) {
-			t.Errorf("%s: merged differs from the whole run: %s", f, firstDiff(a, b))
+		shards = nil
+		for k := range 3 {
+			d := filepath.Join(dir, "shard"+string(rune('0'+k)))
+			shards = append(shards, d)
+			code, _, stderr := runCmd(t, append([]string{"run", "--out", d, "--shard", string(rune('0'+k)) + "/3"}, args...)...)
+			if code == exitUsage || code == exitFatal {
+				t.Fatalf("%v: shard %d: exit %d: %s", extra, k, code, stderr)
+			}
+		}
+		merged := filepath.Join(dir, "merged")
+		if code, _, stderr := runCmd(t, append([]string{"merge", "--out", merged, "-q"}, shards...)...); code != exitSpecFailed {
+			t.Fatalf("%v: merge: exit %d: %s", extra, code, stderr)
+		}
+		for _, f := range []string{"results.csv", "samples.csv", "results.json", "manifest.json"} {
+			a, _ := os.ReadFile(filepath.Join(whole, f))
+			b, err := os.ReadFile(filepath.Join(merged, f))
+			if err != nil || !bytes.Equal(a, b) {
+				t.Errorf("%v: %s: merged differs from the whole run: %s", extra, f, firstDiff(a, b))
+			}
 		}
 	}
 	for _, tc := range []struct {
