@@ -308,8 +308,8 @@ func aggregate(s *dls.Sample, results []*dls.Brief, o Options) {
 	for tc := range temps {
 		s.TemperaturesC = append(s.TemperaturesC, tc)
 	}
-	peakNoiseMixed(s, results)
 	sort.Float64s(s.TemperaturesC)
+	peakNoiseMixed(s, results)
 	if len(ok) >= 3 {
 		z := make([]float64, len(ok))
 		for k, i := range ok {
