@@ -195,17 +195,6 @@ func TestPeakSignificancePhotonLong(t *testing.T) {
 	}
 }
 
-// TestPeakUncertaintyPhotonShort checks the stated uncertainty of the main
-// intensity peak's mean diameter against the scatter of that mean over
-// photon-level runs (sim.Photon: a software correlator's noise, correlated
-// along the lags): 40 runs of 1 s of 100 nm at 173°, 300 kcps, lags 1 µs
-// to 0.1 s. The rms of (mean − mean over the runs)/u must lie within
-// 0.6–1.8 for the runs whose uncertainty comes from the correlator model
-// (measured on 150 runs of 10 s: 1.19; on five other conditions 1.24–1.38;
-// at 40 runs the rms itself is known to about 11 %, and u varies from run
-// to run), and at least 25 of the 40 runs must take that model (about 90 %
-// do on such runs). With the residual-based uncertainty instead the same
-
 // scatterZ is the rms of (x_i − x̄)/u_i over values x with their stated
 // standard uncertainties u: about 1 when u states the scatter of x. n − 1
 // in the mean square, since x̄ is estimated from the same values; NaN for
@@ -225,18 +214,36 @@ func scatterZ(x, u []float64) float64 {
 	return math.Sqrt(ss / float64(len(x)-1))
 }
 
+// TestPeakUncertaintyPhotonShort checks the stated uncertainty of the main
+// intensity peak's mean diameter against the scatter of that mean over
+// photon-level runs (sim.Photon: a software correlator's noise, correlated
+// along the lags): 40 runs of 1 s of 100 nm at 173°, 300 kcps, lags 1 µs
+// to 0.1 s. The rms of (mean − mean over the runs)/u must lie within
+// 0.6–1.8 for the runs whose uncertainty comes from the correlator model
+// (measured on 150 runs of 10 s: 1.19; on five other conditions 1.24–1.38;
+// at 40 runs the rms itself is known to about 11 %, and u varies from run
+// to run), and at least 25 of the 40 runs must take that model (about 90 %
+// do on such runs). With the residual-based uncertainty instead the same
 // rms is above 2.5 (measured 5.4 at 10 s), so the test tells the two apart.
+// The same runs check the peak-uncertainty choice, which overrides the
+// gate: with PeakNoiseCorrelator every run takes the model, the runs the
+// gate sends to the residuals included, within the same 0.6–1.8; with
+// PeakNoiseResiduals every run takes the residuals, labelled so, and the
+// rms is again above 2.5.
 func TestPeakUncertaintyPhotonShort(t *testing.T) {
 	ms := peakRuns(t, peakCondition{pop: "mono(100nm)", angleDeg: 173, durS: 1, rateHz: 3e5, runs: 40, seed: 91, photon: true})
-	rmsZ := func(model bool) (float64, int) {
+	// rmsZ analyses the runs with the choice and returns the rms z of the
+	// runs whose peak noise starts with label, and how many there are.
+	rmsZ := func(choice PeakNoiseChoice, label string) (float64, int) {
 		s := DefaultSettings()
+		s.Distribution.PeakNoise = choice
 		var means, us []float64
 		for _, m := range ms {
 			r := Analyze(m, &s)
 			if !r.HasDistribution || len(r.Intensity.Peaks) == 0 {
 				t.Fatalf("%s: no distribution or peak: %s", m.File, r.Message)
 			}
-			if model != strings.HasPrefix(r.PeakNoise, "correlator model") {
+			if !strings.HasPrefix(r.PeakNoise, label) {
 				continue
 			}
 			p := r.Intensity.Peaks[0]
@@ -244,17 +251,37 @@ func TestPeakUncertaintyPhotonShort(t *testing.T) {
 		}
 		return scatterZ(means, us), len(means)
 	}
-	zm, n := rmsZ(true)
-	t.Logf("correlator model: rms z %.2f over %d runs", zm, n)
+	zm, n := rmsZ(PeakNoiseAuto, dls.PeakNoiseModel)
+	t.Logf("auto, correlator model: rms z %.2f over %d runs", zm, n)
 	if n < 25 || !(zm >= 0.6 && zm <= 1.8) {
 		t.Errorf("correlator-model uncertainty of the peak mean: rms z %.2f over %d runs; want 0.6–1.8 over at least 25", zm, n)
 	}
-	defer func(v float64) { minCorrelatorRho = v }(minCorrelatorRho)
-	minCorrelatorRho = math.Inf(1)
-	zr, nr := rmsZ(false)
+	zc, nc := rmsZ(PeakNoiseCorrelator, dls.PeakNoiseModel)
+	t.Logf("correlator model for every run: rms z %.2f over %d runs", zc, nc)
+	if nc != len(ms) || !(zc >= 0.6 && zc <= 1.8) {
+		t.Errorf("correlator model for every run: rms z %.2f over %d of %d runs; want 0.6–1.8 over all", zc, nc, len(ms))
+	}
+	zr, nr := rmsZ(PeakNoiseResiduals, dls.PeakNoiseResidualsSet)
 	t.Logf("residuals: rms z %.2f over %d runs", zr, nr)
-	if !(zr > 2.5) {
-		t.Errorf("residual-based uncertainty: rms z %.2f; the runs do not show what the test is about", zr)
+	if nr != len(ms) || !(zr > 2.5) {
+		t.Errorf("residual-based uncertainty: rms z %.2f over %d of %d runs; want above 2.5 over all (the runs do not show what the test is about)", zr, nr, len(ms))
+	}
+}
+
+// TestParsePeakNoise: each choice's spelling reads back, "" (a settings
+// record made before the choice existed) reads as auto, and an unknown
+// name is refused.
+func TestParsePeakNoise(t *testing.T) {
+	for _, want := range []PeakNoiseChoice{PeakNoiseAuto, PeakNoiseCorrelator, PeakNoiseResiduals} {
+		if got, err := ParsePeakNoise(want.String()); err != nil || got != want {
+			t.Errorf("%v: reads back as %v (%v)", want, got, err)
+		}
+	}
+	if got, err := ParsePeakNoise(""); err != nil || got != PeakNoiseAuto {
+		t.Errorf(`"": %v (%v), want auto`, got, err)
+	}
+	if _, err := ParsePeakNoise("model"); err == nil {
+		t.Error(`"model" accepted`)
 	}
 }
 
@@ -278,56 +305,5 @@ func TestBinWidthNm(t *testing.T) {
 		if got := binWidthNm(c.d, c.j); math.Abs(got-c.want) > 1e-12*math.Max(c.want, 1) {
 			t.Errorf("bin %d of %v: width %.12g nm, want %.12g", c.j, c.d, got, c.want)
 		}
-	}
-}
-
-// TestPeakNoiseChoice: the peak-uncertainty choice overrides the gate. On
-// the photon-level runs of TestPeakUncertaintyPhotonShort, with
-// PeakNoiseCorrelator every run takes the correlator model, the runs that
-// the gate would have sent to the residuals included, and the main peak's
-// rms z stays within that test's 0.6–1.8; with PeakNoiseResiduals every
-// run takes the residuals and is labelled so; a record's spelling of each
-// choice reads back, and "" (a set made before the choice) reads as auto.
-func TestPeakNoiseChoice(t *testing.T) {
-	ms := peakRuns(t, peakCondition{pop: "mono(100nm)", angleDeg: 173, durS: 1, rateHz: 3e5, runs: 40, seed: 91, photon: true})
-	for _, c := range []struct {
-		choice PeakNoiseChoice
-		prefix string
-	}{
-		{PeakNoiseCorrelator, "correlator model"},
-		{PeakNoiseResiduals, "residuals (as set)"},
-	} {
-		s := DefaultSettings()
-		s.Distribution.PeakNoise = c.choice
-		var means, us []float64
-		for _, m := range ms {
-			r := Analyze(m, &s)
-			if !r.HasDistribution || len(r.Intensity.Peaks) == 0 {
-				t.Fatalf("%s: no distribution or peak: %s", m.File, r.Message)
-			}
-			if !strings.HasPrefix(r.PeakNoise, c.prefix) {
-				t.Fatalf("%v: %s took %q", c.choice, m.File, r.PeakNoise)
-			}
-			means, us = append(means, r.Intensity.Peaks[0].MeanNm), append(us, r.Intensity.Peaks[0].MeanUNm)
-		}
-		z := scatterZ(means, us)
-		t.Logf("%v: rms z %.2f over %d runs", c.choice, z, len(means))
-		if c.choice == PeakNoiseCorrelator && !(z >= 0.6 && z <= 1.8) {
-			t.Errorf("%v: rms z %.2f, want 0.6–1.8", c.choice, z)
-		}
-		if c.choice == PeakNoiseResiduals && !(z > 2.5) {
-			t.Errorf("%v: rms z %.2f; the residuals should understate these runs' scatter", c.choice, z)
-		}
-	}
-	for _, want := range []PeakNoiseChoice{PeakNoiseAuto, PeakNoiseCorrelator, PeakNoiseResiduals} {
-		if got, err := ParsePeakNoise(want.String()); err != nil || got != want {
-			t.Errorf("%v: reads back as %v (%v)", want, got, err)
-		}
-	}
-	if got, err := ParsePeakNoise(""); err != nil || got != PeakNoiseAuto {
-		t.Errorf(`"": %v (%v), want auto`, got, err)
-	}
-	if _, err := ParsePeakNoise("model"); err == nil {
-		t.Error(`"model" accepted`)
 	}
 }
