@@ -347,7 +347,7 @@ func distribution(m *dls.Measurement, fit *cumulants.Result, st state, meta dls.
 // 0.23; photon-level runs of eight conditions (730 runs), medians
 // 0.26–0.45, 2–28 % of them below 0.2 (these keep the residual-based
 // uncertainty and its threshold).
-var minCorrelatorRho = 0.2 // a variable only so that tests can switch the model off
+const minCorrelatorRho = 0.2
 
 // correlatorNoise returns the quadratic form g ↦ g'·C·g of the noise
 // covariance of the inversion's data (g1 at the lags first…, with σ sg)
