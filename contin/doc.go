@@ -76,8 +76,8 @@
 // regula falsi steps (Illinois rule) in (log λ, logit P_reject), stopping
 // once P_reject is within 0.04 of the target in logit (±0.01 at 0.5):
 // typically one or two solves, where four bisection steps were used
-// before 2026-12-03 and came as close. (The formula is as generally quoted for CONTIN; from
-// memory, not checked against the 1982 text.) V cannot fall as α grows
+// before 2026-12-03 and came as close. (The formula is as generally quoted
+// for CONTIN; from memory, not checked against the 1982 text.) V cannot fall as α grows
 // (the two optimality inequalities of the minimisers at α₁ < α₂ give
 // ||Lx₂|| ≤ ||Lx₁||, then V₁ ≤ V₂), so P_reject is monotone in λ and the
 // bracket can be searched for: from the middle of the lattice (or, with
@@ -87,8 +87,8 @@
 // strengths instead of 21, with the same bracket as the full scan and the
 // same refinement and choice to rounding (λ within 1e-7: the refinement's
 // steps follow P_reject, which the search and the scan reach from other
-// warm starts; checked by TestSearchMatchesFullScan). The search leaves Picks.GCV and
-// Picks.LCurve at −1; Settings.FullScan restores the complete scan for
+// warm starts; checked by TestSearchMatchesFullScan). The search leaves
+// Picks.GCV and Picks.LCurve at −1; Settings.FullScan restores the complete scan for
 // audit. The other criteria:
 //
 //   - GCV (Golub, Heath & Wahba 1979): minimise N_y·V/(N_y − N_DF)².
