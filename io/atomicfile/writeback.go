@@ -1,6 +1,7 @@
 package atomicfile
 
 import (
+	"dlsbatch/io/plainfile"
 	"fmt"
 	"os"
 
@@ -23,7 +24,7 @@ func StartWriteback(f *os.File, off, n int64) {
 // used, and starts its writeback. Not atomic: for files that no reader
 // sees before the folder is swapped in.
 func WriteStaged(path string, data []byte) error {
-	f, err := os.OpenFile(path, os.O_WRONLY|os.O_CREATE|os.O_TRUNC, 0o644)
+	f, err := plainfile.Create(path, 0o644)
 	if err != nil {
 		return fmt.Errorf("write %s: %w", path, err)
 	}

@@ -1,6 +1,7 @@
 package csvdata
 
 import (
+	"dlsbatch/io/plainfile"
 	"errors"
 	"fmt"
 	"io/fs"
@@ -183,11 +184,10 @@ func statReason(path string, err error) error {
 
 // canRead opens a regular file for reading and closes it again.
 func canRead(path string) error {
-	fh, err := os.Open(path)
-	if err != nil {
+	if err := plainfile.CanOpen(path); err != nil {
 		return unwrapPath(err)
 	}
-	return fh.Close()
+	return nil
 }
 
 // sortUnique sorts s by key and drops later items with the key of an

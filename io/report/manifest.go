@@ -4,6 +4,7 @@ import (
 	"bufio"
 	"bytes"
 	"crypto/sha256"
+	"dlsbatch/io/plainfile"
 	"encoding/hex"
 	"encoding/json"
 	"fmt"
@@ -91,7 +92,7 @@ func DigestFile(path string) (Digest, error) {
 // is opened once and the bytes hashed are the bytes read; a larger file is
 // hashed as it streams past and its content not kept (nil).
 func ReadDigest(path string, max int64) (Digest, []byte, error) {
-	f, err := os.Open(path)
+	f, err := plainfile.Open(path)
 	if err != nil {
 		return Digest{}, nil, fmt.Errorf("manifest: %w", err)
 	}
