@@ -188,9 +188,11 @@ type MediumNote struct {
 	Check             string  `json:"check"`
 }
 
-// Curves are per-lag arrays of one measurement.
+// Curves are per-lag arrays of one measurement. A field tagged
+// jsonenc:"shared" is a grid that many records share, whose encoding the
+// records' encoder keeps (io/jsonenc).
 type Curves struct {
-	TauS      []float64 `json:"tau_s"`
+	TauS      []float64 `json:"tau_s" jsonenc:"shared"`
 	Data      []float64 `json:"data"`
 	Fitted    []float64 `json:"fitted"`
 	Residuals []float64 `json:"residuals"`
@@ -230,7 +232,7 @@ type WeightSummary struct {
 // measurement: the distributions on the diameter grid, the field
 // correlation it fitted, and every regularisation strength tried.
 type SizeDistribution struct {
-	DiameterNm []float64 `json:"diameter_nm"`
+	DiameterNm []float64 `json:"diameter_nm" jsonenc:"shared"`
 	Intensity  []float64 `json:"intensity"`
 	Volume     []float64 `json:"volume"`
 	Number     []float64 `json:"number"`

@@ -4,6 +4,7 @@ import (
 	"bufio"
 	"context"
 	"crypto/sha256"
+	"dlsbatch/io/jsonenc"
 	"encoding/hex"
 	"encoding/json"
 	"fmt"
@@ -96,8 +97,7 @@ func WriteSet(ctx context.Context, dir string, s *Set) error {
 	m := &Manifest{Tool: d.Tool, Version: d.Version, Complete: d.Complete, Root: s.Root, Shard: s.Shard, Settings: d.Settings,
 		Files: FileCounts{Found: len(s.Inputs), Analysed: len(inputs)}, Inputs: []FileHash{}, Tables: []FileHash{}}
 	result := func(i int, dst []byte) ([]byte, error) {
-		b, err := json.Marshal(d.Results[i])
-		return append(dst, b...), err
+		return jsonenc.Append(dst, d.Results[i])
 	}
 	row := func(i int, dst []byte) ([]byte, error) {
 		b, err := csvRow(d.Results[i])

@@ -2,6 +2,7 @@ package report
 
 import (
 	"bufio"
+	"dlsbatch/io/jsonenc"
 	"encoding/json"
 	"fmt"
 	"io"
@@ -96,7 +97,7 @@ func Encode(r *dls.Result) (Encoded, error) {
 		return e, fmt.Errorf("results json: %s: %w", r.File, err)
 	}
 	var err error
-	if e.Record, err = json.Marshal(r); err != nil {
+	if e.Record, err = jsonenc.Marshal(r); err != nil {
 		return e, fmt.Errorf("results json: %s: %w", r.File, err)
 	}
 	if e.Row, err = csvRow(r); err != nil {

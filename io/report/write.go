@@ -3,6 +3,7 @@ package report
 import (
 	"bufio"
 	"bytes"
+	"dlsbatch/io/jsonenc"
 	"encoding/csv"
 	"encoding/json"
 	"fmt"
@@ -99,8 +100,7 @@ func WriteJSON(w io.Writer, doc *Document) error {
 		}
 	}
 	return writeJSON(w, doc, dls.Briefs(doc.Results), func(i int, dst []byte) ([]byte, error) {
-		b, err := json.Marshal(doc.Results[i])
-		return append(dst, b...), err
+		return jsonenc.Append(dst, doc.Results[i])
 	})
 }
 
