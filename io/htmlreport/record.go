@@ -2,6 +2,7 @@ package htmlreport
 
 import (
 	"bytes"
+	"encoding/binary"
 	"encoding/json"
 	"errors"
 	"fmt"
@@ -687,6 +688,21 @@ func (s *scanner) params(dst *[]dls.Param) error {
 var pow10 = [...]float64{1e0, 1e1, 1e2, 1e3, 1e4, 1e5, 1e6, 1e7, 1e8, 1e9, 1e10, 1e11,
 	1e12, 1e13, 1e14, 1e15, 1e16, 1e17, 1e18, 1e19, 1e20, 1e21, 1e22}
 
+// eightDigits returns the value of b[:8] when all eight bytes are ASCII
+// digits, converted in three steps of paired multiplications (Lemire,
+// "Number parsing at a gigabyte per second", Software: Practice and
+// Experience 51(8), 2021).
+func eightDigits(b []byte) (uint64, bool) {
+	v := binary.LittleEndian.Uint64(b)
+	if (v&0xF0F0F0F0F0F0F0F0)|(((v+0x0606060606060606)&0xF0F0F0F0F0F0F0F0)>>4) != 0x3333333333333333 {
+		return 0, false
+	}
+	v -= 0x3030303030303030
+	v = v*10 + v>>8 // pairs of digits in the even bytes
+	v = ((v&0x000000FF000000FF)*(100+1000000<<32) + (v>>16&0x000000FF000000FF)*(1+10000<<32)) >> 32
+	return v, true
+}
+
 // plotNumber reads a number in JSON's grammar (RFC 8259, section 6:
 // -?(0|[1-9][0-9]*)(\.[0-9]+)?([eE][+-]?[0-9]+)?) to within 3 units in the
 // last place, which is all that a plotted coordinate needs (the plots
@@ -726,6 +742,21 @@ func plotNumber(t []byte, i int) (v float64, end int, ok bool) {
 	if i < n && t[i] == '.' {
 		i++
 		from := i
+		for ; i < n && t[i] == '0' && mant == 0; i++ {
+			exp-- // a leading zero
+		}
+		// Eight digits at a time while they fit in the 19 taken: the
+		// same mant, nd and exp as the loop below.
+		for nd <= 11 && i+8 <= n {
+			d, ok := eightDigits(t[i : i+8])
+			if !ok || (mant == 0 && t[i] == '0') {
+				break
+			}
+			mant = mant*100000000 + d
+			nd += 8
+			exp -= 8
+			i += 8
+		}
 		for ; i < n && t[i] >= '0' && t[i] <= '9'; i++ {
 			switch {
 			case nd >= 19: // dropped

@@ -3,7 +3,9 @@ package htmlreport
 import (
 	"bytes"
 	"encoding/json"
+	"fmt"
 	"math"
+	"math/rand/v2"
 	"reflect"
 	"strconv"
 	"strings"
@@ -205,9 +207,41 @@ func TestPlotNumber(t *testing.T) {
 			t.Errorf("%s: %v, want %v", s, got, want)
 		}
 	}
-	for _, s := range []string{"", "-", "01", "1.", ".5", "+1", "1e", "1e+", "inf", "NaN", "0x10", "1_0", "1.5x", "--1", "1e999"} {
+	for _, s := range []string{"", "-", "01", "1.", ".5", "+1", "1e", "1e+", "inf", "NaN", "0x10", "1_0", "1.5x", "--1", "1e999",
+		"0.12345678x", "0.1234567/9"} {
 		if _, _, ok := plotNumber([]byte(s), 0); ok {
 			t.Errorf("%q accepted", s)
+		}
+	}
+	// Random numbers as encoding/json writes them (shortest form, 'f'
+	// between 1e-6 and 1e21), whose fractions the eight-digit steps read.
+	r := rand.New(rand.NewPCG(3, 4))
+	for range 20000 {
+		v := r.NormFloat64() * math.Pow(10, float64(r.IntN(12)-6))
+		b, _ := json.Marshal(v)
+		got, end, ok := plotNumber(append(b, ']'), 0)
+		if !ok || end != len(b) || (got != v && math.Abs(got-v) > 3*ulp(v)) {
+			t.Fatalf("%s: %v (ok %v, end %d)", b, got, ok, end)
+		}
+	}
+}
+
+// eightDigits against strconv.ParseUint (the reference) on every digit in
+// every position, and on the bytes just outside '0'…'9'.
+func TestEightDigits(t *testing.T) {
+	r := rand.New(rand.NewPCG(5, 6))
+	for range 5000 {
+		s := fmt.Sprintf("%08d", r.IntN(100000000))
+		want, _ := strconv.ParseUint(s, 10, 64)
+		if got, ok := eightDigits([]byte(s)); !ok || got != want {
+			t.Fatalf("%s: %d, %v", s, got, ok)
+		}
+		for _, c := range []byte{'/', ':', '.', 'e', '-', ' ', 0, 0x80, 0xB0} {
+			b := []byte(s)
+			b[r.IntN(8)] = c
+			if _, ok := eightDigits(b); ok {
+				t.Fatalf("%q accepted", b)
+			}
 		}
 	}
 }
