@@ -15,6 +15,10 @@ const absoluteSuffix = "; absolute index, vacuum wavelength"
 
 // WriteSolventTable lists entries with their ranges and sources.
 func WriteSolventTable(w io.Writer, list []*medium.Solvent) error {
+	return buffered(w, func(w io.Writer) error { return writeSolventTable(w, list) })
+}
+
+func writeSolventTable(w io.Writer, list []*medium.Solvent) error {
 	tw := tabwriter.NewWriter(w, 0, 0, 2, ' ', 0)
 	fmt.Fprintln(tw, "name\taliases\tt_range_c\tlambda_range_nm\tviscosity\tindex\tdefined")
 	for _, s := range list {
@@ -38,6 +42,10 @@ func WriteSolventTable(w io.Writer, list []*medium.Solvent) error {
 
 // WriteSolventValues prints viscosity and index of each entry at one state.
 func WriteSolventValues(w io.Writer, list []*medium.Solvent, tK, lambdaM float64, extrapolate bool) error {
+	return buffered(w, func(w io.Writer) error { return writeSolventValues(w, list, tK, lambdaM, extrapolate) })
+}
+
+func writeSolventValues(w io.Writer, list []*medium.Solvent, tK, lambdaM float64, extrapolate bool) error {
 	fmt.Fprintf(w, "at %.2f °C, 0.1 MPa, vacuum wavelength %.1f nm\n\n", tK-dls.ZeroCelsiusK, lambdaM*1e9)
 	tw := tabwriter.NewWriter(w, 0, 0, 2, ' ', 0)
 	fmt.Fprintln(tw, "name\tviscosity_mpas\trefractive_index\tstatus")

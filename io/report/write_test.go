@@ -10,6 +10,7 @@ import (
 	"testing"
 
 	"dlsbatch/dls"
+	"dlsbatch/dls/qc"
 	"dlsbatch/dls/spec"
 )
 
@@ -102,6 +103,42 @@ func TestWriteSummary(t *testing.T) {
 		if !strings.Contains(s, want) {
 			t.Errorf("summary lacks %q:\n%s", want, s)
 		}
+	}
+}
+
+// writeCounter counts the writes it is given.
+type writeCounter struct {
+	bytes.Buffer
+	writes int
+}
+
+func (w *writeCounter) Write(p []byte) (int, error) {
+	w.writes++
+	return w.Buffer.Write(p)
+}
+
+// The tables for the terminal reach it in one write, not one per cell
+// (text/tabwriter writes cells and padding one by one), with the same text.
+func TestTablesWrittenOnce(t *testing.T) {
+	rs := sampleResults()
+	var smp []*dls.Sample
+	for i := range 50 {
+		smp = append(smp, &dls.Sample{Name: fmt.Sprintf("s%02d", i), NRuns: 3, NUsed: 3, ZAvgMeanNm: 100 + float64(i), TemperaturesC: []float64{25}})
+	}
+	var plain bytes.Buffer
+	if err := writeSummary(&plain, dls.Briefs(rs), smp, spec.Batch{}, ProblemsOf(rs, SummaryProblems)); err != nil {
+		t.Fatal(err)
+	}
+	var w writeCounter
+	if err := WriteSummary(&w, dls.Briefs(rs), smp, spec.Batch{}, ProblemsOf(rs, SummaryProblems)); err != nil {
+		t.Fatal(err)
+	}
+	if w.writes != 1 || w.String() != plain.String() {
+		t.Errorf("summary in %d writes (want 1), same text %v", w.writes, w.String() == plain.String())
+	}
+	var f writeCounter
+	if err := WriteFlagTable(&f, qc.Definitions(qc.DefaultThresholds())); err != nil || f.writes != 1 {
+		t.Errorf("flag table in %d writes (want 1), %v", f.writes, err)
 	}
 }
 
