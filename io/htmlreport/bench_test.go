@@ -85,3 +85,26 @@ func BenchmarkPlotRun(b *testing.B) {
 		plotRun(r)
 	}
 }
+
+// BenchmarkPageResult reads one run's full record back for its page, as
+// the pages of a run do (the compact copy given, the grids shared).
+func BenchmarkPageResult(b *testing.B) {
+	r := synthReport(1, 10)
+	var raw [][]byte
+	for _, res := range r.Results {
+		enc, err := json.Marshal(res)
+		if err != nil {
+			b.Fatal(err)
+		}
+		raw = append(raw, enc)
+	}
+	var arena []float64
+	grids := &gridCache{}
+	b.ReportAllocs()
+	for i := 0; b.Loop(); i++ {
+		k := i % len(raw)
+		if _, err := pageResult(r.Results[k], raw[k], &arena, grids); err != nil {
+			b.Fatal(err)
+		}
+	}
+}

@@ -67,6 +67,13 @@ type (
 		inner
 		A string `json:"a"`
 	}
+	hiddenMap struct {
+		M map[string]int `json:"m"`
+	}
+	embedsHidden struct {
+		hiddenMap
+		N int `json:"n"`
+	}
 	ptrEmbed struct {
 		*inner
 		W int
@@ -92,6 +99,9 @@ func TestMatchesEncodingJSON(t *testing.T) {
 			Skip: 9, Dash: 8, Bad: 7, NoTag: 6, hidden: 5, Str: 4, Zero: false},
 		clash{inner: inner{A: 1}, A: "outer wins"},
 		ptrEmbed{W: 1}, ptrEmbed{inner: &inner{A: 1}, W: 2},
+		// A map reached through an unexported embedded struct goes to
+		// encoding/json (reflect lets an embedded field's exported fields out).
+		embedsHidden{hiddenMap: hiddenMap{M: map[string]int{"z": 1, "a": 2}}, N: 3}, &embedsHidden{N: 4},
 		&recur{V: 1, Next: &recur{V: 2}},
 		map[textKey]int{"a": 1},
 	}
