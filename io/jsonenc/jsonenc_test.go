@@ -45,17 +45,19 @@ type (
 		inner
 		unexportedInner
 		Name
-		X        []float64          `json:"x"`
-		Y        *inner             `json:"y,omitempty"`
-		Z        []*inner           `json:"z"`
-		M        map[string]float64 `json:"m,omitempty"`
-		I        any                `json:"i"`
-		Raw      []byte             `json:"raw"`
-		Arr      [3]float32         `json:"arr"`
-		T        time.Time          `json:"t"`
-		Skip     int                `json:"-"`
-		Dash     int                `json:"-,"`
-		Bad      int                `json:"a\"b"`
+		X    []float64          `json:"x"`
+		Y    *inner             `json:"y,omitempty"`
+		Z    []*inner           `json:"z"`
+		M    map[string]float64 `json:"m,omitempty"`
+		I    any                `json:"i"`
+		Raw  []byte             `json:"raw"`
+		Arr  [3]float32         `json:"arr"`
+		T    time.Time          `json:"t"`
+		Skip int                `json:"-"`
+		//lint:ignore SA5008 the name "-" is encoding/json's rule under test
+		Dash int `json:"-,"`
+		//lint:ignore SA5008 an invalid name (encoding/json then takes the field's) is under test
+		Bad      int `json:"a'b"`
 		NoTag    uint8
 		hidden   int
 		Str      int    `json:"str,string"`
