@@ -226,6 +226,39 @@ func TestResultRecords(t *testing.T) {
 	}
 }
 
+// TestRecordTypesArePlanned: the record types and the structs they hold
+// are encoded by their plans, not handed whole to encoding/json (which
+// gives the same bytes, slower): a field with a tag option other than
+// omitempty, or promoted names that collide, would do that.
+func TestRecordTypesArePlanned(t *testing.T) {
+	fb := reflect.ValueOf(fallback).Pointer()
+	seen := map[reflect.Type]bool{}
+	var walk func(rt reflect.Type)
+	walk = func(rt reflect.Type) {
+		for rt.Kind() == reflect.Pointer || rt.Kind() == reflect.Slice {
+			rt = rt.Elem()
+		}
+		if rt.Kind() != reflect.Struct || seen[rt] {
+			return
+		}
+		seen[rt] = true
+		if reflect.ValueOf(planOf(rt)).Pointer() == fb {
+			t.Errorf("%v is handed to encoding/json whole", rt)
+		}
+		for i := range rt.NumField() {
+			walk(rt.Field(i).Type)
+		}
+	}
+	walk(reflect.TypeFor[dls.Result]())
+	walk(reflect.TypeFor[dls.Sample]())
+	if len(seen) < 10 {
+		t.Fatalf("walked %d struct types; the records hold more", len(seen))
+	}
+	if reflect.ValueOf(planOf(reflect.TypeFor[outer]())).Pointer() != fb {
+		t.Error("a struct with omitzero and ,string fields must be handed to encoding/json")
+	}
+}
+
 func TestAppendKeepsPrefix(t *testing.T) {
 	got, err := Append([]byte("x="), inner{A: 1})
 	if err != nil || string(got) != `x={"a":1}` {
