@@ -196,7 +196,10 @@ func WriteSummary(w io.Writer, results []*dls.Brief, samples []*dls.Sample, b sp
 
 func writeSummary(w io.Writer, results []*dls.Brief, samples []*dls.Sample, b spec.Batch, problems []Problem) error {
 	tw := tabwriter.NewWriter(w, 0, 0, 2, ' ', 0)
-	head := "sample\tT °C\truns\tz-average nm\tSD nm\tPDI\tflags\t"
+	// The flags come last and untabbed, so that tabwriter does not pad
+	// every line to the longest list of flags (a long list made every line
+	// of the table wrap in a terminal of 80 columns).
+	head := "sample\tT °C\truns\tz-average nm\tSD nm\tPDI\tflags"
 	if b.Specified {
 		head = "verdict\t" + head
 	}
@@ -220,7 +223,7 @@ func writeSummary(w io.Writer, results []*dls.Brief, samples []*dls.Sample, b sp
 				sd = fixed(smp.ZAvgSDNm, 1)
 			}
 		}
-		row := fmt.Sprintf("%s\t%s\t%d/%d\t%s\t%s\t%s\t%s\t", name, strings.Join(ts, ","), smp.NUsed, smp.NRuns, zs, sd, pd, safetext.Terminal(flagCodes(smp.Flags)))
+		row := fmt.Sprintf("%s\t%s\t%d/%d\t%s\t%s\t%s\t%s", name, strings.Join(ts, ","), smp.NUsed, smp.NRuns, zs, sd, pd, safetext.Terminal(flagCodes(smp.Flags)))
 		if b.Specified {
 			v := "–"
 			if smp.Verdict != nil {
