@@ -190,11 +190,15 @@ func (p *pageParts) field(s *scanner, key []byte) error {
 		return nil
 	}
 	start := s.i
-	_, end, ok := plotNumber(s.b, s.i) // JSON's number syntax
+	x, end, ok, exact := plotNumber(s.b, s.i) // JSON's number syntax
 	if !ok {
 		return errRecord
 	}
 	s.i = end
+	if exact && v.Kind() == reflect.Float64 {
+		v.SetFloat(x) // strconv.ParseFloat's value (Clinger's fast path)
+		return nil
+	}
 	num := string(s.b[start:end])
 	if v.Kind() == reflect.Int {
 		n, err := strconv.ParseInt(num, 10, 64)
@@ -282,6 +286,10 @@ func (p *pageParts) decode(b []byte, arena *[]float64, grids *gridCache) error {
 			return s.strings(&p.Assumptions)
 		case keyIs(key, "medium"):
 			return s.unmarshal(&p.Medium)
+		case p.base != nil && keyIs(key, "flags"):
+			return s.flags(&p.base.Flags)
+		case p.base != nil && keyIs(key, "intensity"):
+			return s.weightSummary(&p.base.Intensity)
 		}
 		if p.base != nil {
 			return p.field(&s, key)
@@ -390,6 +398,15 @@ func (s *scanner) object(f func(key []byte) error) error {
 // skipString moves past a string that starts at i.
 func (s *scanner) skipString() error {
 	s.i++ // opening quote
+	// Most strings hold no escape: the closing quote is the first one, and
+	// only the bytes before it need the test for control characters.
+	if j := bytes.IndexByte(s.b[s.i:], '"'); j >= 0 {
+		seg := s.b[s.i : s.i+j]
+		if bytes.IndexByte(seg, '\\') < 0 && !hasControl(seg) {
+			s.i += j + 1
+			return nil
+		}
+	}
 	for s.i < len(s.b) {
 		switch c := s.b[s.i]; {
 		case c == '"':
@@ -404,6 +421,17 @@ func (s *scanner) skipString() error {
 		}
 	}
 	return errRecord
+}
+
+// hasControl reports whether b holds a byte below 0x20, which a JSON
+// string may not hold unescaped.
+func hasControl(b []byte) bool {
+	for _, c := range b {
+		if c < 0x20 {
+			return true
+		}
+	}
+	return false
 }
 
 // skip moves past one value of any kind. Inside arrays and objects it
@@ -557,7 +585,7 @@ func (s *scanner) floats(dst *[]float64) error {
 			out = append(out, 0)
 		} else {
 			s.ws()
-			v, end, ok := plotNumber(s.b, s.i)
+			v, end, ok, _ := plotNumber(s.b, s.i)
 			if !ok {
 				return errRecord
 			}
@@ -633,6 +661,115 @@ func (s *scanner) array(f func() error) (bool, error) {
 
 // strings reads an array of strings: null gives nil, [] an empty slice,
 // as encoding/json does.
+// number reads a number as encoding/json does (exactly: strconv's value);
+// null leaves *dst as it is.
+func (s *scanner) number(dst *float64) error {
+	if s.null() {
+		return nil
+	}
+	start := s.i
+	x, end, ok, exact := plotNumber(s.b, s.i)
+	if !ok {
+		return errRecord
+	}
+	s.i = end
+	if !exact {
+		var err error
+		if x, err = strconv.ParseFloat(string(s.b[start:end]), 64); err != nil {
+			return errRecord
+		}
+	}
+	*dst = x
+	return nil
+}
+
+// flags reads a result's flags as encoding/json does.
+func (s *scanner) flags(dst *[]dls.Flag) error {
+	var out []dls.Flag
+	isArray, err := s.array(func() error {
+		var f dls.Flag
+		if s.null() {
+			out = append(out, f)
+			return nil
+		}
+		err := s.object(func(key []byte) error {
+			switch {
+			case keyIs(key, "code"):
+				c := string(f.Code)
+				err := s.str(&c)
+				f.Code = dls.FlagCode(c)
+				return err
+			case keyIs(key, "message"):
+				return s.str(&f.Message)
+			}
+			return s.skip()
+		})
+		out = append(out, f)
+		return err
+	})
+	if isArray && out == nil {
+		out = []dls.Flag{}
+	}
+	*dst = out
+	return err
+}
+
+// weightSummary reads a weighting's summary (null: none) as
+// encoding/json does.
+func (s *scanner) weightSummary(dst **dls.WeightSummary) error {
+	if s.null() {
+		*dst = nil
+		return nil
+	}
+	if *dst == nil {
+		*dst = &dls.WeightSummary{}
+	}
+	w := *dst
+	return s.object(func(key []byte) error {
+		switch {
+		case keyIs(key, "peaks"):
+			var out []dls.Peak
+			isArray, err := s.array(func() error {
+				var p dls.Peak
+				if s.null() {
+					out = append(out, p)
+					return nil
+				}
+				err := s.object(func(k []byte) error {
+					for _, f := range [...]struct {
+						name string
+						v    *float64
+					}{{"mode_nm", &p.ModeNm}, {"mean_nm", &p.MeanNm}, {"sd_nm", &p.SDNm}, {"area_pct", &p.AreaPct},
+						{"low_nm", &p.LowNm}, {"high_nm", &p.HighNm}, {"mean_u_nm", &p.MeanUNm}, {"area_u_pct", &p.AreaUPct}} {
+						if keyIs(k, f.name) {
+							return s.number(f.v)
+						}
+					}
+					return s.skip()
+				})
+				out = append(out, p)
+				return err
+			})
+			if isArray && out == nil {
+				out = []dls.Peak{}
+			}
+			w.Peaks = out // nil for null
+			return err
+		case keyIs(key, "insignificant_pct"):
+			return s.number(&w.InsignificantPct)
+		case keyIs(key, "mean_nm"):
+			return s.number(&w.MeanNm)
+		case keyIs(key, "d10_nm"):
+			return s.number(&w.D10Nm)
+		case keyIs(key, "d50_nm"):
+			return s.number(&w.D50Nm)
+		case keyIs(key, "d90_nm"):
+			return s.number(&w.D90Nm)
+		}
+		return s.skip()
+	})
+}
+
 func (s *scanner) strings(dst *[]string) error {
 	var out []string
 	isArray, err := s.array(func() error {
@@ -714,7 +851,7 @@ func eightDigits(b []byte) (uint64, bool) {
 // The number starts at t[i]; end is the index of the byte after it. ok is
 // false when no number starts there, when it is followed by a byte other
 // than a delimiter (, ] } : or white space), or when it is beyond float64.
-func plotNumber(t []byte, i int) (v float64, end int, ok bool) {
+func plotNumber(t []byte, i int) (v float64, end int, ok, exact bool) {
 	n := len(t)
 	start := i
 	neg := false
@@ -724,6 +861,7 @@ func plotNumber(t []byte, i int) (v float64, end int, ok bool) {
 	}
 	var mant uint64
 	nd, exp := 0, 0 // significant digits taken; decimal exponent of mant
+	dropped := false
 	switch {
 	case i < n && t[i] == '0':
 		i++
@@ -734,10 +872,11 @@ func plotNumber(t []byte, i int) (v float64, end int, ok bool) {
 				nd++
 			} else {
 				exp++ // a dropped digit before the point
+				dropped = true
 			}
 		}
 	default:
-		return 0, i, false
+		return 0, i, false, false
 	}
 	if i < n && t[i] == '.' {
 		i++
@@ -760,6 +899,7 @@ func plotNumber(t []byte, i int) (v float64, end int, ok bool) {
 		for ; i < n && t[i] >= '0' && t[i] <= '9'; i++ {
 			switch {
 			case nd >= 19: // dropped
+				dropped = true
 			case mant == 0 && t[i] == '0':
 				exp-- // a leading zero
 			default:
@@ -769,7 +909,7 @@ func plotNumber(t []byte, i int) (v float64, end int, ok bool) {
 			}
 		}
 		if i == from {
-			return 0, i, false
+			return 0, i, false, false
 		}
 	}
 	if i < n && (t[i] == 'e' || t[i] == 'E') {
@@ -786,7 +926,7 @@ func plotNumber(t []byte, i int) (v float64, end int, ok bool) {
 			}
 		}
 		if i == from {
-			return 0, i, false
+			return 0, i, false, false
 		}
 		if eneg {
 			e = -e
@@ -794,7 +934,7 @@ func plotNumber(t []byte, i int) (v float64, end int, ok bool) {
 		exp += e
 	}
 	if i < n && !delimiter(t[i]) {
-		return 0, i, false
+		return 0, i, false, false
 	}
 	switch {
 	case mant == 0:
@@ -808,12 +948,16 @@ func plotNumber(t []byte, i int) (v float64, end int, ok bool) {
 	default:
 		f, err := strconv.ParseFloat(string(t[start:i]), 64)
 		if err != nil {
-			return 0, i, false
+			return 0, i, false, false
 		}
-		return f, i, true
+		return f, i, true, true
 	}
 	if neg {
 		v = -v
 	}
-	return v, i, true
+	// Clinger's condition: every digit taken, the integer exact in a
+	// float64 and the power of ten exact, so the one rounding of the
+	// product or quotient is the correct rounding of the number.
+	exact = !dropped && mant <= 1<<53 && exp >= -22 && exp <= 22
+	return v, i, true, exact
 }

@@ -105,6 +105,19 @@ func TestPageResultMatchesJSON(t *testing.T) {
 	m.Warnings = []string{`quote " backslash \ tab	newline` + "\n" + `<tag> é ∆ \u0041`}
 	m.Params = []dls.Param{}
 	results = append(results, &m)
+	// One whose intensity summary and flags have every field set (the
+	// fixture predates the peaks' uncertainties), and one with an empty
+	// peak list and a flag without a message.
+	n := *results[0]
+	n.Intensity = &dls.WeightSummary{Peaks: []dls.Peak{
+		{ModeNm: 101.5, MeanNm: 102.25, SDNm: 7.125, AreaPct: 91.5, LowNm: 80.0625, HighNm: 130.5, MeanUNm: 0.8125, AreaUPct: 1.25},
+		{ModeNm: 1.2345678901234567e3, MeanNm: 1250, SDNm: 40, AreaPct: 8.5, LowNm: 1100, HighNm: 1400, MeanUNm: 31.5, AreaUPct: 1.0000000000000002}},
+		InsignificantPct: 0.25, MeanNm: 110.5, D10Nm: 85.5, D50Nm: 101.75, D90Nm: 126.125}
+	n.Flags = []dls.Flag{{Code: "MULTIMODAL", Message: "2 intensity peaks"}, {Code: "DUST", Message: `"quoted" <b>`}}
+	o := *results[0]
+	o.Intensity = &dls.WeightSummary{Peaks: []dls.Peak{}}
+	o.Flags = []dls.Flag{{Code: "FEW-RUNS"}}
+	results = append(results, &n, &o)
 	var arena []float64
 	// One grid cache across all of them, as a writer keeps it: runs that
 	// share their lag and diameter grids with the one before take the
@@ -198,10 +211,13 @@ func TestPlotNumber(t *testing.T) {
 		if err != nil {
 			t.Fatal(err)
 		}
-		got, end, ok := plotNumber([]byte(s+","), 0)
+		got, end, ok, exact := plotNumber([]byte(s+","), 0)
 		if !ok || end != len(s) {
 			t.Errorf("%s: ok %v, end %d", s, ok, end)
 			continue
+		}
+		if exact && math.Float64bits(got) != math.Float64bits(want) {
+			t.Errorf("%s: %v stated exact, want %v", s, got, want)
 		}
 		if got != want && math.Abs(got-want) > 3*ulp(want) {
 			t.Errorf("%s: %v, want %v", s, got, want)
@@ -209,7 +225,7 @@ func TestPlotNumber(t *testing.T) {
 	}
 	for _, s := range []string{"", "-", "01", "1.", ".5", "+1", "1e", "1e+", "inf", "NaN", "0x10", "1_0", "1.5x", "--1", "1e999",
 		"0.12345678x", "0.1234567/9"} {
-		if _, _, ok := plotNumber([]byte(s), 0); ok {
+		if _, _, ok, _ := plotNumber([]byte(s), 0); ok {
 			t.Errorf("%q accepted", s)
 		}
 	}
@@ -219,10 +235,44 @@ func TestPlotNumber(t *testing.T) {
 	for range 20000 {
 		v := r.NormFloat64() * math.Pow(10, float64(r.IntN(12)-6))
 		b, _ := json.Marshal(v)
-		got, end, ok := plotNumber(append(b, ']'), 0)
-		if !ok || end != len(b) || (got != v && math.Abs(got-v) > 3*ulp(v)) {
-			t.Fatalf("%s: %v (ok %v, end %d)", b, got, ok, end)
+		got, end, ok, exact := plotNumber(append(b, ']'), 0)
+		if !ok || end != len(b) || (got != v && math.Abs(got-v) > 3*ulp(v)) || (exact && got != v) {
+			t.Fatalf("%s: %v (ok %v, exact %v, end %d)", b, got, ok, exact, end)
 		}
+	}
+}
+
+// plotNumber states its value exact (strconv.ParseFloat's, bit for bit) on
+// the short decimals a record's scalar fields mostly hold, and only where
+// it is.
+func TestPlotNumberExact(t *testing.T) {
+	r := rand.New(rand.NewPCG(8, 9))
+	nExact := 0
+	for range 20000 {
+		digits := 1 + r.IntN(17)
+		mant := r.Int64N(int64(math.Pow10(digits-1))*9) + int64(math.Pow10(digits-1))
+		s := strconv.FormatFloat(float64(mant)*math.Pow10(r.IntN(20)-14), 'g', digits, 64)
+		b, _ := json.Marshal(json.Number(s))
+		if !json.Valid(b) {
+			continue
+		}
+		want, err := strconv.ParseFloat(s, 64)
+		if err != nil {
+			t.Fatal(err)
+		}
+		got, _, ok, exact := plotNumber([]byte(s), 0)
+		if !ok {
+			t.Fatalf("%s refused", s)
+		}
+		if exact {
+			nExact++
+			if math.Float64bits(got) != math.Float64bits(want) {
+				t.Fatalf("%s: %v stated exact, want %v", s, got, want)
+			}
+		}
+	}
+	if nExact < 5000 {
+		t.Errorf("only %d of 20000 short decimals read exactly", nExact)
 	}
 }
 
