@@ -189,28 +189,23 @@ func (p *pageParts) field(s *scanner, key []byte) error {
 		}
 		return nil
 	}
-	start := s.i
-	x, end, ok, exact := plotNumber(s.b, s.i) // JSON's number syntax
-	if !ok {
-		return errRecord
-	}
-	s.i = end
-	if exact && v.Kind() == reflect.Float64 {
-		v.SetFloat(x) // strconv.ParseFloat's value (Clinger's fast path)
-		return nil
-	}
-	num := string(s.b[start:end])
 	if v.Kind() == reflect.Int {
-		n, err := strconv.ParseInt(num, 10, 64)
+		start := s.i
+		_, end, ok, _ := plotNumber(s.b, s.i) // JSON's number syntax
+		if !ok {
+			return errRecord
+		}
+		s.i = end
+		n, err := strconv.ParseInt(string(s.b[start:end]), 10, 64)
 		if err != nil {
 			return errRecord
 		}
 		v.SetInt(n)
 		return nil
 	}
-	x, err := strconv.ParseFloat(num, 64)
-	if err != nil {
-		return errRecord
+	var x float64
+	if err := s.number(&x); err != nil {
+		return err
 	}
 	v.SetFloat(x)
 	return nil
@@ -661,8 +656,9 @@ func (s *scanner) array(f func() error) (bool, error) {
 
 // strings reads an array of strings: null gives nil, [] an empty slice,
 // as encoding/json does.
-// number reads a number as encoding/json does (exactly: strconv's value);
-// null leaves *dst as it is.
+// number reads a number as encoding/json does, exactly: the record's own
+// reader where Clinger's condition makes its value strconv.ParseFloat's,
+// else strconv. null leaves *dst as it is.
 func (s *scanner) number(dst *float64) error {
 	if s.null() {
 		return nil
@@ -683,35 +679,42 @@ func (s *scanner) number(dst *float64) error {
 	return nil
 }
 
-// flags reads a result's flags as encoding/json does.
-func (s *scanner) flags(dst *[]dls.Flag) error {
-	var out []dls.Flag
+// objects reads an array of objects into *dst as encoding/json does (null:
+// nil; [] an empty slice; a null element the zero value), each key of an
+// element handed to field, which must consume its value.
+func objects[T any](s *scanner, dst *[]T, field func(x *T, key []byte) error) error {
+	var out []T
 	isArray, err := s.array(func() error {
-		var f dls.Flag
+		var x T
 		if s.null() {
-			out = append(out, f)
+			out = append(out, x)
 			return nil
 		}
-		err := s.object(func(key []byte) error {
-			switch {
-			case keyIs(key, "code"):
-				c := string(f.Code)
-				err := s.str(&c)
-				f.Code = dls.FlagCode(c)
-				return err
-			case keyIs(key, "message"):
-				return s.str(&f.Message)
-			}
-			return s.skip()
-		})
-		out = append(out, f)
+		err := s.object(func(key []byte) error { return field(&x, key) })
+		out = append(out, x)
 		return err
 	})
 	if isArray && out == nil {
-		out = []dls.Flag{}
+		out = []T{}
 	}
 	*dst = out
 	return err
+}
+
+// flags reads a result's flags as encoding/json does.
+func (s *scanner) flags(dst *[]dls.Flag) error {
+	return objects(s, dst, func(f *dls.Flag, key []byte) error {
+		switch {
+		case keyIs(key, "code"):
+			c := string(f.Code)
+			err := s.str(&c)
+			f.Code = dls.FlagCode(c)
+			return err
+		case keyIs(key, "message"):
+			return s.str(&f.Message)
+		}
+		return s.skip()
+	})
 }
 
 // weightSummary reads a weighting's summary (null: none) as
@@ -728,33 +731,18 @@ func (s *scanner) weightSummary(dst **dls.WeightSummary) error {
 	return s.object(func(key []byte) error {
 		switch {
 		case keyIs(key, "peaks"):
-			var out []dls.Peak
-			isArray, err := s.array(func() error {
-				var p dls.Peak
-				if s.null() {
-					out = append(out, p)
-					return nil
-				}
-				err := s.object(func(k []byte) error {
-					for _, f := range [...]struct {
-						name string
-						v    *float64
-					}{{"mode_nm", &p.ModeNm}, {"mean_nm", &p.MeanNm}, {"sd_nm", &p.SDNm}, {"area_pct", &p.AreaPct},
-						{"low_nm", &p.LowNm}, {"high_nm", &p.HighNm}, {"mean_u_nm", &p.MeanUNm}, {"area_u_pct", &p.AreaUPct}} {
-						if keyIs(k, f.name) {
-							return s.number(f.v)
-						}
+			return objects(s, &w.Peaks, func(p *dls.Peak, k []byte) error {
+				for _, f := range [...]struct {
+					name string
+					v    *float64
+				}{{"mode_nm", &p.ModeNm}, {"mean_nm", &p.MeanNm}, {"sd_nm", &p.SDNm}, {"area_pct", &p.AreaPct},
+					{"low_nm", &p.LowNm}, {"high_nm", &p.HighNm}, {"mean_u_nm", &p.MeanUNm}, {"area_u_pct", &p.AreaUPct}} {
+					if keyIs(k, f.name) {
+						return s.number(f.v)
 					}
-					return s.skip()
-				})
-				out = append(out, p)
-				return err
+				}
+				return s.skip()
 			})
-			if isArray && out == nil {
-				out = []dls.Peak{}
-			}
-			w.Peaks = out // nil for null
-			return err
 		case keyIs(key, "insignificant_pct"):
 			return s.number(&w.InsignificantPct)
 		case keyIs(key, "mean_nm"):
@@ -788,37 +776,22 @@ func (s *scanner) strings(dst *[]string) error {
 // params reads the parameter list: null gives nil, [] an empty slice, as
 // encoding/json does.
 func (s *scanner) params(dst *[]dls.Param) error {
-	var out []dls.Param
-	isArray, err := s.array(func() error {
-		var p dls.Param
-		if s.null() {
-			out = append(out, p)
-			return nil
+	return objects(s, dst, func(p *dls.Param, key []byte) error {
+		switch {
+		case keyIs(key, "key"):
+			return s.str(&p.Key)
+		case keyIs(key, "value"):
+			return s.str(&p.Value)
+		case keyIs(key, "origin"):
+			o := string(p.Origin)
+			err := s.str(&o)
+			p.Origin = dls.Origin(o)
+			return err
+		case keyIs(key, "where"):
+			return s.str(&p.Where)
 		}
-		err := s.object(func(key []byte) error {
-			switch {
-			case keyIs(key, "key"):
-				return s.str(&p.Key)
-			case keyIs(key, "value"):
-				return s.str(&p.Value)
-			case keyIs(key, "origin"):
-				o := string(p.Origin)
-				err := s.str(&o)
-				p.Origin = dls.Origin(o)
-				return err
-			case keyIs(key, "where"):
-				return s.str(&p.Where)
-			}
-			return s.skip()
-		})
-		out = append(out, p)
-		return err
+		return s.skip()
 	})
-	if isArray && out == nil {
-		out = []dls.Param{}
-	}
-	*dst = out
-	return err
 }
 
 // pow10 holds the powers of ten that float64 holds exactly.

@@ -194,7 +194,9 @@ func sliceEncoder(t reflect.Type) encoder {
 	}
 }
 
-// floatsEncoder encodes a slice or an array of float64.
+// floatsEncoder encodes a slice or an array of float64: sliceEncoder's
+// loop with the number written in place of a call through the element's
+// encoder, for the 2,100 numbers of a record.
 func floatsEncoder(dst []byte, v reflect.Value) ([]byte, error) {
 	if v.Kind() == reflect.Slice && v.IsNil() {
 		return append(dst, "null"...), nil
