@@ -654,8 +654,6 @@ func (s *scanner) array(f func() error) (bool, error) {
 	}
 }
 
-// strings reads an array of strings: null gives nil, [] an empty slice,
-// as encoding/json does.
 // number reads a number as encoding/json does, exactly: the record's own
 // reader where Clinger's condition makes its value strconv.ParseFloat's,
 // else strconv. null leaves *dst as it is.
@@ -758,6 +756,8 @@ func (s *scanner) weightSummary(dst **dls.WeightSummary) error {
 	})
 }
 
+// strings reads an array of strings: null gives nil, [] an empty slice,
+// as encoding/json does.
 func (s *scanner) strings(dst *[]string) error {
 	var out []string
 	isArray, err := s.array(func() error {
