@@ -28,8 +28,10 @@ const (
 )
 
 // loadDemo reads testdata/demo-results.json: six measurements of the demo
-// data set (an invented scenario made by the project's simulator, written
-// by `dlsbatch run testdata/demo`, floats rounded to 6 digits). The Has*
+// data set (an invented scenario made by the project's simulator, taken
+// from testdata/golden/demo/results.json, floats rounded to 6 digits): the
+// reference latex at the start, two gold runs, two silica runs with a
+// second population, and the dusty PMMA run, whose result warns. The Has*
 // flags are not part of the JSON and are set back from the values.
 func loadDemo(t testing.TB) (map[string]any, []*dls.Result) {
 	t.Helper()
@@ -53,7 +55,7 @@ func loadDemo(t testing.TB) (map[string]any, []*dls.Result) {
 }
 
 // demoReport builds a report on the demo measurements (a reference, two
-// gold runs, two runs with aggregates, an unfiltered sample whose result
+// gold runs, two runs with a second population, a dusty run whose result
 // warns) with samples,
 // verdicts and flags written by hand, one sample of each outcome, and a
 // sample whose strings are hostile.

@@ -54,7 +54,7 @@ func TestIndexRows(t *testing.T) {
 	}
 	// Expected order, worked by hand from the fixture: the fail (sample
 	// 1) and invalid (2) verdicts first, then the samples whose run warns
-	// (3: the unfiltered sample; 4: the hostile copy), in batch order;
+	// (3: the dusty run's sample; 4: the hostile copy), in batch order;
 	// then the passing reference (0), whose run is ok.
 	order := []int{1, 2, 3, 4, 0}
 	// Expected verdict words: the outcomes set in demoReport; a nil
@@ -224,15 +224,15 @@ func TestSamplePage(t *testing.T) {
 			}
 		}
 	}
-	// The unfiltered sample's result carries three warnings (fixture);
-	// each is a list item.
+	// The dusty run carries several warnings (fixture); each is a list
+	// item.
 	doc, _ := readPage(t, dir, SamplePageName(3))
 	lists := doc.all(elemClass("ul", "warnings"))
 	if len(lists) != 1 {
 		t.Fatalf("%d warning lists, want 1", len(lists))
 	}
-	if got, want := len(lists[0].all(elem("li"))), len(r.Results[5].Warnings); got != want || want != 3 {
-		t.Errorf("%d warnings shown, want %d (3 in the fixture)", got, want)
+	if got, want := len(lists[0].all(elem("li"))), len(r.Results[5].Warnings); got != want || want < 2 {
+		t.Errorf("%d warnings shown, want %d (the fixture's dusty run has several)", got, want)
 	}
 }
 
