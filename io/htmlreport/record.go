@@ -677,18 +677,13 @@ func (s *scanner) number(dst *float64) error {
 	return nil
 }
 
-// objects reads an array of objects into *dst as encoding/json does (null:
-// nil; [] an empty slice; a null element the zero value), each key of an
-// element handed to field, which must consume its value.
-func objects[T any](s *scanner, dst *[]T, field func(x *T, key []byte) error) error {
+// elements reads an array into *dst as encoding/json does (null: nil; []
+// an empty slice), each element read by read into a zero value.
+func elements[T any](s *scanner, dst *[]T, read func(x *T) error) error {
 	var out []T
 	isArray, err := s.array(func() error {
 		var x T
-		if s.null() {
-			out = append(out, x)
-			return nil
-		}
-		err := s.object(func(key []byte) error { return field(&x, key) })
+		err := read(&x)
 		out = append(out, x)
 		return err
 	})
@@ -697,6 +692,18 @@ func objects[T any](s *scanner, dst *[]T, field func(x *T, key []byte) error) er
 	}
 	*dst = out
 	return err
+}
+
+// objects reads an array of objects with elements (a null element is the
+// zero value), each key of an element handed to field, which must consume
+// its value.
+func objects[T any](s *scanner, dst *[]T, field func(x *T, key []byte) error) error {
+	return elements(s, dst, func(x *T) error {
+		if s.null() {
+			return nil
+		}
+		return s.object(func(key []byte) error { return field(x, key) })
+	})
 }
 
 // flags reads a result's flags as encoding/json does.
@@ -759,18 +766,7 @@ func (s *scanner) weightSummary(dst **dls.WeightSummary) error {
 // strings reads an array of strings: null gives nil, [] an empty slice,
 // as encoding/json does.
 func (s *scanner) strings(dst *[]string) error {
-	var out []string
-	isArray, err := s.array(func() error {
-		var v string
-		err := s.str(&v)
-		out = append(out, v)
-		return err
-	})
-	if isArray && out == nil {
-		out = []string{}
-	}
-	*dst = out
-	return err
+	return elements(s, dst, s.str)
 }
 
 // params reads the parameter list: null gives nil, [] an empty slice, as
