@@ -48,6 +48,9 @@ if ! "$work/dlsbatch" simulate --plan "$plan" --out "$work/in" >"$work/simulate.
   exit 1
 fi
 rm -f "$work/in/truth.json"
+# The simulated files are flushed to disk first, so that neither side is
+# timed while the kernel writes them back.
+sync
 
 # cputime CMD...: runs CMD, prints "wall cpu" in seconds (children's rusage).
 cputime() {
@@ -63,10 +66,11 @@ PY
 
 read -r gw gc < <(GOMAXPROCS=1 cputime "$work/dlsbatch" run "$work/in" --out "$work/out" -j 1 -q)
 files=("$work"/in/*.csv)
+sync
 read -r pw pc < <(OPENBLAS_NUM_THREADS=1 OMP_NUM_THREADS=1 cputime /usr/bin/python3 testdata/bench/scipy_pipeline.py "$work/scipy.csv" "${files[@]}")
 if [ -n "$keep" ]; then
   mkdir -p "$keep"
-  cp -r "$work/out" "$work/scipy.csv" "$keep/"
+  cp -r "$work/in" "$work/out" "$work/scipy.csv" "$keep/"
 fi
 
 /usr/bin/python3 - "$n" "$gw" "$gc" "$pw" "$pc" <<'PY'
