@@ -104,7 +104,7 @@ func syntaxReason(s string) (string, error, bool) {
 	case s == "":
 		return "is empty", ErrNotANumber, false
 	case lower == "inf" || lower == "infinity" || lower == "nan":
-		return "is not finite", ErrNonFinite, false
+		return "", ErrNonFinite, false // the sentinel says it: "NaN": not finite
 	case strings.HasPrefix(lower, "0x"):
 		return "is hexadecimal (write decimal digits)", ErrNotANumber, false
 	case strings.ContainsAny(s, " \t\u00a0"):

@@ -118,6 +118,9 @@ func TestParseNumber(t *testing.T) {
 		if !strings.Contains(err.Error(), tc.says) || !strings.Contains(err.Error(), Excerpt(tc.in)) {
 			t.Errorf("ParseNumber(%q): message %q does not quote the text (an excerpt) and say %q", tc.in, err, tc.says)
 		}
+		if n := strings.Count(err.Error(), tc.sentinel.Error()); n != 1 {
+			t.Errorf("ParseNumber(%q): message %q says %q %d times, want once", tc.in, err, tc.sentinel, n)
+		}
 	}
 }
 
