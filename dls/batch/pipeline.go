@@ -160,6 +160,8 @@ func Analyze(m *dls.Measurement, s *Settings) *dls.Result {
 		m = nm
 		warn = append(warn, note)
 	}
+	// The notes from here on are about the fit and the sizes (see message).
+	fitNotes := len(warn)
 	fit, err := fitCumulants(m, &s.Cumulants, acquisition(r))
 	if err != nil {
 		return fail(err)
@@ -232,15 +234,33 @@ func Analyze(m *dls.Measurement, s *Settings) *dls.Result {
 	r.Warnings = warn
 	r.Flags = qc.Measurement(r, m.TauS, s.QC)
 	r.Status = dls.StatusOK
-	msg := append([]string(nil), warn...)
+	if msg := message(r, warn, fitNotes); msg != "" {
+		r.Status = dls.StatusWarn
+		r.Message = msg
+	}
+	return r
+}
+
+// message joins a measurement's notes and its flags, in that order. A
+// blank's size is the dispersant's signal (its BLANK flag says so), so
+// the notes on its fit and sizes, warn[fitNotes:], are only counted in
+// its message (they stay whole in Warnings): what concerns a blank is
+// how it was read, its conditions and its flags.
+func message(r *dls.Result, warn []string, fitNotes int) string {
+	msg, dropped := append([]string(nil), warn...), 0
+	if r.Role == dls.RoleBlank && fitNotes < len(warn) {
+		msg, dropped = msg[:fitNotes], len(warn)-fitNotes
+	}
 	for _, f := range r.Flags {
 		msg = append(msg, string(f.Code)+": "+f.Message)
 	}
-	if len(msg) > 0 {
-		r.Status = dls.StatusWarn
-		r.Message = strings.Join(msg, "; ")
+	switch {
+	case dropped == 1:
+		msg = append(msg, "1 note on the fit of the dispersant's signal (listed in the result's warnings)")
+	case dropped > 1:
+		msg = append(msg, fmt.Sprintf("%d notes on the fit of the dispersant's signal (listed in the result's warnings)", dropped))
 	}
-	return r
+	return strings.Join(msg, "; ")
 }
 
 // state is the resolved physical state of one measurement.

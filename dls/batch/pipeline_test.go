@@ -303,3 +303,40 @@ func TestRunnerEmit(t *testing.T) {
 		t.Errorf("Emit error: Run returned %v", err)
 	}
 }
+
+// TestBlankMessage: a blank's fitted size is the dispersant's signal, so
+// its message keeps what concerns a blank (how it was read, its
+// conditions, its flags) and only counts the notes on its fit, which its
+// warnings keep whole; a sample with the same data lists them. The data
+// end before the correlation has decayed (a fit note) and name no solvent
+// (a note on its conditions).
+func TestBlankMessage(t *testing.T) {
+	s := DefaultSettings()
+	analyse := func(role string) *dls.Result {
+		meta := workedMeta()
+		delete(meta, "solvent")
+		meta["role"] = role
+		m := monoMeasurement(meta)
+		m.TauS, m.Corr = m.TauS[:64], m.Corr[:64] // last lag 1.0 ms, g1 ≈ 0.07 there
+		return Analyze(m, &s)
+	}
+	sample, blank := analyse("sample"), analyse("blank")
+	const fitNote, readNote = "baseline not reached", "solvent not given"
+	if !strings.Contains(sample.Message, fitNote) || !strings.Contains(sample.Message, readNote) {
+		t.Fatalf("sample's message %q: want both notes", sample.Message)
+	}
+	if fmt.Sprint(blank.Warnings) != fmt.Sprint(sample.Warnings) {
+		t.Errorf("blank's warnings %q, want the sample's %q", blank.Warnings, sample.Warnings)
+	}
+	for _, want := range []string{readNote, "BLANK: ", "1 note on the fit of the dispersant's signal"} {
+		if !strings.Contains(blank.Message, want) {
+			t.Errorf("blank's message %q does not say %q", blank.Message, want)
+		}
+	}
+	if strings.Contains(blank.Message, fitNote) {
+		t.Errorf("blank's message %q lists the fit note %q", blank.Message, fitNote)
+	}
+	if blank.Status != dls.StatusWarn {
+		t.Errorf("blank's status %s, want warn (its BLANK flag)", blank.Status)
+	}
+}
