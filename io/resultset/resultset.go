@@ -12,9 +12,10 @@
 // point therefore leaves the previous set whole (or no folder at all), and
 // no file of an earlier run can survive beside the new ones.
 //
-// Beside DIR the package keeps .DIR.lock (holding the PID of the run that
-// holds it) and, while a run writes, .DIR.staging-PID; stale staging
-// folders of killed runs are removed by the next run.
+// While a run writes, the package keeps beside DIR .DIR.lock (holding the
+// PID of the run that holds it; removed as the lock is released) and
+// .DIR.staging-PID; a killed run's lock file and staging folder are taken
+// over or removed by the next run.
 package resultset
 
 import (
@@ -117,34 +118,61 @@ func LockPath(dir string) string {
 	return filepath.Join(filepath.Dir(dir), "."+filepath.Base(dir)+".lock")
 }
 
+// takeLock takes the lock file of the output folder. The holder removes
+// the file as it releases the lock (release), so a finished run leaves
+// nothing beside the folder; a run that dies leaves it, with its PID, for
+// the next to take. Since the file can be removed between our open and
+// our flock, the lock is ours only when the path still names the file we
+// locked; otherwise the lock is taken again on the new file.
 func (s *Set) takeLock(typed string) error {
 	p := LockPath(s.Dir)
-	f, err := os.OpenFile(p, os.O_RDWR|os.O_CREATE, 0o644)
-	if err != nil {
-		return fmt.Errorf("--out %s: cannot create the lock file %s: %w", typed, p, err)
-	}
-	if err := unix.Flock(int(f.Fd()), unix.LOCK_EX|unix.LOCK_NB); err != nil {
-		holder := "another process"
-		if b, rerr := io.ReadAll(io.LimitReader(f, 32)); rerr == nil {
-			if pid, perr := strconv.Atoi(strings.TrimSpace(string(b))); perr == nil && pid > 0 {
-				holder = "process " + strconv.Itoa(pid)
+	for range 100 {
+		f, err := os.OpenFile(p, os.O_RDWR|os.O_CREATE, 0o644)
+		if err != nil {
+			return fmt.Errorf("--out %s: cannot create the lock file %s: %w", typed, p, err)
+		}
+		if err := unix.Flock(int(f.Fd()), unix.LOCK_EX|unix.LOCK_NB); err != nil {
+			holder := "another process"
+			if b, rerr := io.ReadAll(io.LimitReader(f, 32)); rerr == nil {
+				if pid, perr := strconv.Atoi(strings.TrimSpace(string(b))); perr == nil && pid > 0 {
+					holder = "process " + strconv.Itoa(pid)
+				}
 			}
+			f.Close()
+			if errors.Is(err, unix.EWOULDBLOCK) {
+				return fmt.Errorf("--out %s is being written by %s (lock %s): %w", typed, holder, p, ErrBusy)
+			}
+			return fmt.Errorf("--out %s: lock %s: %w", typed, p, err)
 		}
-		f.Close()
-		if errors.Is(err, unix.EWOULDBLOCK) {
-			return fmt.Errorf("--out %s is being written by %s (lock %s): %w", typed, holder, p, ErrBusy)
+		if !sameFile(f, p) {
+			f.Close() // locked a file its holder removed as it finished
+			continue
 		}
-		return fmt.Errorf("--out %s: lock %s: %w", typed, p, err)
+		if err := f.Truncate(0); err == nil {
+			f.WriteAt([]byte(strconv.Itoa(os.Getpid())+"\n"), 0)
+		}
+		s.lock = f
+		return nil
 	}
-	if err := f.Truncate(0); err == nil {
-		f.WriteAt([]byte(strconv.Itoa(os.Getpid())+"\n"), 0)
-	}
-	s.lock = f
-	return nil
+	return fmt.Errorf("--out %s: lock %s keeps being replaced: %w", typed, p, ErrBusy)
 }
 
+// sameFile reports whether path names the open file f.
+func sameFile(f *os.File, path string) bool {
+	a, err := f.Stat()
+	if err != nil {
+		return false
+	}
+	b, err := os.Stat(path)
+	return err == nil && os.SameFile(a, b)
+}
+
+// release removes the lock file and releases the lock: removed while held,
+// so that no other process can take a lock on it that a third, creating
+// the file anew, would not see.
 func (s *Set) release() {
 	if s.lock != nil {
+		os.Remove(s.lock.Name())
 		s.lock.Close() // closing the descriptor releases the flock
 		s.lock = nil
 	}

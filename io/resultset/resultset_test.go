@@ -4,8 +4,11 @@ import (
 	"errors"
 	"os"
 	"path/filepath"
+	"runtime"
 	"strconv"
 	"strings"
+	"sync"
+	"sync/atomic"
 	"testing"
 )
 
@@ -110,6 +113,85 @@ func TestLock(t *testing.T) {
 		t.Fatalf("open after release: %v", err)
 	}
 	s2.Abort()
+}
+
+// TestLockFileRemoved: a run that commits or aborts leaves no lock file
+// beside the folder; one left by a killed run (a PID, no flock held) is
+// taken over and removed in turn.
+func TestLockFileRemoved(t *testing.T) {
+	dir := t.TempDir()
+	out := filepath.Join(dir, "out")
+	lock := filepath.Join(dir, ".out.lock")
+	gone := func(when string) {
+		t.Helper()
+		if _, err := os.Stat(lock); !errors.Is(err, os.ErrNotExist) {
+			t.Errorf("%s: lock file %s left (%v)", when, lock, err)
+		}
+	}
+	s, err := Open(out, nil, false)
+	if err != nil {
+		t.Fatal(err)
+	}
+	write(t, filepath.Join(s.Staging, "results.csv"), "a")
+	if err := s.Commit(); err != nil {
+		t.Fatal(err)
+	}
+	gone("after Commit")
+	if s, err = Open(out, nil, true); err != nil {
+		t.Fatal(err)
+	}
+	s.Abort()
+	gone("after Abort")
+	write(t, lock, "99999999\n") // a killed run's
+	if s, err = Open(out, nil, true); err != nil {
+		t.Fatalf("open over a stale lock file: %v", err)
+	}
+	if got := strings.TrimSpace(read(t, lock)); got != strconv.Itoa(os.Getpid()) {
+		t.Errorf("lock file holds %q, want this process's PID", got)
+	}
+	s.Abort()
+	gone("after taking over a stale lock file")
+}
+
+// TestLockExclusiveWhileRemoved: goroutines opening the same folder over
+// and over (each open is its own flock, as another process's would be)
+// never hold it two at once, although every release removes the lock file
+// that others may have open. A race test: without the check that the path
+// still names the locked file, it saw two holders in 7 of 10 runs.
+func TestLockExclusiveWhileRemoved(t *testing.T) {
+	out := filepath.Join(t.TempDir(), "out")
+	var holders, most, taken atomic.Int32
+	var wg sync.WaitGroup
+	for range 4 {
+		wg.Add(1)
+		go func() {
+			defer wg.Done()
+			for range 1000 {
+				s, err := Open(out, nil, true)
+				if errors.Is(err, ErrBusy) {
+					continue
+				}
+				if err != nil {
+					t.Error(err)
+					return
+				}
+				n := holders.Add(1)
+				for m := most.Load(); n > m && !most.CompareAndSwap(m, n); m = most.Load() {
+				}
+				taken.Add(1)
+				runtime.Gosched() // hold it a little, so that others try meanwhile
+				holders.Add(-1)
+				s.Abort()
+			}
+		}()
+	}
+	wg.Wait()
+	if m := most.Load(); m != 1 {
+		t.Errorf("at most %d holders at once, want 1", m)
+	}
+	if taken.Load() == 0 {
+		t.Error("no open succeeded")
+	}
 }
 
 // TestRefusals: a folder of other files, a file, an input folder, a folder
