@@ -78,6 +78,60 @@ var quantities = map[string]string{
 	QuantityNoBracketing:  "no limit: samples of the product need no bracketing reference blocks",
 }
 
+// bounds are the values a limit of each quantity can sensibly take, and
+// what a value outside them most likely is. A limit outside them would
+// pass or fail every sample whatever was measured (a PDI limit of 10 for
+// 10 %, a size in µm), so the specification is refused instead (common
+// practice: DLS sizes span about 0.3 nm to 10 µm, ISO 22412; the PDI of
+// the cumulants method is a fraction, normally under 1).
+var bounds = map[string]struct {
+	lo, hi float64
+	hint   string
+}{
+	"z_avg_nm":            {0.1, 1e5, "sizes are in nm"},
+	"d90_nm":              {0.1, 1e5, "sizes are in nm"},
+	"peak1_nm":            {0.1, 1e5, "sizes are in nm"},
+	"pdi":                 {0, 1, "the PDI is a fraction: write 0.1 for 10 %"},
+	"z_avg_rsd_pct":       {0, 100, "a percentage"},
+	"intensity_pct_above": {0, 100, "a percentage"},
+	"drift_pct":           {0, 100, "a percentage"},
+	"runs":                {0, 1000, "a number of runs"},
+	"count_rate_kcps":     {0, 1e5, "count rates are in kcps (thousands of counts per second)"},
+}
+
+// Which value of a limit CheckLimitValue checks.
+const (
+	LimitBound = iota // min, max or target
+	LimitTol          // a target's tolerance: 0 up to the largest value
+	LimitAt           // intensity_pct_above's at_nm, a diameter
+)
+
+// CheckLimitValue returns an error wrapping dls.ErrOutOfRange when v, a
+// value of kind what (LimitBound, LimitTol, LimitAt) of a limit of
+// quantity q, lies outside what that quantity can sensibly be. A size
+// bound of 0 nm is allowed: it bounds nothing.
+func CheckLimitValue(q string, v float64, what int) error {
+	name := q
+	if what == LimitAt {
+		q, name = "z_avg_nm", "at_nm" // a diameter
+	}
+	b, ok := bounds[q]
+	if !ok {
+		return nil
+	}
+	lo := b.lo
+	if what == LimitTol || (what == LimitBound && v == 0) {
+		lo = 0
+	}
+	if v < lo || v > b.hi {
+		if what == LimitTol {
+			return fmt.Errorf("tolerance %g of %s: %w 0 … %g for a limit (%s)", v, name, dls.ErrOutOfRange, b.hi, b.hint)
+		}
+		return fmt.Errorf("%s %g: %w %g … %g for a limit (%s)", name, v, dls.ErrOutOfRange, b.lo, b.hi, b.hint)
+	}
+	return nil
+}
+
 // Quantities that are no limits but say how a product is treated.
 const (
 	QuantityNone         = "none"

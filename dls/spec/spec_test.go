@@ -1,6 +1,7 @@
 package spec
 
 import (
+	"errors"
 	"strings"
 	"testing"
 
@@ -112,5 +113,51 @@ func TestQuantitiesIsACopy(t *testing.T) {
 	delete(q, "pdi")
 	if _, ok := Quantities()["made_up"]; ok || IsQuantity("made_up") || !IsQuantity("pdi") {
 		t.Errorf("Quantities() shares its map")
+	}
+}
+
+// TestLimitBounds: every quantity a limit can bound has the range of
+// values it can sensibly take, so that a slip of unit or scale is refused
+// (common practice: the cumulants PDI is a fraction, DLS sizes lie between
+// about 0.3 nm and 10 µm, percentages reach 100), and values at the ends
+// of a range pass.
+func TestLimitBounds(t *testing.T) {
+	for _, q := range QuantityNames() {
+		if _, ok := bounds[q]; !ok && !IsRule(q) {
+			t.Errorf("quantity %s has no bounds", q)
+		}
+	}
+	cases := []struct {
+		q    string
+		v    float64
+		what int
+		ok   bool
+	}{
+		{"pdi", 0, LimitBound, true},
+		{"pdi", 1, LimitBound, true},
+		{"pdi", 10, LimitBound, false}, // 10 % written as 10
+		{"pdi", -0.01, LimitBound, false},
+		{"z_avg_nm", 0, LimitBound, true}, // bounds nothing, harmless
+		{"z_avg_nm", 0.1, LimitBound, true},
+		{"z_avg_nm", 0.02, LimitBound, false}, // 20 nm written in µm
+		{"z_avg_nm", 1e5, LimitBound, true},
+		{"z_avg_nm", 2e5, LimitBound, false},
+		{"z_avg_nm", 0.003, LimitTol, true}, // a small tolerance is a tolerance
+		{"z_avg_nm", 1e6, LimitTol, false},
+		{"intensity_pct_above", 100, LimitBound, true},
+		{"intensity_pct_above", 100.5, LimitBound, false},
+		{"intensity_pct_above", 0, LimitAt, false}, // at_nm is a diameter
+		{"intensity_pct_above", 300, LimitAt, true},
+		{"count_rate_kcps", 20, LimitBound, true},
+		{"count_rate_kcps", 20000e3, LimitBound, false}, // counts per second
+		{"runs", 3, LimitBound, true},
+		{"drift_pct", 2, LimitBound, true},
+		{"none", 5, LimitBound, true}, // a rule has no values to check
+	}
+	for _, c := range cases {
+		err := CheckLimitValue(c.q, c.v, c.what)
+		if (err == nil) != c.ok || (err != nil && !errors.Is(err, dls.ErrOutOfRange)) {
+			t.Errorf("CheckLimitValue(%s, %g, %d) = %v, want ok %v", c.q, c.v, c.what, err, c.ok)
+		}
 	}
 }

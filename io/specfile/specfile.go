@@ -45,14 +45,15 @@
 // hexadecimal, digit separators, inf or nan). Cells are separated by ',',
 // ';' or tabs, as the header row shows (io/csvtable); in a file not
 // delimited by ',', a number may use a decimal comma (0,10). A malformed row, an unknown
-// column or an unknown quantity is an error naming file, line and column,
-// reported before any analysis starts.
+// column, an unknown quantity or a value no sample can have (a PDI limit of
+// 10 meant as 10 %, a size in µm, a percentage over 100: spec.CheckLimitValue)
+// is an error naming file, line and column, reported before any analysis
+// starts.
 package specfile
 
 import (
 	"fmt"
 	"io"
-	"math"
 	"os"
 	"strconv"
 	"strings"
@@ -168,6 +169,22 @@ func Parse(r io.Reader, name string) (*spec.Spec, error) {
 		if err != nil {
 			return nil, err
 		}
+		// A value no sample can have (a unit or scale slip) is refused.
+		for _, c := range []struct {
+			col  string
+			v    float64
+			has  bool
+			what int
+		}{{"min", l.Min, l.HasMin, spec.LimitBound}, {"max", l.Max, l.HasMax, spec.LimitBound}, {"target", target, hasT, spec.LimitBound},
+			{"tol", tol, hasTol && tol >= 0, spec.LimitTol}, {"at_nm", at, hasAt && quantity == "intensity_pct_above", spec.LimitAt}} {
+			if !c.has {
+				continue
+			}
+			if err := spec.CheckLimitValue(quantity, c.v, c.what); err != nil {
+				_, cc := get(c.col)
+				return nil, t.Err(i, cc, err)
+			}
+		}
 		_, tc := get("target")
 		switch {
 		case hasT != hasTol:
@@ -177,9 +194,6 @@ func Parse(r io.Reader, name string) (*spec.Spec, error) {
 		case hasT && tol < 0:
 			_, c := get("tol")
 			return nil, t.Err(i, c, fmt.Errorf("tolerance %g is negative", tol))
-		case hasT && (math.IsInf(target-tol, 0) || math.IsInf(target+tol, 0)):
-			_, c := get("tol")
-			return nil, t.Err(i, c, fmt.Errorf("target %g ± tolerance %g is beyond float64: %w", target, tol, dls.ErrNonFinite))
 		case hasT:
 			l.Min, l.Max, l.HasMin, l.HasMax = target-tol, target+tol, true, true
 			l.Text = fmt.Sprintf("%s ± %s", fmtNum(target), fmtNum(tol))
