@@ -37,9 +37,18 @@ func TestShardsMergeToOneRun(t *testing.T) {
 				t.Fatalf("%v: shard %d: exit %d: %s", extra, k, code, stderr)
 			}
 		}
-		merged := filepath.Join(dir, "merged")
-		if code, _, stderr := runCmd(t, append([]string{"merge", "--out", merged, "-q"}, shards...)...); code != exitSpecFailed {
+		// The merge's output is the same at any -j (the manifest holds the
+		// report pages' hashes); its CPU profile is written when asked for.
+		merged, prof := filepath.Join(dir, "merged"), filepath.Join(dir, "cpu.out")
+		margs := []string{"merge", "--out", merged, "-q", "-j", "2"}
+		if v == 0 {
+			margs = []string{"merge", "--out", merged, "-q", "-j", "1", "--cpuprofile", prof}
+		}
+		if code, _, stderr := runCmd(t, append(margs, shards...)...); code != exitSpecFailed {
 			t.Fatalf("%v: merge: exit %d: %s", extra, code, stderr)
+		}
+		if b, err := os.ReadFile(prof); v == 0 && (err != nil || len(b) < 2 || b[0] != 0x1f || b[1] != 0x8b) {
+			t.Errorf("merge --cpuprofile: %d bytes, %v; want a gzip-compressed profile", len(b), err)
 		}
 		for _, f := range []string{"results.csv", "samples.csv", "results.json", "manifest.json"} {
 			a, _ := os.ReadFile(filepath.Join(whole, f))

@@ -37,7 +37,7 @@ type runOptions struct {
 	set, defaults paramsFlag
 	read          csvdata.Options // foreign columns, decimal comma, lines to skip, limits
 
-	cpuProfile, memProfile, traceFile                        string
+	prof                                                     profile.Files
 	out, particleRI                                          string // output folder; default particle index
 	solventFile, sheetFile, specFile, qcFile                 string // tables
 	includeGlobs, excludeGlobs                               []string
@@ -92,9 +92,7 @@ func (o *runOptions) addFlags(fs *pflag.FlagSet) {
 	fs.StringArrayVar(&o.includeGlobs, "include", nil, "analyse only files matching this glob (name, or path below the input root if it has a '/'; repeatable)")
 	fs.StringArrayVar(&o.excludeGlobs, "exclude", nil, "leave out files matching this glob (repeatable)")
 	fs.StringVar(&o.shard, "shard", "", "analyse part K of the batch split N ways (K/N, K = 0…N−1; auto: from Slurm's or Kubernetes' array index; merge the parts with 'dlsbatch merge')")
-	fs.StringVar(&o.cpuProfile, "cpuprofile", "", "write a CPU profile of the run to this file (go tool pprof)")
-	fs.StringVar(&o.memProfile, "memprofile", "", "write a heap profile at the end of the run to this file (go tool pprof)")
-	fs.StringVar(&o.traceFile, "trace", "", "write an execution trace of the run, its phases marked, to this file (go tool trace)")
+	o.prof.AddFlags(fs, "run")
 	fs.BoolVar(&o.implausible, "allow-implausible", false, "analyse metadata values outside their physically plausible range (each such result is a warning, not an error)")
 	fs.BoolVar(&o.noCurves, "no-curves", false, "leave fitted curves and residuals out of results.json")
 	fs.StringVar(&o.solventFile, "solvent-file", "", "CSV of extra or replacement solvents (see 'dlsbatch solvents --help')")
@@ -148,15 +146,11 @@ func runBatch(ctx context.Context, e env, args []string, name string) int {
 	if err != nil {
 		return fail(exitUsage, err)
 	}
-	stopProfile, err := profile.Start(o.cpuProfile, o.memProfile, o.traceFile)
+	endProfiles, err := o.prof.Begin(e.stderr, "dlsbatch "+name+": ")
 	if err != nil {
 		return fail(exitUsage, err)
 	}
-	defer func() {
-		if err := stopProfile(); err != nil {
-			say(err)
-		}
-	}()
+	defer endProfiles()
 	if mode := o.progress.value; !o.quiet && mode != progress.None {
 		bars := progress.New(e.stderr, mode, e.stderrIsTerminal, "dlsbatch run: ")
 		cfg.Progress = bars.Update

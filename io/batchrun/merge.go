@@ -29,6 +29,11 @@ type MergeConfig struct {
 	Out        string
 	Force      bool
 	HTMLReport bool
+	// Workers bounds the parallel work (joint analyses, report pages);
+	// 0: one per CPU. The output is the same for any value.
+	Workers int
+	// Progress, when set, is told the progress of each phase, as Config's.
+	Progress func(phase string, done, total int)
 }
 
 // Merge writes into cfg.Out the result set that one run over the whole
@@ -90,7 +95,7 @@ func Merge(ctx context.Context, cfg *MergeConfig) (*Outcome, error) {
 	}
 
 	rec := first.Settings
-	run := &Config{HTMLReport: cfg.HTMLReport, ExcludeOutliers: rec.ExcludeOutliers,
+	run := &Config{HTMLReport: cfg.HTMLReport, ExcludeOutliers: rec.ExcludeOutliers, Workers: cfg.Workers, Progress: cfg.Progress,
 		Record: func(string) *report.Settings { return rec }, Settings: batch.DefaultSettings()}
 	run.Settings.QC = rec.QCThresholds
 	if run.Settings.Distribution, err = distributionOf(rec); err != nil {

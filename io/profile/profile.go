@@ -6,11 +6,39 @@ package profile
 
 import (
 	"fmt"
+	"io"
 	"os"
 	"runtime"
 	"runtime/pprof"
 	"runtime/trace"
+
+	"github.com/spf13/pflag"
 )
+
+// Files are the profiles a command line asks for (empty: none).
+type Files struct{ CPU, Mem, Trace string }
+
+// AddFlags registers --cpuprofile, --memprofile and --trace on fs for a
+// command that does what ("run", "merge").
+func (f *Files) AddFlags(fs *pflag.FlagSet, what string) {
+	fs.StringVar(&f.CPU, "cpuprofile", "", "write a CPU profile of the "+what+" to this file (go tool pprof)")
+	fs.StringVar(&f.Mem, "memprofile", "", "write a heap profile at the end of the "+what+" to this file (go tool pprof)")
+	fs.StringVar(&f.Trace, "trace", "", "write an execution trace of the "+what+", its phases marked, to this file (go tool trace)")
+}
+
+// Begin starts the profiles named; end stops them and writes any error
+// to w after prefix.
+func (f *Files) Begin(w io.Writer, prefix string) (end func(), err error) {
+	stop, err := Start(f.CPU, f.Mem, f.Trace)
+	if err != nil {
+		return nil, err
+	}
+	return func() {
+		if err := stop(); err != nil {
+			fmt.Fprintln(w, prefix+err.Error())
+		}
+	}, nil
+}
 
 // Start begins a CPU profile into cpuFile and an execution trace into
 // traceFile (each when not empty) and returns the function that ends them
