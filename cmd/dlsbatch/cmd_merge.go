@@ -38,7 +38,7 @@ func runMerge(ctx context.Context, e env, args []string) int {
 	case cfg.Workers < 1:
 		return usageError(e, "merge", fmt.Sprintf("-j %d: give at least 1", cfg.Workers))
 	}
-	endProfiles, err := prof.Begin(e.stderr, "dlsbatch merge: ")
+	endProfiles, err := prof.Begin(func(err error) { fmt.Fprintln(e.stderr, "dlsbatch merge:", err) })
 	if err != nil {
 		return usageError(e, "merge", err)
 	}

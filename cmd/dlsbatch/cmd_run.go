@@ -146,7 +146,7 @@ func runBatch(ctx context.Context, e env, args []string, name string) int {
 	if err != nil {
 		return fail(exitUsage, err)
 	}
-	endProfiles, err := o.prof.Begin(e.stderr, "dlsbatch "+name+": ")
+	endProfiles, err := o.prof.Begin(func(err error) { say(err) })
 	if err != nil {
 		return fail(exitUsage, err)
 	}

@@ -81,9 +81,9 @@ var quantities = map[string]string{
 // bounds are the values a limit of each quantity can sensibly take, and
 // what a value outside them most likely is. A limit outside them would
 // pass or fail every sample whatever was measured (a PDI limit of 10 for
-// 10 %, a size in µm), so the specification is refused instead (common
-// practice: DLS sizes span about 0.3 nm to 10 µm, ISO 22412; the PDI of
-// the cumulants method is a fraction, normally under 1).
+// 10 %, a size in µm), so the specification is refused instead. Common
+// practice: DLS sizes span about 0.3 nm to 10 µm (the size bounds are set
+// wider), the PDI of the cumulants method is a fraction, normally under 1.
 var bounds = map[string]struct {
 	lo, hi float64
 	hint   string

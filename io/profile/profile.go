@@ -6,7 +6,6 @@ package profile
 
 import (
 	"fmt"
-	"io"
 	"os"
 	"runtime"
 	"runtime/pprof"
@@ -26,16 +25,16 @@ func (f *Files) AddFlags(fs *pflag.FlagSet, what string) {
 	fs.StringVar(&f.Trace, "trace", "", "write an execution trace of the "+what+", its phases marked, to this file (go tool trace)")
 }
 
-// Begin starts the profiles named; end stops them and writes any error
-// to w after prefix.
-func (f *Files) Begin(w io.Writer, prefix string) (end func(), err error) {
+// Begin starts the profiles named; end stops them and hands any error
+// to say.
+func (f *Files) Begin(say func(error)) (end func(), err error) {
 	stop, err := Start(f.CPU, f.Mem, f.Trace)
 	if err != nil {
 		return nil, err
 	}
 	return func() {
 		if err := stop(); err != nil {
-			fmt.Fprintln(w, prefix+err.Error())
+			say(err)
 		}
 	}, nil
 }

@@ -5,6 +5,8 @@ import (
 	"path/filepath"
 	"strings"
 	"testing"
+
+	"github.com/spf13/pflag"
 )
 
 // TestStart: both profiles are written, as gzip-compressed protocol
@@ -56,5 +58,34 @@ func TestStart(t *testing.T) {
 	}
 	if err := stop(); err != nil {
 		t.Error(err)
+	}
+}
+
+// TestFilesFlags: the three flags fill Files, and Begin's end hands a
+// profile that cannot be written to its caller (here a heap profile into
+// a missing folder, found only when the run ends).
+func TestFilesFlags(t *testing.T) {
+	dir := t.TempDir()
+	var f Files
+	fs := pflag.NewFlagSet("x", pflag.ContinueOnError)
+	f.AddFlags(fs, "test")
+	cpu := filepath.Join(dir, "cpu.out")
+	if err := fs.Parse([]string{"--cpuprofile", cpu, "--memprofile", filepath.Join(dir, "missing", "mem.out")}); err != nil {
+		t.Fatal(err)
+	}
+	if f.CPU != cpu || f.Trace != "" {
+		t.Fatalf("flags gave %+v", f)
+	}
+	var said []error
+	end, err := f.Begin(func(err error) { said = append(said, err) })
+	if err != nil {
+		t.Fatal(err)
+	}
+	end()
+	if len(said) != 1 || !strings.Contains(said[0].Error(), "--memprofile") {
+		t.Errorf("end said %v, want one --memprofile error", said)
+	}
+	if b, err := os.ReadFile(cpu); err != nil || len(b) < 2 || b[0] != 0x1f {
+		t.Errorf("cpu profile: %d bytes, %v", len(b), err)
 	}
 }
