@@ -1,11 +1,11 @@
 package atomicfile
 
 import (
-	"dlsbatch/io/plainfile"
-	"fmt"
 	"os"
 
 	"golang.org/x/sys/unix"
+
+	"dlsbatch/io/plainfile"
 )
 
 // StartWriteback asks the kernel to begin writing the n bytes of f from
@@ -23,18 +23,17 @@ func StartWriteback(f *os.File, off, n int64) {
 // or truncated) in a staging folder that is flushed whole before it is
 // used, and starts its writeback. Not atomic: for files that no reader
 // sees before the folder is swapped in.
+// Its errors are the *fs.PathError of the open, write or close, which
+// name the path.
 func WriteStaged(path string, data []byte) error {
 	f, err := plainfile.Create(path, 0o644)
 	if err != nil {
-		return fmt.Errorf("write %s: %w", path, err)
+		return err
 	}
 	if _, err := f.Write(data); err != nil {
 		f.Close()
-		return fmt.Errorf("write %s: %w", path, err)
+		return err
 	}
 	StartWriteback(f, 0, 0)
-	if err := f.Close(); err != nil {
-		return fmt.Errorf("write %s: %w", path, err)
-	}
-	return nil
+	return f.Close()
 }
