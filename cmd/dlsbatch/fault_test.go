@@ -15,6 +15,8 @@ import (
 	"testing"
 	"time"
 
+	"golang.org/x/sys/unix"
+
 	"dlsbatch/io/report"
 )
 
@@ -243,6 +245,70 @@ func TestResumeAfterKill(t *testing.T) {
 		t.Logf("kill after %v, then resume: %s", delay, strings.TrimSpace(stderr.String()))
 		if _, err := os.Stat(filepath.Join(tmp, ".out.journal")); !errors.Is(err, os.ErrNotExist) {
 			t.Error("the journal of a published run was kept")
+		}
+	}
+}
+
+// TestDiskFull fills the file system in the middle of a run: on a tmpfs of
+// 1 MiB (full while the journal is written) and of 2 MiB (full while the
+// report is written), mounted here (it needs the privilege to mount, as CI
+// has; without it the test is skipped), a run of the demo night into a
+// folder holding an earlier set fails with exit 1 and a message that says
+// the folder is unchanged and that --resume takes up the work; the earlier
+// set is still whole (verify); once the file system is grown, --resume
+// writes the bytes of a run that never failed and leaves nothing beside
+// the set.
+func TestDiskFull(t *testing.T) {
+	if testing.Short() {
+		t.Skip("runs the command")
+	}
+	demo := filepath.Join("..", "..", "testdata", "demo")
+	ref := filepath.Join(t.TempDir(), "ref")
+	if code, _, stderr := runCmd(t, "run", demo, "--out", ref, "-q"); code != exitOK {
+		t.Fatalf("reference: exit %d: %s", code, stderr)
+	}
+	for _, size := range []string{"1m", "2m"} {
+		small := t.TempDir()
+		if err := unix.Mount("tmpfs", small, "tmpfs", 0, "size="+size); err != nil {
+			t.Skipf("cannot mount a small tmpfs here (%v): the test needs the privilege to mount", err)
+		}
+		t.Cleanup(func() { unix.Unmount(small, 0) })
+		out := filepath.Join(small, "out")
+		if code, _, stderr := runCmd(t, "run", filepath.Join(demo, "02_gold20-G2411-1.csv"), "--out", out, "-q"); code != exitOK {
+			t.Fatalf("%s: earlier set: exit %d: %s", size, code, stderr)
+		}
+		earlier, err := os.ReadFile(filepath.Join(out, "manifest.json"))
+		if err != nil {
+			t.Fatal(err)
+		}
+		code, _, stderr := runCmd(t, "run", demo, "--out", out, "--force", "-q")
+		if code != exitFatal || !strings.Contains(stderr, "no space left on device") || !strings.Contains(stderr, "the output folder is unchanged") ||
+			!strings.Contains(stderr, "--resume") {
+			t.Fatalf("%s: full disk: exit %d, %q; want exit %d, the cause, and what is left and what to do", size, code, stderr, exitFatal)
+		}
+		t.Logf("%s: %s", size, strings.TrimSpace(stderr))
+		if now, _ := os.ReadFile(filepath.Join(out, "manifest.json")); !bytes.Equal(now, earlier) {
+			t.Errorf("%s: the earlier set was replaced", size)
+		}
+		if code, _, stderr := runCmd(t, "verify", out); code != 0 {
+			t.Errorf("%s: the earlier set does not verify: %s", size, stderr)
+		}
+		if err := unix.Mount("tmpfs", small, "tmpfs", unix.MS_REMOUNT, "size=32m"); err != nil {
+			t.Fatal(err)
+		}
+		code, _, stderr = runCmd(t, "run", demo, "--out", out, "--resume", "-q")
+		if code != exitOK || !strings.Contains(stderr, "resumed:") {
+			t.Fatalf("%s: resume: exit %d: %s", size, code, stderr)
+		}
+		for _, f := range []string{"results.csv", "samples.csv", "results.json", "manifest.json", "summary.txt"} {
+			a, _ := os.ReadFile(filepath.Join(ref, f))
+			b, _ := os.ReadFile(filepath.Join(out, f))
+			if !bytes.Equal(a, b) {
+				t.Errorf("%s: %s after the full disk and --resume differs from a run that never failed: %s", size, f, firstDiff(a, b))
+			}
+		}
+		if left, _ := filepath.Glob(filepath.Join(small, ".out.*")); len(left) != 0 {
+			t.Errorf("%s: left beside the published set: %v", size, left)
 		}
 	}
 }

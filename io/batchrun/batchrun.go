@@ -296,14 +296,14 @@ func Run(ctx context.Context, cfg *Config) (*Outcome, error) {
 			jr.reused, jr.ignored))
 	}
 	if runErr != nil && ctx.Err() == nil {
-		return nil, runErr // results could not be kept (e.g. a full disk)
+		return nil, resumable(runErr) // results could not be kept (e.g. a full disk)
 	}
 	var shard *report.ShardInfo
 	if cfg.Shard.Count > 1 {
 		shard = cfg.Shard.Info(all, root)
 	}
 	o, err := publish(ctx, cfg, out, &publishing{root: root, inputs: files, match: match, stream: stream,
-		complete: runErr == nil, shard: shard, hashes: hashed, measuredAt: measuredAt, sheetRel: sheetRel})
+		complete: runErr == nil, shard: shard, hashes: hashed, measuredAt: measuredAt, sheetRel: sheetRel, journal: true})
 	published = err == nil && o.Complete && !cfg.KeepJournal
 	return o, err
 }
@@ -339,6 +339,13 @@ type publishing struct {
 	// relative to the root (nil: that name): the batch order.
 	measuredAt []string
 	sheetRel   map[string]string
+	journal    bool // a journal keeps the records: a failed write can be resumed
+}
+
+// resumable adds to the error of a run whose set could not be written
+// (a full disk, say) what is left and what to do.
+func resumable(err error) error {
+	return fmt.Errorf("%w (the output folder is unchanged; what was analysed is kept: once this is fixed, run again with --resume)", err)
 }
 
 // publish aggregates, judges, writes and swaps in the set of p.
@@ -393,8 +400,11 @@ func publish(ctx context.Context, cfg *Config, out *resultset.Set, p *publishing
 	err = report.WriteSet(writeCtx, out.Staging, set)
 	region.End()
 	if err != nil {
-		if ctx.Err() != nil {
+		switch {
+		case ctx.Err() != nil:
 			return nil, ErrWriteInterrupted
+		case p.journal:
+			return nil, resumable(err)
 		}
 		return nil, err
 	}
