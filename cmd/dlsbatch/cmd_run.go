@@ -163,7 +163,10 @@ func runBatch(ctx context.Context, e env, args []string, name string) int {
 				say(fmt.Sprintf("%s updated: %d files, %d measurements (%d ok, %d warn, %d error)",
 					o.out, files, r.Counts.Total, r.Counts.OK, r.Counts.Warn, r.Counts.Error))
 			}})
-		if err != nil {
+		switch {
+		case errors.Is(err, batchrun.ErrUsage): // a folder in use, say
+			return fail(exitUsage, strings.TrimPrefix(err.Error(), batchrun.ErrUsage.Error()+": "))
+		case err != nil:
 			return fail(exitFatal, err)
 		}
 		return exitOK

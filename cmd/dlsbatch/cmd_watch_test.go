@@ -2,6 +2,7 @@ package main
 
 import (
 	"context"
+	"errors"
 	"os"
 	"path/filepath"
 	"strings"
@@ -79,6 +80,14 @@ func TestWatch(t *testing.T) {
 			t.Errorf("a row is an error (half-written file analysed?): %.120s", l)
 		}
 	}
+	// The watch holds the folder between its publications: another run
+	// into it is refused as busy, and the set stays the watch's.
+	if code, _, errs := runCmd(t, "run", demo[2], "--out", out, "--force", "-q"); code != exitUsage || !strings.Contains(errs, "is being written by process") {
+		t.Errorf("a run into the watched folder: exit %d, %q; want a usage error naming the watch's process", code, errs)
+	}
+	if rows() != 2 {
+		t.Errorf("the watched set has %d rows after the refused run, want 2", rows())
+	}
 	cancel()
 	if code := <-done; code != exitOK {
 		t.Fatalf("watch exit %d: %s", code, stderr.String())
@@ -87,10 +96,27 @@ func TestWatch(t *testing.T) {
 	ctx, cancel = context.WithCancel(context.Background())
 	done, stderr = watch(ctx)
 	waitFor("the restarted watch to publish", func() bool { return strings.Contains(stderr.String(), "updated") })
+	// A second watch of the folder stops at once, as a usage error.
+	ctx2, cancel2 := context.WithCancel(context.Background())
+	second, errs2 := watch(ctx2)
+	select {
+	case code := <-second:
+		if code != exitUsage || !strings.Contains(errs2.String(), "is being written by process") {
+			t.Errorf("a second watch of the folder: exit %d, %q; want a usage error naming the first", code, errs2.String())
+		}
+	case <-time.After(20 * time.Second):
+		t.Error("a second watch of the folder did not stop")
+		cancel2()
+		<-second
+	}
+	cancel2()
 	cancel()
 	<-done
 	if !strings.Contains(stderr.String(), "resumed: 2 files taken from the journal") {
 		t.Errorf("restart analysed again: %s", stderr.String())
+	}
+	if _, err := os.Stat(filepath.Join(filepath.Dir(out), ".out.lock")); !errors.Is(err, os.ErrNotExist) {
+		t.Errorf("the ended watch left its lock file (%v)", err)
 	}
 }
 

@@ -37,6 +37,9 @@ type Config struct {
 	// not finish, the results of every file unchanged since, with the same
 	// settings and tool version (see journal.go).
 	Resume bool
+	// Lock, when set, is the output folder's lock held by the caller
+	// across runs (a watch): the run writes under it and leaves it held.
+	Lock *resultset.Lock
 	// KeepJournal keeps the journal after a complete run (a watch adds
 	// files to the same batch again and again).
 	KeepJournal bool
@@ -113,7 +116,12 @@ func Run(ctx context.Context, cfg *Config) (*Outcome, error) {
 	}
 	// Every --out problem is a usage error before any analysis; from here
 	// the folder is locked and the run writes into a staging folder.
-	out, err := resultset.Open(cfg.Out, cfg.Paths, cfg.Force)
+	var out *resultset.Set
+	if cfg.Lock != nil {
+		out, err = cfg.Lock.Open(cfg.Paths, cfg.Force)
+	} else {
+		out, err = resultset.Open(cfg.Out, cfg.Paths, cfg.Force)
+	}
 	if err != nil {
 		return nil, fmt.Errorf("%w: %w", ErrUsage, err)
 	}

@@ -10,6 +10,8 @@ import (
 	"time"
 
 	"github.com/fsnotify/fsnotify"
+
+	"dlsbatch/io/resultset"
 )
 
 // WatchConfig is a run that follows a folder an instrument writes into.
@@ -76,6 +78,14 @@ func Watch(ctx context.Context, cfg *WatchConfig) error {
 	published := map[string]seen{}
 	run := cfg.Run
 	run.Resume, run.KeepJournal, run.Force = true, true, true
+	// The output folder stays locked between publications: another run
+	// into it is refused (as busy) for as long as the watch lasts.
+	lock, err := resultset.TakeLock(run.Out, run.Paths)
+	if err != nil {
+		return fmt.Errorf("%w: %w", ErrUsage, err)
+	}
+	defer lock.Release()
+	run.Lock = lock
 	for first := true; ; first = false {
 		now := time.Now()
 		stable := map[string]bool{}

@@ -50,7 +50,7 @@ type Set struct {
 	Dir string
 	// Staging is the folder to write into; Commit swaps it into Dir.
 	Staging string
-	lock    *os.File
+	lock    *os.File // nil under a held Lock
 	done    bool
 }
 
@@ -59,30 +59,19 @@ type Set struct {
 // inside one. force allows replacing an existing result set. Errors name
 // the folder and say what to do.
 func Open(dir string, inputs []string, force bool) (*Set, error) {
-	abs, err := filepath.Abs(dir)
+	return open(dir, inputs, force, nil)
+}
+
+// Open is Open for the folder of l, whose lock it uses and leaves held.
+func (l *Lock) Open(inputs []string, force bool) (*Set, error) {
+	return open(l.typed, inputs, force, l)
+}
+
+func open(dir string, inputs []string, force bool, held *Lock) (*Set, error) {
+	abs, exists, err := resolve(dir)
 	if err != nil {
-		return nil, fmt.Errorf("--out %s: %w", dir, err)
+		return nil, err
 	}
-	exists := false
-	if st, err := os.Lstat(abs); err == nil {
-		if st.Mode()&os.ModeSymlink != 0 {
-			if abs, err = filepath.EvalSymlinks(abs); err != nil {
-				return nil, fmt.Errorf("--out %s: %w", dir, err)
-			}
-			if st, err = os.Stat(abs); err != nil {
-				return nil, fmt.Errorf("--out %s: %w", dir, err)
-			}
-		}
-		if !st.IsDir() {
-			return nil, fmt.Errorf("--out %s exists and is not a folder", dir)
-		}
-		exists = true
-	} else if !errors.Is(err, os.ErrNotExist) {
-		return nil, fmt.Errorf("--out %s: %w", dir, err)
-	}
-	// Resolve links in the longest existing part of the path, then check
-	// against the inputs before anything is created.
-	abs = resolveExisting(abs)
 	if err := checkOutside(abs, dir, inputs); err != nil {
 		return nil, err
 	}
@@ -91,8 +80,13 @@ func Open(dir string, inputs []string, force bool) (*Set, error) {
 		return nil, fmt.Errorf("--out %s: %w", dir, err)
 	}
 	s := &Set{Dir: abs}
-	if err := s.takeLock(dir); err != nil {
-		return nil, err
+	switch {
+	case held == nil:
+		if s.lock, err = takeLock(abs, dir); err != nil {
+			return nil, err
+		}
+	case held.dir != abs:
+		return nil, fmt.Errorf("--out %s: the lock held is of %s", dir, held.dir)
 	}
 	if exists {
 		if err := checkReplaceable(abs, dir, force); err != nil {
@@ -113,6 +107,69 @@ func Open(dir string, inputs []string, force bool) (*Set, error) {
 	return s, nil
 }
 
+// resolve names the output folder dir absolutely, a symbolic link followed
+// once and links in the longest existing part of the path resolved, and
+// says whether it exists (as a folder: anything else is an error).
+func resolve(dir string) (abs string, exists bool, err error) {
+	if abs, err = filepath.Abs(dir); err != nil {
+		return "", false, fmt.Errorf("--out %s: %w", dir, err)
+	}
+	if st, err := os.Lstat(abs); err == nil {
+		if st.Mode()&os.ModeSymlink != 0 {
+			if abs, err = filepath.EvalSymlinks(abs); err != nil {
+				return "", false, fmt.Errorf("--out %s: %w", dir, err)
+			}
+			if st, err = os.Stat(abs); err != nil {
+				return "", false, fmt.Errorf("--out %s: %w", dir, err)
+			}
+		}
+		if !st.IsDir() {
+			return "", false, fmt.Errorf("--out %s exists and is not a folder", dir)
+		}
+		exists = true
+	} else if !errors.Is(err, os.ErrNotExist) {
+		return "", false, fmt.Errorf("--out %s: %w", dir, err)
+	}
+	return resolveExisting(abs), exists, nil
+}
+
+// Lock is the lock of an output folder held across several runs into it:
+// a watch holds it between its publications, so that no other run writes
+// the folder meanwhile. Lock.Open opens the folder under it.
+type Lock struct {
+	dir, typed string // the folder (as Open resolves it) and as named
+	f          *os.File
+}
+
+// TakeLock takes the lock of the output folder dir (ErrBusy when another
+// process holds it), refusing it as Open does when it is or lies inside
+// one of inputs.
+func TakeLock(dir string, inputs []string) (*Lock, error) {
+	abs, _, err := resolve(dir)
+	if err != nil {
+		return nil, err
+	}
+	if err := checkOutside(abs, dir, inputs); err != nil {
+		return nil, err
+	}
+	if err := os.MkdirAll(filepath.Dir(abs), 0o755); err != nil {
+		return nil, fmt.Errorf("--out %s: %w", dir, err)
+	}
+	f, err := takeLock(abs, dir)
+	if err != nil {
+		return nil, err
+	}
+	return &Lock{dir: abs, typed: dir, f: f}, nil
+}
+
+// Release removes the lock file and releases the lock.
+func (l *Lock) Release() {
+	if l.f != nil {
+		unlock(l.f)
+		l.f = nil
+	}
+}
+
 // LockPath is the lock file of the output folder dir (absolute).
 func LockPath(dir string) string {
 	return filepath.Join(filepath.Dir(dir), "."+filepath.Base(dir)+".lock")
@@ -124,12 +181,12 @@ func LockPath(dir string) string {
 // the next to take. Since the file can be removed between our open and
 // our flock, the lock is ours only when the path still names the file we
 // locked; otherwise the lock is taken again on the new file.
-func (s *Set) takeLock(typed string) error {
-	p := LockPath(s.Dir)
+func takeLock(dir, typed string) (*os.File, error) {
+	p := LockPath(dir)
 	for range 100 {
 		f, err := os.OpenFile(p, os.O_RDWR|os.O_CREATE, 0o644)
 		if err != nil {
-			return fmt.Errorf("--out %s: cannot create the lock file %s: %w", typed, p, err)
+			return nil, fmt.Errorf("--out %s: cannot create the lock file %s: %w", typed, p, err)
 		}
 		if err := unix.Flock(int(f.Fd()), unix.LOCK_EX|unix.LOCK_NB); err != nil {
 			holder := "another process"
@@ -140,9 +197,9 @@ func (s *Set) takeLock(typed string) error {
 			}
 			f.Close()
 			if errors.Is(err, unix.EWOULDBLOCK) {
-				return fmt.Errorf("--out %s is being written by %s (lock %s): %w", typed, holder, p, ErrBusy)
+				return nil, fmt.Errorf("--out %s is being written by %s (lock %s): %w", typed, holder, p, ErrBusy)
 			}
-			return fmt.Errorf("--out %s: lock %s: %w", typed, p, err)
+			return nil, fmt.Errorf("--out %s: lock %s: %w", typed, p, err)
 		}
 		if !sameFile(f, p) {
 			f.Close() // locked a file its holder removed as it finished
@@ -151,10 +208,9 @@ func (s *Set) takeLock(typed string) error {
 		if err := f.Truncate(0); err == nil {
 			f.WriteAt([]byte(strconv.Itoa(os.Getpid())+"\n"), 0)
 		}
-		s.lock = f
-		return nil
+		return f, nil
 	}
-	return fmt.Errorf("--out %s: lock %s keeps being replaced: %w", typed, p, ErrBusy)
+	return nil, fmt.Errorf("--out %s: lock %s keeps being replaced: %w", typed, p, ErrBusy)
 }
 
 // sameFile reports whether path names the open file f.
@@ -167,15 +223,20 @@ func sameFile(f *os.File, path string) bool {
 	return err == nil && os.SameFile(a, b)
 }
 
-// release removes the lock file and releases the lock: removed while held,
-// so that no other process can take a lock on it that a third, creating
-// the file anew, would not see.
+// release releases the set's own lock (not a held Lock).
 func (s *Set) release() {
 	if s.lock != nil {
-		os.Remove(s.lock.Name())
-		s.lock.Close() // closing the descriptor releases the flock
+		unlock(s.lock)
 		s.lock = nil
 	}
+}
+
+// unlock removes the lock file and releases the lock: removed while held,
+// so that no other process can take a lock on it that a third, creating
+// the file anew, would not see.
+func unlock(f *os.File) {
+	os.Remove(f.Name())
+	f.Close() // closing the descriptor releases the flock
 }
 
 // checkReplaceable refuses a folder with foreign content, and one holding

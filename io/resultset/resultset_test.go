@@ -194,6 +194,54 @@ func TestLockExclusiveWhileRemoved(t *testing.T) {
 	}
 }
 
+// TestHeldLock: a Lock held across two runs into its folder (a watch's):
+// each run opens and commits under it, another opener meanwhile is
+// refused as busy, the lock file stays until Release removes it, and a
+// Lock is refused, as Open is, for a folder inside an input folder.
+func TestHeldLock(t *testing.T) {
+	dir := t.TempDir()
+	out := filepath.Join(dir, "out")
+	l, err := TakeLock(out, nil)
+	if err != nil {
+		t.Fatal(err)
+	}
+	for k, data := range []string{"first", "second"} {
+		s, err := l.Open(nil, true)
+		if err != nil {
+			t.Fatalf("run %d under the lock: %v", k, err)
+		}
+		write(t, filepath.Join(s.Staging, "results.csv"), data)
+		if _, err := Open(out, nil, true); !errors.Is(err, ErrBusy) {
+			t.Errorf("run %d: another open: %v, want ErrBusy", k, err)
+		}
+		if err := s.Commit(); err != nil {
+			t.Fatal(err)
+		}
+		if got := read(t, filepath.Join(out, "results.csv")); got != data {
+			t.Errorf("run %d published %q, want %q", k, got, data)
+		}
+		if _, err := Open(out, nil, true); !errors.Is(err, ErrBusy) {
+			t.Errorf("between runs: another open: %v, want ErrBusy", err)
+		}
+	}
+	l.Release()
+	if _, err := os.Stat(filepath.Join(dir, ".out.lock")); !errors.Is(err, os.ErrNotExist) {
+		t.Errorf("lock file left after Release (%v)", err)
+	}
+	s, err := Open(out, nil, true)
+	if err != nil {
+		t.Fatalf("open after Release: %v", err)
+	}
+	s.Abort()
+	in := filepath.Join(dir, "in")
+	if _, err := TakeLock(filepath.Join(in, "out"), []string{in}); err == nil || !strings.Contains(err.Error(), "inside") {
+		t.Errorf("a lock for a folder inside an input folder: %v, want a refusal", err)
+	}
+	if _, err := os.Stat(in); !errors.Is(err, os.ErrNotExist) {
+		t.Error("refusing the lock created the input folder")
+	}
+}
+
 // TestRefusals: a folder of other files, a file, an input folder, a folder
 // inside one, a folder holding an input, and a symbolic link into an input
 // folder are all refused before anything is written.
