@@ -237,3 +237,30 @@ func TestBatchOrder(t *testing.T) {
 		})
 	}
 }
+
+// TestReferenceRoleSlip: a reference standard whose role the sheet left as
+// sample makes a batch without a reference (invalid); when its product has
+// a drift_pct limit, which only a reference has, the reason names it once
+// and asks whether its role is reference. Without that limit nothing can
+// tell it from a sample, and the reason stays plain.
+func TestReferenceRoleSlip(t *testing.T) {
+	drift := Limit{Product: "latex-60", Quantity: QuantityDrift, Max: 2, HasMax: true, Text: "≤ 2"}
+	const hint = `sample "latex" is of product latex-60, whose drift_pct limit only a reference has: is its role reference?`
+	for _, c := range []struct {
+		spec  *Spec
+		hints int
+	}{{nightSpec(drift), 1}, {nightSpec(), 0}} {
+		res := night("R:62", "S:20", "R:62.5", "S:20")
+		for _, r := range res {
+			if r.Role == dls.RoleReference {
+				r.Role = dls.RoleSample
+			}
+		}
+		o := qc.Options{Thresholds: qc.DefaultThresholds()}
+		samples := qc.Aggregate(dls.Briefs(res), o)
+		b := EvaluateRun(c.spec, samples, Run{Results: dls.Briefs(res), QC: o})
+		if b.Valid || !strings.Contains(b.Reason, "no reference standard") || strings.Count(b.Reason, hint) != c.hints {
+			t.Errorf("valid %v, reason %q; want invalid, no reference, the slip named %d times", b.Valid, b.Reason, c.hints)
+		}
+	}
+}

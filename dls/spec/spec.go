@@ -391,7 +391,7 @@ func EvaluateRun(s *Spec, samples []*dls.Sample, run Run) Batch {
 	allInvalid := ""
 	switch {
 	case refs == 0:
-		allInvalid = "system suitability not shown: no reference standard (role reference) in the batch"
+		allInvalid = "system suitability not shown: no reference standard (role reference) in the batch" + roleSlips(samples, drift)
 		reasons = append(reasons, allInvalid)
 	case len(suit) > 0:
 		reasons = append(reasons, "system suitability failed: "+strings.Join(suit, "; "))
@@ -427,6 +427,22 @@ func EvaluateRun(s *Spec, samples []*dls.Sample, run Run) Batch {
 		}
 	}
 	return b
+}
+
+// roleSlips names, for a batch without a reference, the samples of a
+// product that only a reference has (a drift_pct limit): most likely a
+// reference standard whose role the sheet left as sample.
+func roleSlips(samples []*dls.Sample, drift map[string]Limit) string {
+	var out []string
+	for _, smp := range samples {
+		if _, ok := drift[strings.ToLower(smp.Product)]; ok && smp.Role != dls.RoleReference {
+			slip := fmt.Sprintf("; sample %q is of product %s, whose drift_pct limit only a reference has: is its role reference?", smp.Name, smp.Product)
+			if !slices.Contains(out, slip) {
+				out = append(out, slip)
+			}
+		}
+	}
+	return strings.Join(out, "")
 }
 
 // bracketing returns why the sample is not bracketed by passing reference
