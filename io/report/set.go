@@ -4,11 +4,12 @@ import (
 	"bufio"
 	"context"
 	"crypto/sha256"
-	"dlsbatch/io/jsonenc"
 	"encoding/hex"
 	"encoding/json"
+	"errors"
 	"fmt"
 	"io"
+	"io/fs"
 	"os"
 	"path/filepath"
 	"runtime"
@@ -19,6 +20,7 @@ import (
 	"dlsbatch/io/atomicfile"
 	"dlsbatch/io/csvdata"
 	"dlsbatch/io/htmlreport"
+	"dlsbatch/io/jsonenc"
 )
 
 // Set is everything one run writes into its output folder.
@@ -192,7 +194,10 @@ func WriteSet(ctx context.Context, dir string, s *Set) error {
 	defer waitTables()
 	// The inputs' digests are held as 32 bytes each and written out in
 	// hex only as the manifest is written.
-	digests := make([]Digest, len(inputs))
+	// An input removed during the run is left out: its result, an error
+	// (it was not read), says why; the others are attested.
+	digests := make([]Digest, 0, len(inputs))
+	read := inputs[:0:0]
 	for i, f := range inputs {
 		if err := ctx.Err(); err != nil {
 			return err
@@ -203,12 +208,16 @@ func WriteSet(ctx context.Context, dir string, s *Set) error {
 		d, ok := s.Hashes[f]
 		if !ok {
 			var err error
-			if d, err = DigestFile(f); err != nil {
+			if d, err = DigestFile(f); errors.Is(err, fs.ErrNotExist) {
+				continue
+			} else if err != nil {
 				return err
 			}
 		}
-		digests[i] = d
+		digests, read = append(digests, d), append(read, f)
 	}
+	inputs = read
+	m.Files.Analysed = len(inputs)
 	for _, f := range s.Tables {
 		h, err := HashFile(f)
 		if err != nil {

@@ -138,3 +138,58 @@ func TestWriteSetReport(t *testing.T) {
 		t.Errorf("index does not name the sample sheet with its SHA-256 %v", m.Tables)
 	}
 }
+
+// TestWriteSetInputRemoved: an input removed while the run went on (a
+// sync client moving it, say) was not read, and its result is an error
+// saying so; the manifest attests the inputs read and counts the one
+// found and gone, and writing the set does not fail for it. An input that
+// cannot be hashed for another reason still fails the set.
+func TestWriteSetInputRemoved(t *testing.T) {
+	root := t.TempDir()
+	a, b := filepath.Join(root, "a.csv"), filepath.Join(root, "b.csv")
+	if err := os.WriteFile(a, []byte("tau_s,g2\n"), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	dir := filepath.Join(t.TempDir(), "out")
+	if err := os.MkdirAll(dir, 0o755); err != nil {
+		t.Fatal(err)
+	}
+	st, err := NewStream(dir)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if err := st.Add(sampleResults()); err != nil {
+		t.Fatal(err)
+	}
+	da, err := DigestFile(a)
+	if err != nil {
+		t.Fatal(err)
+	}
+	doc := &Document{Tool: "dlsbatch", Version: "test", Caution: Caution, Complete: true, Settings: &Settings{}}
+	set := &Set{Doc: doc, Root: root, Inputs: []string{a, b}, Stream: st, Workers: 1, Hashes: map[string]Digest{a: da}}
+	if err := WriteSet(context.Background(), dir, set); err != nil {
+		t.Fatalf("an input removed during the run failed the set: %v", err)
+	}
+	var m Manifest
+	if raw, err := os.ReadFile(filepath.Join(dir, ManifestJSON)); err != nil || json.Unmarshal(raw, &m) != nil {
+		t.Fatalf("manifest: %v", err)
+	}
+	if m.Files.Found != 2 || m.Files.Analysed != 1 || len(m.Inputs) != 1 || m.Inputs[0].Path != "a.csv" || m.Inputs[0].SHA256 != da.Hex() {
+		t.Errorf("manifest files %+v, inputs %+v; want 2 found, a.csv alone attested", m.Files, m.Inputs)
+	}
+	// A folder where a file was: reading it fails, and not as a missing file.
+	if err := os.Mkdir(b, 0o755); err != nil {
+		t.Fatal(err)
+	}
+	st2, err := NewStream(dir)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if err := st2.Add(sampleResults()); err != nil {
+		t.Fatal(err)
+	}
+	set.Stream = st2
+	if err := WriteSet(context.Background(), dir, set); err == nil {
+		t.Error("an input that cannot be hashed (a folder) was left out silently")
+	}
+}
