@@ -41,7 +41,9 @@ type Set struct {
 	// Progress, when set, hears of report pages and hashed inputs.
 	Progress func(phase string, done, total int)
 	// Hashes, where set, give inputs' digests already taken (by path), so
-	// that a file is read once for them.
+	// that a file is read once for them; an input without one was not read
+	// (its result says why) and the manifest leaves it out. Without
+	// Hashes the inputs are hashed here, a missing one left out.
 	Hashes map[string]Digest
 	// Problems are the measurements the summary lists (see Problems);
 	// nil: WriteSet finds them.
@@ -194,8 +196,8 @@ func WriteSet(ctx context.Context, dir string, s *Set) error {
 	defer waitTables()
 	// The inputs' digests are held as 32 bytes each and written out in
 	// hex only as the manifest is written.
-	// An input removed during the run is left out: its result, an error
-	// (it was not read), says why; the others are attested.
+	// An input that was not read (removed during the run, say) is left
+	// out: its result, an error, says why; the others are attested.
 	digests := make([]Digest, 0, len(inputs))
 	read := inputs[:0:0]
 	for i, f := range inputs {
@@ -206,7 +208,11 @@ func WriteSet(ctx context.Context, dir string, s *Set) error {
 			s.Progress("hashing", i+1, len(inputs))
 		}
 		d, ok := s.Hashes[f]
-		if !ok {
+		switch {
+		case ok:
+		case s.Hashes != nil:
+			continue // not read by the run (its result says why): nothing to attest
+		default:
 			var err error
 			if d, err = DigestFile(f); errors.Is(err, fs.ErrNotExist) {
 				continue

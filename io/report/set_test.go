@@ -139,57 +139,66 @@ func TestWriteSetReport(t *testing.T) {
 	}
 }
 
-// TestWriteSetInputRemoved: an input removed while the run went on (a
-// sync client moving it, say) was not read, and its result is an error
-// saying so; the manifest attests the inputs read and counts the one
-// found and gone, and writing the set does not fail for it. An input that
-// cannot be hashed for another reason still fails the set.
+// TestWriteSetInputRemoved: an input the run could not read (removed
+// while the run went on, by a sync client say) has an error result saying
+// so; the manifest attests the inputs read and counts the one found, and
+// writing the set does not fail for it, whatever is at its path by then.
+// Without the run's digests (library use) the set hashes its inputs
+// itself: a missing one is left out as well, one that cannot be hashed
+// for another reason (a folder) fails the set.
 func TestWriteSetInputRemoved(t *testing.T) {
 	root := t.TempDir()
 	a, b := filepath.Join(root, "a.csv"), filepath.Join(root, "b.csv")
 	if err := os.WriteFile(a, []byte("tau_s,g2\n"), 0o644); err != nil {
 		t.Fatal(err)
 	}
-	dir := filepath.Join(t.TempDir(), "out")
-	if err := os.MkdirAll(dir, 0o755); err != nil {
-		t.Fatal(err)
-	}
-	st, err := NewStream(dir)
-	if err != nil {
-		t.Fatal(err)
-	}
-	if err := st.Add(sampleResults()); err != nil {
-		t.Fatal(err)
-	}
 	da, err := DigestFile(a)
 	if err != nil {
 		t.Fatal(err)
 	}
-	doc := &Document{Tool: "dlsbatch", Version: "test", Caution: Caution, Complete: true, Settings: &Settings{}}
-	set := &Set{Doc: doc, Root: root, Inputs: []string{a, b}, Stream: st, Workers: 1, Hashes: map[string]Digest{a: da}}
-	if err := WriteSet(context.Background(), dir, set); err != nil {
-		t.Fatalf("an input removed during the run failed the set: %v", err)
+	write := func(hashes map[string]Digest) (*Manifest, error) {
+		t.Helper()
+		dir := filepath.Join(t.TempDir(), "out")
+		if err := os.MkdirAll(dir, 0o755); err != nil {
+			t.Fatal(err)
+		}
+		st, err := NewStream(dir)
+		if err != nil {
+			t.Fatal(err)
+		}
+		if err := st.Add(sampleResults()); err != nil {
+			t.Fatal(err)
+		}
+		doc := &Document{Tool: "dlsbatch", Version: "test", Caution: Caution, Complete: true, Settings: &Settings{}}
+		if err := WriteSet(context.Background(), dir, &Set{Doc: doc, Root: root, Inputs: []string{a, b}, Stream: st, Workers: 1, Hashes: hashes}); err != nil {
+			return nil, err
+		}
+		var m Manifest
+		if raw, err := os.ReadFile(filepath.Join(dir, ManifestJSON)); err != nil || json.Unmarshal(raw, &m) != nil {
+			t.Fatalf("manifest: %v", err)
+		}
+		return &m, nil
 	}
-	var m Manifest
-	if raw, err := os.ReadFile(filepath.Join(dir, ManifestJSON)); err != nil || json.Unmarshal(raw, &m) != nil {
-		t.Fatalf("manifest: %v", err)
+	attestsA := func(what string, m *Manifest, err error) {
+		t.Helper()
+		if err != nil {
+			t.Fatalf("%s: the set failed: %v", what, err)
+		}
+		if m.Files.Found != 2 || m.Files.Analysed != 1 || len(m.Inputs) != 1 || m.Inputs[0].Path != "a.csv" || m.Inputs[0].SHA256 != da.Hex() {
+			t.Errorf("%s: manifest files %+v, inputs %+v; want 2 found, a.csv alone attested", what, m.Files, m.Inputs)
+		}
 	}
-	if m.Files.Found != 2 || m.Files.Analysed != 1 || len(m.Inputs) != 1 || m.Inputs[0].Path != "a.csv" || m.Inputs[0].SHA256 != da.Hex() {
-		t.Errorf("manifest files %+v, inputs %+v; want 2 found, a.csv alone attested", m.Files, m.Inputs)
-	}
-	// A folder where a file was: reading it fails, and not as a missing file.
-	if err := os.Mkdir(b, 0o755); err != nil {
+	run := map[string]Digest{a: da}
+	m, err := write(run)
+	attestsA("run, b.csv gone", m, err)
+	m, err = write(nil)
+	attestsA("library, b.csv gone", m, err)
+	if err := os.Mkdir(b, 0o755); err != nil { // a folder where the file was
 		t.Fatal(err)
 	}
-	st2, err := NewStream(dir)
-	if err != nil {
-		t.Fatal(err)
-	}
-	if err := st2.Add(sampleResults()); err != nil {
-		t.Fatal(err)
-	}
-	set.Stream = st2
-	if err := WriteSet(context.Background(), dir, set); err == nil {
-		t.Error("an input that cannot be hashed (a folder) was left out silently")
+	m, err = write(run)
+	attestsA("run, a folder at b.csv", m, err)
+	if _, err := write(nil); err == nil {
+		t.Error("library: an input that cannot be hashed (a folder) was left out silently")
 	}
 }
