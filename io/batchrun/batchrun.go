@@ -37,6 +37,10 @@ type Config struct {
 	// not finish, the results of every file unchanged since, with the same
 	// settings and tool version (see journal.go).
 	Resume bool
+	// TableHashes, when set, are the tables' hashes taken when they were
+	// read (a watch reads them once for all its runs); nil: the run hashes
+	// them as it starts.
+	TableHashes map[string]report.FileHash
 	// Lock, when set, is the output folder's lock held by the caller
 	// across runs (a watch): the run writes under it and leaves it held.
 	Lock *resultset.Lock
@@ -178,7 +182,13 @@ func Run(ctx context.Context, cfg *Config) (*Outcome, error) {
 	if err != nil {
 		return nil, err
 	}
-	key, err := settingsKey(cfg, root)
+	tables := cfg.TableHashes
+	if tables == nil {
+		if tables, err = tableHashes(cfg); err != nil {
+			return nil, err
+		}
+	}
+	key, err := settingsKey(cfg, root, tables)
 	if err != nil {
 		return nil, err
 	}
@@ -310,27 +320,66 @@ func Run(ctx context.Context, cfg *Config) (*Outcome, error) {
 	if cfg.Shard.Count > 1 {
 		shard = cfg.Shard.Info(all, root)
 	}
+	for _, msg := range tableChanges(cfg, tables) {
+		warn(msg)
+	}
 	o, err := publish(ctx, cfg, out, &publishing{root: root, inputs: files, match: match, stream: stream,
-		complete: runErr == nil, shard: shard, hashes: hashed, measuredAt: measuredAt, sheetRel: sheetRel, journal: true})
+		complete: runErr == nil, shard: shard, hashes: hashed, tables: tables, measuredAt: measuredAt, sheetRel: sheetRel, journal: true})
 	published = err == nil && o.Complete && !cfg.KeepJournal
 	return o, err
 }
 
 // settingsKey is what a journal entry must match besides the input: the
 // settings record and the content of every table (a sheet changes the
-// metadata of the measurements).
-func settingsKey(cfg *Config, root string) ([]byte, error) {
+// metadata of the measurements), as tableHashes took it.
+func settingsKey(cfg *Config, root string, tables map[string]report.FileHash) ([]byte, error) {
 	b, err := json.Marshal(cfg.record(root))
 	if err != nil {
 		return nil, err
 	}
-	for _, t := range []string{cfg.SheetFile, cfg.SpecFile, cfg.SolventFile, cfg.QCFile} {
-		if t != "" {
-			h, _ := report.HashFile(t) // unreadable: the run fails at the manifest anyway
-			b = append(b, "\n"+h.SHA256...)
-		}
+	for _, t := range cfg.tableFiles() {
+		b = append(b, "\n"+tables[t].SHA256...)
 	}
 	return b, nil
+}
+
+// tableFiles lists the tables a run was given (sheet, specification,
+// solvents, thresholds), in that order.
+func (cfg *Config) tableFiles() []string {
+	var out []string
+	for _, t := range []string{cfg.SheetFile, cfg.SpecFile, cfg.SolventFile, cfg.QCFile} {
+		if t != "" {
+			out = append(out, t)
+		}
+	}
+	return out
+}
+
+// tableHashes hashes the tables as the run starts, just after they were
+// read: the manifest attests these bytes, those the run used, even when
+// a table is edited while the run goes on (tableChanges says so).
+func tableHashes(cfg *Config) (map[string]report.FileHash, error) {
+	out := map[string]report.FileHash{}
+	for _, t := range cfg.tableFiles() {
+		h, err := report.HashFile(t)
+		if err != nil {
+			return nil, fmt.Errorf("%w: %w", ErrUsage, err)
+		}
+		out[t] = h
+	}
+	return out, nil
+}
+
+// tableChanges names the tables whose content is no longer what the run
+// read (at its start, or a watch's).
+func tableChanges(cfg *Config, at map[string]report.FileHash) []string {
+	var out []string
+	for _, t := range cfg.tableFiles() {
+		if h, err := report.HashFile(t); err != nil || h.SHA256 != at[t].SHA256 {
+			out = append(out, fmt.Sprintf("%s changed while the run went on: the results and the manifest rest on the version read at the start (sha256 %s)", t, at[t].SHA256))
+		}
+	}
+	return out
 }
 
 // publishing is what a run (or a merge) hands over to be written.
@@ -347,7 +396,8 @@ type publishing struct {
 	// relative to the root (nil: that name): the batch order.
 	measuredAt []string
 	sheetRel   map[string]string
-	journal    bool // a journal keeps the records: a failed write can be resumed
+	journal    bool                       // a journal keeps the records: a failed write can be resumed
+	tables     map[string]report.FileHash // the tables' hashes as the run read them (nil: hash them now)
 }
 
 // resumable adds to the error of a run whose set could not be written
@@ -392,11 +442,7 @@ func publish(ctx context.Context, cfg *Config, out *resultset.Set, p *publishing
 	}
 	set := &report.Set{Doc: doc, HTMLReport: cfg.HTMLReport && o.Complete, Root: p.root, Inputs: p.inputs, Stream: p.stream, Problems: o.Problems, Staged: true,
 		Shard: p.shard, Progress: cfg.Progress, Hashes: p.hashes, Workers: cfg.Workers}
-	for _, t := range []string{cfg.SheetFile, cfg.SpecFile, cfg.SolventFile, cfg.QCFile} {
-		if t != "" {
-			set.Tables = append(set.Tables, t)
-		}
-	}
+	set.Tables, set.TableHashes = cfg.tableFiles(), p.tables
 	// An interrupted analysis still writes what it finished, marked
 	// incomplete and without the report, so that it is quick; a signal
 	// during the writing abandons it and the previous set stays.

@@ -86,6 +86,10 @@ func Watch(ctx context.Context, cfg *WatchConfig) error {
 	}
 	defer lock.Release()
 	run.Lock = lock
+	// The tables were read once for the whole watch: so they are hashed.
+	if run.TableHashes, err = tableHashes(&run); err != nil {
+		return err
+	}
 	for first := true; ; first = false {
 		now := time.Now()
 		stable := map[string]bool{}

@@ -40,6 +40,9 @@ type Set struct {
 	Stream *Stream
 	// Progress, when set, hears of report pages and hashed inputs.
 	Progress func(phase string, done, total int)
+	// TableHashes, where set, give the tables' hashes as the run read
+	// them (by path); a table without one is hashed here.
+	TableHashes map[string]FileHash
 	// Hashes, where set, give inputs' digests already taken (by path), so
 	// that a file is read once for them; an input without one was not read
 	// (its result says why) and the manifest leaves it out. Without
@@ -225,9 +228,12 @@ func WriteSet(ctx context.Context, dir string, s *Set) error {
 	inputs = read
 	m.Files.Analysed = len(inputs)
 	for _, f := range s.Tables {
-		h, err := HashFile(f)
-		if err != nil {
-			return err
+		h, ok := s.TableHashes[f]
+		if !ok {
+			var err error
+			if h, err = HashFile(f); err != nil {
+				return err
+			}
 		}
 		h.Path = csvdata.Rel(s.Root, f)
 		m.Tables = append(m.Tables, h)

@@ -1,0 +1,69 @@
+package batchrun
+
+import (
+	"context"
+	"encoding/json"
+	"os"
+	"path/filepath"
+	"strings"
+	"sync"
+	"testing"
+
+	"dlsbatch/dls/batch"
+	"dlsbatch/io/report"
+	"dlsbatch/io/sheet"
+)
+
+// TestTableEditedDuringRun: a sample sheet edited while the run goes on
+// (here as the first file is analysed) does not change what the run
+// used: the manifest attests the sheet as the run read it, and the run
+// warns that the file changed.
+func TestTableEditedDuringRun(t *testing.T) {
+	in := t.TempDir()
+	demo, _ := filepath.Glob(filepath.Join("..", "..", "testdata", "demo", "0[2-4]_*.csv"))
+	for _, f := range demo {
+		b, err := os.ReadFile(f)
+		if err != nil {
+			t.Fatal(err)
+		}
+		if err := os.WriteFile(filepath.Join(in, filepath.Base(f)), b, 0o644); err != nil {
+			t.Fatal(err)
+		}
+	}
+	sheetFile := filepath.Join(t.TempDir(), "sheet.csv")
+	if err := os.WriteFile(sheetFile, []byte("file,lot\n*.csv,L1\n"), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	read, err := report.HashFile(sheetFile)
+	if err != nil {
+		t.Fatal(err)
+	}
+	sh, err := sheet.ReadFile(sheetFile)
+	if err != nil {
+		t.Fatal(err)
+	}
+	var once sync.Once
+	var warnings []string
+	out := filepath.Join(t.TempDir(), "out")
+	cfg := &Config{Paths: []string{in}, Out: out, Settings: batch.DefaultSettings(), Workers: 1, SheetFile: sheetFile, Sheet: sh,
+		Progress: func(phase string, done, total int) {
+			once.Do(func() { os.WriteFile(sheetFile, []byte("file,lot\n*.csv,L2\n"), 0o644) })
+		},
+		Warn: func(msg string) { warnings = append(warnings, msg) }}
+	if _, err := Run(context.Background(), cfg); err != nil {
+		t.Fatal(err)
+	}
+	var m report.Manifest
+	if b, err := os.ReadFile(filepath.Join(out, report.ManifestJSON)); err != nil || json.Unmarshal(b, &m) != nil {
+		t.Fatalf("manifest: %v", err)
+	}
+	if len(m.Tables) != 1 || m.Tables[0].SHA256 != read.SHA256 {
+		t.Errorf("manifest tables %+v, want the sheet as read (sha256 %s)", m.Tables, read.SHA256)
+	}
+	if res, _ := os.ReadFile(filepath.Join(out, report.ResultsJSON)); !strings.Contains(string(res), `"lot":"L1"`) || strings.Contains(string(res), `"lot":"L2"`) {
+		t.Error("the results do not rest on the sheet as read")
+	}
+	if !strings.Contains(strings.Join(warnings, "\n"), "sheet.csv changed while the run went on") {
+		t.Errorf("warnings %q: want one naming the edited sheet", warnings)
+	}
+}
