@@ -77,16 +77,10 @@ func TestMarshalToEqualsMarshal(t *testing.T) {
 	}
 }
 
-// WriteSet writes the report from the stream's records, lists every page
-// in the manifest with the size and SHA-256 of its bytes on disk
-// (crypto/sha256 of the file read back), and names the sample sheet with
-// its SHA-256 on the index.
-func TestWriteSetReport(t *testing.T) {
-	root := t.TempDir()
-	sheet := filepath.Join(root, "sheet.csv")
-	if err := os.WriteFile(sheet, []byte("file,sample\na.csv,lot 7\n"), 0o644); err != nil {
-		t.Fatal(err)
-	}
+// sampleStream makes an output folder with a result stream holding
+// sampleResults.
+func sampleStream(t *testing.T) (string, *Stream) {
+	t.Helper()
 	dir := filepath.Join(t.TempDir(), "out")
 	if err := os.MkdirAll(dir, 0o755); err != nil {
 		t.Fatal(err)
@@ -98,6 +92,20 @@ func TestWriteSetReport(t *testing.T) {
 	if err := st.Add(sampleResults()); err != nil {
 		t.Fatal(err)
 	}
+	return dir, st
+}
+
+// WriteSet writes the report from the stream's records, lists every page
+// in the manifest with the size and SHA-256 of its bytes on disk
+// (crypto/sha256 of the file read back), and names the sample sheet with
+// its SHA-256 on the index.
+func TestWriteSetReport(t *testing.T) {
+	root := t.TempDir()
+	sheet := filepath.Join(root, "sheet.csv")
+	if err := os.WriteFile(sheet, []byte("file,sample\na.csv,lot 7\n"), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	dir, st := sampleStream(t)
 	doc := &Document{Tool: "dlsbatch", Version: "test", Caution: Caution, Complete: true,
 		Settings: &Settings{Sheet: "sheet.csv"}, Results: nil,
 		Samples: []*dls.Sample{{Name: "lot, 7", Runs: []int{0}, Used: []int{0}}, {Name: "", Runs: []int{1}}}}
@@ -158,17 +166,7 @@ func TestWriteSetInputRemoved(t *testing.T) {
 	}
 	write := func(hashes map[string]Digest) (*Manifest, error) {
 		t.Helper()
-		dir := filepath.Join(t.TempDir(), "out")
-		if err := os.MkdirAll(dir, 0o755); err != nil {
-			t.Fatal(err)
-		}
-		st, err := NewStream(dir)
-		if err != nil {
-			t.Fatal(err)
-		}
-		if err := st.Add(sampleResults()); err != nil {
-			t.Fatal(err)
-		}
+		dir, st := sampleStream(t)
 		doc := &Document{Tool: "dlsbatch", Version: "test", Caution: Caution, Complete: true, Settings: &Settings{}}
 		if err := WriteSet(context.Background(), dir, &Set{Doc: doc, Root: root, Inputs: []string{a, b}, Stream: st, Workers: 1, Hashes: hashes}); err != nil {
 			return nil, err
