@@ -137,6 +137,9 @@ func Run(ctx context.Context, cfg *Config) (*Outcome, error) {
 	for _, p := range found.Problems {
 		warn(p.Err.Error()) // and an error row each: the runner gets them as failed inputs
 	}
+	for _, d := range found.ResultSets {
+		warn(nm.Rel(d) + ": left out: a dlsbatch result set, not correlograms")
+	}
 	if cfg.Accept != nil {
 		kept := found.Files[:0:0]
 		for _, f := range found.Files {

@@ -1,9 +1,11 @@
 package csvdata
 
 import (
-	"dlsbatch/io/plainfile"
+	"bytes"
+	"encoding/json"
 	"errors"
 	"fmt"
+	"io"
 	"io/fs"
 	"os"
 	"path/filepath"
@@ -11,6 +13,7 @@ import (
 	"strings"
 
 	"dlsbatch/dls"
+	"dlsbatch/io/plainfile"
 )
 
 // Found is what Discover found under the paths it was given.
@@ -25,6 +28,10 @@ type Found struct {
 	// (as named, see Discover) and Err a *dls.PosError with the reason, so
 	// that the run reports it as a result with status error.
 	Problems []Entry
+	// ResultSets are the folders below a searched folder that were left
+	// out because they hold a dlsbatch result set (results.csv and its
+	// siblings are not correlograms), as named, sorted.
+	ResultSets []string
 }
 
 // Paths returns the Files and the paths of the Problems merged in sorted
@@ -62,8 +69,11 @@ func (f *Found) Failed(path string) ([]Entry, bool) {
 // cannot pull a second copy of the data or a loop into the batch; name the
 // linked folder as a path of its own to search it. Entries named *.csv
 // that are neither regular files nor links to one (a link to a folder, a
-// pipe, a device) are skipped. Every file found is opened once to check
-// that it can be read.
+// pipe, a device) are skipped. A folder below a searched folder that holds
+// a dlsbatch result set (manifest.json says so: an earlier run's output
+// moved beside the data) is left out and listed in ResultSets; a named
+// folder that is one is a problem (ErrResultSet). Every file found is
+// opened once to check that it can be read.
 //
 // Paths are recorded as the user named them: cleaned (filepath.Clean), and
 // a file found below a folder named through a link lies below the name
@@ -94,9 +104,14 @@ func Discover(paths []string) *Found {
 			problem(root, fmt.Errorf("not a regular file or a folder (%s): %w", info.Mode().Type(), ErrNotRegular))
 			continue
 		}
+		if isResultSet(root) {
+			problem(root, fmt.Errorf("%s is %w", root, ErrResultSet))
+			continue
+		}
 		f.walk(root, problem)
 	}
 	f.Files = sortUnique(f.Files, func(s string) string { return s })
+	f.ResultSets = sortUnique(f.ResultSets, func(s string) string { return s })
 	f.Problems = sortUnique(f.Problems, func(e Entry) string { return e.File })
 	return f
 }
@@ -104,6 +119,29 @@ func Discover(paths []string) *Found {
 // ErrNotRegular marks an input path that is neither a regular file nor a
 // folder (a pipe, a socket, a device).
 var ErrNotRegular = errors.New("not a regular file")
+
+// ErrResultSet marks an input folder that is a dlsbatch result set.
+var ErrResultSet = errors.New("a dlsbatch result set (its manifest.json says so), not a folder of correlograms: name the folder of the measurements")
+
+// isResultSet reports whether the folder dir holds a dlsbatch result set:
+// a manifest.json whose first member is "tool": "dlsbatch".
+func isResultSet(dir string) bool {
+	f, err := plainfile.Open(filepath.Join(dir, "manifest.json"))
+	if err != nil {
+		return false
+	}
+	defer f.Close()
+	head := make([]byte, 512)
+	n, _ := io.ReadFull(f, head)
+	d := json.NewDecoder(bytes.NewReader(head[:n]))
+	var tok [3]json.Token
+	for i := range tok {
+		if tok[i], err = d.Token(); err != nil {
+			return false
+		}
+	}
+	return tok[0] == json.Delim('{') && tok[1] == "tool" && tok[2] == "dlsbatch"
+}
 
 // walk searches the folder root (which exists). A root that is a link is
 // resolved once and its target walked; paths are recorded below root.
@@ -137,7 +175,11 @@ func (f *Found) walk(root string, problem func(string, error)) {
 		}
 		hidden := path != real && strings.HasPrefix(d.Name(), ".")
 		if d.IsDir() {
-			if hidden {
+			switch {
+			case hidden:
+				return fs.SkipDir
+			case path != real && isResultSet(path):
+				f.ResultSets = append(f.ResultSets, named(path))
 				return fs.SkipDir
 			}
 			return nil

@@ -70,6 +70,34 @@ func TestDiscover(t *testing.T) {
 	}
 }
 
+// TestDiscoverResultSets: a folder below the searched one that holds a
+// dlsbatch result set (an earlier run's output moved beside the data) is
+// left out, its results.csv and samples.csv with it, and listed; a folder
+// with another program's manifest.json is searched; a result set named as
+// the input folder is a problem wrapping ErrResultSet.
+func TestDiscoverResultSets(t *testing.T) {
+	dir := t.TempDir()
+	tree(t, dir, "a.csv", "old-results/results.csv", "old-results/samples.csv", "other/manifest.csv", "other/b.csv")
+	j := func(s string) string { return filepath.Join(dir, s) }
+	for name, body := range map[string]string{
+		"old-results/manifest.json": "{\n \"tool\": \"dlsbatch\",\n \"version\": \"x\"\n}\n",
+		"other/manifest.json":       `{"tool": "something else"}`,
+	} {
+		if err := os.WriteFile(j(name), []byte(body), 0o644); err != nil {
+			t.Fatal(err)
+		}
+	}
+	got := csvdata.Discover([]string{dir})
+	want := []string{j("a.csv"), j("other/b.csv"), j("other/manifest.csv")}
+	if !reflect.DeepEqual(got.Files, want) || !reflect.DeepEqual(got.ResultSets, []string{j("old-results")}) || len(got.Problems) != 0 {
+		t.Errorf("files %q, result sets %q, problems %q; want %q and the old results left out", got.Files, got.ResultSets, problemFiles(got), want)
+	}
+	named := csvdata.Discover([]string{j("old-results")})
+	if len(named.Files) != 0 || len(named.Problems) != 1 || !errors.Is(named.Problems[0].Err, csvdata.ErrResultSet) {
+		t.Errorf("a result set named as input: files %q, problems %v; want one problem wrapping ErrResultSet", named.Files, named.Problems)
+	}
+}
+
 // Every input that cannot be read is a problem with the path and a reason;
 // the other inputs are still found. The cases are built with real links in
 // a temporary folder; the behaviour expected is that of POSIX path
