@@ -13,6 +13,7 @@ import (
 	"encoding/json"
 	"errors"
 	"fmt"
+	"path/filepath"
 	"runtime/trace"
 	"sort"
 	"sync"
@@ -140,10 +141,21 @@ func Run(ctx context.Context, cfg *Config) (*Outcome, error) {
 	for _, d := range found.ResultSets {
 		warn(nm.Rel(d) + ": left out: a dlsbatch result set, not correlograms")
 	}
-	if cfg.Accept != nil {
+	// The run's own tables are no correlograms where they lie among the
+	// data (a sheet kept beside the night's files), and neither is what
+	// Accept refuses.
+	tableAt := map[string]string{} // base name → the table's path, resolved
+	for _, t := range cfg.tableFiles() {
+		tableAt[filepath.Base(t)] = absPath(t)
+	}
+	isTable := func(f string) bool {
+		t, ok := tableAt[filepath.Base(f)] // a path resolved only when its name is a table's
+		return ok && absPath(f) == t
+	}
+	if cfg.Accept != nil || len(tableAt) > 0 {
 		kept := found.Files[:0:0]
 		for _, f := range found.Files {
-			if cfg.Accept(f) {
+			if !isTable(f) && (cfg.Accept == nil || cfg.Accept(f)) {
 				kept = append(kept, f)
 			}
 		}
@@ -344,6 +356,17 @@ func settingsKey(cfg *Config, root string, tables map[string]report.FileHash) ([
 		b = append(b, "\n"+tables[t].SHA256...)
 	}
 	return b, nil
+}
+
+// absPath is path made absolute, with its links resolved where it can be.
+func absPath(path string) string {
+	if p, err := filepath.EvalSymlinks(path); err == nil {
+		path = p
+	}
+	if p, err := filepath.Abs(path); err == nil {
+		return p
+	}
+	return path
 }
 
 // tableFiles lists the tables a run was given (sheet, specification,

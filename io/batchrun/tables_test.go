@@ -67,3 +67,57 @@ func TestTableEditedDuringRun(t *testing.T) {
 		t.Errorf("warnings %q: want one naming the edited sheet", warnings)
 	}
 }
+
+// TestTablesBesideTheData: a sample sheet and a specification kept in the
+// input folder, beside the night's files (a common layout), are the run's
+// tables and not correlograms: no result rows, no warnings of the sheet
+// about them, and the manifest lists them as tables, not as inputs.
+func TestTablesBesideTheData(t *testing.T) {
+	in := t.TempDir()
+	demo, _ := filepath.Glob(filepath.Join("..", "..", "testdata", "demo", "0[2-4]_*.csv"))
+	for _, f := range demo {
+		b, err := os.ReadFile(f)
+		if err != nil {
+			t.Fatal(err)
+		}
+		if err := os.WriteFile(filepath.Join(in, filepath.Base(f)), b, 0o644); err != nil {
+			t.Fatal(err)
+		}
+	}
+	sheetFile, specFile := filepath.Join(in, "sheet.csv"), filepath.Join(in, "spec.csv")
+	if err := os.WriteFile(sheetFile, []byte("file,product\n*.csv,gold\n"), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	if err := os.WriteFile(specFile, []byte("product,quantity,min,max\ngold,pdi,,0.2\n"), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	sh, err := sheet.ReadFile(sheetFile)
+	if err != nil {
+		t.Fatal(err)
+	}
+	var warnings []string
+	out := filepath.Join(t.TempDir(), "out")
+	// Named through a path of its own (./), as a user may type it.
+	cfg := &Config{Paths: []string{in}, Out: out, Settings: batch.DefaultSettings(), Workers: 1,
+		SheetFile: filepath.Join(in, ".", "sheet.csv"), Sheet: sh, SpecFile: specFile,
+		Warn: func(msg string) { warnings = append(warnings, msg) }}
+	o, err := Run(context.Background(), cfg)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if len(o.Results) != len(demo) {
+		t.Errorf("%d results, want the %d correlograms alone", len(o.Results), len(demo))
+	}
+	for _, w := range warnings {
+		if strings.Contains(w, "sheet.csv") || strings.Contains(w, "spec.csv") {
+			t.Errorf("warning about a table: %s", w)
+		}
+	}
+	var m report.Manifest
+	if b, err := os.ReadFile(filepath.Join(out, report.ManifestJSON)); err != nil || json.Unmarshal(b, &m) != nil {
+		t.Fatalf("manifest: %v", err)
+	}
+	if len(m.Inputs) != len(demo) || len(m.Tables) != 2 {
+		t.Errorf("manifest: %d inputs and %d tables, want %d and 2", len(m.Inputs), len(m.Tables), len(demo))
+	}
+}
