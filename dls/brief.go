@@ -17,6 +17,8 @@ type Brief struct {
 	Status  Status
 	Role    Role
 	Flags   []Flag
+	// DataSHA256 is Result.DataSHA256.
+	DataSHA256 string
 
 	HasConditions, HasCumulants, HasDistribution, HasCountRate bool
 
@@ -36,7 +38,7 @@ type Brief struct {
 func (r *Result) Brief() *Brief {
 	return &Brief{
 		File: r.File, Sample: r.Sample, Run: r.Run, Lot: r.Lot, Product: r.Product, Group: r.Group,
-		Status: r.Status, Role: r.Role, Flags: r.Flags,
+		Status: r.Status, Role: r.Role, Flags: r.Flags, DataSHA256: r.DataSHA256,
 		HasConditions: r.HasConditions, HasCumulants: r.HasCumulants, HasDistribution: r.HasDistribution,
 		HasCountRate: r.HasCountRate, TemperatureC: r.TemperatureC, AngleDeg: r.AngleDeg,
 		ZAvgNm: r.ZAvgNm, PDI: r.PDI, CountRateKcps: r.CountRateKcps, Intensity: r.Intensity, PeakNoise: r.PeakNoise,

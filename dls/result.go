@@ -1,6 +1,9 @@
 package dls
 
 import (
+	"crypto/sha256"
+	"encoding/binary"
+	"encoding/hex"
 	"math"
 	"reflect"
 )
@@ -55,9 +58,33 @@ type Identity struct {
 	Product string `json:"product"`
 	Role    Role   `json:"role"`
 	Group   string `json:"group"`
+	// DataSHA256 is the SHA-256 of the measurement's lags and correlation
+	// values as read (DataDigest): two measurements with the same one are
+	// the same data, whatever their files are called. Empty when nothing
+	// was read.
+	DataSHA256 string `json:"data_sha256"`
 	// Flags are the QC findings on this measurement (codes listed by
 	// `dlsbatch flags`).
 	Flags []Flag `json:"flags"`
+}
+
+// DataDigest is the SHA-256, in hex, of the lags tau and the correlation
+// values y: the bits of each float64, little-endian, the lags first ("" for
+// no values).
+func DataDigest(tau, y []float64) string {
+	if len(y) == 0 {
+		return ""
+	}
+	h := sha256.New()
+	buf := make([]byte, 0, 8*(len(tau)+len(y)))
+	for _, v := range tau {
+		buf = binary.LittleEndian.AppendUint64(buf, math.Float64bits(v))
+	}
+	for _, v := range y {
+		buf = binary.LittleEndian.AppendUint64(buf, math.Float64bits(v))
+	}
+	h.Write(buf)
+	return hex.EncodeToString(h.Sum(nil))
 }
 
 // Conditions are the measurement conditions used (valid when

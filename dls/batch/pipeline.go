@@ -98,6 +98,8 @@ func Analyze(m *dls.Measurement, s *Settings) *dls.Result {
 			Product: meta.String(dls.KeyProduct),
 			Role:    dls.Role(strings.ToLower(meta.String(dls.KeyRole))),
 			Group:   meta.String(dls.KeyGroup),
+			// The data as read, before any normalisation.
+			DataSHA256: dls.DataDigest(m.TauS, m.Corr),
 		},
 		Cumulants: dls.Cumulants{CorrelationColumn: m.CorrColumn, CorrelationKind: m.Kind.String()},
 		Params:    meta.Params(),

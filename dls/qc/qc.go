@@ -66,6 +66,17 @@ const (
 	// photon-level simulated correlator noise, DEVELOPERS.md "Peaks you
 	// can believe").
 	PeakNoiseMixed Code = "PEAK-NOISE-MIXED"
+	// DuplicateRun marks a run of a sample whose data (lags and
+	// correlation values, to the last bit) are those of an earlier run of
+	// the same sample: a file copied, a column pasted twice. The copy is
+	// left out of the sample's statistics, so that it cannot stand for a
+	// repeat (a runs limit met by a copy, a repeatability too good).
+	DuplicateRun Code = "DUPLICATE-RUN"
+	// DuplicateData marks a sample one of whose runs has the data of a run
+	// of another sample (or of another block of a reference): one set of
+	// data under two names. A specification's verdict on the sample is
+	// invalid (package dls/spec).
+	DuplicateData Code = "DUPLICATE-DATA"
 	// Blank marks every analysed run of role blank: what its fit calls a
 	// size is the dispersant's own signal (solvent density fluctuations,
 	// stray light, a few stray particles), not a particle size.
@@ -150,6 +161,8 @@ func Definitions(t Thresholds) []Definition {
 		{HighRSD, "sample", "poor repeatability of the z-average", fmt.Sprintf("RSD > %g %%", t.MaxRSDPct)},
 		{NoValidRuns, "sample", "no run of the sample could be analysed", "runs used = 0"},
 		{PeakNoiseMixed, "sample", "peak uncertainties from the residuals, the sample's others from the model: likely too small", "residuals in a run, the model in ≥ half of those with a distribution"},
+		{DuplicateRun, "sample", "a run is a copy of another run of the sample: left out of its statistics", "the same lags and correlation values to the last bit (data_sha256)"},
+		{DuplicateData, "sample", "a run has the data of another sample's run: the verdict is invalid", "the same lags and correlation values to the last bit (data_sha256)"},
 		{Blank, "run", "a blank (dispersant only): its fitted size is the dispersant's signal, not a particle size", "role blank, analysed"},
 		{BlankScatter, "run", "a blank scatters more than clean dispersant: dirty solvent, cell or filter", fmt.Sprintf("role blank, count rate > %g kcps", t.MaxBlankCountRateKcps)},
 	}
@@ -269,13 +282,32 @@ func Aggregate(results []*dls.Brief, o Options) []*dls.Sample {
 		}
 		s.Runs = append(s.Runs, i)
 	}
+	twins := dataTwins(results)
 	out := make([]*dls.Sample, 0, len(order))
 	for _, k := range order {
 		s := by[k]
-		aggregate(s, results, o)
+		aggregate(s, results, o, twins)
 		out = append(out, s)
 	}
 	return out
+}
+
+// dataTwins maps each result that shares its data (DataSHA256) with
+// others to the first of them in results order, that first to itself.
+func dataTwins(results []*dls.Brief) map[int]int {
+	first := map[string]int{}
+	twins := map[int]int{}
+	for i, r := range results {
+		if r == nil || r.DataSHA256 == "" {
+			continue
+		}
+		if j, ok := first[r.DataSHA256]; ok {
+			twins[i], twins[j] = j, j
+		} else {
+			first[r.DataSHA256] = i
+		}
+	}
+	return twins
 }
 
 // Block aggregates the given runs (indices into results, in any order) as
@@ -286,24 +318,39 @@ func Block(results []*dls.Brief, runs []int, o Options) *dls.Sample {
 	r := results[runs[0]]
 	s := &dls.Sample{Name: r.Sample, Lot: r.Lot, Product: r.Product, Role: r.Role, Group: r.Group,
 		OutliersExcluded: o.ExcludeOutliers, Runs: append([]int(nil), runs...)}
-	aggregate(s, results, o)
+	aggregate(s, results, o, dataTwins(results))
 	return s
 }
 
-func aggregate(s *dls.Sample, results []*dls.Brief, o Options) {
+func aggregate(s *dls.Sample, results []*dls.Brief, o Options, twins map[int]int) {
 	t := o.Thresholds
 	s.NRuns = len(s.Runs)
 	var ok []int
 	temps := map[float64]bool{}
+	mine := map[int]bool{}
+	for _, i := range s.Runs {
+		mine[i] = true
+	}
 	for _, i := range s.Runs {
 		r := results[i]
-		if r.HasCumulants {
-			ok = append(ok, i)
-			temps[math.Round(r.TemperatureC*100)/100] = true
-		}
 		for _, f := range r.Flags {
 			s.Flags = append(s.Flags, dls.Flag{Code: f.Code, Message: r.RunID() + ": " + f.Message})
 		}
+		if !r.HasCumulants {
+			continue
+		}
+		if first, twin := twins[i]; twin {
+			others := twinsOf(first, twins, results, mine)
+			if first != i && mine[first] {
+				s.Flags = append(s.Flags, dls.Flag{Code: DuplicateRun, Message: fmt.Sprintf("%s: the same data as %s: left out of the statistics", r.RunID(), results[first].RunID())})
+				continue
+			}
+			if len(others) > 0 {
+				s.Flags = append(s.Flags, dls.Flag{Code: DuplicateData, Message: fmt.Sprintf("%s: the same data as %s", r.RunID(), strings.Join(others, ", "))})
+			}
+		}
+		ok = append(ok, i)
+		temps[math.Round(r.TemperatureC*100)/100] = true
 	}
 	for tc := range temps {
 		s.TemperaturesC = append(s.TemperaturesC, tc)
@@ -372,6 +419,24 @@ func aggregate(s *dls.Sample, results []*dls.Brief, o Options) {
 	if s.NUsed >= 2 && s.ZAvgRSDPct > t.MaxRSDPct {
 		s.Flags = append(s.Flags, dls.Flag{Code: HighRSD, Message: fmt.Sprintf("z-average RSD %.1f %% > %g %%", s.ZAvgRSDPct, t.MaxRSDPct)})
 	}
+}
+
+// twinsOf names the results with the data of first (their twin class)
+// that are not of the sample mine, with their sample where it differs.
+func twinsOf(first int, twins map[int]int, results []*dls.Brief, mine map[int]bool) []string {
+	var out []string
+	for j, f := range twins {
+		if f == first && !mine[j] {
+			r := results[j]
+			name := fmt.Sprintf("sample %q", r.Sample)
+			if r.Lot != "" {
+				name += ", lot " + r.Lot
+			}
+			out = append(out, r.RunID()+" ("+name+")")
+		}
+	}
+	sort.Strings(out)
+	return out
 }
 
 // peakNoiseMixed flags the runs of s whose peak uncertainties fell back to

@@ -3,6 +3,7 @@ package qc
 import (
 	"fmt"
 	"math"
+	"reflect"
 	"strings"
 	"testing"
 
@@ -233,4 +234,48 @@ func TestPeakNoiseMixed(t *testing.T) {
 			}
 		}
 	}
+}
+
+// TestDuplicateData: runs are told apart by their data (data_sha256), not
+// by their files. In a sample of three runs whose third is a copy of the
+// first, the copy is flagged DUPLICATE-RUN and left out: two runs used,
+// FEW-RUNS at the default 3, the mean over the two. A run with the data of
+// another sample's run flags DUPLICATE-DATA on both samples, naming the
+// other, and both runs stay in their statistics. Runs without a digest
+// (nothing read) are never twins.
+func TestDuplicateData(t *testing.T) {
+	mk := func(file, sample, data string, z float64) *dls.Result {
+		r := clean()
+		r.File, r.Sample, r.DataSHA256, r.ZAvgNm = file, sample, data, z
+		return r
+	}
+	rs := []*dls.Result{
+		mk("a.csv", "lot A", "d1", 100), mk("b.csv", "lot A", "d2", 102), mk("c.csv", "lot A", "d1", 100), // c copies a
+		mk("x.csv", "lot B", "d3", 50), mk("y.csv", "lot B", "d2", 102), // y has b's data
+		mk("p.csv", "lot C", "", 80), mk("q.csv", "lot C", "", 80), // no digests
+	}
+	s := Aggregate(dls.Briefs(rs), Options{Thresholds: DefaultThresholds()})
+	a, b, c := s[0], s[1], s[2]
+	if a.NUsed != 2 || !reflect.DeepEqual(a.Used, []int{0, 1}) || math.Abs(a.ZAvgMeanNm-101) > 1e-12 {
+		t.Errorf("lot A: used %v (n %d), mean %g; want a and b, mean 101", a.Used, a.NUsed, a.ZAvgMeanNm)
+	}
+	if !hasMessage(a.Flags, DuplicateRun, "c.csv: the same data as a.csv") || !hasFlag(a.Flags, FewRuns) {
+		t.Errorf("lot A flags %v: want DUPLICATE-RUN naming c.csv and a.csv, and FEW-RUNS", a.Flags)
+	}
+	if !hasMessage(a.Flags, DuplicateData, `b.csv: the same data as y.csv (sample "lot B")`) ||
+		!hasMessage(b.Flags, DuplicateData, `y.csv: the same data as b.csv (sample "lot A")`) || b.NUsed != 2 {
+		t.Errorf("lots A and B: flags %v / %v, B used %d; want DUPLICATE-DATA on both, naming the other", a.Flags, b.Flags, b.NUsed)
+	}
+	if hasFlag(c.Flags, DuplicateRun) || hasFlag(c.Flags, DuplicateData) || c.NUsed != 2 {
+		t.Errorf("lot C without digests: flags %v, used %d", c.Flags, c.NUsed)
+	}
+}
+
+func hasMessage(f []dls.Flag, code Code, msg string) bool {
+	for _, x := range f {
+		if x.Code == code && strings.Contains(x.Message, msg) {
+			return true
+		}
+	}
+	return false
 }

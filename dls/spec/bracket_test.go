@@ -264,3 +264,36 @@ func TestReferenceRoleSlip(t *testing.T) {
 		}
 	}
 }
+
+// TestCopiedData: a night whose end reference block is a copy of its
+// start block (the same data under other file names) would show no drift
+// by construction; the end block's verdict is invalid, and so is the
+// batch. A lot whose run has another lot's data is invalid, not passed.
+func TestCopiedData(t *testing.T) {
+	drift := Limit{Product: "latex-60", Quantity: QuantityDrift, Max: 2, HasMax: true, Text: "≤ 2"}
+	gold2 := Limit{Product: "gold2", Quantity: "z_avg_nm", Min: 18, Max: 22, HasMin: true, HasMax: true, Text: "18 … 22"}
+	res := night("R:62", "R:62.4", "S:20", "S:20.2", "S:20", "R:62", "R:62.4")
+	for i, d := range []string{"r1", "r2", "s1", "s2", "s3", "r1", "r2"} { // the end block copies the start
+		res[i].DataSHA256 = d
+	}
+	res[4].Sample, res[4].Product, res[4].DataSHA256 = "lot 2", "gold2", "s1" // lot 2 has lot 1's first run
+	o := qc.Options{Thresholds: qc.DefaultThresholds()}
+	samples := qc.Aggregate(dls.Briefs(res), o)
+	b := EvaluateRun(nightSpec(drift, gold2), samples, Run{Results: dls.Briefs(res), QC: o})
+	if b.Valid || len(b.ReferenceBlocks) != 2 || b.ReferenceBlocks[1].Verdict.Outcome != dls.VerdictInvalid {
+		t.Errorf("copied end block: batch valid %v, blocks %+v; want the end block invalid and the batch invalid", b.Valid, b.ReferenceBlocks)
+	}
+	lots := 0
+	for _, s := range samples {
+		if s.Role != dls.RoleSample {
+			continue
+		}
+		lots++ // lot 1 and lot 2 share a run's data: neither is judged
+		if s.Verdict == nil || s.Verdict.Outcome != dls.VerdictInvalid || !strings.Contains(s.Verdict.Reason, "data of another sample") {
+			t.Errorf("%s: verdict %+v, want invalid: data of another sample", s.Name, s.Verdict)
+		}
+	}
+	if lots != 2 {
+		t.Errorf("%d lots, want 2", lots)
+	}
+}

@@ -613,6 +613,17 @@ func verdict(smp *dls.Sample, limits []Limit, results []*dls.Brief, load func(in
 		v.Outcome = dls.VerdictFail
 		v.Reason = strings.Join(failed, "; ")
 	}
+	// Data under two names judge neither: which sample they are is not known.
+	var dup []string
+	for _, f := range smp.Flags {
+		if f.Code == qc.DuplicateData {
+			dup = append(dup, f.Message)
+		}
+	}
+	if len(dup) > 0 {
+		v.Outcome = dls.VerdictInvalid
+		v.Reason = "data of another sample: " + strings.Join(append(dup, failed...), "; ")
+	}
 	return v
 }
 

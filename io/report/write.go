@@ -244,9 +244,16 @@ func writeSummary(w io.Writer, results []*dls.Brief, samples []*dls.Sample, b sp
 		} else {
 			fmt.Fprintf(w, "BATCH INVALID: %s\n", safetext.Terminal(b.Reason))
 		}
+		// The reasons of failed samples, and in a valid batch those of
+		// samples invalid on their own (bracketing, data of another sample);
+		// in an invalid batch every verdict is invalid for its one reason.
 		for _, smp := range samples {
-			if smp.Verdict != nil && smp.Verdict.Outcome == dls.VerdictFail {
-				fmt.Fprintf(w, "  FAIL  %s: %s\n", safetext.Terminal(smp.Name), safetext.Terminal(smp.Verdict.Reason))
+			switch v := smp.Verdict; {
+			case v == nil:
+			case v.Outcome == dls.VerdictFail:
+				fmt.Fprintf(w, "  FAIL  %s: %s\n", safetext.Terminal(smp.Name), safetext.Terminal(v.Reason))
+			case v.Outcome == dls.VerdictInvalid && b.Valid:
+				fmt.Fprintf(w, "  INVALID  %s: %s\n", safetext.Terminal(smp.Name), safetext.Terminal(v.Reason))
 			}
 		}
 	}

@@ -106,6 +106,34 @@ func TestWriteSummary(t *testing.T) {
 	}
 }
 
+// TestWriteSummaryReasons: below the table, a failed sample's reason is
+// given, and in a valid batch so is that of a sample invalid on its own
+// (bracketing, data of another sample); in an invalid batch the batch's
+// one reason stands for every sample.
+func TestWriteSummaryReasons(t *testing.T) {
+	rs := sampleResults()
+	smp := []*dls.Sample{
+		{Name: "lot 1", Verdict: &dls.Verdict{Outcome: dls.VerdictFail, Reason: "pdi 0.3 outside ≤ 0.1"}},
+		{Name: "lot 2", Verdict: &dls.Verdict{Outcome: dls.VerdictInvalid, Reason: "data of another sample: b.csv"}},
+	}
+	for _, c := range []struct {
+		batch   spec.Batch
+		invalid bool
+	}{{spec.Batch{Specified: true, Valid: true}, true}, {spec.Batch{Specified: true, Reason: "reference failed"}, false}} {
+		var b bytes.Buffer
+		if err := WriteSummary(&b, dls.Briefs(rs), smp, c.batch, nil); err != nil {
+			t.Fatal(err)
+		}
+		out := b.String()
+		if !strings.Contains(out, "  FAIL  lot 1: pdi 0.3 outside ≤ 0.1\n") {
+			t.Errorf("valid %v: no FAIL line with the reason:\n%s", c.batch.Valid, out)
+		}
+		if got := strings.Contains(out, "  INVALID  lot 2: data of another sample: b.csv\n"); got != c.invalid {
+			t.Errorf("valid %v: INVALID line shown %v, want %v:\n%s", c.batch.Valid, got, c.invalid, out)
+		}
+	}
+}
+
 // writeCounter counts the writes it is given.
 type writeCounter struct {
 	bytes.Buffer
