@@ -292,19 +292,22 @@ func Aggregate(results []*dls.Brief, o Options) []*dls.Sample {
 	return out
 }
 
-// dataTwins maps each result that shares its data (DataSHA256) with
-// others to the first of them in results order, that first to itself.
-func dataTwins(results []*dls.Brief) map[int]int {
-	first := map[string]int{}
-	twins := map[int]int{}
+// dataTwins groups the results that share their data (DataSHA256): it
+// maps each member of a group to the group, its members in results order.
+// Results with data of their own are in no group.
+func dataTwins(results []*dls.Brief) map[int][]int {
+	by := map[string][]int{}
 	for i, r := range results {
-		if r == nil || r.DataSHA256 == "" {
-			continue
+		if r != nil && r.DataSHA256 != "" {
+			by[r.DataSHA256] = append(by[r.DataSHA256], i)
 		}
-		if j, ok := first[r.DataSHA256]; ok {
-			twins[i], twins[j] = j, j
-		} else {
-			first[r.DataSHA256] = i
+	}
+	twins := map[int][]int{}
+	for _, g := range by {
+		if len(g) > 1 {
+			for _, i := range g {
+				twins[i] = g
+			}
 		}
 	}
 	return twins
@@ -322,15 +325,20 @@ func Block(results []*dls.Brief, runs []int, o Options) *dls.Sample {
 	return s
 }
 
-func aggregate(s *dls.Sample, results []*dls.Brief, o Options, twins map[int]int) {
+func aggregate(s *dls.Sample, results []*dls.Brief, o Options, twins map[int][]int) {
 	t := o.Thresholds
 	s.NRuns = len(s.Runs)
 	var ok []int
 	temps := map[float64]bool{}
+	// Of each group of runs with the same data (dataTwins) the sample keeps
+	// its first run; later ones are copies of it.
 	mine := map[int]bool{}
-	for _, i := range s.Runs {
-		mine[i] = true
+	if len(twins) > 0 {
+		for _, i := range s.Runs {
+			mine[i] = true
+		}
 	}
+	kept := map[int]int{} // a group, by its first member → the sample's run kept of it
 	for _, i := range s.Runs {
 		r := results[i]
 		for _, f := range r.Flags {
@@ -339,13 +347,13 @@ func aggregate(s *dls.Sample, results []*dls.Brief, o Options, twins map[int]int
 		if !r.HasCumulants {
 			continue
 		}
-		if first, twin := twins[i]; twin {
-			others := twinsOf(first, twins, results, mine)
-			if first != i && mine[first] {
-				s.Flags = append(s.Flags, dls.Flag{Code: DuplicateRun, Message: fmt.Sprintf("%s: the same data as %s: left out of the statistics", r.RunID(), results[first].RunID())})
+		if g := twins[i]; g != nil {
+			if j, copied := kept[g[0]]; copied {
+				s.Flags = append(s.Flags, dls.Flag{Code: DuplicateRun, Message: fmt.Sprintf("%s: the same data as %s: left out of the statistics", r.RunID(), results[j].RunID())})
 				continue
 			}
-			if len(others) > 0 {
+			kept[g[0]] = i
+			if others := othersOf(g, results, mine); len(others) > 0 {
 				s.Flags = append(s.Flags, dls.Flag{Code: DuplicateData, Message: fmt.Sprintf("%s: the same data as %s", r.RunID(), strings.Join(others, ", "))})
 			}
 		}
@@ -421,21 +429,21 @@ func aggregate(s *dls.Sample, results []*dls.Brief, o Options, twins map[int]int
 	}
 }
 
-// twinsOf names the results with the data of first (their twin class)
-// that are not of the sample mine, with their sample where it differs.
-func twinsOf(first int, twins map[int]int, results []*dls.Brief, mine map[int]bool) []string {
+// othersOf names the members of a group of data (dataTwins) that are not
+// runs of the sample mine, with their sample and lot.
+func othersOf(group []int, results []*dls.Brief, mine map[int]bool) []string {
 	var out []string
-	for j, f := range twins {
-		if f == first && !mine[j] {
-			r := results[j]
-			name := fmt.Sprintf("sample %q", r.Sample)
-			if r.Lot != "" {
-				name += ", lot " + r.Lot
-			}
-			out = append(out, r.RunID()+" ("+name+")")
+	for _, j := range group {
+		if mine[j] {
+			continue
 		}
+		r := results[j]
+		name := fmt.Sprintf("sample %q", r.Sample)
+		if r.Lot != "" {
+			name += ", lot " + r.Lot
+		}
+		out = append(out, r.RunID()+" ("+name+")")
 	}
-	sort.Strings(out)
 	return out
 }
 

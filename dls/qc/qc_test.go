@@ -253,9 +253,14 @@ func TestDuplicateData(t *testing.T) {
 		mk("a.csv", "lot A", "d1", 100), mk("b.csv", "lot A", "d2", 102), mk("c.csv", "lot A", "d1", 100), // c copies a
 		mk("x.csv", "lot B", "d3", 50), mk("y.csv", "lot B", "d2", 102), // y has b's data
 		mk("p.csv", "lot C", "", 80), mk("q.csv", "lot C", "", 80), // no digests
+		mk("e.csv", "lot E", "d4", 60), mk("f.csv", "lot F", "d4", 60), mk("g.csv", "lot F", "d4", 60), // F: E's data, twice
 	}
 	s := Aggregate(dls.Briefs(rs), Options{Thresholds: DefaultThresholds()})
-	a, b, c := s[0], s[1], s[2]
+	a, b, c, f := s[0], s[1], s[2], s[4]
+	if f.NUsed != 1 || !hasMessage(f.Flags, DuplicateRun, "g.csv: the same data as f.csv") ||
+		!hasMessage(f.Flags, DuplicateData, `f.csv: the same data as e.csv (sample "lot E")`) || !hasFlag(s[3].Flags, DuplicateData) {
+		t.Errorf("lot F (E's data twice): used %d, flags %v; want g a copy of f, f and E flagged as the same data", f.NUsed, f.Flags)
+	}
 	if a.NUsed != 2 || !reflect.DeepEqual(a.Used, []int{0, 1}) || math.Abs(a.ZAvgMeanNm-101) > 1e-12 {
 		t.Errorf("lot A: used %v (n %d), mean %g; want a and b, mean 101", a.Used, a.NUsed, a.ZAvgMeanNm)
 	}
