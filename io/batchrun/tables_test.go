@@ -14,13 +14,15 @@ import (
 	"dlsbatch/io/sheet"
 )
 
-// TestTableEditedDuringRun: a sample sheet edited while the run goes on
-// (here as the first file is analysed) does not change what the run
-// used: the manifest attests the sheet as the run read it, and the run
-// warns that the file changed.
-func TestTableEditedDuringRun(t *testing.T) {
+// demoCopies copies the demo files 02–04 (gold runs) into a
+// folder of their own and returns it with the files copied.
+func demoCopies(t *testing.T) (string, []string) {
+	t.Helper()
 	in := t.TempDir()
 	demo, _ := filepath.Glob(filepath.Join("..", "..", "testdata", "demo", "0[2-4]_*.csv"))
+	if len(demo) == 0 {
+		t.Fatal("no demo files")
+	}
 	for _, f := range demo {
 		b, err := os.ReadFile(f)
 		if err != nil {
@@ -30,6 +32,15 @@ func TestTableEditedDuringRun(t *testing.T) {
 			t.Fatal(err)
 		}
 	}
+	return in, demo
+}
+
+// TestTableEditedDuringRun: a sample sheet edited while the run goes on
+// (here as the first file is analysed) does not change what the run
+// used: the manifest attests the sheet as the run read it, and the run
+// warns that the file changed.
+func TestTableEditedDuringRun(t *testing.T) {
+	in, _ := demoCopies(t)
 	sheetFile := filepath.Join(t.TempDir(), "sheet.csv")
 	if err := os.WriteFile(sheetFile, []byte("file,lot\n*.csv,L1\n"), 0o644); err != nil {
 		t.Fatal(err)
@@ -73,17 +84,7 @@ func TestTableEditedDuringRun(t *testing.T) {
 // tables and not correlograms: no result rows, no warnings of the sheet
 // about them, and the manifest lists them as tables, not as inputs.
 func TestTablesBesideTheData(t *testing.T) {
-	in := t.TempDir()
-	demo, _ := filepath.Glob(filepath.Join("..", "..", "testdata", "demo", "0[2-4]_*.csv"))
-	for _, f := range demo {
-		b, err := os.ReadFile(f)
-		if err != nil {
-			t.Fatal(err)
-		}
-		if err := os.WriteFile(filepath.Join(in, filepath.Base(f)), b, 0o644); err != nil {
-			t.Fatal(err)
-		}
-	}
+	in, demo := demoCopies(t)
 	sheetFile, specFile := filepath.Join(in, "sheet.csv"), filepath.Join(in, "spec.csv")
 	if err := os.WriteFile(sheetFile, []byte("file,product\n*.csv,gold\n"), 0o644); err != nil {
 		t.Fatal(err)
