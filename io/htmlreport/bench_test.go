@@ -87,7 +87,8 @@ func BenchmarkPlotRun(b *testing.B) {
 }
 
 // BenchmarkPageResult reads one run's full record back for its page, as
-// the pages of a run do (the compact copy given, the grids shared).
+// the pages of a run do (the compact copy given, the grids shared);
+// /unplotted reads it for a run the page does not plot.
 func BenchmarkPageResult(b *testing.B) {
 	r := synthReport(1, 10)
 	var raw [][]byte
@@ -98,13 +99,21 @@ func BenchmarkPageResult(b *testing.B) {
 		}
 		raw = append(raw, enc)
 	}
-	var arena []float64
-	grids := &gridCache{}
-	b.ReportAllocs()
-	for i := 0; b.Loop(); i++ {
-		k := i % len(raw)
-		if _, err := pageResult(r.Results[k], raw[k], &arena, grids); err != nil {
-			b.Fatal(err)
+	for _, plots := range []bool{true, false} {
+		name := "plotted"
+		if !plots {
+			name = "unplotted"
 		}
+		b.Run(name, func(b *testing.B) {
+			var arena []float64
+			grids := &gridCache{}
+			b.ReportAllocs()
+			for i := 0; b.Loop(); i++ {
+				k := i % len(raw)
+				if _, err := pageRecord(r.Results[k], raw[k], &arena, grids, plots); err != nil {
+					b.Fatal(err)
+				}
+			}
+		})
 	}
 }

@@ -404,7 +404,8 @@ func buildSample(r *Report, i int, w *writer) (samplePage, error) {
 		limit = DefaultMaxPlotRuns
 	}
 	for k, idx := range s.Runs {
-		res, err := r.result(idx, w)
+		plot := limit < 0 || k < limit
+		res, err := r.result(idx, w, plot)
 		if err != nil {
 			return p, err
 		}
@@ -426,7 +427,6 @@ func buildSample(r *Report, i int, w *writer) (samplePage, error) {
 			Warnings:    res.Warnings,
 			Assumptions: res.Assumptions,
 		}
-		plot := limit < 0 || k < limit
 		if plot {
 			p.Plotted++
 		}
@@ -436,8 +436,9 @@ func buildSample(r *Report, i int, w *writer) (samplePage, error) {
 }
 
 // result returns result idx whole: from its record (read into w's
-// buffer), through Load, or as Results holds it.
-func (r *Report) result(idx int, w *writer) (*dls.Result, error) {
+// buffer; without its curves and distribution unless it is plotted),
+// through Load, or as Results holds it.
+func (r *Report) result(idx int, w *writer, plotted bool) (*dls.Result, error) {
 	switch {
 	case r.LoadRecord != nil:
 		raw, err := r.LoadRecord(idx, w.rec[:0])
@@ -449,7 +450,7 @@ func (r *Report) result(idx int, w *writer) (*dls.Result, error) {
 		if r.Results != nil {
 			compact = r.Results[idx]
 		}
-		return pageResult(compact, raw, &w.arena, &w.grids)
+		return pageRecord(compact, raw, &w.arena, &w.grids, plotted)
 	case r.Load != nil:
 		return r.Load(idx)
 	}

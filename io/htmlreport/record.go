@@ -30,6 +30,8 @@ type pageParts struct {
 	// base, when set, receives the record's other fields that a page
 	// shows (see pageFields); encoding/json never sets it.
 	base *dls.Result
+	// noPlots skips the curves and the distribution (decode).
+	noPlots bool
 
 	Params       []dls.Param     `json:"params"`
 	Warnings     []string        `json:"warnings"`
@@ -52,7 +54,14 @@ type distParts struct {
 // nil, the record gives the rest too: every field a page shows (see
 // pageFields).
 func pageResult(c *dls.Result, raw []byte, arena *[]float64, grids *gridCache) (*dls.Result, error) {
-	var p pageParts
+	return pageRecord(c, raw, arena, grids, true)
+}
+
+// pageRecord is pageResult; without plots, the record's curves and
+// distribution, which only the plots draw, are skipped, not read (a page
+// plots at most MaxPlotRuns of its runs).
+func pageRecord(c *dls.Result, raw []byte, arena *[]float64, grids *gridCache, plots bool) (*dls.Result, error) {
+	p := pageParts{noPlots: !plots}
 	if c == nil {
 		p.base = &dls.Result{}
 	}
@@ -227,6 +236,14 @@ func (p *pageParts) decode(b []byte, arena *[]float64, grids *gridCache) error {
 	}
 	err := s.object(func(key []byte) error {
 		switch {
+		case p.noPlots && (keyIs(key, "curves") || keyIs(key, "distribution")):
+			if s.null() {
+				return nil
+			}
+			// Member by member, so that each array of numbers is passed by
+			// a byte search (skip); the object whole would go a byte at a
+			// time, slower than reading its numbers.
+			return s.object(func([]byte) error { return s.skip() })
 		case keyIs(key, "curves"):
 			if s.null() {
 				p.Curves = nil

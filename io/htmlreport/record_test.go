@@ -393,5 +393,14 @@ func FuzzPageRecord(f *testing.F) {
 		}
 		checkParts(t, whole, &want)
 		checkBase(t, whole, &all)
+		// For a run not plotted: the same but for its curves and
+		// distribution, which are not read.
+		unplotted, err := pageRecord(nil, raw, &arena, nil, false)
+		if err != nil {
+			t.Fatal(err)
+		}
+		want.Curves, want.Distribution = nil, nil
+		checkParts(t, unplotted, &want)
+		checkBase(t, unplotted, &all)
 	})
 }

@@ -521,6 +521,36 @@ func TestOffline(t *testing.T) {
 	}
 }
 
+// Pages that plot only some of their runs (MaxPlotRuns) read the others'
+// records without their curves and distribution: the pages are the bytes
+// of the same report drawn from the runs in memory.
+func TestUnplottedRunsFromRecords(t *testing.T) {
+	base := synthReport(7, 3)
+	base.MaxPlotRuns = 1
+	want := writeWith(t, base)
+	got := writeWith(t, withRecords(t, base))
+	if len(got) != len(want) {
+		t.Fatalf("%d files, want %d", len(got), len(want))
+	}
+	for f, b := range want {
+		if !bytes.Equal(got[f], b) {
+			t.Errorf("%s differs when its unplotted runs are read from their records", f)
+		}
+	}
+	// The skip is taken: a record read for a run not plotted has no curves.
+	raw, err := json.Marshal(base.Results[0])
+	if err != nil {
+		t.Fatal(err)
+	}
+	var arena []float64
+	for _, plots := range []bool{true, false} {
+		r, err := pageRecord(compactOf(base.Results[0]), raw, &arena, nil, plots)
+		if err != nil || (r.Curves != nil) != plots || (r.Distribution != nil) != plots || len(r.Params) == 0 {
+			t.Errorf("plots %v: curves %v, distribution %v, %d params, %v", plots, r.Curves != nil, r.Distribution != nil, len(r.Params), err)
+		}
+	}
+}
+
 // MaxPlotRuns bounds the plots on a page, not the tables.
 func TestPlotLimit(t *testing.T) {
 	r := synthReport(1, 5)
