@@ -120,6 +120,37 @@ type Param struct {
 	// Where names the place the value was taken from, e.g. "run1.csv:3" or
 	// "--set temperature_c=25".
 	Where string `json:"where"`
+	// Replaces, for a condition of the measurement (IsConditionKey) that a
+	// sample sheet or a flag sets to another value than the file states,
+	// is the file's value and where it stands, e.g. "37 (run1.csv:2)":
+	// the result then says so, for it may be a slip (--set for --default).
+	Replaces string `json:"replaces,omitempty"`
+	// fileValue and fileWhere are the file's own value of the key and its
+	// place, carried through the values that replace it.
+	fileValue, fileWhere string
+}
+
+// IsConditionKey reports whether key states a condition of the
+// measurement (temperature, optics, medium, particles, acquisition) rather
+// than naming it (sample, run, lot, product, role, group, time).
+func IsConditionKey(key string) bool {
+	switch key {
+	case KeySample, KeyRun, KeyLot, KeyProduct, KeyRole, KeyGroup, KeyMeasuredAt:
+		return false
+	}
+	return IsMetadataKey(key)
+}
+
+// sameValue reports whether two texts of key state the same value: equal
+// numbers where both read as numbers, else equal ignoring letter case.
+func sameValue(a, b string) bool {
+	a, b = strings.TrimSpace(a), strings.TrimSpace(b)
+	if x, err := ParseNumber(a); err == nil {
+		if y, err := ParseNumber(b); err == nil {
+			return x == y
+		}
+	}
+	return strings.EqualFold(a, b)
 }
 
 // Metadata is a set of parameters keyed by name. The zero value is empty
@@ -135,8 +166,21 @@ func (md *Metadata) Set(p Param) {
 	if md.m == nil {
 		md.m = make(map[string]Param)
 	}
-	if old, ok := md.m[p.Key]; ok && old.Origin.rank() > p.Origin.rank() {
-		return
+	if old, ok := md.m[p.Key]; ok {
+		if old.Origin.rank() > p.Origin.rank() {
+			return
+		}
+		// What the file stated, kept through a sheet's value and a flag's.
+		p.Replaces, p.fileValue, p.fileWhere = "", "", ""
+		if p.Origin.rank() > OriginFile.rank() {
+			p.fileValue, p.fileWhere = old.fileValue, old.fileWhere
+			if old.Origin == OriginFile {
+				p.fileValue, p.fileWhere = old.Value, old.Where
+			}
+		}
+		if p.fileWhere != "" && IsConditionKey(p.Key) && !sameValue(p.fileValue, p.Value) {
+			p.Replaces = p.fileValue + " (" + p.fileWhere + ")"
+		}
 	}
 	md.m[p.Key] = p
 }

@@ -109,3 +109,44 @@ func TestMetadataPrecedence(t *testing.T) {
 		t.Error("non-numeric value accepted")
 	}
 }
+
+// TestConditionReplaced: a condition that a sheet or a flag sets to
+// another value than the file states keeps the file's value and place in
+// Replaces, through a sheet's value and then a flag's; the same value in
+// another spelling, a name (not a condition), a later line of the same
+// file and a default replace nothing that needs saying.
+func TestConditionReplaced(t *testing.T) {
+	file := Param{Key: KeyTemperatureC, Value: "37", Origin: OriginFile, Where: "a.csv:2"}
+	cases := []struct {
+		name string
+		set  []Param
+		want string
+	}{
+		{"flag", []Param{{Key: KeyTemperatureC, Value: "25", Origin: OriginFlag}}, "37 (a.csv:2)"},
+		{"sheet then flag", []Param{{Key: KeyTemperatureC, Value: "30", Origin: OriginSheet}, {Key: KeyTemperatureC, Value: "25", Origin: OriginFlag}}, "37 (a.csv:2)"},
+		{"sheet, then a flag back to the file's", []Param{{Key: KeyTemperatureC, Value: "30", Origin: OriginSheet}, {Key: KeyTemperatureC, Value: "37.0", Origin: OriginFlag}}, ""},
+		{"same number", []Param{{Key: KeyTemperatureC, Value: "3.7e1", Origin: OriginSheet}}, ""},
+		{"later line", []Param{{Key: KeyTemperatureC, Value: "25", Origin: OriginFile, Where: "a.csv:9"}}, ""},
+		{"default", []Param{{Key: KeyTemperatureC, Value: "25", Origin: OriginDefault}}, ""},
+	}
+	for _, c := range cases {
+		var md Metadata
+		md.Set(file)
+		for _, p := range c.set {
+			md.Set(p)
+		}
+		if p, _ := md.Get(KeyTemperatureC); p.Replaces != c.want {
+			t.Errorf("%s: Replaces %q, want %q", c.name, p.Replaces, c.want)
+		}
+	}
+	var md Metadata
+	md.Set(Param{Key: KeySample, Value: "x", Origin: OriginFile, Where: "a.csv:1"})
+	md.Set(Param{Key: KeySample, Value: "lot 7", Origin: OriginSheet})
+	md.Set(Param{Key: KeySolvent, Value: "water", Origin: OriginFile, Where: "a.csv:3"})
+	md.Set(Param{Key: KeySolvent, Value: "Water", Origin: OriginFlag})
+	for _, k := range []string{KeySample, KeySolvent} {
+		if p, _ := md.Get(k); p.Replaces != "" {
+			t.Errorf("%s: Replaces %q, want none (a name; the same word)", k, p.Replaces)
+		}
+	}
+}

@@ -111,6 +111,14 @@ func Analyze(m *dls.Measurement, s *Settings) *dls.Result {
 	if p, ok := meta.Get(dls.KeySolvent); ok && p.Origin == dls.OriginDefault {
 		warn = append(warn, fmt.Sprintf("solvent not given: %s assumed (%s)", p.Value, p.Where))
 	}
+	// A sheet's or flag's condition that differs from the file's own is
+	// said: it may be meant (the file is wrong) or a slip (--set for
+	// --default, a sheet row matching one file too many).
+	for _, p := range meta.Params() {
+		if p.Replaces != "" {
+			warn = append(warn, fmt.Sprintf("%s %s from %s, where the file states %s", p.Key, p.Value, p.Where, p.Replaces))
+		}
+	}
 	fail := func(err error) *dls.Result {
 		var pe *dls.PosError
 		if !errors.As(err, &pe) {

@@ -340,3 +340,32 @@ func TestBlankMessage(t *testing.T) {
 		t.Errorf("blank's status %s, want warn (its BLANK flag)", blank.Status)
 	}
 }
+
+// TestOverriddenConditionSaid: a flag's temperature that differs from the
+// file's is used (flag over file) and said in the notes, with where the
+// file states its own; the same value given again says nothing.
+func TestOverriddenConditionSaid(t *testing.T) {
+	for _, c := range []struct {
+		set  string
+		note bool
+	}{{"30", true}, {"25.0", false}} {
+		s := DefaultSettings()
+		s.Overrides = []dls.Param{{Key: dls.KeyTemperatureC, Value: c.set, Origin: dls.OriginFlag, Where: "--set temperature_c=" + c.set}}
+		meta := workedMeta()
+		delete(meta, "viscosity_mpas") // the viscosity then follows the temperature
+		r := Analyze(monoMeasurement(meta), &s)
+		said := strings.Contains(strings.Join(r.Warnings, "\n"), "temperature_c "+c.set+" from --set temperature_c="+c.set+", where the file states 25 (mono.csv:")
+		if said != c.note || r.TemperatureC != mustFloat(t, c.set) {
+			t.Errorf("--set %s: temperature %g, note %v (want %v): %q", c.set, r.TemperatureC, said, c.note, r.Warnings)
+		}
+	}
+}
+
+func mustFloat(t *testing.T, s string) float64 {
+	t.Helper()
+	v, err := dls.ParseNumber(s)
+	if err != nil {
+		t.Fatal(err)
+	}
+	return v
+}

@@ -802,6 +802,8 @@ func (s *scanner) params(dst *[]dls.Param) error {
 			return err
 		case keyIs(key, "where"):
 			return s.str(&p.Where)
+		case keyIs(key, "replaces"):
+			return s.str(&p.Replaces)
 		}
 		return s.skip()
 	})

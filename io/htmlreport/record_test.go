@@ -360,6 +360,7 @@ func FuzzPageRecord(f *testing.F) {
 	f.Add(raw)
 	f.Add([]byte(`{"curves":{"tau_s":[1e-6,null,3],"Data":[1,2,3]},"PARAMS":[{"key":"a\u0041","value":"\ud83d\ude00"}],"warnings":null}`))
 	f.Add([]byte(`{"distribution":{"volume":[],"number":null},"assumptions":[],"medium":{"model":"x"}}`))
+	f.Add([]byte(`{"params":[{"key":"temperature_c","value":"25","origin":"flag","where":"--set temperature_c=25","replaces":"37 (a.csv:2)"}]}`))
 	f.Add([]byte(`{"flags":[{"code":"DUST","Message":"m"},null],"intensity":{"peaks":[{"mean_nm":1.5,"MEAN_U_NM":0.25},null],"d50_nm":3e2},"z_avg_nm":12.5}`))
 	f.Fuzz(func(t *testing.T, raw []byte) {
 		var arena []float64
